@@ -1,0 +1,37 @@
+# Springwright: `make run` opens the program on a built-in example; `make test` runs every test.
+# Both set up everything themselves: a virtual environment in .venv, the packages, and on Linux
+# the system libraries Qt's window-system plugin needs.
+
+PYTHON ?= python3
+VENV   := .venv
+BIN    := $(VENV)/bin
+STAMP  := $(VENV)/.installed
+
+.PHONY: run test setup qt-libs bench clean
+
+$(BIN)/python:
+	$(PYTHON) -m venv $(VENV)
+	$(BIN)/python -m pip install --quiet --upgrade pip
+
+$(STAMP): pyproject.toml | $(BIN)/python
+	$(BIN)/python -m pip install --quiet -e ".[test]"
+	touch $(STAMP)
+
+setup: $(STAMP)
+
+qt-libs:
+	@sh tools/qt_libs.sh
+
+run: setup qt-libs
+	$(BIN)/springwright
+
+test: setup
+	@sh tools/qt_libs.sh offscreen
+	QT_QPA_PLATFORM=offscreen $(BIN)/lint-imports --config pyproject.toml
+	QT_QPA_PLATFORM=offscreen $(BIN)/python -m pytest
+
+bench: setup
+	$(BIN)/python bench/solver_bench.py
+
+clean:
+	rm -rf $(VENV) .pytest_cache .hypothesis build *.egg-info

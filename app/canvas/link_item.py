@@ -1,0 +1,96 @@
+"""Base of the two-ended items (springs, dashpots): drawn between two node items."""
+
+from __future__ import annotations
+
+import math
+
+from PySide6.QtCore import QLineF, QPointF, QRectF, Signal
+from PySide6.QtGui import QPainterPath, QPainterPathStroker, QPen
+from PySide6.QtWidgets import QGraphicsItem, QGraphicsObject, QGraphicsSimpleTextItem
+
+from app.style import current_style
+
+
+def _edge_inset(node_item, u: QPointF) -> float:
+    """Distance from a node's centre to its outline along unit vector ``u`` (scene axes)."""
+    half = getattr(node_item, "half_size", lambda: 0.0)()
+    if half <= 0:
+        return 0.0
+    if getattr(node_item, "kind", "") == "torsion":
+        return half
+    m = max(abs(u.x()), abs(u.y()))
+    return half / m if m > 0 else half
+
+
+class LinkItem(QGraphicsObject):
+    """A spring or dashpot between node items ``a_item`` and ``b_item``; ``offset`` (scene units)
+    shifts it sideways so links in parallel between the same nodes stay apart."""
+
+    remove_requested = Signal(str)
+
+    def __init__(self, element, a_item, b_item):
+        super().__init__()
+        self.setFlags(QGraphicsItem.ItemIsSelectable)
+        self.setZValue(1)
+        self.label_item = QGraphicsSimpleTextItem(self)
+        self.offset = 0.0
+        self._path = QPainterPath()
+        self.energy_color = None
+        self.set_element(element, a_item, b_item)
+
+    def set_element(self, element, a_item, b_item):
+        self.element = element
+        self.element_id = element.id
+        self.a_item, self.b_item = a_item, b_item
+        self.label_item.setText(element.label)
+        self.label_item.setBrush(current_style().label)
+        self.setToolTip(self.tooltip_text(element))
+        self.refresh()
+
+    def tooltip_text(self, element) -> str:
+        return element.label
+
+    def build_path(self, p1: QPointF, p2: QPointF) -> QPainterPath:
+        raise NotImplementedError
+
+    def endpoints(self) -> tuple[QPointF, QPointF]:
+        c1, c2 = self.a_item.pos(), self.b_item.pos()
+        line = QLineF(c1, c2)
+        length = line.length()
+        if length == 0:
+            return c1, c2
+        u = QPointF(line.dx() / length, line.dy() / length)
+        n = QPointF(-u.y(), u.x())
+        off = QPointF(n.x() * self.offset, n.y() * self.offset)
+        i1, i2 = _edge_inset(self.a_item, u), _edge_inset(self.b_item, u)
+        if i1 + i2 > 0.8 * length:  # nodes overlap: draw centre to centre
+            i1 = i2 = 0.0
+        return (QPointF(c1.x() + u.x() * i1, c1.y() + u.y() * i1) + off,
+                QPointF(c2.x() - u.x() * i2, c2.y() - u.y() * i2) + off)
+
+    def refresh(self):
+        """Redraw between the nodes' current (possibly dragged) positions."""
+        self.prepareGeometryChange()
+        p1, p2 = self.endpoints()
+        self._path = self.build_path(p1, p2)
+        mid = QPointF((p1.x() + p2.x()) / 2, (p1.y() + p2.y()) / 2)
+        dx, dy = p2.x() - p1.x(), p2.y() - p1.y()
+        L = math.hypot(dx, dy) or 1.0
+        self.label_item.setPos(mid.x() - dy / L * 16 + 2, mid.y() + dx / L * 16 - 8)
+        self.update()
+
+    def boundingRect(self) -> QRectF:  # noqa: N802
+        return self._path.boundingRect().adjusted(-8, -8, 8, 8)
+
+    def shape(self) -> QPainterPath:
+        stroker = QPainterPathStroker()
+        stroker.setWidth(10)
+        return stroker.createStroke(self._path)
+
+    def paint(self, painter, option, widget=None):
+        st = current_style()
+        color = st.accent if self.isSelected() else (self.energy_color or st.ink)
+        pen = QPen(color, st.line_width * (1.6 if self.isSelected() else 1.0))
+        pen.setCosmetic(True)
+        painter.setPen(pen)
+        painter.drawPath(self._path)

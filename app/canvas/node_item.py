@@ -1,0 +1,61 @@
+"""Base of the node items (masses and anchors): selectable, movable, snapping, with a label."""
+
+from __future__ import annotations
+
+from PySide6.QtCore import QPointF, Signal
+from PySide6.QtGui import QPen
+from PySide6.QtWidgets import QGraphicsItem, QGraphicsObject, QGraphicsSimpleTextItem
+
+from app.style import current_style
+
+from .geometry import snap_scene, to_scene
+
+
+class NodeItem(QGraphicsObject):
+    """A drawn node. It shows an element; it is not the element (the Model is in the Document).
+
+    Gestures become requests: a move is previewed by Qt's item dragging and reported by the scene
+    on release; ``remove_requested(id)`` asks the owner to delete the element.
+    """
+
+    remove_requested = Signal(str)
+
+    def __init__(self, element, model):
+        super().__init__()
+        self.element_id = element.id
+        self.snap = True
+        self.setFlags(QGraphicsItem.ItemIsSelectable | QGraphicsItem.ItemIsMovable
+                      | QGraphicsItem.ItemSendsGeometryChanges)
+        self.setAcceptHoverEvents(True)
+        self.label_item = QGraphicsSimpleTextItem(self)
+        self.setZValue(2)
+        self.update_from(element, model)
+
+    def update_from(self, element, model):
+        """Show ``element`` of ``model`` (position, size, label)."""
+        self.element = element
+        self.prepareGeometryChange()
+        self.setFlag(QGraphicsItem.ItemSendsGeometryChanges, False)
+        self.setPos(to_scene(element.x, element.y))
+        self.setFlag(QGraphicsItem.ItemSendsGeometryChanges, True)
+        self.label_item.setText(element.label)
+        self.label_item.setBrush(current_style().label)
+        r = self.boundingRect()
+        self.label_item.setPos(r.right() + 3, r.top() - 14)
+        self.setToolTip(self.tooltip_text(element, model))
+        self.update()
+
+    def tooltip_text(self, element, model) -> str:
+        return element.label
+
+    def pen(self, color) -> QPen:
+        pen = QPen(color, current_style().line_width)
+        pen.setCosmetic(True)
+        return pen
+
+    def itemChange(self, change, value):  # noqa: N802 - Qt's name
+        if change == QGraphicsItem.ItemPositionChange and self.snap and isinstance(value, QPointF):
+            return snap_scene(value)
+        if change == QGraphicsItem.ItemPositionHasChanged and self.scene() is not None:
+            self.scene().node_item_moved(self)
+        return super().itemChange(change, value)

@@ -1,0 +1,374 @@
+"""The sketch scene: draws the document's model and turns mouse gestures into document edits.
+
+The interaction mode (:class:`Mode`) is explicit state of the scene: select/move, place mass, place
+anchor, connect with a spring, connect with a dashpot. A move is previewed by Qt's own item dragging
+(springs follow their nodes live) and becomes one document edit when the mouse is released; a
+connection is previewed as a rubber line and becomes one edit when released on a second node.
+The scene never changes the model directly: it calls the Document, which answers with
+``model_changed``, and the scene then brings its items up to date by element id.
+"""
+
+from __future__ import annotations
+
+import enum
+
+from PySide6.QtCore import QLineF, QPointF, QRectF, Qt, Signal
+from PySide6.QtGui import QPen
+from PySide6.QtWidgets import QGraphicsLineItem, QGraphicsScene
+
+from app.style import current_style
+from solver.errors import ModelError
+from solver.model import Spring
+
+from .anchor_item import AnchorItem, normal_towards
+from .dashpot_item import DashpotItem
+from .geometry import GRID_M, SCALE, snapped_model, to_model
+from .link_item import LinkItem
+from .mass_item import MassItem
+from .node_item import NodeItem
+from .spring_item import SpringItem
+
+
+class Mode(enum.Enum):
+    SELECT = "select"
+    PLACE_MASS = "place mass"
+    PLACE_ANCHOR = "place anchor"
+    CONNECT_SPRING = "connect spring"
+    CONNECT_DASHPOT = "connect dashpot"
+
+
+#: Per mode: menu text, keyboard shortcut, status-bar hint.
+MODE_INFO = {
+    Mode.SELECT: ("&Select", "S", "Select: click an element, drag to move, drag on empty canvas to"
+                  " select an area; wheel zooms, middle button pans"),
+    Mode.PLACE_MASS: ("Place &mass", "M", "Place mass: click where the mass goes (Esc: back to"
+                      " select)"),
+    Mode.PLACE_ANCHOR: ("Place &anchor", "A", "Place anchor: click where the ground point goes"
+                        " (Esc: back to select)"),
+    Mode.CONNECT_SPRING: ("Connect s&pring", "K", "Connect spring: drag from one mass or anchor"
+                          " to another (Esc: back to select)"),
+    Mode.CONNECT_DASHPOT: ("Connect &dashpot", "D", "Connect dashpot: drag from one mass or"
+                           " anchor to another (Esc: back to select)"),
+}
+
+_PARALLEL_GAP = 16.0  # scene units between links joining the same two nodes
+
+
+class ModelScene(QGraphicsScene):
+    """Scene showing ``document.model``.
+
+    Signals
+    -------
+    mode_changed(Mode)
+    status_message(str)
+        A hint or the reason an edit was refused, for the status bar.
+    selection_ids_changed(list)
+        Ids of the selected elements, after every selection change.
+    """
+
+    mode_changed = Signal(object)
+    status_message = Signal(str)
+    selection_ids_changed = Signal(list)
+
+    def __init__(self, document, parent=None):
+        super().__init__(parent)
+        self.document = document
+        self.mode = Mode.SELECT
+        self.snap = True
+        self.nodes: dict[str, NodeItem] = {}
+        self.links: dict[str, LinkItem] = {}
+        self._syncing = False
+        self._press_positions: dict[str, QPointF] | None = None
+        self._connect_from: str | None = None
+        self._preview: QGraphicsLineItem | None = None
+        self._clipboard: tuple = ()
+        self._paste_count = 0
+        self.selectionChanged.connect(self._on_selection_change)
+        document.model_changed.connect(self._on_model_change)
+        self._on_model_change(document.model)
+
+    # -- mode ---------------------------------------------------------------------------------
+    def set_mode(self, mode: Mode) -> None:
+        self._cancel_connect()
+        if mode != self.mode:
+            self.mode = mode
+            self.mode_changed.emit(mode)
+        self.status_message.emit(MODE_INFO[mode][2])
+
+    # -- model -> items -----------------------------------------------------------------------
+    def _on_model_change(self, model) -> None:
+        self._syncing = True
+        try:
+            selected = set(self.selected_ids())
+            self._sync(model)
+            for eid, item in list(self.nodes.items()) + list(self.links.items()):
+                item.setSelected(eid in selected)
+        finally:
+            self._syncing = False
+        self._update_scene_rect()
+        self._on_selection_change()
+
+    def _sync(self, model) -> None:
+        positive = [m.mass for m in model.masses if m.mass > 0]
+        reference = (sum(positive) / len(positive)) if positive else 1.0
+        node_ids = {m.id for m in model.masses} | {a.id for a in model.anchors}
+        for gone in set(self.nodes) - node_ids:
+            self.removeItem(self.nodes.pop(gone))
+        link_ids = {s.id for s in model.springs} | {d.id for d in model.dampers}
+        for gone in set(self.links) - link_ids:
+            self.removeItem(self.links.pop(gone))
+        for m in model.masses:
+            item = self.nodes.get(m.id)
+            if not isinstance(item, MassItem):
+                if item is not None:
+                    self.removeItem(item)
+                item = MassItem(m, model)
+                item.remove_requested.connect(lambda eid: self.document.remove([eid]))
+                self.addItem(item)
+                self.nodes[m.id] = item
+            item.update_from(m, model, reference_mass=reference)
+        neighbours: dict[str, str] = {}
+        for link in model.springs + model.dampers:
+            neighbours.setdefault(link.a, link.b)
+            neighbours.setdefault(link.b, link.a)
+        for a in model.anchors:
+            other = neighbours.get(a.id)
+            normal = normal_towards(a, model.node(other)) if other else None
+            item = self.nodes.get(a.id)
+            if not isinstance(item, AnchorItem):
+                if item is not None:
+                    self.removeItem(item)
+                item = AnchorItem(a, model)
+                item.remove_requested.connect(lambda eid: self.document.remove([eid]))
+                self.addItem(item)
+                self.nodes[a.id] = item
+            item.update_from(a, model, normal=normal)
+        pairs: dict[frozenset, list[str]] = {}
+        for link in model.springs + model.dampers:
+            pairs.setdefault(frozenset((link.a, link.b)), []).append(link.id)
+        for link in model.springs + model.dampers:
+            cls = SpringItem if isinstance(link, Spring) else DashpotItem
+            item = self.links.get(link.id)
+            a_item, b_item = self.nodes[link.a], self.nodes[link.b]
+            group = pairs[frozenset((link.a, link.b))]
+            i = group.index(link.id)
+            offset = (i - (len(group) - 1) / 2) * _PARALLEL_GAP
+            if link.a > link.b:  # same side whichever way the link was drawn
+                offset = -offset
+            if not isinstance(item, cls):
+                if item is not None:
+                    self.removeItem(item)
+                item = cls(link, a_item, b_item)
+                item.remove_requested.connect(lambda eid: self.document.remove([eid]))
+                self.addItem(item)
+                self.links[link.id] = item
+            item.offset = offset
+            item.set_element(link, a_item, b_item)
+
+    def _update_scene_rect(self):
+        rect = self.itemsBoundingRect()
+        if rect.isNull():
+            rect = QRectF(-200, -200, 400, 400)
+        self.setSceneRect(rect.adjusted(-3000, -3000, 3000, 3000))
+
+    def node_item_moved(self, item: NodeItem) -> None:
+        """A node is being dragged: keep the links attached to it on its preview position."""
+        for link in self.links.values():
+            if link.a_item is item or link.b_item is item:
+                link.refresh()
+
+    # -- selection ----------------------------------------------------------------------------
+    def selected_ids(self) -> list[str]:
+        ids = [i.element_id for i in self.selectedItems()
+               if isinstance(i, (NodeItem, LinkItem))]
+        order = {eid: n for n, eid in enumerate(list(self.nodes) + list(self.links))}
+        return sorted(ids, key=lambda e: order.get(e, 0))
+
+    def select_ids(self, ids) -> None:
+        ids = set(ids)
+        self._syncing = True
+        try:
+            for eid, item in list(self.nodes.items()) + list(self.links.items()):
+                item.setSelected(eid in ids)
+        finally:
+            self._syncing = False
+        self._on_selection_change()
+
+    def select_all(self) -> None:
+        self.select_ids(list(self.nodes) + list(self.links))
+
+    def _on_selection_change(self):
+        if not self._syncing:
+            self.selection_ids_changed.emit(self.selected_ids())
+
+    # -- edit actions -------------------------------------------------------------------------
+    def delete_selection(self) -> bool:
+        ids = self.selected_ids()
+        if not ids:
+            self.status_message.emit("Nothing selected to delete")
+            return False
+        return self.document.remove(ids)
+
+    def copy_selection(self) -> int:
+        """Keep copies of the selected elements (and links between selected nodes) for paste."""
+        model = self.document.model
+        ids = set(self.selected_ids())
+        nodes = [el for el in model.masses + model.anchors if el.id in ids]
+        node_ids = {n.id for n in nodes}
+        links = [el for el in model.springs + model.dampers
+                 if el.id in ids or (el.a in node_ids and el.b in node_ids)]
+        self._clipboard = tuple(nodes + links)
+        self._paste_count = 0
+        if self._clipboard:
+            self.status_message.emit(f"Copied {len(self._clipboard)} element(s)")
+        return len(self._clipboard)
+
+    def paste(self) -> list[str]:
+        if not self._clipboard:
+            self.status_message.emit("Nothing copied to paste")
+            return []
+        self._paste_count += 1
+        step = 2 * GRID_M * self._paste_count
+        try:
+            new_ids = self.document.paste(self._clipboard, offset=(step, -step))
+        except ModelError as exc:
+            self.status_message.emit(f"Paste refused: {exc}")
+            return []
+        self.select_ids(new_ids)
+        return new_ids
+
+    # -- mouse --------------------------------------------------------------------------------
+    def node_at(self, pos: QPointF, exclude: str | None = None) -> NodeItem | None:
+        for item in self.items(pos):
+            if isinstance(item, NodeItem) and item.element_id != exclude:
+                return item
+            parent = item.parentItem()
+            if isinstance(parent, NodeItem) and parent.element_id != exclude:
+                return parent
+        return None
+
+    def mousePressEvent(self, event):  # noqa: N802
+        if event.button() != Qt.LeftButton or self.mode == Mode.SELECT:
+            super().mousePressEvent(event)
+            if event.button() == Qt.LeftButton:
+                self._press_positions = {eid: QPointF(item.pos())
+                                         for eid, item in self.nodes.items() if item.isSelected()}
+            return
+        pos = event.scenePos()
+        if self.mode in (Mode.PLACE_MASS, Mode.PLACE_ANCHOR):
+            x, y = snapped_model(pos, self.snap)
+            try:
+                if self.mode == Mode.PLACE_MASS:
+                    new_id = self.document.add_mass(x, y)
+                else:
+                    new_id = self.document.add_anchor(x, y)
+            except ModelError as exc:
+                self.status_message.emit(f"Not placed: {exc}")
+            else:
+                self.select_ids([new_id])
+                self.status_message.emit(f"Placed {new_id} at x {x:.4g} m, y {y:.4g} m")
+            event.accept()
+            return
+        node = self.node_at(pos)
+        if node is None:
+            self.status_message.emit("Start the drag on a mass or an anchor")
+            event.accept()
+            return
+        self._connect_from = node.element_id
+        self._preview = QGraphicsLineItem(QLineF(node.pos(), pos))
+        pen = QPen(current_style().accent, 1.5, Qt.DashLine)
+        pen.setCosmetic(True)
+        self._preview.setPen(pen)
+        self._preview.setZValue(5)
+        self.addItem(self._preview)
+        event.accept()
+
+    def mouseMoveEvent(self, event):  # noqa: N802
+        if self._preview is not None:
+            line = self._preview.line()
+            self._preview.setLine(QLineF(line.p1(), event.scenePos()))
+            event.accept()
+            return
+        super().mouseMoveEvent(event)
+
+    def mouseReleaseEvent(self, event):  # noqa: N802
+        if self._connect_from is not None:
+            source = self._connect_from
+            target = self.node_at(event.scenePos(), exclude=source)
+            self._cancel_connect()
+            what = "spring" if self.mode == Mode.CONNECT_SPRING else "dashpot"
+            if target is None:
+                self.status_message.emit(f"No {what} added: release on a second mass or anchor")
+            else:
+                try:
+                    new_id = self.document.connect(what, source, target.element_id)
+                except ModelError as exc:
+                    self.status_message.emit(f"No {what} added: {exc}")
+                else:
+                    self.select_ids([new_id])
+                    self.status_message.emit(f"Added {what} {new_id}: {source}–{target.element_id}")
+            event.accept()
+            return
+        super().mouseReleaseEvent(event)
+        if self._press_positions:
+            self._finish_move()
+        self._press_positions = None
+
+    def _finish_move(self):
+        moved = {}
+        for eid, before in self._press_positions.items():
+            item = self.nodes.get(eid)
+            if item is not None and item.pos() != before:
+                x, y = to_model(item.pos())
+                moved[eid] = (round(x, 9), round(y, 9))
+        if not moved:
+            return
+        try:
+            self.document.move_nodes(moved, merge_key=("drag", id(self._press_positions)))
+        except ModelError as exc:
+            self.status_message.emit(f"Move refused: {exc}")
+            self._on_model_change(self.document.model)  # put the items back
+
+    def _cancel_connect(self):
+        if self._preview is not None:
+            self.removeItem(self._preview)
+        self._preview = None
+        self._connect_from = None
+
+    def keyPressEvent(self, event):  # noqa: N802
+        if event.key() == Qt.Key_Escape:
+            self.set_mode(Mode.SELECT)
+            event.accept()
+            return
+        super().keyPressEvent(event)
+
+    # -- look ---------------------------------------------------------------------------------
+    def drawBackground(self, painter, rect):  # noqa: N802
+        st = current_style()
+        painter.fillRect(rect, st.background)
+        g = GRID_M * SCALE
+        # Minor grid every snap step, a stronger line every metre; skip minor when zoomed far out.
+        scale = painter.transform().m11() or 1.0
+        pen = QPen(st.grid, 0)
+        painter.setPen(pen)
+        if g * scale >= 6:
+            left = int(rect.left() // g) * g
+            top = int(rect.top() // g) * g
+            x = left
+            lines = []
+            while x < rect.right():
+                lines.append(QLineF(x, rect.top(), x, rect.bottom()))
+                x += g
+            y = top
+            while y < rect.bottom():
+                lines.append(QLineF(rect.left(), y, rect.right(), y))
+                y += g
+            c = st.grid
+            c.setAlpha(90)
+            painter.setPen(QPen(c, 0))
+            painter.drawLines(lines)
+        painter.setPen(QPen(st.grid, 0))
+        painter.drawLine(QLineF(rect.left(), 0, rect.right(), 0))
+        painter.drawLine(QLineF(0, rect.top(), 0, rect.bottom()))
+
+__all__ = ["ModelScene", "Mode", "MODE_INFO"]

@@ -1,0 +1,84 @@
+"""The canvas view: zoom with the wheel about the cursor, pan with the middle button, fit to view."""
+
+from __future__ import annotations
+
+from PySide6.QtCore import Qt
+from PySide6.QtGui import QPainter
+from PySide6.QtWidgets import QGraphicsView
+
+from .scene import Mode
+
+_MAX_FIT_ZOOM = 2.5
+
+
+class CanvasView(QGraphicsView):
+    def __init__(self, scene, parent=None):
+        super().__init__(scene, parent)
+        self.setRenderHints(QPainter.Antialiasing | QPainter.TextAntialiasing)
+        self.setTransformationAnchor(QGraphicsView.AnchorUnderMouse)
+        self.setResizeAnchor(QGraphicsView.AnchorViewCenter)
+        self.setViewportUpdateMode(QGraphicsView.BoundingRectViewportUpdate)
+        self.setAcceptDrops(False)  # files dropped here go to the main window
+        self._pan_from = None
+        scene.mode_changed.connect(self._on_mode_change)
+        self._on_mode_change(scene.mode)
+
+    def _on_mode_change(self, mode):
+        if mode == Mode.SELECT:
+            self.setDragMode(QGraphicsView.RubberBandDrag)
+            self.viewport().setCursor(Qt.ArrowCursor)
+        else:
+            self.setDragMode(QGraphicsView.NoDrag)
+            self.viewport().setCursor(Qt.CrossCursor)
+
+    def zoom_by(self, factor: float):
+        current = self.transform().m11()
+        factor = max(0.02 / current, min(factor, 40.0 / current))
+        self.scale(factor, factor)
+
+    def wheelEvent(self, event):  # noqa: N802
+        steps = event.angleDelta().y() / 120.0
+        if steps:
+            self.zoom_by(1.15 ** steps)
+        event.accept()
+
+    def fit(self):
+        """Show the whole model, with a margin, at no more than a comfortable zoom."""
+        scene = self.scene()
+        rect = scene.itemsBoundingRect()
+        if rect.isNull() or rect.isEmpty():
+            self.resetTransform()
+            self.centerOn(0, 0)
+            return
+        pad = max(rect.width(), rect.height()) * 0.12 + 30
+        self.fitInView(rect.adjusted(-pad, -pad, pad, pad), Qt.KeepAspectRatio)
+        if self.transform().m11() > _MAX_FIT_ZOOM:
+            self.resetTransform()
+            self.scale(_MAX_FIT_ZOOM, _MAX_FIT_ZOOM)
+            self.centerOn(rect.center())
+
+    def mousePressEvent(self, event):  # noqa: N802
+        if event.button() == Qt.MiddleButton:
+            self._pan_from = event.position()
+            self.viewport().setCursor(Qt.ClosedHandCursor)
+            event.accept()
+            return
+        super().mousePressEvent(event)
+
+    def mouseMoveEvent(self, event):  # noqa: N802
+        if self._pan_from is not None:
+            delta = event.position() - self._pan_from
+            self._pan_from = event.position()
+            self.horizontalScrollBar().setValue(self.horizontalScrollBar().value() - int(delta.x()))
+            self.verticalScrollBar().setValue(self.verticalScrollBar().value() - int(delta.y()))
+            event.accept()
+            return
+        super().mouseMoveEvent(event)
+
+    def mouseReleaseEvent(self, event):  # noqa: N802
+        if event.button() == Qt.MiddleButton and self._pan_from is not None:
+            self._pan_from = None
+            self._on_mode_change(self.scene().mode)
+            event.accept()
+            return
+        super().mouseReleaseEvent(event)

@@ -1,0 +1,219 @@
+"""The ``springwright`` command.
+
+    springwright                     open the desktop program on a built-in example
+    springwright FILE                open a model file
+    springwright solve FILE [--json] print the mode table (or JSON)
+    springwright report FILE -o OUT.png   write the PNG report with no window
+
+Bad input is one line on stderr naming the file and the problem, exit code 2, no traceback.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import math
+import os
+import sys
+from pathlib import Path
+
+CAUTION = ("A lumped model is an approximation: confirm results by test or detailed analysis;"
+           " local codes and licensed engineering practice govern.")
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message):  # one line, exit 2, like every other bad input
+        self.exit(2, f"springwright: {message}\n")
+
+
+def _fail(message: str) -> int:
+    print(f"springwright: {message}", file=sys.stderr)
+    return 2
+
+
+def _load(path: str):
+    from solver import ModelError, load_model
+
+    try:
+        return load_model(path), None
+    except ModelError as exc:
+        text = str(exc)
+        return None, text if text.startswith(str(path)) else f"{path}: {text}"
+
+
+def _num(value: float):
+    """JSON has no inf/NaN: give null there."""
+    value = float(value)
+    return value if math.isfinite(value) else None
+
+
+def solve_json(analysis) -> dict:
+    """The machine-readable result of ``springwright solve --json`` (DESIGN.md section 5)."""
+    from solver.margins import margin_check
+
+    modal = analysis.modal
+    model = analysis.model
+    pct = modal.effective_mass_percent
+    margins = margin_check(model, modal)
+    modes_out = []
+    for i in range(modal.n_modes):
+        n = i + 1
+        z = modal.zero_mode(n)
+        entry = {
+            "index": n,
+            "frequency_hz": _num(modal.frequencies_hz[i]),
+            "omega_rad_s": _num(modal.omegas[i]),
+            "period_s": _num(modal.periods_s[i]),
+            "zero_frequency": z is not None,
+            "shape": [_num(v) for v in modal.shapes[:, i]],
+            "effective_mass_kg": {d: _num(v[i]) for d, v in modal.effective_mass.items()},
+            "effective_mass_percent": {d: _num(v[i]) for d, v in pct.items()},
+            "participation_factor": {d: _num(v[i]) for d, v in modal.participation.items()},
+            "strain_energy_fraction": analysis.energy.strain_energy_fraction(n),
+            "kinetic_energy_fraction": analysis.energy.kinetic_energy_fraction(n),
+            "repeated_with": [m for m in modal.repeated_group(n) if m != n],
+            "conflicts": list(dict.fromkeys(c.source_id for c in margins.conflicts if c.mode == n)),
+        }
+        if z is not None:
+            entry["zero_cause"] = z.cause
+            entry["zero_kind"] = z.kind
+        modes_out.append(entry)
+    return {
+        "model": model.name,
+        "kind": model.kind,
+        "dofs": [[mid, d] for mid, d in modal.dofs],
+        "total_mass_kg": {d: _num(v) for d, v in modal.total_mass.items()},
+        "modes": modes_out,
+        "margin_percent": model.margin_percent,
+        "warnings": list(analysis.warnings) + [c.message for c in margins.conflicts],
+        "caution": CAUTION,
+    }
+
+
+def solve_table(analysis) -> str:
+    """The human-readable mode table of ``springwright solve``."""
+    from solver.margins import margin_check
+
+    modal = analysis.modal
+    model = analysis.model
+    unit = "kg m^2" if model.kind == "torsion" else "kg"
+    lines = [f"Model: {model.name or '(unnamed)'}   kind: {model.kind}"
+             + (f" along {model.axis}" if model.kind == "line" else "")
+             + f"   {len(model.masses)} masses, {len(model.springs)} springs,"
+               f" {modal.system.n_dof} DOF"]
+    if modal.n_modes == 0:
+        lines.append(modal.message or "no modes")
+        return "\n".join(lines)
+    dirs = list(modal.effective_mass)
+    pct = modal.effective_mass_percent
+    cum = modal.cumulative_percent
+    head = f"{'mode':>4}  {'f (Hz)':>12}  {'w (rad/s)':>12}  {'T (s)':>10}"
+    for d in dirs:
+        head += f"  {'Meff ' + d + ' %':>10}  {'cum %':>6}"
+    head += "  notes"
+    lines += ["", head, "-" * len(head)]
+    margins = margin_check(model, modal)
+    for i in range(modal.n_modes):
+        n = i + 1
+        period = modal.periods_s[i]
+        row = (f"{n:>4}  {modal.frequencies_hz[i]:>12.6g}  {modal.omegas[i]:>12.6g}  "
+               f"{(f'{period:.4g}' if math.isfinite(period) else 'inf'):>10}")
+        for d in dirs:
+            row += f"  {pct[d][i]:>10.2f}  {cum[d][i]:>6.1f}"
+        notes = []
+        z = modal.zero_mode(n)
+        if z is not None:
+            notes.append(f"zero frequency ({z.kind}): {z.cause}")
+        group = modal.repeated_group(n)
+        if group and z is None:
+            notes.append("repeated with " + ", ".join(str(m) for m in group if m != n))
+        dom = analysis.energy.dominant_spring(n)
+        if dom and z is None:
+            notes.append(f"most strain in {dom} ({100 * analysis.energy.strain_energy_fraction(n)[dom]:.0f} %)")
+        for c in margins.conflicts:
+            if c.mode == n:
+                notes.append(f"inside {c.source_id} +-{model.margin_percent:g} %")
+        row += "  " + "; ".join(notes)
+        lines.append(row)
+    lines.append("")
+    lines.append("total mass free to move: " + ", ".join(
+        f"{d} {modal.total_mass[d]:.6g} {unit}" for d in dirs))
+    for w in analysis.warnings:
+        lines.append(f"warning: {w}")
+    for c in margins.conflicts:
+        lines.append(f"margin: {c.message}")
+    lines.append("")
+    lines.append(CAUTION)
+    return "\n".join(lines)
+
+
+def cmd_solve(args) -> int:
+    from solver import ModelError, analyse
+
+    model, err = _load(args.file)
+    if err:
+        return _fail(err)
+    try:
+        analysis = analyse(model)
+    except ModelError as exc:
+        return _fail(f"{args.file}: {exc}")
+    if args.json:
+        print(json.dumps(solve_json(analysis), indent=2, allow_nan=False))
+    else:
+        print(solve_table(analysis))
+    return 0
+
+
+def cmd_report(args) -> int:
+    from solver import ModelError, analyse
+
+    model, err = _load(args.file)
+    if err:
+        return _fail(err)
+    os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+    try:
+        from app.report import render_report
+
+        analysis = analyse(model)
+        out = Path(args.output)
+        if out.parent and not out.parent.exists():
+            return _fail(f"{out}: the folder {out.parent} does not exist")
+        render_report(model, analysis, out)
+    except ModelError as exc:
+        return _fail(f"{args.file}: {exc}")
+    except OSError as exc:
+        return _fail(f"{args.output}: cannot write the report ({exc.strerror or exc})")
+    print(f"report written to {args.output}")
+    return 0
+
+
+def main(argv=None) -> int:
+    argv = list(sys.argv[1:] if argv is None else argv)
+    if argv and argv[0] in ("solve", "report"):
+        parser = _Parser(prog="springwright", description="Lumped spring-mass vibration tool")
+        sub = parser.add_subparsers(dest="command", required=True)
+        p = sub.add_parser("solve", help="print the mode table of a model file")
+        p.add_argument("file")
+        p.add_argument("--json", action="store_true", help="print JSON instead of a table")
+        p = sub.add_parser("report", help="write the PNG report of a model file")
+        p.add_argument("file")
+        p.add_argument("-o", "--output", required=True, help="PNG file to write")
+        args = parser.parse_args(argv)
+        return cmd_solve(args) if args.command == "solve" else cmd_report(args)
+    parser = _Parser(prog="springwright",
+                     description="Open the Springwright desktop program (on a built-in example"
+                                 " when no FILE is given). Also: springwright solve FILE [--json],"
+                                 " springwright report FILE -o OUT.png")
+    parser.add_argument("file", nargs="?")
+    args = parser.parse_args(argv)
+    if args.file is not None:
+        model, err = _load(args.file)
+        if err:
+            return _fail(err)
+    from app.gui import run
+
+    return run(args.file)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

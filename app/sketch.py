@@ -1,0 +1,478 @@
+"""Paint a whole model, at rest or deformed, fitted into a rectangle.
+
+One painter for the motion view, the report and its thumbnails, so they share one look with the
+canvas (same symbols from :mod:`app.shapes`, same palette from :mod:`app.style`).
+
+Model coordinates are metres with y up; the rectangle is in the painter's device coordinates
+(y down). Displacements are ``{mass_id: {direction: value}}`` in model units (m, rad) and are
+multiplied by ``scale`` before drawing (a magnification: mode shapes and small vibrations are
+invisible at true scale). In a line model a mass moves along the model's axis; in a planar model
+in x and y; in a torsion model the discs stay put and a radius line on each disc turns by
+``theta * scale``.
+"""
+
+from __future__ import annotations
+
+import math
+from statistics import median
+
+from PySide6.QtCore import QPointF, QRectF, Qt
+from PySide6.QtGui import QBrush, QColor, QFont, QFontMetricsF, QPainter, QPen
+
+from . import shapes
+from .style import LIGHT, Style, current_style
+
+#: A rotation drawn larger than this (rad) would wrap visually; fit_scale aims below it.
+_MAX_DRAWN_ROTATION = math.radians(55)
+
+
+def _fmt_value(v: float, unit: str) -> str:
+    return f"{v:.4g} {unit}"
+
+
+class SketchLayout:
+    """Where every node of a model lands inside ``rect``, and the size of the symbols.
+
+    Attributes
+    ----------
+    px_per_m : float
+        Drawing scale, device units per metre of model coordinates.
+    base : float
+        Basic symbol size in device units (a 'typical' mass block side).
+    reference_mass : float
+        Mass (kg, kg m^2 in torsion) drawn at ``base`` size: the median of the model's masses.
+    """
+
+    def __init__(self, model, rect: QRectF, base: float | None = None):
+        self.model = model
+        self.rect = QRectF(rect)
+        nodes = list(model.masses) + list(model.anchors)
+        self._nodes = {n.id: n for n in nodes}
+        self._is_mass = {m.id for m in model.masses}
+        w, h = max(1.0, rect.width()), max(1.0, rect.height())
+        if base is None:
+            base = min(60.0, max(10.0, min(w, h) / 9.0))
+        masses = [m.mass for m in model.masses if m.mass > 0]
+        self.reference_mass = median(masses) if masses else 1.0
+        # Room round the nodes for blocks, anchors' hatching and labels.
+        margin = 1.6 * base + 0.5 * base
+        if nodes:
+            xs = [n.x for n in nodes]
+            ys = [n.y for n in nodes]
+            x0, x1, y0, y1 = min(xs), max(xs), min(ys), max(ys)
+        else:
+            x0 = x1 = y0 = y1 = 0.0
+        dx, dy = x1 - x0, y1 - y0
+        aw, ah = max(1.0, w - 2 * margin), max(1.0, h - 2 * margin)
+        extent = max(dx, dy)
+        if extent <= 1e-12:
+            ppm = min(aw, ah) / 1.0  # a single point: any scale, centred
+        else:
+            cands = []
+            if dx > 1e-9 * extent:
+                cands.append(aw / dx)
+            if dy > 1e-9 * extent:
+                cands.append(ah / dy)
+            ppm = min(cands)
+        self.px_per_m = ppm
+        self._cx = 0.5 * (x0 + x1)
+        self._cy = 0.5 * (y0 + y1)
+        self._center = rect.center()
+        # Symbols must not overlap their neighbours: shrink them on crowded layouts.
+        spacing = self._min_spacing_px()
+        if spacing is not None:
+            base = max(8.0, min(base, 0.55 * spacing))
+        self.base = base
+        self.extent_m = extent if extent > 1e-12 else 1.0
+        self._turns = {}
+        for s in model.springs:
+            a, b = self.point(s.a), self.point(s.b)
+            length = math.hypot(b.x() - a.x(), b.y() - a.y())
+            self._turns[s.id] = int(min(8, max(3, round(length / (0.38 * base)))))
+
+    # -- coordinates ------------------------------------------------------------------------
+    def _min_spacing_px(self):
+        pts = [(n.x, n.y) for n in self._nodes.values()]
+        if len(pts) < 2 or len(pts) > 400:
+            return None
+        best = None
+        for i in range(len(pts)):
+            for j in range(i + 1, len(pts)):
+                d = math.hypot(pts[i][0] - pts[j][0], pts[i][1] - pts[j][1]) * self.px_per_m
+                if d > 1e-9 and (best is None or d < best):
+                    best = d
+        return best
+
+    def to_px(self, x: float, y: float) -> QPointF:
+        """Device point of model coordinates (m, y up)."""
+        return QPointF(self._center.x() + (x - self._cx) * self.px_per_m,
+                       self._center.y() - (y - self._cy) * self.px_per_m)
+
+    def to_model(self, p: QPointF) -> tuple[float, float]:
+        """Model coordinates (m, y up) of a device point."""
+        return (self._cx + (p.x() - self._center.x()) / self.px_per_m,
+                self._cy - (p.y() - self._center.y()) / self.px_per_m)
+
+    def offset_px(self, displacement: dict | None, scale: float) -> QPointF:
+        """Device offset of a node displaced by ``{direction: value}`` magnified by ``scale``."""
+        if not displacement or self.model.kind == "torsion":
+            return QPointF(0.0, 0.0)
+        ux = displacement.get("x", 0.0) * scale
+        uy = displacement.get("y", 0.0) * scale
+        return QPointF(ux * self.px_per_m, -uy * self.px_per_m)
+
+    def point(self, node_id: str, displacements: dict | None = None, scale: float = 1.0) -> QPointF:
+        """Device point of a node, displaced when ``displacements`` are given (anchors never move)."""
+        n = self._nodes[node_id]
+        p = self.to_px(n.x, n.y)
+        if displacements and node_id in self._is_mass:
+            off = self.offset_px(displacements.get(node_id), scale)
+            p = QPointF(p.x() + off.x(), p.y() + off.y())
+        return p
+
+    def is_mass(self, node_id: str) -> bool:
+        return node_id in self._is_mass
+
+    def mass_rect(self, mass, center: QPointF) -> QRectF:
+        """Block of a mass (translation models)."""
+        return shapes.mass_block_rect(center, mass.mass, self.base, self.reference_mass)
+
+    def disc_radius(self, mass) -> float:
+        return shapes.disc_radius(mass.mass, 0.5 * self.base, self.reference_mass)
+
+    def turns(self, spring_id: str) -> int:
+        return self._turns.get(spring_id, 5)
+
+    def hit_mass(self, p: QPointF, displacements: dict | None = None, scale: float = 1.0,
+                 slack: float = 3.0):
+        """Id of the mass drawn under device point ``p`` (topmost), or None."""
+        hit = None
+        for m in self.model.masses:
+            c = self.point(m.id, displacements, scale)
+            if self.model.kind == "torsion":
+                r = self.disc_radius(m) + slack
+                if math.hypot(p.x() - c.x(), p.y() - c.y()) <= r:
+                    hit = m.id
+            else:
+                r = self.mass_rect(m, c).adjusted(-slack, -slack, slack, slack)
+                if r.contains(p):
+                    hit = m.id
+        return hit
+
+    # -- element geometry --------------------------------------------------------------------
+    def _exit_distance(self, node_id: str, center: QPointF, start: QPointF, u: QPointF) -> float:
+        """Distance from ``start`` (inside the node's symbol) along ``u`` to the symbol's edge."""
+        if node_id not in self._is_mass:
+            return 0.0
+        m = self._nodes[node_id]
+        if self.model.kind == "torsion":
+            r = self.disc_radius(m)
+            # ray-circle exit from a point inside
+            fx, fy = start.x() - center.x(), start.y() - center.y()
+            b = fx * u.x() + fy * u.y()
+            c = fx * fx + fy * fy - r * r
+            disc = b * b - c
+            return max(0.0, -b + math.sqrt(disc)) if disc >= 0 else 0.0
+        if m.mass <= 0:
+            return 0.0
+        rect = self.mass_rect(m, center)
+        ts = []
+        for pu, lo, hi, ps in ((u.x(), rect.left(), rect.right(), start.x()),
+                               (u.y(), rect.top(), rect.bottom(), start.y())):
+            if abs(pu) > 1e-12:
+                edge = hi if pu > 0 else lo
+                ts.append((edge - ps) / pu)
+        return max(0.0, min(ts)) if ts else 0.0
+
+    def link_ends(self, a: str, b: str, lane: float, displacements=None, scale=1.0):
+        """End points of a spring or dashpot between nodes ``a`` and ``b`` on a side lane.
+
+        ``lane`` is a perpendicular offset in device units (parallel elements between the same
+        two nodes are drawn side by side). Ends are trimmed to the edges of mass blocks.
+        """
+        pa = self.point(a, displacements, scale)
+        pb = self.point(b, displacements, scale)
+        dx, dy = pb.x() - pa.x(), pb.y() - pa.y()
+        length = math.hypot(dx, dy)
+        if length < 1e-9:
+            return pa, pb
+        u = QPointF(dx / length, dy / length)
+        n = QPointF(-u.y(), u.x())
+        sa = QPointF(pa.x() + n.x() * lane, pa.y() + n.y() * lane)
+        sb = QPointF(pb.x() + n.x() * lane, pb.y() + n.y() * lane)
+        ta = self._exit_distance(a, pa, sa, u)
+        tb = self._exit_distance(b, pb, sb, QPointF(-u.x(), -u.y()))
+        if ta + tb >= length - 2.0:   # blocks overlap: keep a stub rather than reverse
+            return sa, sb
+        return (QPointF(sa.x() + u.x() * ta, sa.y() + u.y() * ta),
+                QPointF(sb.x() - u.x() * tb, sb.y() - u.y() * tb))
+
+    def lanes(self) -> dict:
+        """Perpendicular lane offset (device units) of every spring and dashpot id."""
+        groups: dict = {}
+        for el in list(self.model.springs) + list(self.model.dampers):
+            key = tuple(sorted((el.a, el.b)))
+            groups.setdefault(key, []).append(el)
+        out = {}
+        step = 0.5 * self.base
+        for key, els in groups.items():
+            k = len(els)
+            for i, el in enumerate(els):
+                off = (i - (k - 1) / 2.0) * step
+                # lanes are measured on the a->b normal; keep them consistent for a pair drawn
+                # in either direction
+                if (el.a, el.b) != key:
+                    off = -off
+                out[el.id] = off
+        return out
+
+    def anchor_normal(self, anchor_id: str) -> QPointF:
+        """Direction (device) from an anchor towards what it holds, snapped to the nearest axis."""
+        a = self.point(anchor_id)
+        sx = sy = 0.0
+        for el in list(self.model.springs) + list(self.model.dampers):
+            other = el.b if el.a == anchor_id else el.a if el.b == anchor_id else None
+            if other is None:
+                continue
+            p = self.point(other)
+            dx, dy = p.x() - a.x(), p.y() - a.y()
+            d = math.hypot(dx, dy)
+            if d > 1e-9:
+                sx, sy = sx + dx / d, sy + dy / d
+        if abs(sx) < 1e-9 and abs(sy) < 1e-9:
+            return QPointF(0.0, -1.0)
+        if abs(sx) >= abs(sy):
+            return QPointF(math.copysign(1.0, sx), 0.0)
+        return QPointF(0.0, math.copysign(1.0, sy))
+
+
+def fit_scale(layout: SketchLayout, displacements: dict | None, fraction: float = 0.12) -> float:
+    """Magnification that draws the largest displacement as ``fraction`` of the layout's size.
+
+    Translations: the largest |u| becomes ``fraction`` of the rectangle's short side (at least a
+    block side). Torsion: the largest rotation becomes about 55 degrees. Returns 1.0 for no motion.
+    """
+    if not displacements:
+        return 1.0
+    if layout.model.kind == "torsion":
+        big = max((abs(d.get("theta", 0.0)) for d in displacements.values()), default=0.0)
+        return _MAX_DRAWN_ROTATION / big if big > 0 else 1.0
+    big = 0.0
+    for d in displacements.values():
+        big = max(big, math.hypot(d.get("x", 0.0), d.get("y", 0.0)))
+    if big <= 0:
+        return 1.0
+    short = min(layout.rect.width(), layout.rect.height())
+    target_px = max(fraction * short, 0.8 * layout.base)
+    return target_px / layout.px_per_m / big
+
+
+def _value_text(model, el, kind: str) -> str:
+    torsion = model.kind == "torsion"
+    if kind == "mass":
+        return _fmt_value(el.mass, "kg m²" if torsion else "kg") if el.mass > 0 else "junction"
+    if kind == "spring":
+        text = _fmt_value(el.k, "N·m/rad" if torsion else "N/m")
+        if model.kind == "planar" and el.k_t > 0:
+            text += f", kt {el.k_t:.4g}"
+        return text
+    if kind == "dashpot":
+        return _fmt_value(el.c, "N·m·s/rad" if torsion else "N·s/m")
+    return ""
+
+
+def paint_sketch(painter: QPainter, model, rect: QRectF, displacements: dict | None = None,
+                 scale: float = 1.0, style: Style | None = None, undeformed: bool = True,
+                 energy: dict | None = None, labels=True, layout: SketchLayout | None = None,
+                 highlight: set | None = None, base: float | None = None) -> SketchLayout:
+    """Paint ``model`` fitted into ``rect``; returns the :class:`SketchLayout` used.
+
+    Parameters
+    ----------
+    displacements : {mass_id: {direction: value}}, optional
+        Node motion in m (rad in torsion), drawn magnified by ``scale``.
+    undeformed : bool
+        With displacements, draw the layout at rest in grey beneath.
+    energy : {element_id: fraction}, optional
+        Tint springs by strain-energy share and masses by kinetic-energy share (0..1).
+    labels : bool or "values"
+        Element labels; ``"values"`` adds each element's mass, stiffness or damping.
+    layout : reuse a layout (so an animation does not refit every frame).
+    highlight : element ids drawn in the accent colour (e.g. a mass being dragged).
+    """
+    st = style or current_style()
+    lay = layout or SketchLayout(model, rect, base=base)
+    painter.save()
+    painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+    try:
+        lw = max(1.0, lay.base / 18.0)
+        moving = bool(displacements)
+        if moving and undeformed and model.kind != "torsion":
+            _paint_layer(painter, lay, st, None, 1.0, lw * 0.9, grey=True, energy=None,
+                         labels=False, highlight=set())
+        _paint_layer(painter, lay, st, displacements if moving else None, scale, lw, grey=False,
+                     energy=energy, labels=labels, highlight=set(highlight or ()),
+                     show_rest_radius=moving and undeformed)
+    finally:
+        painter.restore()
+    return lay
+
+
+def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, energy, labels,
+                 highlight, show_rest_radius=False):
+    model = lay.model
+    base = lay.base
+    ink = st.undeformed if grey else st.ink
+    lanes = lay.lanes()
+    font = QFont(painter.font())
+    font.setPixelSize(int(max(9, min(28, base * 0.40))))
+    painter.setFont(font)
+    fm = QFontMetricsF(font)
+    pen = QPen(ink, lw)
+    pen.setCapStyle(Qt.PenCapStyle.RoundCap)
+    pen.setJoinStyle(Qt.PenJoinStyle.RoundJoin)
+    painter.setBrush(Qt.BrushStyle.NoBrush)
+    label_jobs = []
+
+    # anchors (never move)
+    for a in model.anchors:
+        painter.setPen(QPen(st.undeformed if grey else st.anchor, lw))
+        c = lay.point(a.id)
+        normal = lay.anchor_normal(a.id)
+        painter.drawPath(shapes.anchor_path(c, 1.5 * base, normal))
+        if labels and not grey:
+            # label on the hatched side, out of the way of the springs
+            off = 0.75 * base + 0.5 * fm.height()
+            label_jobs.append((QPointF(c.x() - normal.x() * off, c.y() - normal.y() * off),
+                               a.label, st.ink_soft, None))
+
+    # springs
+    for s in model.springs:
+        p1, p2 = lay.link_ends(s.a, s.b, lanes.get(s.id, 0.0), disp, scale)
+        f = energy.get(s.id) if energy else None
+        if grey:
+            painter.setPen(QPen(ink, lw))
+        elif s.id in highlight:
+            painter.setPen(QPen(st.accent, lw * 1.6))
+        elif f is not None:
+            if f < 0.005:
+                painter.setPen(QPen(st.ink_soft, lw))
+            else:
+                painter.setPen(QPen(st.energy_color(0.25 + 0.75 * f), lw * (1.2 + 2.0 * f)))
+        else:
+            painter.setPen(pen)
+        painter.drawPath(shapes.coil_path(p1, p2, lay.turns(s.id), 0.42 * base))
+        if labels and not grey:
+            text = s.label
+            if labels == "values":
+                text += "  " + _value_text(model, s, "spring")
+            if f is not None:
+                text += f"  ({100 * f:.0f} %)"
+            label_jobs.append((_beside(p1, p2, 0.21 * base + 0.35 * fm.height() + 2, fm, text),
+                               text, st.label, None))
+
+    # dashpots
+    for d in model.dampers:
+        p1, p2 = lay.link_ends(d.a, d.b, lanes.get(d.id, 0.0), disp, scale)
+        painter.setPen(QPen(ink, lw) if grey else pen)
+        painter.drawPath(shapes.dashpot_path(p1, p2, 0.42 * base))
+        if labels and not grey:
+            text = d.label
+            if labels == "values":
+                text += "  " + _value_text(model, d, "dashpot")
+            label_jobs.append((_beside(p1, p2, 0.21 * base + 0.35 * fm.height() + 2, fm, text),
+                               text, st.label, None))
+
+    # masses
+    for m in model.masses:
+        c = lay.point(m.id, disp, scale)
+        f = energy.get(m.id) if energy else None
+        edge = st.accent if m.id in highlight and not grey else (ink if grey else st.mass_edge)
+        painter.setPen(QPen(edge, lw * (1.6 if m.id in highlight and not grey else 1.0)))
+        if grey:
+            painter.setBrush(Qt.BrushStyle.NoBrush)
+        elif f is not None:
+            painter.setBrush(QBrush(st.energy_color(f)))
+        else:
+            painter.setBrush(QBrush(st.mass_fill))
+        if model.kind == "torsion":
+            r = lay.disc_radius(m)
+            painter.drawPath(shapes.disc_path(c, m.mass, 0.5 * base, lay.reference_mass))
+            theta = (disp or {}).get(m.id, {}).get("theta", 0.0) * scale if disp else 0.0
+            if show_rest_radius:
+                painter.setPen(QPen(st.undeformed, lw))
+                painter.drawLine(c, QPointF(c.x(), c.y() - r))
+            # angle measured counter-clockwise from "up" on a y-up page
+            tip = QPointF(c.x() - r * math.sin(theta), c.y() - r * math.cos(theta))
+            painter.setPen(QPen(st.accent if disp else edge, lw * 1.5))
+            painter.drawLine(c, tip)
+            below = r
+        elif m.mass <= 0:
+            painter.setBrush(QBrush(edge))
+            painter.drawEllipse(c, 0.14 * base, 0.14 * base)
+            below = 0.14 * base
+        else:
+            rect = lay.mass_rect(m, c)
+            painter.drawRect(rect)
+            below = rect.height() / 2
+        if m.fixed and not grey:
+            painter.setPen(QPen(st.ink_soft, lw))
+            _paint_locks(painter, lay, c, below, m.fixed)
+        painter.setBrush(Qt.BrushStyle.NoBrush)
+        if labels and not grey:
+            text = m.label
+            if labels == "values":
+                text += "  " + _value_text(model, m, "mass")
+            if f is not None:
+                text += f"  ({100 * f:.0f} %)"
+            label_jobs.append((QPointF(c.x(), c.y() + below + 0.2 * base + 0.5 * fm.height()),
+                               text, st.label, None))
+
+    if labels and not grey and model.kind == "line":
+        # a small arrow saying which way the masses move
+        r = lay.rect
+        o = QPointF(r.left() + 0.4 * base, r.bottom() - 0.4 * base)
+        direction = QPointF(1, 0) if model.axis == "x" else QPointF(0, -1)
+        painter.setPen(QPen(st.ink_soft, lw))
+        painter.setBrush(QBrush(st.ink_soft))
+        painter.drawPath(shapes.axis_arrow_path(o, direction, 1.2 * base, 0.3 * base))
+        painter.setBrush(Qt.BrushStyle.NoBrush)
+        tip = QPointF(o.x() + direction.x() * 1.2 * base, o.y() + direction.y() * 1.2 * base)
+        label_jobs.append((QPointF(tip.x() + 0.35 * base * (1 if model.axis == "x" else 0) + 4,
+                                   tip.y() - (0.35 * base if model.axis == "y" else 0)),
+                           model.axis, st.ink_soft, "left"))
+
+    for pos, text, color, align in label_jobs:
+        painter.setPen(QPen(color))
+        w = fm.horizontalAdvance(text)
+        x = pos.x() if align == "left" else pos.x() - w / 2
+        painter.drawText(QPointF(x, pos.y() + fm.ascent() / 2 - fm.descent() / 2), text)
+
+
+def _beside(p1: QPointF, p2: QPointF, off: float, fm: QFontMetricsF, text: str) -> QPointF:
+    """Label point beside the middle of a link, on the side that reads upward/rightward."""
+    mx, my = 0.5 * (p1.x() + p2.x()), 0.5 * (p1.y() + p2.y())
+    dx, dy = p2.x() - p1.x(), p2.y() - p1.y()
+    length = math.hypot(dx, dy)
+    if length < 1e-9:
+        return QPointF(mx, my - off)
+    nx, ny = -dy / length, dx / length
+    if ny > 0 or (abs(ny) < 1e-9 and nx < 0):
+        nx, ny = -nx, -ny                 # above (screen) or to the right
+    # a vertical link: push the label sideways by half its width too
+    extra = 0.5 * fm.horizontalAdvance(text) * abs(nx)
+    return QPointF(mx + nx * (off + extra), my + ny * off)
+
+
+def _paint_locks(painter, lay, c: QPointF, below: float, fixed):
+    """Small hatched stops beside a mass for each locked direction."""
+    s = 0.55 * lay.base
+    if "x" in fixed:
+        p = QPointF(c.x() - below - 0.12 * lay.base, c.y())
+        painter.drawPath(shapes.anchor_path(p, s, QPointF(1, 0), 3))
+    if "y" in fixed:
+        p = QPointF(c.x(), c.y() + below + 0.12 * lay.base)
+        painter.drawPath(shapes.anchor_path(p, s, QPointF(0, -1), 3))
+
+
+__all__ = ["SketchLayout", "paint_sketch", "fit_scale", "LIGHT"]

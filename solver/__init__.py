@@ -1,0 +1,30 @@
+"""Springwright's solver: lumped spring-mass models, their modes and responses.
+
+Pure numpy/scipy; no Qt. The public API (stable, used by scripts and the command line):
+
+- :func:`load_model`, :func:`save_model` — the JSON model file (atomic save, schema-validated load)
+- :func:`assemble` -> :class:`System` (``.M``, ``.K``, ``.C``, ``.dofs``)
+- :func:`modes` -> :class:`ModalResult` (``.frequencies_hz``, ``.omegas``, ``.shapes``, ``.dofs``,
+  ``.effective_mass``, ``.zero_modes``)
+- :func:`energy_fractions`, :func:`sensitivities`, :func:`analyse`
+- :func:`free_response`
+- :class:`ModelError`, :class:`ModelFileError`
+"""
+
+from .analysis import Analysis, analyse
+from .assemble import System, assemble
+from .errors import ModelError, ModelFileError
+from .io import dumps_model, load_model, model_from_dict, model_to_dict, save_model, schema
+from .metrics import EnergyResult, Sensitivity, energy_fractions, sensitivities
+from .model import (Anchor, Damper, Damping, Excitation, Initial, Mass, Model, Spring,
+                    directions_for)
+from .modes import ModalResult, ZeroMode, modes
+from .response import FreeResponse, free_response
+
+__all__ = [
+    "Analysis", "analyse", "System", "assemble", "ModelError", "ModelFileError", "dumps_model",
+    "load_model", "model_from_dict", "model_to_dict", "save_model", "schema", "EnergyResult",
+    "Sensitivity", "energy_fractions", "sensitivities", "Anchor", "Damper", "Damping",
+    "Excitation", "Initial", "Mass", "Model", "Spring", "directions_for", "ModalResult",
+    "ZeroMode", "modes", "FreeResponse", "free_response",
+]

@@ -1,0 +1,284 @@
+"""Mass, stiffness and damping matrices of a lumped model.
+
+Each unlocked direction of each mass is a degree of freedom (DOF), named ``(mass_id, direction)``.
+Massless nodes (``mass == 0``) are junctions: their DOFs carry no inertia, so they are condensed out
+statically (Guyan condensation, exact for massless DOFs),
+
+    K_red = K_mm - K_ms K_ss^+ K_sm,        x_s = -K_ss^+ K_sm x_m,
+
+and their motion is recovered from that of the masses. ``System.M``, ``.K``, ``.C`` and ``.dofs``
+are the condensed matrices on the DOFs that carry mass; ``.M_full``, ``.K_full``, ``.C_full`` and
+``.all_dofs`` keep every DOF, junctions included, for direct frequency-domain solves.
+
+Planar springs act along their drawn line: with ``e`` the unit vector from end a to end b and ``n``
+at right angles to it, the 2x2 stiffness between the ends' relative displacement and force is
+``k e e^T + k_t n n^T`` (small displacements about the drawn layout). Dashpots act axially the same
+way with ``c``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import scipy.linalg
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+
+from .errors import ModelError
+from .model import Model
+
+#: Above this many DOFs the matrices are kept sparse (chosen with bench/solver_bench.py).
+SPARSE_DOF_LIMIT = 600
+
+
+@dataclass(frozen=True, eq=False)
+class System:
+    """Assembled matrices of a model.
+
+    Attributes
+    ----------
+    M, K, C : (n, n) ndarray or scipy.sparse matrix
+        Mass (kg or kg m^2), stiffness (N/m or N m/rad) and dashpot damping (N s/m) matrices on
+        ``dofs``, after static condensation of massless junctions. ``M`` is diagonal and positive.
+    dofs : tuple of (mass_id, direction)
+        The DOFs that carry mass, in the order of the matrices' rows.
+    all_dofs : tuple of (mass_id, direction)
+        Every free DOF, junctions included; ``recovery @ x`` maps a vector on ``dofs`` to them.
+    recovery : (n_all, n) ndarray or sparse matrix
+    M_full, K_full, C_full : matrices on ``all_dofs`` before condensation (M_full may be singular).
+    sparse : bool
+        True when the matrices are scipy.sparse (large models).
+    warnings : tuple of str
+        Things in the model that a user should know about (no effect, approximations).
+    """
+
+    model: Model
+    M: object
+    K: object
+    C: object
+    dofs: tuple
+    all_dofs: tuple
+    recovery: object
+    M_full: object
+    K_full: object
+    C_full: object
+    sparse: bool
+    warnings: tuple = ()
+    # per-spring geometry for energies and sensitivities: DOF indices into all_dofs of the
+    # (end a, end b) components, -1 where the end is grounded or locked, and the unit axis.
+    spring_dofs: np.ndarray = field(default=None, repr=False)
+    spring_axis: np.ndarray = field(default=None, repr=False)
+    mass_dofs: dict = field(default=None, repr=False)
+
+    @property
+    def n_dof(self) -> int:
+        return len(self.dofs)
+
+    @property
+    def directions(self) -> tuple[str, ...]:
+        return self.model.directions
+
+    def dof_index(self, mass_id: str, direction: str) -> int:
+        """Row of ``(mass_id, direction)`` in ``dofs`` (raises ModelError if it is not a DOF)."""
+        try:
+            return self._dof_lookup()[(mass_id, direction)]
+        except KeyError:
+            raise ModelError(_no_dof_message(self.model, mass_id, direction)) from None
+
+    def _dof_lookup(self):
+        lookup = self.__dict__.get("_lookup")
+        if lookup is None:
+            lookup = {d: i for i, d in enumerate(self.dofs)}
+            object.__setattr__(self, "_lookup", lookup)
+        return lookup
+
+    def influence(self, direction: str) -> np.ndarray:
+        """Influence vector r on ``dofs``: 1 on DOFs that move in ``direction`` (rigid base motion)."""
+        return np.array([1.0 if d == direction else 0.0 for _, d in self.dofs])
+
+    def node_motion(self, vector_all) -> dict:
+        """Split a vector on ``all_dofs`` into ``{mass_id: {direction: value}}``."""
+        out: dict = {}
+        for (mid, d), v in zip(self.all_dofs, np.asarray(vector_all)):
+            out.setdefault(mid, {})[d] = float(v)
+        return out
+
+    def dense(self, name: str) -> np.ndarray:
+        mat = getattr(self, name)
+        return mat.toarray() if sp.issparse(mat) else np.asarray(mat)
+
+
+def _no_dof_message(model: Model, mass_id: str, direction: str) -> str:
+    try:
+        node = model.node(mass_id)
+    except ModelError:
+        return f'"{mass_id}" is not a mass in the model'
+    if not hasattr(node, "mass"):
+        return f'"{mass_id}" is an anchor; it has no degrees of freedom'
+    if direction not in model.directions:
+        return (f'mass "{mass_id}": direction "{direction}" does not exist in this model'
+                f' (allowed: {", ".join(model.directions)})')
+    if direction in node.fixed:
+        return f'mass "{mass_id}" is locked in {direction}'
+    return f'mass "{mass_id}" is massless; its {direction} motion is condensed out'
+
+
+def assemble(model: Model, sparse: bool | None = None) -> System:
+    """Assemble M, K and C of a model, condensing massless junctions.
+
+    Parameters
+    ----------
+    model : Model
+    sparse : bool, optional
+        Force sparse (True) or dense (False) storage; by default sparse above
+        ``SPARSE_DOF_LIMIT`` DOFs.
+    """
+    if not isinstance(model, Model):
+        raise ModelError(f"assemble: expected a Model, got {type(model).__name__}")
+    directions = model.directions
+    all_dofs = []
+    mass_of_dof = []
+    mass_dofs: dict = {}
+    for m in model.masses:
+        idx = []
+        for d in directions:
+            if d in m.fixed:
+                idx.append(-1)
+                continue
+            idx.append(len(all_dofs))
+            all_dofs.append((m.id, d))
+            mass_of_dof.append(m.mass)
+        mass_dofs[m.id] = idx
+    n_all = len(all_dofs)
+    nd = len(directions)
+    ground = [-1] * nd
+    node_dofs = dict(mass_dofs)
+    positions = {el.id: (el.x, el.y) for el in model.masses + model.anchors}
+    for a in model.anchors:
+        node_dofs[a.id] = ground
+    warnings = []
+
+    def element_arrays(elements, value_name):
+        count = len(elements)
+        dofs = np.full((count, 2 * nd), -1, dtype=np.int64)
+        axis = np.zeros((count, 2))
+        for i, el in enumerate(elements):
+            dofs[i, :nd] = node_dofs[el.a]
+            dofs[i, nd:] = node_dofs[el.b]
+            if model.kind == "planar":
+                (xa, ya), (xb, yb) = positions[el.a], positions[el.b]
+                dx, dy = xb - xa, yb - ya
+                length = np.hypot(dx, dy)
+                axis[i] = (dx / length, dy / length)
+        return dofs, axis
+
+    def stiffness_coo(dofs, axis, values, transverse=None):
+        count = len(values)
+        if count == 0:
+            return np.zeros(0, np.int64), np.zeros(0, np.int64), np.zeros(0)
+        if nd == 1:
+            S = np.asarray(values, float).reshape(count, 1, 1)
+        else:
+            e = axis
+            nvec = np.stack([-e[:, 1], e[:, 0]], axis=1)
+            S = np.asarray(values, float)[:, None, None] * np.einsum("ni,nj->nij", e, e)
+            if transverse is not None:
+                S = S + np.asarray(transverse, float)[:, None, None] * np.einsum(
+                    "ni,nj->nij", nvec, nvec)
+        local = np.block([[S, -S], [-S, S]])
+        rows = np.repeat(dofs[:, :, None], 2 * nd, axis=2)
+        cols = np.repeat(dofs[:, None, :], 2 * nd, axis=1)
+        keep = (rows >= 0) & (cols >= 0)
+        return rows[keep], cols[keep], local[keep]
+
+    springs = model.springs
+    s_dofs, s_axis = element_arrays(springs, "k")
+    k_vals = [s.k for s in springs]
+    kt_vals = [s.k_t for s in springs] if model.kind == "planar" else None
+    r, c, v = stiffness_coo(s_dofs, s_axis, k_vals, kt_vals)
+    K_full = sp.coo_matrix((v, (r, c)), shape=(n_all, n_all)).tocsr()
+    d_dofs, d_axis = element_arrays(model.dampers, "c")
+    r, c, v = stiffness_coo(d_dofs, d_axis, [d.c for d in model.dampers])
+    C_full = sp.coo_matrix((v, (r, c)), shape=(n_all, n_all)).tocsr()
+    masses = np.asarray(mass_of_dof, float)
+    M_full = sp.diags(masses, format="csr") if n_all else sp.csr_matrix((0, 0))
+
+    for s in springs:
+        if s.a in node_dofs and s.b in node_dofs and all(i < 0 for i in node_dofs[s.a]) and all(
+                i < 0 for i in node_dofs[s.b]):
+            warnings.append(f'spring "{s.id}" joins two fixed points; it has no effect')
+        if s.k_t and model.kind != "planar":
+            warnings.append(f'spring "{s.id}": transverse stiffness k_t acts only in planar models;'
+                            " it is ignored here")
+
+    use_sparse = (n_all > SPARSE_DOF_LIMIT) if sparse is None else bool(sparse)
+    retained = np.flatnonzero(masses > 0)
+    slaves = np.flatnonzero(masses == 0)
+    dofs = tuple(all_dofs[i] for i in retained)
+    if len(slaves) == 0:
+        recovery = sp.identity(n_all, format="csr")
+        M, K, C = M_full, K_full, C_full
+    else:
+        K, C, recovery, msg = _condense(K_full, C_full, retained, slaves, all_dofs)
+        M = sp.diags(masses[retained], format="csr")
+        warnings.extend(msg)
+        if model.dampers and C_full[slaves][:, :].nnz:
+            warnings.append("a dashpot is attached to a massless junction; its damping is"
+                            " condensed statically, which is approximate (frequency-domain"
+                            " responses solve the full model and are exact)")
+    if not use_sparse:
+        M, K, C = (np.asarray(x.toarray()) for x in (M, K, C))
+        recovery = np.asarray(recovery.toarray()) if sp.issparse(recovery) else recovery
+        M_full, K_full, C_full = (np.asarray(x.toarray()) for x in (M_full, K_full, C_full))
+    return System(model=model, M=M, K=K, C=C, dofs=dofs, all_dofs=tuple(all_dofs),
+                  recovery=recovery, M_full=M_full, K_full=K_full, C_full=C_full,
+                  sparse=use_sparse, warnings=tuple(warnings), spring_dofs=s_dofs,
+                  spring_axis=s_axis, mass_dofs=mass_dofs)
+
+
+def _condense(K_full, C_full, retained, slaves, all_dofs):
+    """Static condensation of the massless DOFs ``slaves``; returns K, C, recovery, warnings."""
+    warnings = []
+    Kmm = K_full[retained][:, retained]
+    Kms = K_full[retained][:, slaves]
+    Ksm = K_full[slaves][:, retained]
+    Kss = K_full[slaves][:, slaves]
+    n_s = len(slaves)
+    if n_s <= 2000:
+        Kss_d = Kss.toarray()
+        # A massless node with a direction no spring resists has an undetermined position; the
+        # pseudo-inverse picks the least motion, which leaves the masses' equations unchanged.
+        scale = max(np.abs(Kss_d).max(initial=0.0), 1e-300)
+        u, sv, vt = scipy.linalg.svd(Kss_d) if n_s else (None, np.zeros(0), None)
+        loose = int(np.sum(sv <= 1e-11 * scale)) if n_s else 0
+        pinv = scipy.linalg.pinv(Kss_d, atol=1e-11 * scale) if n_s else np.zeros((0, 0))
+        G = -(pinv @ Ksm.toarray())
+        G = sp.csr_matrix(G)
+    else:
+        reg = Kss + sp.identity(n_s) * (1e-13 * abs(Kss.diagonal()).max())
+        lu = spla.splu(reg.tocsc())
+        G = sp.csr_matrix(-lu.solve(Ksm.toarray()))
+        loose = 0
+    if loose:
+        names = sorted({all_dofs[i][0] for i in slaves[np.flatnonzero(
+            np.abs(K_full[slaves][:, slaves].diagonal()) <= 0)]})
+        detail = f' (e.g. {", ".join(repr(n) for n in names[:3])})' if names else ""
+        warnings.append(f"{loose} direction(s) of massless junctions{detail} are held by no"
+                        " spring; their motion is undetermined and shown as zero")
+    K = Kmm + Kms @ G
+    K = (K + K.T) * 0.5
+    Cmm = C_full[retained][:, retained]
+    Cms = C_full[retained][:, slaves]
+    Csm = C_full[slaves][:, retained]
+    Css = C_full[slaves][:, slaves]
+    C = Cmm + Cms @ G + G.T @ Csm + G.T @ Css @ G
+    n_all = K_full.shape[0]
+    # recovery: rows of retained DOFs are identity, rows of slaves are G
+    rec = sp.lil_matrix((n_all, len(retained)))
+    rec[retained, np.arange(len(retained))] = 1.0
+    rec = rec.tocsr()
+    rec_s = sp.csr_matrix((np.ones(len(slaves)), (slaves, np.arange(len(slaves)))),
+                          shape=(n_all, len(slaves)))
+    recovery = rec + rec_s @ G
+    return sp.csr_matrix(K), sp.csr_matrix(C), recovery.tocsr(), warnings

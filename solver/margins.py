@@ -1,0 +1,88 @@
+"""Frequency separation check of every mode against the model's excitation sources.
+
+A source is a set of intervals in Hz: a shaft speed gives one line per order (``order * rpm / 60``),
+a band gives ``[f_min_hz, f_max_hz]``. With a margin ``p`` (``margin_percent / 100``) a source's
+interval ``[lo, hi]`` is widened to ``[lo (1 - p), hi (1 + p)]``: a natural frequency must lie at
+least ``p`` of the excitation frequency away from it (common practice: 10 to 20 %, no single
+source). A mode conflicts when its frequency lies strictly inside a widened interval; a mode exactly
+on an edge has exactly the margin asked for and passes. Zero-frequency modes are not checked.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from .model import Model
+
+
+@dataclass(frozen=True)
+class Conflict:
+    """One mode inside one widened source interval.
+
+    ``lower_to_hz`` / ``raise_to_hz``: the frequencies that clear the interval below and above;
+    ``move_hz``: the smaller signed change that clears it (negative = lower the mode).
+    """
+
+    mode: int
+    frequency_hz: float
+    source_id: str
+    order: float | None
+    low_hz: float
+    high_hz: float
+    lower_to_hz: float
+    raise_to_hz: float
+    move_hz: float
+    message: str
+
+
+@dataclass(frozen=True)
+class MarginResult:
+    margin_percent: float
+    conflicts: tuple
+    bands: tuple  # (source_id, order or None, lo, hi, lo_widened, hi_widened)
+
+    def for_mode(self, mode: int) -> tuple:
+        return tuple(c for c in self.conflicts if c.mode == mode)
+
+    @property
+    def ok(self) -> bool:
+        return not self.conflicts
+
+
+def source_bands(model: Model, margin_percent: float | None = None) -> tuple:
+    """Every source interval with its widened edges: (id, order, lo, hi, lo_w, hi_w) in Hz."""
+    p = (model.margin_percent if margin_percent is None else margin_percent) / 100.0
+    bands = []
+    for e in model.excitations:
+        if e.type == "speed":
+            for o in e.orders:
+                f = o * e.rpm / 60.0
+                bands.append((e.id, o, f, f, f * (1 - p), f * (1 + p)))
+        else:
+            bands.append((e.id, None, e.f_min_hz, e.f_max_hz, e.f_min_hz * (1 - p),
+                          e.f_max_hz * (1 + p)))
+    return tuple(bands)
+
+
+def margin_check(model: Model, modal, margin_percent: float | None = None) -> MarginResult:
+    """Check every elastic mode of ``modal`` (a ModalResult) against the model's sources."""
+    pct = model.margin_percent if margin_percent is None else float(margin_percent)
+    bands = source_bands(model, pct)
+    zero = modal.is_zero
+    conflicts = []
+    for i, f in enumerate(modal.frequencies_hz):
+        if zero[i]:
+            continue
+        for sid, order, lo, hi, lo_w, hi_w in bands:
+            if lo_w < f < hi_w:
+                down, up = lo_w - f, hi_w - f
+                move = down if abs(down) <= abs(up) else up
+                what = (f'{sid} order {order:g} ({lo:.4g} Hz)' if order is not None
+                        else f'{sid} ({lo:.4g} to {hi:.4g} Hz)')
+                msg = (f"mode {i + 1} at {f:.4g} Hz is within {pct:g} % of {what}: move it below"
+                       f" {lo_w:.4g} Hz or above {hi_w:.4g} Hz")
+                conflicts.append(Conflict(mode=i + 1, frequency_hz=float(f), source_id=sid,
+                                          order=order, low_hz=lo, high_hz=hi, lower_to_hz=lo_w,
+                                          raise_to_hz=hi_w, move_hz=float(move), message=msg))
+    # one conflict per mode and source (a speed with several orders may flag a mode once each)
+    return MarginResult(margin_percent=pct, conflicts=tuple(conflicts), bands=bands)

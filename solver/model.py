@@ -1,0 +1,456 @@
+"""The lumped model: plain immutable data.
+
+A :class:`Model` is a frozen dataclass made of tuples of frozen element dataclasses. An edit makes a
+new Model (``dataclasses.replace`` or :meth:`Model.with_changes`); constructing one validates it, so an
+invalid Model cannot exist and a refused edit leaves the old one untouched.
+
+Units are SI throughout: kg, m, N/m, N s/m; in a torsion model a disc's ``mass`` field holds its
+polar inertia in kg m^2 and a spring's ``k`` its torsional stiffness in N m/rad.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, fields, replace
+from typing import Iterable, Mapping
+
+from .errors import ModelError
+
+KINDS = ("line", "planar", "torsion")
+AXES = ("x", "y")
+DIRECTIONS = ("x", "y", "theta")
+DAMPING_MODELS = ("none", "modal", "rayleigh")
+EXCITATION_TYPES = ("speed", "band")
+
+
+def directions_for(kind: str, axis: str = "x") -> tuple[str, ...]:
+    """Directions a mass can move in for a model kind (``x``/``y`` on a line, both in a plane)."""
+    if kind == "line":
+        return (axis,)
+    if kind == "planar":
+        return ("x", "y")
+    if kind == "torsion":
+        return ("theta",)
+    raise ModelError(f'model: kind must be one of {", ".join(KINDS)}, got "{kind}"')
+
+
+def _finite(owner: str, name: str, value, unit: str = "") -> float:
+    try:
+        v = float(value)
+    except (TypeError, ValueError):
+        raise ModelError(f"{owner}: {name} must be a number, got {value!r}") from None
+    if isinstance(value, bool) or not math.isfinite(v):
+        raise ModelError(f"{owner}: {name} must be a finite number{unit}, got {value!r}")
+    return v
+
+
+def _nonneg(owner: str, name: str, value, unit: str) -> float:
+    v = _finite(owner, name, value, f" in {unit}")
+    if v < 0:
+        raise ModelError(f"{owner}: {name} must be zero or positive, got {_fmt(v)} {unit}")
+    return v
+
+
+def _positive(owner: str, name: str, value, unit: str) -> float:
+    v = _finite(owner, name, value, f" in {unit}")
+    if v <= 0:
+        raise ModelError(f"{owner}: {name} must be positive, got {_fmt(v)} {unit}")
+    return v
+
+
+def _fmt(v: float) -> str:
+    return f"{v:.6g}"
+
+
+def _check_id(kind: str, value) -> str:
+    if not isinstance(value, str) or not value.strip():
+        raise ModelError(f"{kind}: id must be a non-empty text, got {value!r}")
+    return value
+
+
+def _set(obj, name, value):
+    object.__setattr__(obj, name, value)
+
+
+@dataclass(frozen=True)
+class Mass:
+    """A lumped mass (or, in a torsion model, a disc).
+
+    ``mass`` is in kg (kg m^2 for a torsion disc); zero makes the node a massless junction, condensed
+    out of the eigenproblem and its motion recovered. ``fixed`` lists locked directions.
+    """
+
+    id: str
+    x: float
+    y: float
+    mass: float
+    label: str = ""
+    fixed: tuple[str, ...] = ()
+
+    def __post_init__(self):
+        _check_id("mass", self.id)
+        owner = f'mass "{self.id}"'
+        _set(self, "x", _finite(owner, "x", self.x, " in m"))
+        _set(self, "y", _finite(owner, "y", self.y, " in m"))
+        _set(self, "mass", _nonneg(owner, "mass", self.mass, "kg (kg m^2 for a disc)"))
+        _set(self, "label", str(self.label) if self.label else self.id)
+        fixed = tuple(self.fixed)
+        for d in fixed:
+            if d not in DIRECTIONS:
+                raise ModelError(f'{owner}: fixed direction must be one of x, y, theta, got "{d}"')
+        if len(set(fixed)) != len(fixed):
+            raise ModelError(f"{owner}: fixed lists a direction twice: {list(fixed)}")
+        _set(self, "fixed", fixed)
+
+    @property
+    def inertia(self) -> float:
+        """Polar inertia in kg m^2 (torsion models store it in ``mass``)."""
+        return self.mass
+
+
+@dataclass(frozen=True)
+class Anchor:
+    """A fixed point (ground). It never moves, except as the base in base excitation."""
+
+    id: str
+    x: float
+    y: float
+    label: str = ""
+
+    def __post_init__(self):
+        _check_id("anchor", self.id)
+        owner = f'anchor "{self.id}"'
+        _set(self, "x", _finite(owner, "x", self.x, " in m"))
+        _set(self, "y", _finite(owner, "y", self.y, " in m"))
+        _set(self, "label", str(self.label) if self.label else self.id)
+
+
+@dataclass(frozen=True)
+class Spring:
+    """A linear spring between nodes ``a`` and ``b`` (mass or anchor ids).
+
+    ``k`` is the axial stiffness in N/m (N m/rad in torsion); ``k_t`` the transverse stiffness in N/m,
+    used only in planar models, acting at right angles to the drawn line.
+    """
+
+    id: str
+    a: str
+    b: str
+    k: float
+    label: str = ""
+    k_t: float = 0.0
+
+    def __post_init__(self):
+        _check_id("spring", self.id)
+        owner = f'spring "{self.id}"'
+        _set(self, "a", _check_id(f"{owner} end a", self.a))
+        _set(self, "b", _check_id(f"{owner} end b", self.b))
+        _set(self, "k", _positive(owner, "stiffness k", self.k, "N/m"))
+        _set(self, "k_t", _nonneg(owner, "transverse stiffness k_t", self.k_t, "N/m"))
+        _set(self, "label", str(self.label) if self.label else self.id)
+
+
+@dataclass(frozen=True)
+class Damper:
+    """A viscous dashpot between nodes ``a`` and ``b``; ``c`` in N s/m (N m s/rad in torsion)."""
+
+    id: str
+    a: str
+    b: str
+    c: float
+    label: str = ""
+
+    def __post_init__(self):
+        _check_id("dashpot", self.id)
+        owner = f'dashpot "{self.id}"'
+        _set(self, "a", _check_id(f"{owner} end a", self.a))
+        _set(self, "b", _check_id(f"{owner} end b", self.b))
+        _set(self, "c", _nonneg(owner, "damping coefficient c", self.c, "N s/m"))
+        _set(self, "label", str(self.label) if self.label else self.id)
+
+
+@dataclass(frozen=True)
+class Damping:
+    """Damping model applied on top of any dashpots.
+
+    ``model`` is ``"none"``, ``"modal"`` (one ``ratio`` of critical for every mode, with optional
+    per-mode overrides ``mode_ratios`` as (mode number, ratio) pairs) or ``"rayleigh"``
+    (C = alpha M + beta K, alpha in 1/s, beta in s).
+    """
+
+    model: str = "none"
+    ratio: float = 0.0
+    alpha: float = 0.0
+    beta: float = 0.0
+    mode_ratios: tuple[tuple[int, float], ...] = ()
+
+    def __post_init__(self):
+        if self.model not in DAMPING_MODELS:
+            raise ModelError(
+                f'damping: model must be one of {", ".join(DAMPING_MODELS)}, got "{self.model}"')
+        _set(self, "ratio", _nonneg("damping", "ratio", self.ratio, "(fraction of critical)"))
+        _set(self, "alpha", _nonneg("damping", "alpha", self.alpha, "1/s"))
+        _set(self, "beta", _nonneg("damping", "beta", self.beta, "s"))
+        pairs = []
+        for item in self.mode_ratios:
+            n, r = item
+            if isinstance(n, bool) or int(n) != n or int(n) < 1:
+                raise ModelError(f"damping: mode numbers in mode_ratios start at 1, got {n!r}")
+            pairs.append((int(n), _nonneg("damping", f"ratio of mode {int(n)}", r,
+                                          "(fraction of critical)")))
+        _set(self, "mode_ratios", tuple(sorted(pairs)))
+
+
+@dataclass(frozen=True)
+class Excitation:
+    """An excitation source: a shaft speed with orders, or a frequency band.
+
+    ``type == "speed"``: ``rpm`` and ``orders`` (each order n gives a line at n * rpm / 60 Hz).
+    ``type == "band"``: ``f_min_hz`` to ``f_max_hz``.
+    """
+
+    id: str
+    type: str
+    label: str = ""
+    rpm: float = 0.0
+    orders: tuple[float, ...] = (1.0,)
+    f_min_hz: float = 0.0
+    f_max_hz: float = 0.0
+
+    def __post_init__(self):
+        _check_id("excitation", self.id)
+        owner = f'excitation "{self.id}"'
+        if self.type not in EXCITATION_TYPES:
+            raise ModelError(f'{owner}: type must be "speed" or "band", got "{self.type}"')
+        _set(self, "label", str(self.label) if self.label else self.id)
+        if self.type == "speed":
+            _set(self, "rpm", _positive(owner, "rpm", self.rpm, "rev/min"))
+            orders = tuple(_positive(owner, "order", o, "(multiple of the speed)")
+                           for o in self.orders)
+            if not orders:
+                raise ModelError(f"{owner}: orders must list at least one order, e.g. [1, 2]")
+            _set(self, "orders", orders)
+        else:
+            lo = _nonneg(owner, "f_min_hz", self.f_min_hz, "Hz")
+            hi = _positive(owner, "f_max_hz", self.f_max_hz, "Hz")
+            if hi < lo:
+                raise ModelError(
+                    f"{owner}: f_max_hz must not be below f_min_hz, got {_fmt(lo)} to {_fmt(hi)} Hz")
+            _set(self, "f_min_hz", lo)
+            _set(self, "f_max_hz", hi)
+
+    def frequencies_hz(self) -> tuple[tuple[float, float], ...]:
+        """The source as (low, high) intervals in Hz; a speed order is a zero-width interval."""
+        if self.type == "speed":
+            return tuple((o * self.rpm / 60.0, o * self.rpm / 60.0) for o in self.orders)
+        return ((self.f_min_hz, self.f_max_hz),)
+
+
+@dataclass(frozen=True)
+class Initial:
+    """Initial displacement and velocity of one mass, by direction (m, m/s; rad, rad/s)."""
+
+    mass_id: str
+    displacement: tuple[tuple[str, float], ...] = ()
+    velocity: tuple[tuple[str, float], ...] = ()
+
+    def __post_init__(self):
+        _check_id("initial condition", self.mass_id)
+        owner = f'initial condition of "{self.mass_id}"'
+        for name, items in (("displacement", self.displacement), ("velocity", self.velocity)):
+            if isinstance(items, Mapping):
+                items = tuple(items.items())
+            clean = []
+            for d, v in items:
+                if d not in DIRECTIONS:
+                    raise ModelError(f'{owner}: direction must be x, y or theta, got "{d}"')
+                clean.append((d, _finite(owner, f"{name} {d}", v)))
+            clean.sort(key=lambda p: DIRECTIONS.index(p[0]))
+            _set(self, name, tuple(clean))
+
+    def get(self, what: str, direction: str) -> float:
+        items = self.displacement if what == "displacement" else self.velocity
+        return dict(items).get(direction, 0.0)
+
+
+@dataclass(frozen=True)
+class Model:
+    """A whole lumped model. Constructing one validates it (raises :class:`ModelError`)."""
+
+    kind: str = "line"
+    name: str = ""
+    axis: str = "x"
+    masses: tuple[Mass, ...] = ()
+    anchors: tuple[Anchor, ...] = ()
+    springs: tuple[Spring, ...] = ()
+    dampers: tuple[Damper, ...] = ()
+    damping: Damping = field(default_factory=Damping)
+    excitations: tuple[Excitation, ...] = ()
+    margin_percent: float = 15.0
+    initial: tuple[Initial, ...] = ()
+
+    def __post_init__(self):
+        for name in ("masses", "anchors", "springs", "dampers", "excitations", "initial"):
+            _set(self, name, tuple(getattr(self, name)))
+        _set(self, "name", str(self.name))
+        if self.kind not in KINDS:
+            raise ModelError(f'model: kind must be one of {", ".join(KINDS)}, got "{self.kind}"')
+        if self.axis not in AXES:
+            raise ModelError(f'model: axis must be "x" or "y", got "{self.axis}"')
+        _set(self, "margin_percent",
+             _nonneg("model", "margin_percent", self.margin_percent, "%"))
+        if self.margin_percent >= 100:
+            raise ModelError(
+                f"model: margin_percent must be below 100, got {_fmt(self.margin_percent)} %")
+        self._validate_references()
+
+    # -- validation ---------------------------------------------------------------------------
+    def _validate_references(self):
+        seen: dict[str, str] = {}
+        for what, items in (("mass", self.masses), ("anchor", self.anchors),
+                            ("spring", self.springs), ("dashpot", self.dampers),
+                            ("excitation", self.excitations)):
+            for el in items:
+                if el.id in seen:
+                    raise ModelError(
+                        f'{what} "{el.id}": id is already used by a {seen[el.id]}; ids must be unique')
+                seen[el.id] = what
+        allowed = directions_for(self.kind, self.axis)
+        for m in self.masses:
+            for d in m.fixed:
+                if d not in allowed:
+                    raise ModelError(
+                        f'mass "{m.id}": fixed direction "{d}" does not exist in a {self._kind_text()}'
+                        f' (allowed: {", ".join(allowed)})')
+        nodes = {m.id: m for m in self.masses}
+        nodes.update({a.id: a for a in self.anchors})
+        for what, items in (("spring", self.springs), ("dashpot", self.dampers)):
+            for el in items:
+                for end in ("a", "b"):
+                    ref = getattr(el, end)
+                    if ref not in nodes:
+                        raise ModelError(
+                            f'{what} "{el.id}": end {end} names "{ref}", which is not a mass or anchor')
+                if el.a == el.b:
+                    raise ModelError(f'{what} "{el.id}": both ends are "{el.a}"; a {what} must join'
+                                     ' two different nodes')
+                if self.kind == "planar":
+                    na, nb = nodes[el.a], nodes[el.b]
+                    length = math.hypot(nb.x - na.x, nb.y - na.y)
+                    if length <= 1e-12 * max(1.0, abs(na.x), abs(na.y)):
+                        raise ModelError(
+                            f'{what} "{el.id}": its ends "{el.a}" and "{el.b}" are at the same point;'
+                            " in a planar model a spring acts along its drawn line, so it needs a"
+                            " length")
+        masses = {m.id for m in self.masses}
+        seen_init = set()
+        for ic in self.initial:
+            if ic.mass_id not in masses:
+                where = "an anchor" if ic.mass_id in nodes else "not a mass in the model"
+                raise ModelError(f'initial condition: "{ic.mass_id}" is {where};'
+                                 " initial conditions are given for masses")
+            if ic.mass_id in seen_init:
+                raise ModelError(f'initial condition: mass "{ic.mass_id}" is listed twice')
+            seen_init.add(ic.mass_id)
+            for d, _ in ic.displacement + ic.velocity:
+                if d not in allowed:
+                    raise ModelError(
+                        f'initial condition of "{ic.mass_id}": direction "{d}" does not exist in a'
+                        f' {self._kind_text()} (allowed: {", ".join(allowed)})')
+
+    def _kind_text(self) -> str:
+        return {"line": f"line model along {self.axis}", "planar": "planar model",
+                "torsion": "torsion model"}[self.kind]
+
+    # -- look-up ------------------------------------------------------------------------------
+    @property
+    def directions(self) -> tuple[str, ...]:
+        """Directions each mass moves in for this model's kind."""
+        return directions_for(self.kind, self.axis)
+
+    def element(self, element_id: str):
+        """The element (mass, anchor, spring, dashpot or excitation) with this id."""
+        for items in (self.masses, self.anchors, self.springs, self.dampers, self.excitations):
+            for el in items:
+                if el.id == element_id:
+                    return el
+        raise ModelError(f'model: no element has the id "{element_id}"')
+
+    def node(self, node_id: str):
+        for items in (self.masses, self.anchors):
+            for el in items:
+                if el.id == node_id:
+                    return el
+        raise ModelError(f'model: no mass or anchor has the id "{node_id}"')
+
+    def ids(self) -> set[str]:
+        return {el.id for items in (self.masses, self.anchors, self.springs, self.dampers,
+                                    self.excitations) for el in items}
+
+    def new_id(self, prefix: str) -> str:
+        """A fresh id ``prefix<N>`` not used by any element."""
+        used = self.ids()
+        n = 1
+        while f"{prefix}{n}" in used:
+            n += 1
+        return f"{prefix}{n}"
+
+    def initial_of(self, mass_id: str) -> Initial | None:
+        for ic in self.initial:
+            if ic.mass_id == mass_id:
+                return ic
+        return None
+
+    @property
+    def total_mass(self) -> float:
+        """Sum of all masses in kg (kg m^2 for torsion), locked or not."""
+        return float(sum(m.mass for m in self.masses))
+
+    # -- editing ------------------------------------------------------------------------------
+    def with_changes(self, remove: Iterable[str] = (), put: Iterable = (), **top) -> "Model":
+        """A new Model with elements removed by id, elements added or replaced, top fields changed.
+
+        ``put`` elements replace the element of the same id in place, or are appended to their
+        collection. Removing a node also removes the springs, dashpots and initial conditions
+        attached to it, so that the result is valid. Raises :class:`ModelError` (and leaves this
+        Model untouched) when the result would be invalid.
+        """
+        remove = set(remove)
+        node_ids = {el.id for el in self.masses + self.anchors if el.id in remove}
+        put = list(put)
+        by_type = {Mass: "masses", Anchor: "anchors", Spring: "springs", Damper: "dampers",
+                   Excitation: "excitations", Initial: "initial"}
+        values = {}
+        for cls, name in by_type.items():
+            items = list(getattr(self, name))
+            if cls is Initial:
+                items = [ic for ic in items if ic.mass_id not in remove]
+            else:
+                items = [el for el in items if el.id not in remove]
+            if cls in (Spring, Damper):
+                items = [el for el in items if el.a not in node_ids and el.b not in node_ids]
+            key = (lambda el: el.mass_id) if cls is Initial else (lambda el: el.id)
+            index = {key(el): i for i, el in enumerate(items)}
+            for el in put:
+                if type(el) is cls:
+                    if key(el) in index:
+                        items[index[key(el)]] = el
+                    else:
+                        index[key(el)] = len(items)
+                        items.append(el)
+            values[name] = tuple(items)
+        for el in put:
+            if type(el) not in by_type:
+                raise ModelError(f"model: cannot add {el!r}")
+        values.update(top)
+        return replace(self, **values)
+
+
+def element_kind(el) -> str:
+    """The trade word for an element's type, as used in messages."""
+    return {Mass: "mass", Anchor: "anchor", Spring: "spring", Damper: "dashpot",
+            Excitation: "excitation"}.get(type(el), type(el).__name__.lower())
+
+
+__all__ = ["Model", "Mass", "Anchor", "Spring", "Damper", "Damping", "Excitation", "Initial",
+           "KINDS", "AXES", "DIRECTIONS", "directions_for", "element_kind", "fields"]

@@ -1,0 +1,547 @@
+"""Natural frequencies and mode shapes: ``K v = w^2 M v``.
+
+Small models use dense LAPACK: with M diagonal and positive the problem is reduced to the standard
+symmetric one ``(M^-1/2 K M^-1/2) u = w^2 u`` and solved by ``scipy.linalg.eigh``. Large (sparse)
+models use shift-invert Lanczos (``scipy.sparse.linalg.eigsh``) for the lowest ``count`` modes, with
+a small negative shift so that rigid-body modes (a singular K) are allowed.
+
+Zero eigenvalues are results, not errors: the zero-frequency modes are re-expressed in a basis
+that explains them (rigid-body translations and rotations first, then mechanisms), each with a cause
+in plain words. Shapes are mass-normalised: ``Phi^T M Phi = I``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import scipy.linalg
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+
+from .assemble import System, assemble
+from .errors import ModelError
+from .model import Model
+
+#: Up to this many DOFs every mode is found by dense LAPACK (chosen with bench/solver_bench.py).
+DENSE_DOF_LIMIT = 1500
+#: Lowest modes found by default in a model too large for the dense path.
+DEFAULT_SPARSE_COUNT = 20
+#: Relative tolerance on w for calling two frequencies repeated.
+REPEATED_RTOL = 1e-6
+#: An eigenvalue below this fraction of the spectral bound counts as zero.
+ZERO_RTOL = 1e-11
+
+
+@dataclass(frozen=True)
+class ZeroMode:
+    """Why a zero-frequency mode exists.
+
+    ``kind`` is ``"rigid"`` (the group moves as a rigid body: the general solution term
+    ``v (a + b t)``) or ``"mechanism"`` (springs allow a motion they cannot resist).
+    """
+
+    mode: int
+    kind: str
+    cause: str
+    masses: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True, eq=False)
+class ModalResult:
+    """Modes of a model, ascending in frequency, numbered from 1 (column ``i`` is mode ``i + 1``).
+
+    Attributes
+    ----------
+    eigenvalues : (n_modes,) ndarray, w^2 in (rad/s)^2; exact zero for zero-frequency modes.
+    omegas : (n_modes,) rad/s.        frequencies_hz : (n_modes,) Hz.
+    shapes : (n_dof, n_modes) mass-normalised shapes on ``dofs``.
+    all_shapes : (n_all, n_modes) the same with massless junctions' motion recovered.
+    effective_mass : dict direction -> (n_modes,) effective modal mass in kg (kg m^2 in torsion).
+    participation : dict direction -> (n_modes,) participation factors Gamma = phi^T M r.
+    total_mass : dict direction -> mass free to move in that direction (r^T M r).
+    zero_modes : tuple of ZeroMode.     repeated : tuple of tuples of mode numbers.
+    complete : True when every mode of the model was found (dense path).
+    """
+
+    system: System
+    eigenvalues: np.ndarray
+    shapes: np.ndarray
+    all_shapes: np.ndarray
+    effective_mass: dict
+    participation: dict
+    total_mass: dict
+    zero_modes: tuple = ()
+    repeated: tuple = ()
+    warnings: tuple = ()
+    message: str = ""
+    complete: bool = True
+    method: str = "dense"
+
+    @property
+    def dofs(self):
+        return self.system.dofs
+
+    @property
+    def all_dofs(self):
+        return self.system.all_dofs
+
+    @property
+    def model(self) -> Model:
+        return self.system.model
+
+    @property
+    def n_modes(self) -> int:
+        return int(self.eigenvalues.shape[0])
+
+    @property
+    def omegas(self) -> np.ndarray:
+        return np.sqrt(self.eigenvalues)
+
+    @property
+    def frequencies_hz(self) -> np.ndarray:
+        return self.omegas / (2 * np.pi)
+
+    @property
+    def natural_frequencies_hz(self) -> np.ndarray:
+        return self.frequencies_hz
+
+    @property
+    def periods_s(self) -> np.ndarray:
+        with np.errstate(divide="ignore"):
+            return np.where(self.omegas > 0, 2 * np.pi / np.where(self.omegas > 0, self.omegas, 1),
+                            np.inf)
+
+    @property
+    def is_zero(self) -> np.ndarray:
+        """(n_modes,) bool: zero-frequency modes."""
+        flags = np.zeros(self.n_modes, bool)
+        for z in self.zero_modes:
+            flags[z.mode - 1] = True
+        return flags
+
+    @property
+    def effective_mass_percent(self) -> dict:
+        return {d: (100.0 * v / self.total_mass[d] if self.total_mass[d] > 0 else np.zeros_like(v))
+                for d, v in self.effective_mass.items()}
+
+    @property
+    def cumulative_percent(self) -> dict:
+        return {d: np.cumsum(v) for d, v in self.effective_mass_percent.items()}
+
+    def zero_mode(self, mode: int) -> ZeroMode | None:
+        for z in self.zero_modes:
+            if z.mode == mode:
+                return z
+        return None
+
+    def repeated_group(self, mode: int) -> tuple[int, ...]:
+        for g in self.repeated:
+            if mode in g:
+                return g
+        return ()
+
+    def shape(self, mode: int) -> np.ndarray:
+        """Mass-normalised shape of mode ``mode`` (from 1) on ``dofs``."""
+        return self.shapes[:, self._col(mode)]
+
+    def node_displacement(self, mode: int) -> dict:
+        """``{mass_id: {direction: value}}`` of a mode (junctions included)."""
+        return self.system.node_motion(self.all_shapes[:, self._col(mode)])
+
+    def _col(self, mode: int) -> int:
+        if isinstance(mode, bool) or not 1 <= int(mode) <= self.n_modes:
+            raise ModelError(f"mode must be a number from 1 to {self.n_modes}, got {mode!r}")
+        return int(mode) - 1
+
+
+def _spectral_bound(M_diag: np.ndarray, K) -> float:
+    """Gershgorin bound on the largest eigenvalue of M^-1/2 K M^-1/2, (rad/s)^2."""
+    s = 1.0 / np.sqrt(M_diag)
+    if sp.issparse(K):
+        A = abs(sp.diags(s) @ K @ sp.diags(s))
+        rows = np.asarray(A.sum(axis=1)).ravel()
+    else:
+        rows = (np.abs(K) * s[:, None] * s[None, :]).sum(axis=1)
+    return float(rows.max(initial=0.0))
+
+
+def modes(model_or_system, count: int | None = None) -> ModalResult:
+    """Natural frequencies and mass-normalised mode shapes.
+
+    Parameters
+    ----------
+    model_or_system : Model or System
+    count : int, optional
+        How many of the lowest modes to return. By default all of them for a model of up to
+        ``DENSE_DOF_LIMIT`` DOFs, else the lowest ``DEFAULT_SPARSE_COUNT``.
+
+    Returns
+    -------
+    ModalResult
+        An empty result with a ``message`` when the model has nothing that can move.
+    """
+    system = model_or_system if isinstance(model_or_system, System) else assemble(model_or_system)
+    if count is not None and (isinstance(count, bool) or int(count) != count or count < 0):
+        raise ModelError(f"modes: count must be a whole number >= 0, got {count!r}")
+    n = system.n_dof
+    warnings = list(system.warnings)
+    if n == 0:
+        model = system.model
+        if not model.masses:
+            msg = "the sketch has no masses yet: add a mass and a spring to see its modes"
+        elif len(system.all_dofs) == 0:
+            msg = "every mass is locked in every direction, so nothing can move"
+        else:
+            msg = "every mass is zero (massless junctions only), so there is nothing to vibrate"
+        return ModalResult(system=system, eigenvalues=np.zeros(0), shapes=np.zeros((n, 0)),
+                           all_shapes=np.zeros((len(system.all_dofs), 0)),
+                           effective_mass={d: np.zeros(0) for d in system.directions},
+                           participation={d: np.zeros(0) for d in system.directions},
+                           total_mass={d: 0.0 for d in system.directions},
+                           warnings=tuple(warnings), message=msg, complete=True)
+    M_diag = np.asarray(system.M.diagonal()).ravel().astype(float)
+    bound = _spectral_bound(M_diag, system.K)
+    want = n if count is None and n <= DENSE_DOF_LIMIT else (
+        min(DEFAULT_SPARSE_COUNT, n) if count is None else min(int(count), n))
+    if count is None and n > DENSE_DOF_LIMIT:
+        warnings.append(f"the model has {n} degrees of freedom; the lowest {want} modes are shown")
+    use_dense = n <= DENSE_DOF_LIMIT or want >= n - 1 or n < 50
+    if use_dense:
+        lam, phi = _dense_eig(system, M_diag, want)
+        method = "dense"
+    else:
+        lam, phi = _sparse_eig(system, M_diag, want, bound)
+        method = "shift-invert Lanczos"
+    return _finish(system, lam, phi, M_diag, bound, warnings, complete=(want == n), method=method)
+
+
+def _dense_eig(system: System, M_diag: np.ndarray, want: int):
+    K = system.dense("K")
+    s = 1.0 / np.sqrt(M_diag)
+    A = K * s[:, None] * s[None, :]
+    if want == 0:
+        return np.zeros(0), np.zeros((len(M_diag), 0))
+    if want < len(M_diag):
+        lam, u = scipy.linalg.eigh(A, subset_by_index=(0, want - 1), check_finite=False)
+    else:
+        lam, u = scipy.linalg.eigh(A, check_finite=False, overwrite_a=True)
+    return lam, u * s[:, None]
+
+
+def _sparse_eig(system: System, M_diag: np.ndarray, want: int, bound: float):
+    K = sp.csc_matrix(system.K)
+    M = sp.diags(M_diag, format="csc")
+    # Rigid-body modes make K singular, so shift a little below zero. The shift must be small next
+    # to the lowest nonzero eigenvalue to keep the transformed spectrum well separated, yet far
+    # above rounding: 1e-10 of the spectral bound serves chains of 10^5 masses.
+    sigma = -1e-10 * bound
+    lu = spla.splu((K - sigma * M).tocsc())
+    op = spla.LinearOperator(K.shape, matvec=lu.solve, dtype=float)
+    ncv = min(len(M_diag), max(2 * want + 1, want + 20))
+    lam, phi = spla.eigsh(K, k=want, M=M, sigma=sigma, which="LM", OPinv=op, ncv=ncv, tol=1e-12)
+    order = np.argsort(lam)
+    lam, phi = lam[order], phi[:, order]
+    # eigsh returns M-orthonormal vectors up to its tolerance; re-normalise exactly
+    norms = np.sqrt(np.einsum("ij,i,ij->j", phi, M_diag, phi))
+    return lam, phi / norms
+
+
+def _finish(system, lam, phi, M_diag, bound, warnings, complete, method):
+    lam = np.array(lam, float)
+    n_modes = lam.shape[0]
+    zero_tol = ZERO_RTOL * max(bound, 1e-300)
+    # count zero modes: structurally for line/torsion (graph components), numerically otherwise
+    rigid, rigid_info = _rigid_body_basis(system, M_diag)
+    n_zero_numeric = int(np.sum(lam <= zero_tol))
+    if system.model.kind == "planar":
+        n_zero = max(n_zero_numeric, rigid.shape[1])
+    else:
+        n_zero = rigid.shape[1]
+    n_zero = min(n_zero, n_modes)
+    zero_modes = []
+    if n_zero:
+        Z = _zero_basis(phi[:, :n_zero], rigid, M_diag, n_zero)
+        phi = phi.copy()
+        phi[:, :n_zero] = Z
+        lam[:n_zero] = 0.0
+        n_rigid = min(rigid.shape[1], n_zero)
+        for i in range(n_zero):
+            if i < n_rigid:
+                cause, masses = rigid_info[i]
+                zero_modes.append(ZeroMode(mode=i + 1, kind="rigid", cause=cause, masses=masses))
+            else:
+                cause, masses = _explain_mechanism(system, Z[:, i], M_diag)
+                zero_modes.append(ZeroMode(mode=i + 1, kind="mechanism", cause=cause,
+                                           masses=masses))
+    lam = np.maximum(lam, 0.0)
+    # deterministic sign: the largest component of each elastic mode is positive
+    for j in range(n_zero, n_modes):
+        col = phi[:, j]
+        big = np.flatnonzero(np.abs(col) >= (1 - 1e-9) * np.abs(col).max())[0]
+        if col[big] < 0:
+            phi[:, j] = -col
+    repeated = _repeated_groups(lam, n_zero)
+    for g in repeated:
+        if g[0] > n_zero:
+            warnings.append(
+                f"modes {', '.join(map(str, g))} share one frequency ({np.sqrt(lam[g[0] - 1]) / (2 * np.pi):.6g} Hz);"
+                " their shapes are one possible basis, not unique")
+    for z in zero_modes:
+        if z.kind == "mechanism":
+            warnings.append(f"mode {z.mode} is a mechanism: {z.cause}")
+    all_shapes = np.asarray(system.recovery @ phi)
+    participation, effective, total = {}, {}, {}
+    for d in system.directions:
+        r = system.influence(d)
+        L = phi.T @ (M_diag * r)
+        participation[d] = L
+        effective[d] = L * L
+        total[d] = float(r @ (M_diag * r))
+    return ModalResult(system=system, eigenvalues=lam, shapes=phi, all_shapes=all_shapes,
+                       effective_mass=effective, participation=participation, total_mass=total,
+                       zero_modes=tuple(zero_modes), repeated=repeated, warnings=tuple(warnings),
+                       complete=complete, method=method)
+
+
+def _repeated_groups(lam, n_zero):
+    groups = []
+    if n_zero >= 2:
+        groups.append(tuple(range(1, n_zero + 1)))
+    w = np.sqrt(np.maximum(lam, 0))
+    i = n_zero
+    while i < len(lam):
+        j = i + 1
+        while j < len(lam) and w[j] - w[i] <= REPEATED_RTOL * w[j]:
+            j += 1
+        if j - i >= 2:
+            groups.append(tuple(range(i + 1, j + 1)))
+        i = j
+    return tuple(groups)
+
+
+def _m_orthonormalise(V, M_diag, tol=1e-10):
+    """M-orthonormal basis of the columns of V (modified Gram-Schmidt, drops dependent ones)."""
+    out = []
+    for j in range(V.shape[1]):
+        v = V[:, j].astype(float).copy()
+        norm0 = np.sqrt(v @ (M_diag * v))
+        if norm0 == 0:
+            continue
+        for _ in range(2):
+            for u in out:
+                v -= (u @ (M_diag * v)) * u
+        norm = np.sqrt(v @ (M_diag * v))
+        if norm > tol * norm0:
+            out.append(v / norm)
+    return np.array(out).T if out else np.zeros((V.shape[0], 0))
+
+
+def _zero_basis(Z_eig, rigid, M_diag, n_zero):
+    """Zero-mode shapes: the rigid-body basis, then the rest of the computed null space."""
+    if rigid.shape[1] >= n_zero:
+        return _m_orthonormalise(rigid, M_diag)[:, :n_zero]
+    # mechanisms: the part of the computed zero space M-orthogonal to the rigid modes
+    R = _m_orthonormalise(rigid, M_diag)
+    rest = Z_eig - R @ (R.T @ (M_diag[:, None] * Z_eig)) if R.shape[1] else Z_eig.copy()
+    # principal directions of what remains, strongest first
+    W = rest * np.sqrt(M_diag)[:, None]
+    u, s, _ = np.linalg.svd(W, full_matrices=False)
+    mech = u[:, : n_zero - R.shape[1]] / np.sqrt(M_diag)[:, None]
+    basis = _m_orthonormalise(np.hstack([R, mech]), M_diag)
+    if basis.shape[1] < n_zero:  # numerical safety: fall back to the solver's own vectors
+        basis = _m_orthonormalise(np.hstack([basis, Z_eig]), M_diag)
+    return basis[:, :n_zero]
+
+
+def _components(model: Model):
+    """Groups of nodes joined by springs (dashpots carry no static load)."""
+    parent = {el.id: el.id for el in model.masses + model.anchors}
+
+    def find(a):
+        while parent[a] != a:
+            parent[a] = parent[parent[a]]
+            a = parent[a]
+        return a
+
+    for s in model.springs:
+        ra, rb = find(s.a), find(s.b)
+        if ra != rb:
+            parent[ra] = rb
+    groups: dict = {}
+    for el in model.masses + model.anchors:
+        groups.setdefault(find(el.id), []).append(el.id)
+    return list(groups.values())
+
+
+_VERB = {"x": "slide along x", "y": "slide along y", "theta": "spin freely about the shaft axis"}
+
+
+def _rigid_body_basis(system: System, M_diag):
+    """Rigid-body motions allowed by the model, on ``system.dofs``, with a cause for each."""
+    model = system.model
+    anchors = {a.id for a in model.anchors}
+    masses = {m.id: m for m in model.masses}
+    lookup = {d: i for i, d in enumerate(system.all_dofs)}
+    K_full = system.K_full
+    vectors, info = [], []
+    groups = _components(model)
+    moving_groups = [g for g in groups if not (set(g) & anchors)]
+    n_mass_total = len(model.masses)
+    for g in moving_groups:
+        gm = [masses[i] for i in g]
+        if not any(m.mass > 0 for m in gm):
+            continue
+        # candidate rigid motions of this group on all nodes (locked directions included)
+        if model.kind == "planar":
+            tot = sum(m.mass for m in gm)
+            cx = sum(m.mass * m.x for m in gm) / tot
+            cy = sum(m.mass * m.y for m in gm) / tot
+            cand = {"x": lambda m: (1.0, 0.0), "y": lambda m: (0.0, 1.0),
+                    "rot": lambda m: (-(m.y - cy), m.x - cx)}
+            names = ["x", "y", "rot"]
+            comps = ("x", "y")
+        else:
+            d0 = model.directions[0]
+            cand = {d0: lambda m: (1.0,)}
+            names = [d0]
+            comps = model.directions
+        # rows: every (node, direction) of the group; locked ones must stay still
+        free_rows, locked_rows = [], []
+        for m in gm:
+            vals = [cand[nm](m) for nm in names]
+            for ci, d in enumerate(comps):
+                row = [v[ci] for v in vals]
+                (locked_rows if d in m.fixed else free_rows).append(((m.id, d), row))
+        A_lock = np.array([r for _, r in locked_rows]).reshape(len(locked_rows), len(names))
+        coeffs = scipy.linalg.null_space(A_lock) if len(locked_rows) else np.eye(len(names))
+        if coeffs.shape[1] == 0:
+            continue
+        # rigid vectors on all free DOFs, then keep the combinations that strain no spring
+        V = np.zeros((len(system.all_dofs), len(names)))
+        for key, row in free_rows:
+            V[lookup[key]] = row
+        KV = np.asarray(K_full @ (V @ coeffs))
+        scale = max(abs(K_full).max() if sp.issparse(K_full) else np.abs(K_full).max(), 1e-300)
+        scale *= max(np.abs(V).max(), 1e-300)
+        if KV.size:
+            ok = scipy.linalg.null_space(KV, rcond=1e-9 * scale / max(np.abs(KV).max(), scale))
+        else:
+            ok = np.eye(coeffs.shape[1])
+        if ok.shape[1] == 0:
+            continue
+        C = coeffs @ ok  # (n_names, n_rigid) combinations of x, y, rot
+        C = _nice_combinations(C, names)
+        whole = len(gm) == n_mass_total
+        ids = tuple(sorted(m.id for m in gm if m.mass > 0))
+        for j in range(C.shape[1]):
+            vec_all = V @ C[:, j]
+            retained = np.array([vec_all[lookup[d]] for d in system.dofs])
+            if not np.any(np.abs(retained) > 1e-12):
+                continue
+            vectors.append(retained)
+            info.append((_rigid_cause(model, C[:, j], names, whole, ids, gm), ids))
+    if not vectors:
+        return np.zeros((system.n_dof, 0)), []
+    V = np.array(vectors).T
+    # independent only (a group's motions are independent; groups are disjoint)
+    basis = _m_orthonormalise(V, M_diag)
+    if basis.shape[1] < V.shape[1]:
+        info = info[: basis.shape[1]]
+    return basis, info
+
+
+def _nice_combinations(C, names):
+    """Re-express the allowed rigid combinations with pure x, y translations first."""
+    if C.shape[1] == 0:
+        return C
+    P = C @ np.linalg.pinv(C)  # projector onto the allowed space in coefficient space
+    picked = []
+    for i in range(len(names)):
+        e = np.zeros(len(names))
+        e[i] = 1.0
+        if np.linalg.norm(P @ e - e) < 1e-9:
+            picked.append(e)
+    basis = list(picked)
+    for j in range(C.shape[1]):
+        v = C[:, j].copy()
+        for b in basis:
+            v -= (b @ v) / (b @ b) * b
+        if np.linalg.norm(v) > 1e-9 and len(basis) < C.shape[1]:
+            basis.append(v / np.abs(v).max())
+    return np.array(basis[: C.shape[1]]).T
+
+
+def _rigid_cause(model, coef, names, whole, ids, gm):
+    torsion = model.kind == "torsion"
+    if whole:
+        who = "the whole shaft" if torsion else "the whole layout"
+        why = " (nothing holds it to ground"
+    else:
+        who = (f'disc "{ids[0]}"' if torsion else f'mass "{ids[0]}"') if len(ids) == 1 else (
+            ("discs " if torsion else "masses ") + ", ".join(f'"{i}"' for i in ids[:4])
+            + (" ..." if len(ids) > 4 else ""))
+        why = (" (it is joined to nothing" if len(ids) == 1 and len(gm) == 1
+               else " (no spring path to an anchor")
+    if model.kind != "planar":
+        verb = "spin freely" if torsion else _VERB[names[0]]
+        strain = "no spring is twisted" if torsion else "no spring is stretched"
+        return f"{who} can {verb} as a rigid body{why}; {strain})"
+    a, b, c = coef
+    if abs(c) < 1e-12:
+        if abs(b) < 1e-12:
+            verb = "slide along x"
+        elif abs(a) < 1e-12:
+            verb = "slide along y"
+        else:
+            verb = f"slide in the direction ({a / np.hypot(a, b):.3g}, {b / np.hypot(a, b):.3g})"
+    else:
+        tot = sum(m.mass for m in gm) or 1.0
+        cx = sum(m.mass * m.x for m in gm) / tot
+        cy = sum(m.mass * m.y for m in gm) / tot
+        px, py = cx - b / c, cy + a / c
+        verb = f"rotate about the point ({px:.4g}, {py:.4g}) m"
+    return f"{who} can {verb} as a rigid body{why}; no spring is strained)"
+
+
+def _explain_mechanism(system: System, vec, M_diag):
+    """Plain words for a zero mode that is not rigid-body motion."""
+    model = system.model
+    share = M_diag * vec * vec
+    by_mass: dict = {}
+    for (mid, d), s, v in zip(system.dofs, share, vec):
+        entry = by_mass.setdefault(mid, [0.0, {}])
+        entry[0] += s
+        entry[1][d] = v
+    ranked = sorted(by_mass.items(), key=lambda kv: -kv[1][0])
+    top = [mid for mid, (s, _) in ranked if s >= 0.1 * ranked[0][1][0]][:4]
+    mid = top[0]
+    motion = ranked[0][1][1]
+    if model.kind == "planar":
+        ux, uy = motion.get("x", 0.0), motion.get("y", 0.0)
+        norm = np.hypot(ux, uy) or 1.0
+        ux, uy = ux / norm, uy / norm
+        attached = [s for s in model.springs if mid in (s.a, s.b)]
+        node = model.node(mid)
+        perpendicular = True
+        for s in attached:
+            other = model.node(s.b if s.a == mid else s.a)
+            ex, ey = other.x - node.x, other.y - node.y
+            length = np.hypot(ex, ey)
+            if abs(ux * ex / length + uy * ey / length) > 1e-3 or s.k_t > 0:
+                perpendicular = False
+        direction = f"({ux:.2f}, {uy:.2f})"
+        if not attached:
+            reason = "no spring is attached to it"
+        elif perpendicular and len(attached) == 1:
+            reason = ("its only spring acts along its line and has no transverse stiffness, so"
+                      " it can swing sideways")
+        elif perpendicular:
+            reason = ("its springs are in line, so nothing resists motion at right angles to"
+                      " them (add a spring at an angle or a transverse stiffness k_t)")
+        else:
+            reason = "the springs around it form a linkage that can move without stretching"
+        who = f'mass "{mid}"' if len(top) == 1 else "masses " + ", ".join(f'"{t}"' for t in top)
+        return f"{who} can move in direction {direction} with no stiffness: {reason}", tuple(top)
+    who = "masses " + ", ".join(f'"{t}"' for t in top)
+    return f"{who} can move with no stiffness resisting", tuple(top)

@@ -1,0 +1,237 @@
+"""Free response from initial displacements and velocities.
+
+Without dashpots the response is exact modal superposition. Each modal coordinate ``q`` obeys
+``q'' + c q' + lambda q = 0`` with ``c = 0`` (undamped), ``c = 2 zeta w`` (modal damping) or
+``c = alpha + beta lambda`` (Rayleigh), solved in closed form for every case: oscillating,
+critically damped, overdamped, and the rigid-body modes (``lambda = 0``: ``q = q0 + q0' t`` undamped).
+With dashpots the damping is not proportional, so the first-order state equation
+``z' = A z``, ``A = [[0, I], [-M^-1 K, -M^-1 C]]``, is solved exactly by the matrix exponential.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.linalg
+
+from .assemble import System, assemble
+from .errors import ModelError
+from .model import Model
+from .modes import ModalResult, modes
+
+
+@dataclass(frozen=True, eq=False)
+class FreeResponse:
+    """Free motion on ``dofs`` (every free DOF, junctions included).
+
+    times : (n_t,) s.   displacement, velocity : (n_t, n_dof) in m, m/s (rad, rad/s in torsion).
+    method : "modal" or "state-space".
+    """
+
+    times: np.ndarray
+    dofs: tuple
+    displacement: np.ndarray
+    velocity: np.ndarray
+    method: str
+    warnings: tuple = ()
+
+    def of(self, mass_id: str, direction: str) -> np.ndarray:
+        """Displacement history of one DOF, (n_t,)."""
+        try:
+            i = self.dofs.index((mass_id, direction))
+        except ValueError:
+            raise ModelError(f'"{mass_id}" has no free {direction} motion in this model') from None
+        return self.displacement[:, i]
+
+    def node_displacement(self, i: int) -> dict:
+        """``{mass_id: {direction: value}}`` at time index ``i``."""
+        out: dict = {}
+        for (mid, d), v in zip(self.dofs, self.displacement[i]):
+            out.setdefault(mid, {})[d] = float(v)
+        return out
+
+
+def initial_vectors(system: System, x0=None, v0=None):
+    """Initial displacement and velocity on ``system.dofs`` from the model or from mappings.
+
+    ``x0``/``v0`` may be mappings ``{(mass_id, direction): value}`` or arrays on ``system.dofs``.
+    Values given for massless junctions or locked directions are ignored with a warning: a
+    junction has no inertia, so its position follows the masses.
+    """
+    model = system.model
+    warnings = []
+    lookup = {d: i for i, d in enumerate(system.dofs)}
+    n = system.n_dof
+
+    def build(given, what):
+        if given is not None and not isinstance(given, dict):
+            arr = np.asarray(given, float)
+            if arr.shape != (n,):
+                raise ModelError(f"free response: {what} must have {n} values (one per DOF),"
+                                 f" got shape {arr.shape}")
+            return arr
+        vec = np.zeros(n)
+        if given is None:
+            items = []
+            for ic in model.initial:
+                pairs = ic.displacement if what == "displacement" else ic.velocity
+                items += [((ic.mass_id, d), v) for d, v in pairs]
+        else:
+            items = list(given.items())
+        for key, value in items:
+            if key in lookup:
+                vec[lookup[key]] = float(value)
+            elif value:
+                warnings.append(f'initial {what} of "{key[0]}" in {key[1]} is ignored: that'
+                                " direction is locked or belongs to a massless junction")
+        return vec
+
+    return build(x0, "displacement"), build(v0, "velocity"), warnings
+
+
+def modal_damping_coefficients(model: Model, result: ModalResult) -> np.ndarray:
+    """Modal damping coefficient c_i (1/s) of each mode from the model's damping model.
+
+    Modal equation: q'' + c_i q' + w_i^2 q = 0, with c_i = 2 zeta_i w_i (modal ratio, per-mode
+    overrides honoured) or alpha + beta w_i^2 (Rayleigh; Chopra, Dynamics of Structures, 11.4).
+    """
+    lam = result.eigenvalues
+    w = np.sqrt(lam)
+    d = model.damping
+    if d.model == "modal":
+        zeta = np.full(len(lam), d.ratio)
+        for mode, ratio in d.mode_ratios:
+            if mode <= len(zeta):
+                zeta[mode - 1] = ratio
+        return 2 * zeta * w
+    if d.model == "rayleigh":
+        return d.alpha + d.beta * lam
+    return np.zeros(len(lam))
+
+
+def _modal_coordinate(q0, qd0, c, lam, t):
+    """Exact q(t), q'(t) of q'' + c q' + lam q = 0 for arrays of modes (rows) and times (cols)."""
+    q0, qd0, c, lam = (np.asarray(v, float)[:, None] for v in (q0, qd0, c, lam))
+    t = np.asarray(t, float)[None, :]
+    a = c / 2.0
+    D = a * a - lam  # discriminant / 4
+    scale = np.maximum(a * a + lam, 1e-300)
+    under = D < -1e-12 * scale
+    over = D > 1e-12 * scale
+    crit = ~(under | over)
+    # q = e^{-a t} [q0 Cf(t) + (qd0 + a q0) Sf(t)], Cf = cos/cosh, Sf = sin(wd t)/wd, sinh(b t)/b, t
+    wd = np.sqrt(np.where(under, -D, 0.0))
+    b = np.sqrt(np.where(over, D, 0.0))
+    decay = np.exp(-a * t)
+    cos_u = np.cos(wd * t)
+    sin_u = np.where(wd > 0, np.sin(wd * t) / np.where(wd > 0, wd, 1.0), t)
+    # overdamped: e^{-a t} cosh(b t) and e^{-a t} sinh(b t)/b without overflow
+    ep = np.exp((b - a) * t)
+    em = np.exp(-(a + b) * t)
+    cosh_o = 0.5 * (ep + em)
+    sinh_o = np.where(b * t > 1e-6, 0.5 * (ep - em) / np.where(b > 0, b, 1.0),
+                      t * decay * (1 + (b * t) ** 2 / 6))
+    Cf = np.where(under, decay * cos_u, np.where(over, cosh_o, decay))
+    Sf = np.where(under, decay * sin_u, np.where(over, sinh_o, decay * t))
+    # derivatives: d/dt [e^{-at} Cf0] etc. via the ODE's structure:
+    # with q = q0 Cf + (qd0 + a q0) Sf, and Sf' = Cf - a Sf, Cf' = -a Cf - (lam - a^2)... use
+    # Cf' = -a Cf + (a^2 - lam) Sf (true for all three cases), Sf' = Cf - a Sf.
+    q = q0 * Cf + (qd0 + a * q0) * Sf
+    dCf = -a * Cf + D * Sf
+    dSf = Cf - a * Sf
+    qd = q0 * dCf + (qd0 + a * q0) * dSf
+    del crit
+    return q, qd
+
+
+def free_response(model, times, result: ModalResult | None = None, x0=None, v0=None,
+                  damped: bool = True) -> FreeResponse:
+    """Free response of a model from initial conditions.
+
+    Parameters
+    ----------
+    model : Model (or System)
+    times : (n_t,) array of times in s (any order; t >= 0 is the usual use).
+    result : ModalResult, optional — reuse modes already computed for this model.
+    x0, v0 : optional mappings ``{(mass_id, direction): value}`` or arrays on the system's DOFs;
+        by default the model's ``initial`` conditions.
+    damped : use the model's damping (modal, Rayleigh, dashpots); False ignores it.
+
+    Returns
+    -------
+    FreeResponse on every free DOF (massless junctions recovered).
+    """
+    system = model if isinstance(model, System) else (result.system if result is not None
+                                                       else assemble(model))
+    model = system.model
+    t = np.atleast_1d(np.asarray(times, float))
+    if t.ndim != 1 or not np.all(np.isfinite(t)):
+        raise ModelError("free response: times must be a 1-D array of finite values in s")
+    x, v, warnings = initial_vectors(system, x0, v0)
+    n_all = len(system.all_dofs)
+    if system.n_dof == 0:
+        z = np.zeros((len(t), n_all))
+        return FreeResponse(t, system.all_dofs, z, z.copy(), "modal", tuple(warnings))
+    has_dashpots = damped and len(model.dampers) > 0 and system.C_full.sum() != 0
+    if not has_dashpots:
+        res = result if result is not None else modes(system)
+        if not res.complete:
+            warnings.append(f"free response uses the lowest {res.n_modes} modes only")
+        M_diag = np.asarray(system.M.diagonal()).ravel()
+        q0 = res.shapes.T @ (M_diag * x)
+        qd0 = res.shapes.T @ (M_diag * v)
+        c = modal_damping_coefficients(model, res) if damped else np.zeros(res.n_modes)
+        q, qd = _modal_coordinate(q0, qd0, c, res.eigenvalues, t)
+        disp = (res.all_shapes @ q).T
+        vel = (res.all_shapes @ qd).T
+        return FreeResponse(t, system.all_dofs, disp, vel, "modal", tuple(warnings))
+    # non-proportional damping: exact state-space solution
+    M = system.dense("M")
+    K = system.dense("K")
+    C = system.dense("C") + _proportional_damping_matrix(system, model)
+    n = system.n_dof
+    Minv = 1.0 / np.diag(M)
+    A = np.zeros((2 * n, 2 * n))
+    A[:n, n:] = np.eye(n)
+    A[n:, :n] = -Minv[:, None] * K
+    A[n:, n:] = -Minv[:, None] * C
+    z0 = np.concatenate([x, v])
+    Z = _expm_series(A, z0, t)
+    R = system.recovery.toarray() if hasattr(system.recovery, "toarray") else system.recovery
+    disp = (R @ Z[:n]).T
+    vel = (R @ Z[n:]).T
+    return FreeResponse(t, system.all_dofs, disp, vel, "state-space", tuple(warnings))
+
+
+def _proportional_damping_matrix(system: System, model: Model) -> np.ndarray:
+    """The damping-model part of C (modal or Rayleigh), added to the dashpots' C."""
+    d = model.damping
+    if d.model == "rayleigh":
+        return d.alpha * system.dense("M") + d.beta * system.dense("K")
+    if d.model == "modal":
+        res = modes(system)
+        c = modal_damping_coefficients(model, res)
+        Mphi = system.dense("M") @ res.shapes
+        return Mphi @ np.diag(c) @ Mphi.T
+    return np.zeros((system.n_dof, system.n_dof))
+
+
+def _expm_series(A, z0, t):
+    """z(t) = expm(A t) z0 for every t; one exponential per step on a uniform grid."""
+    t = np.asarray(t, float)
+    out = np.empty((len(z0), len(t)))
+    if len(t) == 0:
+        return out
+    dt = np.diff(t)
+    uniform = len(t) > 2 and np.allclose(dt, dt[0], rtol=1e-9, atol=0) and dt[0] > 0
+    if uniform:
+        z = scipy.linalg.expm(A * t[0]) @ z0
+        step = scipy.linalg.expm(A * dt[0])
+        for i in range(len(t)):
+            out[:, i] = z
+            z = step @ z
+        return out
+    for i, ti in enumerate(t):
+        out[:, i] = scipy.linalg.expm(A * ti) @ z0
+    return out
