@@ -27,7 +27,7 @@ _MAX_DRAWN_ROTATION = math.radians(55)
 
 
 def _fmt_value(v: float, unit: str) -> str:
-    return f"{v:.4g} {unit}"
+    return f"{v:.6g} {unit}"
 
 
 class SketchLayout:
@@ -80,6 +80,7 @@ class SketchLayout:
         self._center = rect.center()
         # Symbols must not overlap their neighbours: shrink them on crowded layouts.
         spacing = self._min_spacing_px()
+        self.min_spacing_px = spacing
         if spacing is not None:
             base = max(8.0, min(base, 0.55 * spacing))
         self.base = base
@@ -264,6 +265,10 @@ def fit_scale(layout: SketchLayout, displacements: dict | None, fraction: float 
         return 1.0
     short = min(layout.rect.width(), layout.rect.height())
     target_px = max(fraction * short, 0.8 * layout.base)
+    spacing = layout.min_spacing_px
+    if spacing:
+        # neighbours moving towards each other must not swap places on the drawing
+        target_px = min(target_px, 0.2 * spacing)
     return target_px / layout.px_per_m / big
 
 
@@ -368,8 +373,8 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
                 text += "  " + _value_text(model, s, "spring")
             if f is not None:
                 text += f"  ({100 * f:.0f} %)"
-            label_jobs.append((_beside(p1, p2, 0.21 * base + 0.35 * fm.height() + 2, fm, text),
-                               text, st.label, None))
+            label_jobs.append((_beside(p1, p2, 0.21 * base + 0.35 * fm.height() + 2, fm, text,
+                                       lanes.get(s.id, 0.0)), text, st.label, None))
 
     # dashpots
     for d in model.dampers:
@@ -380,8 +385,8 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
             text = d.label
             if labels == "values":
                 text += "  " + _value_text(model, d, "dashpot")
-            label_jobs.append((_beside(p1, p2, 0.21 * base + 0.35 * fm.height() + 2, fm, text),
-                               text, st.label, None))
+            label_jobs.append((_beside(p1, p2, 0.21 * base + 0.35 * fm.height() + 2, fm, text,
+                                       lanes.get(d.id, 0.0)), text, st.label, None))
 
     # masses
     for m in model.masses:
@@ -425,8 +430,18 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
                 text += "  " + _value_text(model, m, "mass")
             if f is not None:
                 text += f"  ({100 * f:.0f} %)"
-            label_jobs.append((QPointF(c.x(), c.y() + below + 0.2 * base + 0.5 * fm.height()),
-                               text, st.label, None))
+            side = _free_side(lay, m.id)
+            gap = below + 0.2 * base
+            if side == "below":
+                label_jobs.append((QPointF(c.x(), c.y() + gap + 0.5 * fm.height()),
+                                   text, st.label, None))
+            elif side == "above":
+                label_jobs.append((QPointF(c.x(), c.y() - gap - 0.5 * fm.height()),
+                                   text, st.label, None))
+            elif side == "right":
+                label_jobs.append((QPointF(c.x() + gap, c.y()), text, st.label, "left"))
+            else:
+                label_jobs.append((QPointF(c.x() - gap, c.y()), text, st.label, "right"))
 
     if labels and not grey and model.kind == "line":
         # a small arrow saying which way the masses move
@@ -442,26 +457,57 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
                                    tip.y() - (0.35 * base if model.axis == "y" else 0)),
                            model.axis, st.ink_soft, "left"))
 
+    bounds = lay.rect
     for pos, text, color, align in label_jobs:
         painter.setPen(QPen(color))
         w = fm.horizontalAdvance(text)
-        x = pos.x() if align == "left" else pos.x() - w / 2
+        x = pos.x() if align == "left" else pos.x() - w if align == "right" else pos.x() - w / 2
+        # keep labels inside the sketch's rectangle
+        x = min(max(x, bounds.left() + 2), bounds.right() - w - 2)
         painter.drawText(QPointF(x, pos.y() + fm.ascent() / 2 - fm.descent() / 2), text)
 
 
-def _beside(p1: QPointF, p2: QPointF, off: float, fm: QFontMetricsF, text: str) -> QPointF:
-    """Label point beside the middle of a link, on the side that reads upward/rightward."""
+def _beside(p1: QPointF, p2: QPointF, off: float, fm: QFontMetricsF, text: str,
+            lane: float = 0.0) -> QPointF:
+    """Label point beside the middle of a link: on its lane's side when it shares the link with
+    parallel elements, else above (screen) or to the right."""
     mx, my = 0.5 * (p1.x() + p2.x()), 0.5 * (p1.y() + p2.y())
     dx, dy = p2.x() - p1.x(), p2.y() - p1.y()
     length = math.hypot(dx, dy)
     if length < 1e-9:
         return QPointF(mx, my - off)
     nx, ny = -dy / length, dx / length
-    if ny > 0 or (abs(ny) < 1e-9 and nx < 0):
+    if abs(lane) > 1e-9:
+        if lane < 0:
+            nx, ny = -nx, -ny
+    elif ny > 0 or (abs(ny) < 1e-9 and nx < 0):
         nx, ny = -nx, -ny                 # above (screen) or to the right
     # a vertical link: push the label sideways by half its width too
     extra = 0.5 * fm.horizontalAdvance(text) * abs(nx)
     return QPointF(mx + nx * (off + extra), my + ny * off)
+
+
+def _free_side(lay: SketchLayout, mass_id: str) -> str:
+    """Side of a mass (below, left, right, above) farthest from the links attached to it."""
+    c = lay.point(mass_id)
+    dirs = []
+    for el in list(lay.model.springs) + list(lay.model.dampers):
+        other = el.b if el.a == mass_id else el.a if el.b == mass_id else None
+        if other is None:
+            continue
+        p = lay.point(other)
+        dirs.append(math.atan2(p.y() - c.y(), p.x() - c.x()))
+    if not dirs:
+        return "below"
+    best, best_score = "below", -1.0
+    for name, ang in (("below", math.pi / 2), ("left", math.pi), ("right", 0.0),
+                      ("above", -math.pi / 2)):
+        score = min(abs(math.remainder(ang - d, 2 * math.pi)) for d in dirs)
+        if score >= math.radians(60):
+            return name                   # the first clear side in reading preference
+        if score > best_score + 1e-6:
+            best, best_score = name, score
+    return best
 
 
 def _paint_locks(painter, lay, c: QPointF, below: float, fixed):
