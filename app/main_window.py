@@ -1,0 +1,503 @@
+"""The main window: lays out the panels and wires the actions. Logic lives in the parts.
+
+Centre: the sketch canvas. Right: properties. Bottom: modes table (with solver warnings above it)
+and the motion panel. File, edit, tool and export actions are here with shortcuts and tooltips.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from PySide6.QtCore import QSettings, Qt, QUrl
+from PySide6.QtGui import QAction, QActionGroup, QKeySequence
+from PySide6.QtWidgets import (QDockWidget, QFileDialog, QFrame, QHBoxLayout, QLabel, QMainWindow,
+                               QMessageBox, QPushButton, QVBoxLayout, QWidget)
+
+from solver.errors import ModelError
+
+from .canvas import MODE_INFO, CanvasView, Mode, ModelScene
+from .document import Document
+from .properties import PropertyPanel
+from .recovery import Recovery
+from .solve_service import SolveService
+from .style import current_style
+
+MAX_RECENT = 8
+FILE_FILTER = "Springwright models (*.json);;All files (*)"
+
+
+def _optional_widget(module: str, cls: str):
+    """A panel from the other half of the GUI, or None while it is not there yet."""
+    try:
+        mod = __import__(f"app.{module}", fromlist=[cls])
+        return getattr(mod, cls)
+    except (ImportError, AttributeError):
+        return None
+
+
+class MainWindow(QMainWindow):
+    def __init__(self, settings: QSettings | None = None, recovery_folder=None):
+        super().__init__()
+        self.settings = settings if settings is not None else QSettings()
+        self.document = Document(parent=self)
+        self.solver = SolveService(self.document, parent=self)
+        self.analysis = None
+        self._selected_mode = 1
+
+        # -- panels ---------------------------------------------------------------------------
+        self.scene = ModelScene(self.document, self)
+        self.view = CanvasView(self.scene)
+        self.view.setObjectName("canvas")
+        central = QWidget()
+        lay = QVBoxLayout(central)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.setSpacing(0)
+        self.recovery_bar = self._make_recovery_bar()
+        lay.addWidget(self.recovery_bar)
+        lay.addWidget(self.view, 1)
+        self.setCentralWidget(central)
+
+        system = str(self.settings.value("units/system", "SI"))
+        self.properties = PropertyPanel(self.document, system)
+        self.properties.unit_system_changed.connect(
+            lambda s: self.settings.setValue("units/system", s))
+        self.properties.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+        self._dock("Properties", self.properties, Qt.RightDockWidgetArea, "dock_properties")
+
+        results = QWidget()
+        rl = QVBoxLayout(results)
+        rl.setContentsMargins(2, 2, 2, 2)
+        self.warnings_label = QLabel()
+        self.warnings_label.setObjectName("warnings")
+        self.warnings_label.setWordWrap(True)
+        self.warnings_label.setTextInteractionFlags(Qt.TextSelectableByMouse)
+        self.warnings_label.hide()
+        rl.addWidget(self.warnings_label)
+        ModesTable = _optional_widget("modes_table", "ModesTable")
+        self.modes_table = ModesTable() if ModesTable else QLabel("(modes table not available)")
+        rl.addWidget(self.modes_table, 1)
+        self._dock("Modes", results, Qt.BottomDockWidgetArea, "dock_modes")
+        MotionPanel = _optional_widget("motion_panel", "MotionPanel")
+        self.motion_panel = MotionPanel() if MotionPanel else QLabel("(motion view not available)")
+        self._dock("Motion", self.motion_panel, Qt.RightDockWidgetArea, "dock_motion")
+
+        self.pending_label = QLabel("")
+        self.statusBar().addPermanentWidget(self.pending_label)
+        self.mode_label = QLabel("")
+        self.statusBar().addPermanentWidget(self.mode_label)
+
+        # -- wiring ---------------------------------------------------------------------------
+        self.scene.selection_ids_changed.connect(self.properties.set_selection)
+        self.scene.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+        self.scene.mode_changed.connect(self._on_mode_change)
+        self.document.dirty_changed.connect(self._update_title)
+        self.document.path_changed.connect(self._update_title)
+        self.document.model_changed.connect(lambda _m: self._update_title())
+        self.document.opened.connect(lambda _m: self.view.fit())
+        self.solver.results_ready.connect(self._on_results)
+        self.solver.solve_failed.connect(self._on_solve_failed)
+        self.solver.pending_changed.connect(self._on_pending_change)
+        if hasattr(self.modes_table, "mode_selected"):
+            self.modes_table.mode_selected.connect(self._on_mode_selected)
+        if hasattr(self.motion_panel, "initial_condition_requested"):
+            self.motion_panel.initial_condition_requested.connect(self._on_initial_request)
+
+        self._make_actions()
+        self.setAcceptDrops(True)
+        self.recovery = Recovery(self.document, self.settings, folder=recovery_folder, parent=self)
+        geometry = self.settings.value("window/geometry")
+        if geometry is not None:
+            self.restoreGeometry(geometry)
+        else:
+            self.resize(1400, 880)
+        state = self.settings.value("window/state")
+        if state is not None:
+            self.restoreState(state)
+        self._update_title()
+        self._on_mode_change(self.scene.mode)
+
+    # -- layout helpers -----------------------------------------------------------------------
+    def _dock(self, title, widget, area, name):
+        dock = QDockWidget(title, self)
+        dock.setObjectName(name)
+        dock.setWidget(widget)
+        self.addDockWidget(area, dock)
+        return dock
+
+    def _make_recovery_bar(self) -> QFrame:
+        bar = QFrame()
+        bar.setObjectName("recovery_bar")
+        bar.setFrameShape(QFrame.StyledPanel)
+        c = current_style().warning.name()
+        bar.setStyleSheet(f"#recovery_bar {{ border: 1px solid {c}; }}")
+        h = QHBoxLayout(bar)
+        self.recovery_text = QLabel()
+        h.addWidget(self.recovery_text, 1)
+        restore = QPushButton("Restore")
+        restore.setObjectName("recovery_restore")
+        restore.setToolTip("Open the autosaved model (it stays unsaved until you save it)")
+        restore.clicked.connect(self.restore_recovery)
+        discard = QPushButton("Discard")
+        discard.setObjectName("recovery_discard")
+        discard.clicked.connect(self.discard_recovery)
+        h.addWidget(restore)
+        h.addWidget(discard)
+        bar.hide()
+        return bar
+
+    def _action(self, text, slot, shortcut=None, tip="", menu=None, checkable=False):
+        act = QAction(text, self)
+        if shortcut is not None:
+            act.setShortcut(QKeySequence(shortcut))
+        if tip:
+            act.setToolTip(tip)
+            act.setStatusTip(tip)
+        act.setCheckable(checkable)
+        act.triggered.connect(slot)
+        if menu is not None:
+            menu.addAction(act)
+        self.addAction(act)
+        return act
+
+    def _make_actions(self):
+        mb = self.menuBar()
+        f = mb.addMenu("&File")
+        self.act_new = self._action("&New line model", lambda: self.new_model("line"),
+                                    QKeySequence.New, "Start an empty line model", f)
+        self._action("New &planar model", lambda: self.new_model("planar"), None,
+                     "Start an empty planar model (x and y per mass)", f)
+        self._action("New &torsion model", lambda: self.new_model("torsion"), None,
+                     "Start an empty torsion model (discs on shafts)", f)
+        self.act_open = self._action("&Open…", self.open_dialog, QKeySequence.Open,
+                                     "Open a model file", f)
+        self.recent_menu = f.addMenu("Open &recent")
+        self._update_recent_menu()
+        f.addSeparator()
+        self.act_save = self._action("&Save", self.save, QKeySequence.Save, "Save the model", f)
+        self.act_save_as = self._action("Save &as…", self.save_as, QKeySequence.SaveAs,
+                                        "Save the model to a new file", f)
+        f.addSeparator()
+        self._action("Export &report (PNG)…", self.export_report_dialog, "Ctrl+R",
+                     "Write the review report as a PNG image", f)
+        self._action("Export mode &table (CSV)…", self.export_csv_dialog, None,
+                     "Write the modes table as CSV", f)
+        f.addSeparator()
+        self._action("&Quit", self.close, QKeySequence.Quit, "Close Springwright", f)
+
+        e = mb.addMenu("&Edit")
+        self.act_undo = self.document.undo_stack.createUndoAction(self, "&Undo")
+        self.act_undo.setShortcut(QKeySequence.Undo)
+        self.act_redo = self.document.undo_stack.createRedoAction(self, "&Redo")
+        self.act_redo.setShortcut(QKeySequence.Redo)
+        e.addAction(self.act_undo)
+        e.addAction(self.act_redo)
+        self.addAction(self.act_undo)
+        self.addAction(self.act_redo)
+        e.addSeparator()
+        self._action("&Copy", self.scene.copy_selection, QKeySequence.Copy,
+                     "Copy the selected elements", e)
+        self._action("&Paste", self.scene.paste, QKeySequence.Paste,
+                     "Paste copies of the copied elements", e)
+        self.act_delete = self._action("&Delete", self.scene.delete_selection,
+                                       QKeySequence.Delete,
+                                       "Delete the selection (with springs of deleted masses)", e)
+        self._action("Select &all", self.scene.select_all, QKeySequence.SelectAll,
+                     "Select every element", e)
+        e.addSeparator()
+        self._action("Copy modes table", self.copy_table, "Ctrl+Shift+C",
+                     "Copy the modes table to the clipboard (tab-separated)", e)
+
+        v = mb.addMenu("&View")
+        self._action("&Fit to view", self.view.fit, "F", "Show the whole model", v)
+        self._action("Zoom &in", lambda: self.view.zoom_by(1.25), QKeySequence.ZoomIn, "", v)
+        self._action("Zoom &out", lambda: self.view.zoom_by(0.8), QKeySequence.ZoomOut, "", v)
+        snap = self._action("Snap to &grid", self._set_snap, "G",
+                            "Snap placed and moved nodes to the 50 mm grid", v, checkable=True)
+        snap.setChecked(self.scene.snap)
+
+        t = mb.addMenu("&Tools")
+        tb = self.addToolBar("Tools")
+        tb.setObjectName("toolbar_tools")
+        group = QActionGroup(self)
+        group.setExclusive(True)
+        self.mode_actions = {}
+        for mode, (text, key, hint) in MODE_INFO.items():
+            act = self._action(text, lambda _c=False, m=mode: self.scene.set_mode(m), key,
+                               f"{hint} [{key}]", t, checkable=True)
+            group.addAction(act)
+            tb.addAction(act)
+            self.mode_actions[mode] = act
+        tb.addSeparator()
+        tb.addAction(self.act_undo)
+        tb.addAction(self.act_redo)
+
+    # -- title, status ------------------------------------------------------------------------
+    def _update_title(self, *_):
+        self.setWindowTitle(f"{self.document.display_name}[*] — Springwright")
+        self.setWindowModified(self.document.dirty)
+
+    def _on_mode_change(self, mode):
+        act = self.mode_actions.get(mode) if hasattr(self, "mode_actions") else None
+        if act is not None:
+            act.setChecked(True)
+        self.mode_label.setText(f"Tool: {mode.value}")
+        self.statusBar().showMessage(MODE_INFO[mode][2])
+
+    def _on_pending_change(self, pending: bool):
+        if pending:
+            self.pending_label.setText("results out of date")
+            self.pending_label.setStyleSheet(f"color: {current_style().warning.name()};")
+        else:
+            self.pending_label.setText("")
+
+    def _set_snap(self, on: bool):
+        self.scene.snap = on
+        for item in self.scene.nodes.values():
+            item.snap = on
+
+    # -- results ------------------------------------------------------------------------------
+    def _on_results(self, analysis):
+        self.analysis = analysis
+        warnings = list(getattr(analysis, "warnings", ()) or ())
+        self._show_warnings(warnings)
+        if hasattr(self.modes_table, "set_analysis"):
+            self.modes_table.set_analysis(analysis)
+        if hasattr(self.motion_panel, "set_analysis"):
+            self.motion_panel.set_analysis(analysis)
+        n_modes = getattr(getattr(analysis, "modal", None), "n_modes", 0)
+        if n_modes:
+            mode = min(self._selected_mode, n_modes)
+            self._select_mode(mode)
+
+    def _select_mode(self, mode: int):
+        self._selected_mode = mode
+        for name in ("select_mode", "set_selected_mode", "select"):
+            fn = getattr(self.modes_table, name, None)
+            if callable(fn):
+                try:
+                    fn(mode)
+                except Exception:  # a mismatch of the table's API must not break the window
+                    continue
+                break
+        if hasattr(self.motion_panel, "show_mode"):
+            self.motion_panel.show_mode(mode)
+
+    def _on_mode_selected(self, mode: int):
+        self._selected_mode = mode
+        if hasattr(self.motion_panel, "show_mode"):
+            self.motion_panel.show_mode(mode)
+        self.statusBar().showMessage(f"Mode {mode} selected", 4000)
+
+    def _on_solve_failed(self, message: str):
+        self._show_warnings([f"Cannot solve: {message}"], error=True)
+
+    def _show_warnings(self, warnings, error=False):
+        if not warnings:
+            self.warnings_label.hide()
+            return
+        st = current_style()
+        color = (st.error if error else st.warning).name()
+        self.warnings_label.setStyleSheet(f"color: {color};")
+        self.warnings_label.setText("\n".join(f"⚠ {w}" for w in warnings))
+        self.warnings_label.show()
+
+    def _on_initial_request(self, value):
+        from solver.model import Initial, Model
+
+        try:
+            if isinstance(value, Model):
+                self.document.apply(value, "Set initial conditions")
+            elif isinstance(value, Initial):
+                self.document.apply(self.document.model.with_changes(put=[value]),
+                                    f"Set initial condition of {value.mass_id}")
+            else:
+                put = [v for v in value if isinstance(v, Initial)]
+                self.document.apply(self.document.model.with_changes(put=put),
+                                    "Set initial conditions")
+        except (ModelError, TypeError) as exc:
+            self.statusBar().showMessage(f"Initial conditions refused: {exc}", 8000)
+
+    # -- files --------------------------------------------------------------------------------
+    def _ask_save_changes(self) -> str:
+        """'save', 'discard' or 'cancel' (tests replace this to answer without a dialog)."""
+        box = QMessageBox(QMessageBox.Warning, "Unsaved changes",
+                          f"“{self.document.display_name}” has unsaved changes.",
+                          QMessageBox.Save | QMessageBox.Discard | QMessageBox.Cancel, self)
+        box.setInformativeText("Save them first?")
+        answer = box.exec()
+        return {QMessageBox.Save: "save", QMessageBox.Discard: "discard"}.get(answer, "cancel")
+
+    def maybe_save(self) -> bool:
+        """True when it is fine to drop the current model (saved, discarded or clean)."""
+        if not self.document.dirty:
+            return True
+        answer = self._ask_save_changes()
+        if answer == "save":
+            return self.save()
+        return answer == "discard"
+
+    def new_model(self, kind="line"):
+        if self.maybe_save():
+            self.document.new(kind)
+            self.statusBar().showMessage(f"New {kind} model", 4000)
+
+    def open_dialog(self):
+        if not self.maybe_save():
+            return
+        start = str(self.document.path.parent) if self.document.path else ""
+        path, _ = QFileDialog.getOpenFileName(self, "Open model", start, FILE_FILTER)
+        if path:
+            self.open_path(path, ask=False)
+
+    def open_path(self, path, ask: bool = True) -> bool:
+        if ask and not self.maybe_save():
+            return False
+        try:
+            self.document.open(path)
+        except ModelError as exc:
+            self.statusBar().showMessage(f"Not opened: {exc}", 12000)
+            QMessageBox.warning(self, "Cannot open", str(exc)) if self.isVisible() else None
+            return False
+        self._add_recent(self.document.path)
+        self.scene.set_mode(Mode.SELECT)
+        self._selected_mode = 1
+        self.statusBar().showMessage(f"Opened {self.document.path}", 6000)
+        return True
+
+    def save(self) -> bool:
+        if self.document.path is None:
+            return self.save_as()
+        return self.save_to(self.document.path)
+
+    def save_as(self) -> bool:
+        start = str(self.document.path) if self.document.path else \
+            f"{self.document.display_name}.json"
+        path, _ = QFileDialog.getSaveFileName(self, "Save model as", start, FILE_FILTER)
+        if not path:
+            return False
+        if not path.lower().endswith(".json"):
+            path += ".json"
+        return self.save_to(path)
+
+    def save_to(self, path) -> bool:
+        try:
+            written = self.document.save(path)
+        except OSError as exc:
+            msg = f"Not saved to {path}: {exc.strerror or exc}; the previous file is unchanged"
+            self.statusBar().showMessage(msg, 12000)
+            if self.isVisible():
+                QMessageBox.warning(self, "Cannot save", msg)
+            return False
+        self._add_recent(written)
+        self.statusBar().showMessage(f"Saved {written}", 6000)
+        return True
+
+    def _recent(self) -> list[str]:
+        value = self.settings.value("files/recent", [])
+        if isinstance(value, str):
+            value = [value]
+        return [str(v) for v in (value or [])]
+
+    def _add_recent(self, path):
+        if path is None:
+            return
+        items = [p for p in self._recent() if p != str(path)]
+        self.settings.setValue("files/recent", ([str(path)] + items)[:MAX_RECENT])
+        self._update_recent_menu()
+
+    def _update_recent_menu(self):
+        self.recent_menu.clear()
+        recent = self._recent()
+        for p in recent:
+            act = self.recent_menu.addAction(Path(p).name)
+            act.setToolTip(p)
+            act.triggered.connect(lambda _c=False, p=p: self.open_path(p))
+        self.recent_menu.setEnabled(bool(recent))
+
+    # -- exports ------------------------------------------------------------------------------
+    def export_report_dialog(self):
+        if self.analysis is None:
+            self.statusBar().showMessage("No results to report yet", 6000)
+            return
+        start = f"{self.document.display_name}-report.png"
+        path, _ = QFileDialog.getSaveFileName(self, "Export report", start, "PNG image (*.png)")
+        if path:
+            self.export_report(path)
+
+    def export_report(self, path) -> bool:
+        self.solver.wait()
+        try:
+            from .report import render_report
+
+            render_report(self.document.model, self.solver.last_analysis, path)
+        except (ImportError, OSError, ModelError) as exc:
+            self.statusBar().showMessage(f"Report not written: {exc}", 12000)
+            return False
+        self.statusBar().showMessage(f"Report written to {path}", 6000)
+        return True
+
+    def export_csv_dialog(self):
+        if not hasattr(self.modes_table, "to_csv"):
+            return
+        start = f"{self.document.display_name}-modes.csv"
+        path, _ = QFileDialog.getSaveFileName(self, "Export modes table", start, "CSV (*.csv)")
+        if path:
+            try:
+                self.modes_table.to_csv(path)
+            except OSError as exc:
+                self.statusBar().showMessage(f"Table not written: {exc}", 12000)
+                return
+            self.statusBar().showMessage(f"Modes table written to {path}", 6000)
+
+    def copy_table(self):
+        if hasattr(self.modes_table, "copy_to_clipboard"):
+            self.modes_table.copy_to_clipboard()
+            self.statusBar().showMessage("Modes table copied", 4000)
+
+    # -- recovery -----------------------------------------------------------------------------
+    def check_recovery(self):
+        found = self.recovery.pending()
+        if found is None:
+            return False
+        model, path = found
+        where = f" of {path.name}" if path else ""
+        self._recovered = found
+        self.recovery_text.setText(f"Springwright did not close cleanly. An autosaved copy{where}"
+                                   f" (“{model.name or 'untitled'}”) can be restored.")
+        self.recovery_bar.show()
+        return True
+
+    def restore_recovery(self):
+        found = getattr(self, "_recovered", None)
+        if found is None or not self.maybe_save():
+            return
+        model, path = found
+        self.document.load_recovered(model, path)
+        self.recovery_bar.hide()
+        self.statusBar().showMessage("Restored the autosaved model; save it to keep it", 8000)
+
+    def discard_recovery(self):
+        self.recovery.clear()
+        self.recovery_bar.hide()
+
+    # -- drag and drop, close -----------------------------------------------------------------
+    def dragEnterEvent(self, event):  # noqa: N802
+        urls = event.mimeData().urls()
+        if urls and all(QUrl(u).isLocalFile() for u in urls):
+            event.acceptProposedAction()
+
+    def dropEvent(self, event):  # noqa: N802
+        urls = event.mimeData().urls()
+        if urls:
+            self.open_path(urls[0].toLocalFile())
+            event.acceptProposedAction()
+
+    def closeEvent(self, event):  # noqa: N802
+        if not self.maybe_save():
+            event.ignore()
+            return
+        self.settings.setValue("window/geometry", self.saveGeometry())
+        self.settings.setValue("window/state", self.saveState())
+        self.solver.shutdown()
+        self.recovery.mark_clean_exit()
+        event.accept()

@@ -1,0 +1,377 @@
+"""Property panel: edit the selected element (or, with nothing selected, the model itself).
+
+Number fields take a value with a unit (``12 lbf/in``, ``3.5 kN/mm``, ``20 lb``, ``0.4 kg m^2``);
+a plain number is in the display unit system. An entry that cannot be read, or that the model
+refuses (``Model`` validation), is refused in place: the field gets a red frame and the reason
+appears under it and in its tooltip; the model is not changed. Esc puts the current value back.
+Fields are refreshed from the model on every change, with signals blocked so that a refresh never
+echoes back as an edit.
+"""
+
+from __future__ import annotations
+
+from PySide6.QtCore import QSignalBlocker, Qt, Signal
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QHBoxLayout, QLabel, QLineEdit,
+                               QScrollArea, QVBoxLayout, QWidget)
+
+from solver.errors import ModelError
+from solver.model import Anchor, Damper, Mass, Spring
+
+from . import units
+from .style import current_style
+
+
+class QuantityField(QWidget):
+    """A line edit for one physical quantity (SI inside), with the refusal reason shown beneath.
+
+    ``value_entered(float)`` carries the SI value of an accepted entry; the owner applies it and
+    calls :meth:`show_error` if the model refuses it.
+    """
+
+    value_entered = Signal(float)
+
+    def __init__(self, kind: str, system: str = "SI", parent=None):
+        super().__init__(parent)
+        self.kind = kind
+        self.system = system
+        self.value_si: float | None = None
+        self.edit = QLineEdit(self)
+        self.error_label = QLabel(self)
+        self.error_label.setWordWrap(True)
+        self.error_label.hide()
+        self.error = ""
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.setSpacing(1)
+        lay.addWidget(self.edit)
+        lay.addWidget(self.error_label)
+        self.edit.editingFinished.connect(self._on_edit_finished)
+        self._hint = f"{units.KINDS[kind].name} in {units.unit_label(kind, system)}, or with a" \
+                     f" unit, e.g. {units.KINDS[kind].example}"
+        self.edit.setToolTip(self._hint)
+        self.edit.setPlaceholderText(units.unit_label(kind, system))
+
+    def set_value(self, value_si: float, system: str | None = None) -> None:
+        """Show ``value_si`` (clears any refusal)."""
+        if system is not None:
+            self.system = system
+        self.value_si = value_si
+        with QSignalBlocker(self.edit):
+            self.edit.setText(units.format_value(value_si, self.kind, self.system))
+        self.clear_error()
+
+    def show_error(self, message: str) -> None:
+        self.error = message
+        c = current_style().error.name()
+        self.edit.setStyleSheet(f"QLineEdit {{ border: 2px solid {c}; }}")
+        self.error_label.setStyleSheet(f"color: {c};")
+        self.error_label.setText(message)
+        self.error_label.show()
+        self.edit.setToolTip(message)
+
+    def clear_error(self) -> None:
+        self.error = ""
+        self.edit.setStyleSheet("")
+        self.error_label.hide()
+        self.edit.setToolTip(self._hint)
+
+    def keyPressEvent(self, event):  # noqa: N802
+        if event.key() == Qt.Key_Escape and self.value_si is not None:
+            self.set_value(self.value_si)
+            return
+        super().keyPressEvent(event)
+
+    def _on_edit_finished(self):
+        text = self.edit.text()
+        if (self.value_si is not None and not self.error
+                and text == units.format_value(self.value_si, self.kind, self.system)):
+            return  # focus left without a change
+        try:
+            value = units.parse(text, self.kind, self.system)
+        except units.UnitError as exc:
+            self.show_error(str(exc))
+            return
+        self.clear_error()
+        self.value_entered.emit(value)
+
+
+def _mass_kind(model) -> str:
+    return "inertia" if model.kind == "torsion" else "mass"
+
+
+def _stiffness_kind(model) -> str:
+    return "torsional stiffness" if model.kind == "torsion" else "stiffness"
+
+
+def _damping_kind(model) -> str:
+    return "torsional damping" if model.kind == "torsion" else "damping"
+
+
+class PropertyPanel(QWidget):
+    """Edits ``document.model`` through the document's edit methods; never changes it directly.
+
+    Signal ``unit_system_changed(str)`` ("SI" or "US") lets the owner keep the preference.
+    """
+
+    unit_system_changed = Signal(str)
+    status_message = Signal(str)
+
+    def __init__(self, document, unit_system: str = "SI", parent=None):
+        super().__init__(parent)
+        self.document = document
+        self.unit_system = unit_system if unit_system in units.SYSTEMS else "SI"
+        self.selection: list[str] = []
+        self._fields: dict[str, tuple[QuantityField, object]] = {}
+        self._widgets: dict[str, QWidget] = {}
+        self._signature = None
+
+        outer = QVBoxLayout(self)
+        outer.setContentsMargins(4, 4, 4, 4)
+        top = QHBoxLayout()
+        top.addWidget(QLabel("Units:"))
+        self.units_combo = QComboBox()
+        self.units_combo.setObjectName("units_combo")
+        self.units_combo.addItem("SI (kg, m, N)", "SI")
+        self.units_combo.addItem("US customary (lb, in, lbf)", "US")
+        self.units_combo.setCurrentIndex(units.SYSTEMS.index(self.unit_system))
+        self.units_combo.setToolTip("Units for showing values and for plain numbers you type;"
+                                    " files are always SI")
+        self.units_combo.currentIndexChanged.connect(self._on_units_change)
+        top.addWidget(self.units_combo, 1)
+        outer.addLayout(top)
+        self.title = QLabel()
+        self.title.setObjectName("properties_title")
+        self.title.setStyleSheet("font-weight: bold;")
+        outer.addWidget(self.title)
+        scroll = QScrollArea()
+        scroll.setWidgetResizable(True)
+        scroll.setFrameShape(QScrollArea.NoFrame)
+        self._body = QWidget()
+        self.form = QFormLayout(self._body)
+        self.form.setFieldGrowthPolicy(QFormLayout.AllNonFixedFieldsGrow)
+        scroll.setWidget(self._body)
+        outer.addWidget(scroll, 1)
+        document.model_changed.connect(self._on_model_change)
+        self._on_model_change(document.model)
+
+    # -- public -------------------------------------------------------------------------------
+    def set_selection(self, ids) -> None:
+        self.selection = [i for i in ids if i in self.document.model.ids()]
+        self._on_model_change(self.document.model)
+
+    def set_unit_system(self, system: str) -> None:
+        if system == self.unit_system:
+            return
+        self.unit_system = system
+        with QSignalBlocker(self.units_combo):
+            self.units_combo.setCurrentIndex(units.SYSTEMS.index(system))
+        self._signature = None
+        self._on_model_change(self.document.model)
+
+    def field(self, name: str) -> QuantityField:
+        """The number field ``name`` (``mass``, ``k``, ``x`` ...) shown now (tests, focus)."""
+        return self._fields[name][0]
+
+    def widget(self, name: str) -> QWidget:
+        return self._widgets[name]
+
+    # -- model -> widgets ---------------------------------------------------------------------
+    def _on_units_change(self, index):
+        system = self.units_combo.itemData(index)
+        self.unit_system = system
+        self._signature = None
+        self._on_model_change(self.document.model)
+        self.unit_system_changed.emit(system)
+
+    def _on_model_change(self, model):
+        self.selection = [i for i in self.selection if i in model.ids()]
+        elements = [model.element(i) for i in self.selection]
+        signature = (tuple(self.selection), model.kind, model.axis, self.unit_system,
+                     tuple(getattr(e, "fixed", ()) for e in elements))
+        if signature != self._signature:
+            self._signature = signature
+            self._rebuild(model, elements)
+        self._refresh(model)
+
+    def _clear(self):
+        while self.form.rowCount():
+            self.form.removeRow(0)
+        self._fields.clear()
+        self._widgets.clear()
+
+    def _refresh(self, model):
+        for name, (field, getter) in self._fields.items():
+            field.set_value(getter(model), self.unit_system)
+        for name, (w, getter) in getattr(self, "_text_getters", {}).items():
+            with QSignalBlocker(w):
+                if isinstance(w, QLineEdit):
+                    if not w.hasFocus():
+                        w.setText(getter(model))
+                elif isinstance(w, QComboBox):
+                    w.setCurrentIndex(max(0, w.findData(getter(model))))
+                elif isinstance(w, QCheckBox):
+                    w.setChecked(bool(getter(model)))
+
+    def _rebuild(self, model, elements):
+        self._clear()
+        self._text_getters = {}
+        if not elements:
+            self.title.setText(f"Model: {model.name or 'untitled'}")
+            self._build_model(model)
+        elif len(elements) > 1:
+            self.title.setText(f"{len(elements)} elements selected")
+            self.form.addRow(QLabel("Select one element to edit its values."))
+        else:
+            el = elements[0]
+            if isinstance(el, Mass):
+                what = "Disc" if model.kind == "torsion" else ("Junction" if el.mass == 0
+                                                               else "Mass")
+                self.title.setText(f"{what} {el.id}")
+                self._build_mass(model, el)
+            elif isinstance(el, Anchor):
+                self.title.setText(f"Anchor {el.id}")
+                self._build_node_common(el)
+            elif isinstance(el, Spring):
+                self.title.setText(f"Spring {el.id}: {el.a}–{el.b}")
+                self._build_label(el)
+                self._add_quantity("k", _stiffness_kind(model), "Stiffness k",
+                                   lambda m, i=el.id: m.element(i).k,
+                                   lambda v, i=el.id: self.document.set_element(i, k=v))
+                if model.kind == "planar":
+                    self._add_quantity("k_t", "transverse stiffness", "Transverse k_t",
+                                       lambda m, i=el.id: m.element(i).k_t,
+                                       lambda v, i=el.id: self.document.set_element(i, k_t=v))
+            elif isinstance(el, Damper):
+                self.title.setText(f"Dashpot {el.id}: {el.a}–{el.b}")
+                self._build_label(el)
+                self._add_quantity("c", _damping_kind(model), "Damping c",
+                                   lambda m, i=el.id: m.element(i).c,
+                                   lambda v, i=el.id: self.document.set_element(i, c=v))
+            else:
+                self.title.setText(f"{el.id}")
+
+    def _build_label(self, el):
+        edit = QLineEdit()
+        edit.setObjectName("field_label")
+        edit.setToolTip("Name shown on the canvas and in tables (empty: the id)")
+        edit.editingFinished.connect(
+            lambda i=el.id, e=edit: self._try(lambda: self.document.set_element(
+                i, label=e.text().strip()), None))
+        self.form.addRow("Label", edit)
+        self._widgets["label"] = edit
+        self._text_getters["label"] = (edit, lambda m, i=el.id: m.element(i).label)
+
+    def _build_node_common(self, el):
+        self._build_label(el)
+        for axis in ("x", "y"):
+            self._add_quantity(axis, "length", f"Position {axis}",
+                               lambda m, i=el.id, a=axis: getattr(m.element(i), a),
+                               lambda v, i=el.id, a=axis: self.document.set_element(i, **{a: v}))
+
+    def _build_mass(self, model, el):
+        self._build_node_common(el)
+        kind = _mass_kind(model)
+        self._add_quantity("mass", kind, "Inertia" if kind == "inertia" else "Mass",
+                           lambda m, i=el.id: m.element(i).mass,
+                           lambda v, i=el.id: self.document.set_element(i, mass=v))
+        row = QHBoxLayout()
+        box = QWidget()
+        box.setLayout(row)
+        row.setContentsMargins(0, 0, 0, 0)
+        for d in model.directions:
+            cb = QCheckBox(d)
+            cb.setObjectName(f"fixed_{d}")
+            cb.setToolTip(f"Lock this mass in direction {d} (it then cannot move that way)")
+            cb.toggled.connect(lambda on, i=el.id, d=d: self._set_fixed(i, d, on))
+            row.addWidget(cb)
+            self._widgets[f"fixed_{d}"] = cb
+            self._text_getters[f"fixed_{d}"] = (cb, lambda m, i=el.id, d=d: d in m.element(i).fixed)
+        row.addStretch(1)
+        self.form.addRow("Locked", box)
+        for d in model.directions:
+            rot = d == "theta"
+            self._add_quantity(f"init_{d}", "angle" if rot else "length", f"Initial {d}",
+                               lambda m, i=el.id, d=d: self._initial(m, i, "displacement", d),
+                               lambda v, i=el.id, d=d: self.document.set_initial(
+                                   i, d, displacement=v))
+            self._add_quantity(f"init_v{d}", "angular velocity" if rot else "velocity",
+                               f"Initial v{d}",
+                               lambda m, i=el.id, d=d: self._initial(m, i, "velocity", d),
+                               lambda v, i=el.id, d=d: self.document.set_initial(i, d, velocity=v))
+
+    @staticmethod
+    def _initial(model, mass_id, what, direction):
+        ic = model.initial_of(mass_id)
+        return ic.get(what, direction) if ic else 0.0
+
+    def _set_fixed(self, mass_id, direction, on):
+        el = self.document.model.element(mass_id)
+        fixed = [d for d in el.fixed if d != direction] + ([direction] if on else [])
+        order = ("x", "y", "theta")
+        self._try(lambda: self.document.set_element(
+            mass_id, fixed=tuple(sorted(fixed, key=order.index))), None)
+
+    def _build_model(self, model):
+        name = QLineEdit()
+        name.setObjectName("field_name")
+        name.editingFinished.connect(
+            lambda e=name: self._try(lambda: self.document.set_top(name=e.text().strip()), None))
+        self.form.addRow("Name", name)
+        self._widgets["name"] = name
+        self._text_getters["name"] = (name, lambda m: m.name)
+        kind = QComboBox()
+        kind.setObjectName("field_kind")
+        for k, text in (("line", "line (one direction per mass)"),
+                        ("planar", "planar (x and y per mass)"),
+                        ("torsion", "torsion (discs on shafts)")):
+            kind.addItem(text, k)
+        kind.currentIndexChanged.connect(
+            lambda _i, c=kind: self._try(lambda: self.document.set_top(
+                kind=c.currentData(), text=f"Change model kind to {c.currentData()}"), None))
+        self.form.addRow("Kind", kind)
+        self._widgets["kind"] = kind
+        self._text_getters["kind"] = (kind, lambda m: m.kind)
+        if model.kind == "line":
+            axis = QComboBox()
+            axis.setObjectName("field_axis")
+            axis.addItem("x (horizontal)", "x")
+            axis.addItem("y (vertical)", "y")
+            axis.currentIndexChanged.connect(
+                lambda _i, c=axis: self._try(lambda: self.document.set_top(
+                    axis=c.currentData()), None))
+            self.form.addRow("Axis", axis)
+            self._widgets["axis"] = axis
+            self._text_getters["axis"] = (axis, lambda m: m.axis)
+        info = QLabel(f"{len(model.masses)} masses, {len(model.anchors)} anchors,"
+                      f" {len(model.springs)} springs, {len(model.dampers)} dashpots")
+        info.setWordWrap(True)
+        self.form.addRow(info)
+        self._kind_error = QLabel()
+        self._kind_error.setWordWrap(True)
+        self._kind_error.setStyleSheet(f"color: {current_style().error.name()};")
+        self._kind_error.hide()
+        self.form.addRow(self._kind_error)
+
+    def _add_quantity(self, name, kind, label, getter, setter):
+        field = QuantityField(kind, self.unit_system)
+        field.setObjectName(f"field_{name}")
+        field.edit.setObjectName(f"edit_{name}")
+        field.value_entered.connect(lambda v, f=field: self._try(lambda: setter(v), f))
+        self.form.addRow(label, field)
+        self._fields[name] = (field, getter)
+
+    def _try(self, edit, field: QuantityField | None):
+        """Run an edit; a refusal by the model is shown in place and the model stays as it was."""
+        try:
+            edit()
+        except ModelError as exc:
+            if field is not None:
+                field.show_error(str(exc))
+            else:
+                # put the widgets back to the model's values, then say why
+                self._signature = None
+                self._on_model_change(self.document.model)
+                if not self.selection:
+                    self._kind_error.setText(str(exc))
+                    self._kind_error.show()
+                self.status_message.emit(f"Refused: {exc}")
