@@ -212,7 +212,7 @@ class MainWindow(QMainWindow):
         self._action("Zoom &in", lambda: self.view.zoom_by(1.25), QKeySequence.ZoomIn, "", v)
         self._action("Zoom &out", lambda: self.view.zoom_by(0.8), QKeySequence.ZoomOut, "", v)
         snap = self._action("Snap to &grid", self._set_snap, "G",
-                            "Snap placed and moved nodes to the 50 mm grid", v, checkable=True)
+                            "Snap placed and moved nodes to the grid", v, checkable=True)
         snap.setChecked(self.scene.snap)
 
         t = mb.addMenu("&Tools")
@@ -244,6 +244,8 @@ class MainWindow(QMainWindow):
         self.statusBar().showMessage(MODE_INFO[mode][2])
 
     def _on_pending_change(self, pending: bool):
+        if hasattr(self.modes_table, "set_stale"):
+            self.modes_table.set_stale(pending)
         if pending:
             self.pending_label.setText("results out of date")
             self.pending_label.setStyleSheet(f"color: {current_style().warning.name()};")

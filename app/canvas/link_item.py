@@ -76,7 +76,18 @@ class LinkItem(QGraphicsObject):
         mid = QPointF((p1.x() + p2.x()) / 2, (p1.y() + p2.y()) / 2)
         dx, dy = p2.x() - p1.x(), p2.y() - p1.y()
         L = math.hypot(dx, dy) or 1.0
-        self.label_item.setPos(mid.x() - dy / L * 16 + 2, mid.y() + dx / L * 16 - 8)
+        # Labels go on the side the link is offset to, so two links in parallel label apart.
+        side = -1.0 if self.offset < 0 else 1.0
+        nx, ny = -dy / L * side, dx / L * side
+        if abs(ny) >= abs(nx):  # nearly horizontal link: label above/below, centred
+            nx, ny = 0.0, (1.0 if ny > 0 else -1.0)
+        else:
+            nx, ny = (1.0 if nx > 0 else -1.0), 0.0
+        w = self.label_item.boundingRect().width()
+        h = self.label_item.boundingRect().height()
+        x = mid.x() + nx * 14 - (w if nx < 0 else (w / 2 if nx == 0 else 0))
+        y = mid.y() + ny * 14 - (h if ny < 0 else (h / 2 if ny == 0 else 0))
+        self.label_item.setPos(x, y)
         self.update()
 
     def boundingRect(self) -> QRectF:  # noqa: N802

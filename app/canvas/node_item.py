@@ -8,7 +8,7 @@ from PySide6.QtWidgets import QGraphicsItem, QGraphicsObject, QGraphicsSimpleTex
 
 from app.style import current_style
 
-from .geometry import snap_scene, to_scene
+from .geometry import Mapper
 
 
 class NodeItem(QGraphicsObject):
@@ -20,8 +20,9 @@ class NodeItem(QGraphicsObject):
 
     remove_requested = Signal(str)
 
-    def __init__(self, element, model):
+    def __init__(self, element, model, mapper: Mapper):
         super().__init__()
+        self.mapper = mapper
         self.element_id = element.id
         self.snap = True
         self.setFlags(QGraphicsItem.ItemIsSelectable | QGraphicsItem.ItemIsMovable
@@ -36,7 +37,7 @@ class NodeItem(QGraphicsObject):
         self.element = element
         self.prepareGeometryChange()
         self.setFlag(QGraphicsItem.ItemSendsGeometryChanges, False)
-        self.setPos(to_scene(element.x, element.y))
+        self.setPos(self.mapper.to_scene(element.x, element.y))
         self.setFlag(QGraphicsItem.ItemSendsGeometryChanges, True)
         self.label_item.setText(element.label)
         self.label_item.setBrush(current_style().label)
@@ -55,7 +56,7 @@ class NodeItem(QGraphicsObject):
 
     def itemChange(self, change, value):  # noqa: N802 - Qt's name
         if change == QGraphicsItem.ItemPositionChange and self.snap and isinstance(value, QPointF):
-            return snap_scene(value)
+            return self.mapper.snap_scene(value)
         if change == QGraphicsItem.ItemPositionHasChanged and self.scene() is not None:
             self.scene().node_item_moved(self)
         return super().itemChange(change, value)

@@ -22,7 +22,7 @@ from solver.model import Spring
 
 from .anchor_item import AnchorItem, normal_towards
 from .dashpot_item import DashpotItem
-from .geometry import GRID_M, SCALE, snapped_model, to_model
+from .geometry import Mapper
 from .link_item import LinkItem
 from .mass_item import MassItem
 from .node_item import NodeItem
@@ -75,6 +75,7 @@ class ModelScene(QGraphicsScene):
         self.document = document
         self.mode = Mode.SELECT
         self.snap = True
+        self.mapper = Mapper()
         self.nodes: dict[str, NodeItem] = {}
         self.links: dict[str, LinkItem] = {}
         self._syncing = False
@@ -85,7 +86,18 @@ class ModelScene(QGraphicsScene):
         self._paste_count = 0
         self.selectionChanged.connect(self._on_selection_change)
         document.model_changed.connect(self._on_model_change)
-        self._on_model_change(document.model)
+        document.opened.connect(self._on_open)
+        self._on_open(document.model)
+
+    def _on_open(self, model) -> None:
+        """A different model: choose its scale and draw it afresh."""
+        self._cancel_connect()
+        for item in list(self.nodes.values()) + list(self.links.values()):
+            self.removeItem(item)
+        self.nodes.clear()
+        self.links.clear()
+        self.mapper = Mapper.for_model(model)
+        self._on_model_change(model)
 
     # -- mode ---------------------------------------------------------------------------------
     def set_mode(self, mode: Mode) -> None:
@@ -122,7 +134,7 @@ class ModelScene(QGraphicsScene):
             if not isinstance(item, MassItem):
                 if item is not None:
                     self.removeItem(item)
-                item = MassItem(m, model)
+                item = MassItem(m, model, self.mapper)
                 item.remove_requested.connect(lambda eid: self.document.remove([eid]))
                 self.addItem(item)
                 self.nodes[m.id] = item
@@ -138,7 +150,7 @@ class ModelScene(QGraphicsScene):
             if not isinstance(item, AnchorItem):
                 if item is not None:
                     self.removeItem(item)
-                item = AnchorItem(a, model)
+                item = AnchorItem(a, model, self.mapper)
                 item.remove_requested.connect(lambda eid: self.document.remove([eid]))
                 self.addItem(item)
                 self.nodes[a.id] = item
@@ -228,7 +240,7 @@ class ModelScene(QGraphicsScene):
             self.status_message.emit("Nothing copied to paste")
             return []
         self._paste_count += 1
-        step = 2 * GRID_M * self._paste_count
+        step = 2 * self.mapper.grid_m * self._paste_count
         try:
             new_ids = self.document.paste(self._clipboard, offset=(step, -step))
         except ModelError as exc:
@@ -256,7 +268,7 @@ class ModelScene(QGraphicsScene):
             return
         pos = event.scenePos()
         if self.mode in (Mode.PLACE_MASS, Mode.PLACE_ANCHOR):
-            x, y = snapped_model(pos, self.snap)
+            x, y = self.mapper.snapped_model(pos, self.snap)
             try:
                 if self.mode == Mode.PLACE_MASS:
                     new_id = self.document.add_mass(x, y)
@@ -319,8 +331,7 @@ class ModelScene(QGraphicsScene):
         for eid, before in self._press_positions.items():
             item = self.nodes.get(eid)
             if item is not None and item.pos() != before:
-                x, y = to_model(item.pos())
-                moved[eid] = (round(x, 9), round(y, 9))
+                moved[eid] = self.mapper.snapped_model(item.pos(), snap=False)
         if not moved:
             return
         try:
@@ -346,7 +357,7 @@ class ModelScene(QGraphicsScene):
     def drawBackground(self, painter, rect):  # noqa: N802
         st = current_style()
         painter.fillRect(rect, st.background)
-        g = GRID_M * SCALE
+        g = self.mapper.grid_m * self.mapper.px_per_m
         # Minor grid every snap step, a stronger line every metre; skip minor when zoomed far out.
         scale = painter.transform().m11() or 1.0
         pen = QPen(st.grid, 0)
