@@ -8,6 +8,8 @@ Pure numpy/scipy; no Qt. The public API (stable, used by scripts and the command
   ``.effective_mass``, ``.zero_modes``)
 - :func:`energy_fractions`, :func:`sensitivities`, :func:`analyse`
 - :func:`free_response`
+- :func:`harmonic_response`, :func:`base_transmissibility`, :func:`find_peaks`
+- :func:`retune`, :func:`sweep`, :func:`rank_elements`, :func:`margin_check`
 - :class:`ModelError`, :class:`ModelFileError`
 """
 
@@ -20,11 +22,18 @@ from .model import (Anchor, Damper, Damping, Excitation, Initial, Mass, Model, S
                     directions_for)
 from .modes import ModalResult, ZeroMode, modes
 from .response import FreeResponse, free_response
+from .frequency import (Peak, base_transmissibility, find_peaks, harmonic_response,
+                        isolation_efficiency, rms_over_band)
+from .margins import Conflict, MarginResult, margin_check, source_bands
+from .tuning import SweepResult, rank_elements, retune, sweep, with_value
 
 __all__ = [
     "Analysis", "analyse", "System", "assemble", "ModelError", "ModelFileError", "dumps_model",
     "load_model", "model_from_dict", "model_to_dict", "save_model", "schema", "EnergyResult",
     "Sensitivity", "energy_fractions", "sensitivities", "Anchor", "Damper", "Damping",
     "Excitation", "Initial", "Mass", "Model", "Spring", "directions_for", "ModalResult",
-    "ZeroMode", "modes", "FreeResponse", "free_response",
+    "ZeroMode", "modes", "FreeResponse", "free_response", "Peak", "base_transmissibility",
+    "find_peaks", "harmonic_response", "isolation_efficiency", "rms_over_band", "Conflict",
+    "MarginResult", "margin_check", "source_bands", "SweepResult", "rank_elements", "retune",
+    "sweep", "with_value",
 ]

@@ -24,7 +24,9 @@ from .errors import ModelError
 from .model import Model
 
 #: Up to this many DOFs every mode is found by dense LAPACK (chosen with bench/solver_bench.py).
-DENSE_DOF_LIMIT = 1500
+DENSE_DOF_LIMIT = 1000
+#: Above this many DOFs a request for a few modes goes to the sparse solver (bench/solver_bench.py).
+SWITCH_DOF = 600
 #: Lowest modes found by default in a model too large for the dense path.
 DEFAULT_SPARSE_COUNT = 20
 #: Relative tolerance on w for calling two frequencies repeated.
@@ -166,7 +168,7 @@ def _spectral_bound(M_diag: np.ndarray, K) -> float:
     return float(rows.max(initial=0.0))
 
 
-def modes(model_or_system, count: int | None = None) -> ModalResult:
+def modes(model_or_system, count: int | None = None, method: str | None = None) -> ModalResult:
     """Natural frequencies and mass-normalised mode shapes.
 
     Parameters
@@ -175,6 +177,9 @@ def modes(model_or_system, count: int | None = None) -> ModalResult:
     count : int, optional
         How many of the lowest modes to return. By default all of them for a model of up to
         ``DENSE_DOF_LIMIT`` DOFs, else the lowest ``DEFAULT_SPARSE_COUNT``.
+    method : {None, "dense", "sparse"}, optional
+        Force an eigensolver. By default dense LAPACK when all modes are wanted or the model has
+        at most ``SWITCH_DOF`` DOFs, shift-invert Lanczos otherwise.
 
     Returns
     -------
@@ -206,7 +211,10 @@ def modes(model_or_system, count: int | None = None) -> ModalResult:
         min(DEFAULT_SPARSE_COUNT, n) if count is None else min(int(count), n))
     if count is None and n > DENSE_DOF_LIMIT:
         warnings.append(f"the model has {n} degrees of freedom; the lowest {want} modes are shown")
-    use_dense = n <= DENSE_DOF_LIMIT or want >= n - 1 or n < 50
+    if method not in (None, "dense", "sparse"):
+        raise ModelError(f'modes: method must be "dense" or "sparse", got {method!r}')
+    use_dense = (want >= n - 1 or n <= SWITCH_DOF or 3 * want > n) if method is None else (
+        method == "dense" or want >= n - 1)
     if use_dense:
         lam, phi = _dense_eig(system, M_diag, want)
         method = "dense"
@@ -225,7 +233,9 @@ def _dense_eig(system: System, M_diag: np.ndarray, want: int):
     if want < len(M_diag):
         lam, u = scipy.linalg.eigh(A, subset_by_index=(0, want - 1), check_finite=False)
     else:
-        lam, u = scipy.linalg.eigh(A, check_finite=False, overwrite_a=True)
+        # the divide-and-conquer driver is several times faster than the default (evr) when
+        # every eigenvector is wanted
+        lam, u = scipy.linalg.eigh(A, check_finite=False, overwrite_a=True, driver="evd")
     return lam, u * s[:, None]
 
 
@@ -276,11 +286,12 @@ def _finish(system, lam, phi, M_diag, bound, warnings, complete, method):
                                            masses=masses))
     lam = np.maximum(lam, 0.0)
     # deterministic sign: the largest component of each elastic mode is positive
-    for j in range(n_zero, n_modes):
-        col = phi[:, j]
-        big = np.flatnonzero(np.abs(col) >= (1 - 1e-9) * np.abs(col).max())[0]
-        if col[big] < 0:
-            phi[:, j] = -col
+    if n_modes > n_zero:
+        elastic = phi[:, n_zero:]
+        mag = np.abs(elastic)
+        big = np.argmax(mag >= (1 - 1e-9) * mag.max(axis=0, keepdims=True), axis=0)
+        flip = elastic[big, np.arange(elastic.shape[1])] < 0
+        phi[:, n_zero:] = np.where(flip[None, :], -elastic, elastic)
     repeated = _repeated_groups(lam, n_zero)
     for g in repeated:
         if g[0] > n_zero:
@@ -290,7 +301,8 @@ def _finish(system, lam, phi, M_diag, bound, warnings, complete, method):
     for z in zero_modes:
         if z.kind == "mechanism":
             warnings.append(f"mode {z.mode} is a mechanism: {z.cause}")
-    all_shapes = np.asarray(system.recovery @ phi)
+    all_shapes = phi if system.n_dof == len(system.all_dofs) else np.asarray(
+        system.recovery @ phi)
     participation, effective, total = {}, {}, {}
     for d in system.directions:
         r = system.influence(d)
@@ -309,14 +321,14 @@ def _repeated_groups(lam, n_zero):
     if n_zero >= 2:
         groups.append(tuple(range(1, n_zero + 1)))
     w = np.sqrt(np.maximum(lam, 0))
-    i = n_zero
-    while i < len(lam):
-        j = i + 1
-        while j < len(lam) and w[j] - w[i] <= REPEATED_RTOL * w[j]:
+    close = np.flatnonzero(np.diff(w[n_zero:]) <= REPEATED_RTOL * w[n_zero + 1:]) + n_zero
+    i = 0
+    while i < len(close):  # runs of consecutive close pairs form one group
+        j = i
+        while j + 1 < len(close) and close[j + 1] == close[j] + 1:
             j += 1
-        if j - i >= 2:
-            groups.append(tuple(range(i + 1, j + 1)))
-        i = j
+        groups.append(tuple(range(close[i] + 1, close[j] + 3)))
+        i = j + 1
     return tuple(groups)
 
 
@@ -355,22 +367,18 @@ def _zero_basis(Z_eig, rigid, M_diag, n_zero):
 
 
 def _components(model: Model):
-    """Groups of nodes joined by springs (dashpots carry no static load)."""
-    parent = {el.id: el.id for el in model.masses + model.anchors}
+    """Groups of node ids joined by springs (dashpots carry no static load)."""
+    from scipy.sparse.csgraph import connected_components
 
-    def find(a):
-        while parent[a] != a:
-            parent[a] = parent[parent[a]]
-            a = parent[a]
-        return a
-
-    for s in model.springs:
-        ra, rb = find(s.a), find(s.b)
-        if ra != rb:
-            parent[ra] = rb
+    ids = [el.id for el in model.masses + model.anchors]
+    index = {n: i for i, n in enumerate(ids)}
+    a = np.array([index[sp_.a] for sp_ in model.springs], dtype=np.int64)
+    b = np.array([index[sp_.b] for sp_ in model.springs], dtype=np.int64)
+    graph = sp.coo_matrix((np.ones(len(a)), (a, b)), shape=(len(ids), len(ids)))
+    _, labels = connected_components(graph, directed=False)
     groups: dict = {}
-    for el in model.masses + model.anchors:
-        groups.setdefault(find(el.id), []).append(el.id)
+    for node, lab in zip(ids, labels):
+        groups.setdefault(lab, []).append(node)
     return list(groups.values())
 
 
@@ -414,7 +422,7 @@ def _rigid_body_basis(system: System, M_diag):
                 row = [v[ci] for v in vals]
                 (locked_rows if d in m.fixed else free_rows).append(((m.id, d), row))
         A_lock = np.array([r for _, r in locked_rows]).reshape(len(locked_rows), len(names))
-        coeffs = scipy.linalg.null_space(A_lock) if len(locked_rows) else np.eye(len(names))
+        coeffs = _null_space(A_lock, 1e-12) if len(locked_rows) else np.eye(len(names))
         if coeffs.shape[1] == 0:
             continue
         # rigid vectors on all free DOFs, then keep the combinations that strain no spring
@@ -424,10 +432,7 @@ def _rigid_body_basis(system: System, M_diag):
         KV = np.asarray(K_full @ (V @ coeffs))
         scale = max(abs(K_full).max() if sp.issparse(K_full) else np.abs(K_full).max(), 1e-300)
         scale *= max(np.abs(V).max(), 1e-300)
-        if KV.size:
-            ok = scipy.linalg.null_space(KV, rcond=1e-9 * scale / max(np.abs(KV).max(), scale))
-        else:
-            ok = np.eye(coeffs.shape[1])
+        ok = _null_space(KV, 1e-9, scale) if KV.size else np.eye(coeffs.shape[1])
         if ok.shape[1] == 0:
             continue
         C = coeffs @ ok  # (n_names, n_rigid) combinations of x, y, rot
@@ -440,7 +445,8 @@ def _rigid_body_basis(system: System, M_diag):
             if not np.any(np.abs(retained) > 1e-12):
                 continue
             vectors.append(retained)
-            info.append((_rigid_cause(model, C[:, j], names, whole, ids, gm), ids))
+            info.append((_rigid_cause(model, C[:, j], names, whole, ids, gm,
+                                      held=bool(locked_rows)), ids))
     if not vectors:
         return np.zeros((system.n_dof, 0)), []
     V = np.array(vectors).T
@@ -449,6 +455,19 @@ def _rigid_body_basis(system: System, M_diag):
     if basis.shape[1] < V.shape[1]:
         info = info[: basis.shape[1]]
     return basis, info
+
+
+def _null_space(A, rtol, scale=None):
+    """Null space of a tall, thin matrix (few columns) without forming a full U."""
+    A = np.atleast_2d(np.asarray(A, float))
+    p = A.shape[1]
+    _, sv, vt = np.linalg.svd(A, full_matrices=True) if A.shape[0] < p else np.linalg.svd(
+        A, full_matrices=False)
+    ref = max(sv.max(initial=0.0), 0.0) if scale is None else scale
+    s_full = np.zeros(p)
+    s_full[: len(sv)] = sv
+    keep = s_full <= rtol * ref
+    return vt[keep].T if vt.shape[0] == p else np.eye(p)[:, keep]
 
 
 def _nice_combinations(C, names):
@@ -472,9 +491,12 @@ def _nice_combinations(C, names):
     return np.array(basis[: C.shape[1]]).T
 
 
-def _rigid_cause(model, coef, names, whole, ids, gm):
+def _rigid_cause(model, coef, names, whole, ids, gm, held=False):
     torsion = model.kind == "torsion"
-    if whole:
+    if held:
+        who = "the whole layout" if whole else "masses " + ", ".join(f'"{i}"' for i in ids[:4])
+        why = " (its locked directions do not prevent it"
+    elif whole:
         who = "the whole shaft" if torsion else "the whole layout"
         why = " (nothing holds it to ground"
     else:

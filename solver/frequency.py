@@ -1,0 +1,257 @@
+"""Steady-state harmonic response: force FRFs and base-excitation transmissibility.
+
+Harmonic motion ``x(t) = Re(X e^{i w t})`` of ``M x'' + C x' + K x = f`` gives the dynamic-stiffness
+solve ``(K - w^2 M + i w C) X = F``. It is solved directly on every DOF (massless junctions
+included, so it is exact with dashpots anywhere); C is the dashpots' matrix plus the damping model's:
+Rayleigh ``alpha M + beta K`` (Chopra, Dynamics of Structures, 11.4), or for modal ratios
+``C = M Phi diag(2 zeta_i w_i) Phi^T M`` over the complete set of mass-normalised modes (which makes
+the direct solve equal to modal superposition for proportional damping). Non-proportional dashpots
+are never forced into modal form.
+
+Base excitation moves every anchor (and every locked direction) together by ``U`` in one direction.
+In motion relative to the base ``y = x - r u`` the equation is ``M y'' + C y' + K y = -M r u''``, so
+the absolute transmissibility is ``T = r + w^2 (K - w^2 M + i w C)^-1 M r`` (Harris' Shock and
+Vibration Handbook, ch. 30 (mem); Rao, Mechanical Vibrations, 3.6 (mem)); for one mass
+``|T| = sqrt((1 + (2 zeta r)^2) / ((1 - r^2)^2 + (2 zeta r)^2))``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+
+from .assemble import System, assemble
+from .errors import ModelError
+from .model import Model
+from .modes import modes
+
+OUTPUTS = ("displacement", "velocity", "acceleration")
+_CHUNK_BYTES = 64 * 2 ** 20
+
+
+def _system(model_or_system) -> System:
+    if isinstance(model_or_system, System):
+        return model_or_system
+    if isinstance(model_or_system, Model):
+        return assemble(model_or_system)
+    raise ModelError(f"expected a Model or System, got {type(model_or_system).__name__}")
+
+
+def _freqs(freqs_hz) -> np.ndarray:
+    f = np.atleast_1d(np.asarray(freqs_hz, float))
+    if f.ndim != 1 or not np.all(np.isfinite(f)) or np.any(f < 0):
+        raise ModelError("frequencies must be a 1-D list of finite values >= 0 Hz")
+    return f
+
+
+def damping_matrix_full(system: System) -> np.ndarray | sp.spmatrix:
+    """C on every DOF: dashpots plus the damping model (Rayleigh or modal)."""
+    model = system.model
+    d = model.damping
+    C = system.C_full
+    if d.model == "rayleigh":
+        C = C + d.alpha * system.M_full + d.beta * system.K_full
+    elif d.model == "modal":
+        from .response import modal_damping_coefficients
+
+        res = modes(system, count=None)
+        if not res.complete:
+            raise ModelError("modal damping ratios need every mode; this model is too large for"
+                             " that: use Rayleigh damping or dashpots instead")
+        c = modal_damping_coefficients(model, res)
+        Mf = system.M_full
+        Mphi = np.asarray(Mf @ res.all_shapes)
+        Cm = (Mphi * c[None, :]) @ Mphi.T
+        C = (C.toarray() if sp.issparse(C) else C) + Cm
+    return C
+
+
+def _dynamic_solve(system: System, f: np.ndarray, rhs_fn) -> np.ndarray:
+    """Solve (K - w^2 M + i w C) X = rhs(w) on all DOFs for each frequency: (n_freq, n_all)."""
+    K, M = system.K_full, system.M_full
+    C = damping_matrix_full(system)
+    n = K.shape[0]
+    w = 2 * np.pi * f
+    out = np.empty((len(f), n), complex)
+    if n == 0:
+        return out
+    sparse = sp.issparse(K) and n > 600
+    if sparse:
+        K, M = sp.csc_matrix(K), sp.csc_matrix(M)
+        C = sp.csc_matrix(C)
+        for i, wi in enumerate(w):
+            Z = (K - wi * wi * M + 1j * wi * C).tocsc()
+            try:
+                out[i] = spla.splu(Z).solve(rhs_fn(wi).astype(complex))
+            except RuntimeError:  # exactly singular: a rigid-body mode at w = 0
+                out[i] = np.inf
+        return out
+    K, M, C = (x.toarray() if sp.issparse(x) else np.asarray(x) for x in (K, M, C))
+    chunk = max(1, int(_CHUNK_BYTES // (16 * n * n)))
+    for s in range(0, len(w), chunk):
+        ws = w[s:s + chunk]
+        Z = K[None] - (ws ** 2)[:, None, None] * M[None] + 1j * ws[:, None, None] * C[None]
+        B = np.stack([rhs_fn(wi) for wi in ws]).astype(complex)
+        try:
+            out[s:s + chunk] = np.linalg.solve(Z, B[..., None])[..., 0]
+        except np.linalg.LinAlgError:
+            for j, wi in enumerate(ws):
+                try:
+                    out[s + j] = np.linalg.solve(Z[j], B[j])
+                except np.linalg.LinAlgError:
+                    out[s + j] = np.inf
+    return out
+
+
+def _retained(system: System, X_all: np.ndarray) -> np.ndarray:
+    index = {d: i for i, d in enumerate(system.all_dofs)}
+    cols = [index[d] for d in system.dofs]
+    return X_all[:, cols]
+
+
+def _convert(X: np.ndarray, f: np.ndarray, output: str) -> np.ndarray:
+    if output not in OUTPUTS:
+        raise ModelError(f'output must be one of {", ".join(OUTPUTS)}, got "{output}"')
+    iw = (2j * np.pi * f)[:, None]
+    if output == "velocity":
+        return iw * X
+    if output == "acceleration":
+        return iw * iw * X
+    return X
+
+
+def harmonic_response(model, freqs_hz, forces, output: str = "displacement") -> np.ndarray:
+    """Steady-state complex response to harmonic forces.
+
+    Parameters
+    ----------
+    model : Model or System
+    freqs_hz : (n_freq,) frequencies in Hz (>= 0).
+    forces : mapping ``{(mass_id, direction): amplitude}`` in N (N m in torsion); complex
+        amplitudes give phase. A unit force at one DOF gives that column of the FRF matrix.
+    output : "displacement" (receptance, m/N), "velocity" (mobility, m/s/N) or "acceleration"
+        (accelerance, m/s^2/N).
+
+    Returns
+    -------
+    (n_freq, n_dof) complex ndarray on ``assemble(model).dofs``. Where the dynamic stiffness is
+    singular (a rigid-body mode at 0 Hz, an undamped resonance hit exactly) the row is ``inf``.
+    """
+    system = _system(model)
+    f = _freqs(freqs_hz)
+    index = {d: i for i, d in enumerate(system.all_dofs)}
+    F = np.zeros(len(system.all_dofs), complex)
+    if not isinstance(forces, dict) or not forces:
+        raise ModelError("forces must be a mapping {(mass_id, direction): amplitude in N}")
+    for key, amp in forces.items():
+        if not (isinstance(key, tuple) and len(key) == 2):
+            raise ModelError(f"force key must be (mass_id, direction), got {key!r}")
+        if key not in index:
+            from .assemble import _no_dof_message
+
+            raise ModelError("force: " + _no_dof_message(system.model, *key))
+        F[index[key]] += complex(amp)
+    X = _dynamic_solve(system, f, lambda w: F)
+    return _convert(_retained(system, X), f, output)
+
+
+def base_transmissibility(model, freqs_hz, direction: str, relative: bool = False) -> np.ndarray:
+    """Motion of each DOF per unit harmonic motion of the base (all anchors together).
+
+    Parameters
+    ----------
+    model : Model or System
+    freqs_hz : (n_freq,) Hz.
+    direction : the base's direction of motion ("x", "y" or "theta", one the model has).
+    relative : False gives absolute transmissibility ``X / U`` (also the ratio of absolute
+        accelerations); True gives the motion relative to the base ``(X - r U) / U``.
+
+    Returns
+    -------
+    (n_freq, n_dof) complex ndarray on ``assemble(model).dofs``.
+    """
+    system = _system(model)
+    if direction not in system.model.directions:
+        raise ModelError(f'base excitation: direction must be one of'
+                         f' {", ".join(system.model.directions)}, got "{direction}"')
+    f = _freqs(freqs_hz)
+    r = np.array([1.0 if d == direction else 0.0 for _, d in system.all_dofs])
+    Mr = np.asarray(system.M_full @ r).ravel()
+    Y = _dynamic_solve(system, f, lambda w: (w * w) * Mr)
+    Y = _retained(system, Y)
+    if relative:
+        return Y
+    r_ret = np.array([1.0 if d == direction else 0.0 for _, d in system.dofs])
+    return Y + r_ret[None, :]
+
+
+def isolation_efficiency(transmissibility) -> np.ndarray:
+    """Isolation efficiency in % = (1 - |T|) * 100 (negative where the mount amplifies)."""
+    return (1.0 - np.abs(np.asarray(transmissibility))) * 100.0
+
+
+@dataclass(frozen=True)
+class Peak:
+    """A resonance peak of a response magnitude curve.
+
+    ``bandwidth_hz`` is the half-power (-3 dB) width, NaN when the curve does not fall below
+    peak / sqrt(2) on both sides within the data; ``damping_ratio`` is the half-power estimate
+    ``bandwidth / (2 f)`` (common practice, valid for light damping).
+    """
+
+    frequency_hz: float
+    amplitude: float
+    bandwidth_hz: float
+    damping_ratio: float
+
+
+def find_peaks(freqs_hz, values) -> list[Peak]:
+    """Local maxima of ``|values|`` with half-power bandwidths, by linear interpolation."""
+    f = np.asarray(freqs_hz, float)
+    a = np.abs(np.asarray(values))
+    peaks = []
+    for i in range(1, len(a) - 1):
+        if not (a[i] > a[i - 1] and a[i] >= a[i + 1]) or not np.isfinite(a[i]):
+            continue
+        # refine the peak by a parabola through three points (in the data's own spacing)
+        y0, y1, y2 = a[i - 1], a[i], a[i + 1]
+        denom = y0 - 2 * y1 + y2
+        shift = 0.5 * (y0 - y2) / denom if denom != 0 else 0.0
+        shift = float(np.clip(shift, -0.5, 0.5))
+        fp = f[i] + shift * (f[i + 1] - f[i - 1]) / 2
+        ap = y1 - 0.25 * (y0 - y2) * shift
+        half = ap / np.sqrt(2)
+        lo = hi = np.nan
+        j = i
+        while j > 0 and a[j] > half:
+            j -= 1
+        if a[j] <= half:
+            lo = f[j] + (half - a[j]) * (f[j + 1] - f[j]) / (a[j + 1] - a[j])
+        j = i
+        while j < len(a) - 1 and a[j] > half:
+            j += 1
+        if a[j] <= half:
+            hi = f[j - 1] + (a[j - 1] - half) * (f[j] - f[j - 1]) / (a[j - 1] - a[j])
+        bw = hi - lo
+        peaks.append(Peak(frequency_hz=float(fp), amplitude=float(ap), bandwidth_hz=float(bw),
+                          damping_ratio=float(bw / (2 * fp)) if np.isfinite(bw) else np.nan))
+    return peaks
+
+
+def rms_over_band(freqs_hz, transfer, asd, f_min_hz: float, f_max_hz: float) -> np.ndarray:
+    """RMS response to a flat input acceleration spectral density over a band.
+
+    ``rms = sqrt( integral_{f_min}^{f_max} |H(f)|^2 ASD df )`` by the trapezoidal rule on the given
+    frequency points (use a fine grid: several points per half-power bandwidth). ``transfer``
+    is (n_freq,) or (n_freq, n_dof); ``asd`` in (input unit)^2/Hz, e.g. (m/s^2)^2/Hz or g^2/Hz.
+    """
+    f = np.asarray(freqs_hz, float)
+    H = np.abs(np.asarray(transfer))
+    inside = (f >= f_min_hz) & (f <= f_max_hz)
+    if inside.sum() < 2:
+        raise ModelError("rms: need at least two frequency points inside the band")
+    power = H[inside] ** 2 * float(asd)
+    return np.sqrt(np.trapezoid(power, f[inside], axis=0))
