@@ -182,13 +182,15 @@ def _title_block(pg: _Page, model, modal, date: str):
              ("Total " + ("inertia" if model.kind == "torsion" else "mass"), f"{total:.6g} {unit}"),
              ("Modes found", f"{modal.n_modes}" + ("" if modal.complete else " (lowest only)"))]
     heights = [max(pg.text_height(val_w, v, 8), 0.15 * d) + 0.02 * d for _k, v in lines]
-    box_h = max(1.0 * d, sum(heights) + 2 * pad)
+    left_w = right_x - full.left() - 2 * pad
+    name_h = pg.text_height(left_w, model.name or "Unnamed model", 18, True)
+    left_h = 0.26 * d + name_h + 0.25 * d
+    box_h = max(1.0 * d, sum(heights) + 2 * pad, left_h + 2 * pad)
     box = QRectF(full.left(), top, full.width(), box_h)
     pg.p.setPen(QPen(st.ink, max(1.0, 0.01 * d)))
     pg.p.setBrush(st.panel)
     pg.p.drawRect(box)
     pg.p.setBrush(Qt.BrushStyle.NoBrush)
-    left_w = right_x - box.left() - 2 * pad
     pg.text(QRectF(box.left() + pad, top + pad, left_w, 100),
             "SPRINGWRIGHT · LUMPED MODEL REPORT", 8, True, st.accent)
     h = pg.text(QRectF(box.left() + pad, top + pad + 0.22 * d, left_w, 0.9 * d),
@@ -208,10 +210,15 @@ def _title_block(pg: _Page, model, modal, date: str):
 
 def _model_sketch(pg: _Page, model):
     d = pg.dpi
-    h = round(2.6 * d) if model.kind != "line" or len(model.masses) > 6 else round(1.7 * d)
+    crowded = len(model.masses) > 10
+    h = round(2.6 * d) if model.kind != "line" else round(1.3 * d if crowded else 1.7 * d)
     rect = QRectF(pg.left, pg.y, pg.right - pg.left, h)
-    paint_sketch(pg.p, model, rect, style=pg.st, labels="values", base=0.22 * d)
+    paint_sketch(pg.p, model, rect, style=pg.st, labels=False if crowded else "values",
+                 base=0.22 * d)
     pg.y += h
+    if crowded:
+        pg.paragraph(f"{len(model.masses)} masses: element labels and values are left off the"
+                     " drawing to keep it legible; the model file lists them.", 7.5, pg.st.ink_soft)
 
 
 def _mode_table(pg: _Page, analysis, n_shown: int, n_total: int):
@@ -311,6 +318,13 @@ def _thumbnails(pg: _Page, model, analysis, n_shown: int, n_total: int):
         pg.p.setBrush(Qt.BrushStyle.NoBrush)
         shape = modal.node_displacement(n)
         inner = box.adjusted(4, 4, -4, -4)
+        if model.kind == "line" and len(model.masses) > 1:
+            # Motion along the line is hard to see on a long chain: plot each mass's
+            # displacement across the line above the drawing, the textbook mode-shape curve.
+            curve_box = QRectF(inner.left(), inner.top(), inner.width(), inner.height() * 0.55)
+            inner = QRectF(inner.left(), curve_box.bottom(), inner.width(),
+                           inner.height() - curve_box.height())
+            _shape_curve(pg, model, shape, curve_box, base)
         lay = SketchLayout(model, inner, base=base)
         scale = fit_scale(lay, shape, 0.12)
         paint_sketch(pg.p, model, inner, shape, scale, st, undeformed=True, labels=False,
@@ -331,6 +345,46 @@ def _thumbnails(pg: _Page, model, analysis, n_shown: int, n_total: int):
     if n_total > n_shown:
         pg.paragraph(f"{n_total - n_shown} further modes are left out of the thumbnails.", 7.5,
                      st.ink_soft)
+
+
+def _shape_curve(pg: _Page, model, shape: dict, box: QRectF, base: float):
+    """Displacement of each mass (along the axis) plotted against its drawn position."""
+    st = pg.st
+    lay = SketchLayout(model, box, base=base)
+    axis = model.axis
+    pts = []
+    for m in model.masses:
+        u = shape.get(m.id, {}).get(axis)
+        if u is None:
+            u = 0.0
+        p = lay.to_px(m.x, m.y)
+        along = p.x() if axis == "x" else -p.y()
+        pts.append((along, u))
+    pts.sort()
+    big = max((abs(u) for _a, u in pts), default=0.0) or 1.0
+    mid = box.center().y()
+    amp = 0.4 * box.height()
+    if axis == "y":  # positions run up the page; spread them across the box instead
+        lo, hi = pts[0][0], pts[-1][0]
+        span = (hi - lo) or 1.0
+        pts = [(box.left() + 0.1 * box.width() + 0.8 * box.width() * (a - lo) / span, u)
+               for a, u in pts]
+    pg.p.setPen(QPen(st.grid, 1.0))
+    pg.p.drawLine(QPointF(box.left() + 4, mid), QPointF(box.right() - 4, mid))
+    pen = QPen(st.accent, max(1.5, 0.008 * pg.dpi))
+    pg.p.setPen(pen)
+    prev = None
+    for a, u in pts:
+        q = QPointF(a, mid - amp * u / big)
+        if prev is not None:
+            pg.p.drawLine(prev, q)
+        prev = q
+    pg.p.setBrush(st.accent)
+    r = max(1.5, 0.012 * pg.dpi) if len(pts) <= 20 else 0
+    if r:
+        for a, u in pts:
+            pg.p.drawEllipse(QPointF(a, mid - amp * u / big), r, r)
+    pg.p.setBrush(Qt.BrushStyle.NoBrush)
 
 
 def _notes(pg: _Page, model, analysis, n_shown: int):
