@@ -123,7 +123,52 @@ def _convert(X: np.ndarray, f: np.ndarray, output: str) -> np.ndarray:
     return X
 
 
-def harmonic_response(model, freqs_hz, forces, output: str = "displacement") -> np.ndarray:
+def _modal_solve(system: System, f: np.ndarray, F_all: np.ndarray) -> np.ndarray:
+    """Modal superposition X = sum phi phi^T F / (lambda - w^2 + i w c) on all DOFs.
+
+    Exact for proportional damping (none, modal ratios, Rayleigh) with the complete set of modes;
+    refused with dashpots, whose damping is not proportional in general.
+    """
+    from .response import modal_damping_coefficients
+
+    if len(system.model.dampers):
+        raise ModelError("the modal path needs proportional damping; with dashpots use the"
+                         " direct solve (method='direct')")
+    res = modes(system)
+    if not res.complete:
+        raise ModelError("the modal path needs every mode; this model is too large for that")
+    c = modal_damping_coefficients(system.model, res)
+    # a force on a junction reaches the masses through the recovery (static condensation)
+    R = system.recovery
+    F_ret = np.asarray(R.T @ F_all).ravel()
+    q_force = res.shapes.T @ F_ret  # modal forces, (n_modes,)
+    w = 2 * np.pi * f
+    denom = res.eigenvalues[None, :] - (w ** 2)[:, None] + 1j * w[:, None] * c[None, :]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        q = q_force[None, :] / denom
+    X = q @ res.all_shapes.T
+    if system.n_dof != len(system.all_dofs) and np.any(F_all[_junction_mask(system)]):
+        # the junctions' own static flexibility under a force applied to them
+        X = X + _junction_static(system, F_all)[None, :]
+    return X
+
+
+def _junction_mask(system: System) -> np.ndarray:
+    retained = set(system.dofs)
+    return np.array([d not in retained for d in system.all_dofs])
+
+
+def _junction_static(system: System, F_all: np.ndarray) -> np.ndarray:
+    mask = _junction_mask(system)
+    K = system.K_full.toarray() if sp.issparse(system.K_full) else system.K_full
+    Kss = K[np.ix_(mask, mask)]
+    out = np.zeros(len(F_all), complex)
+    out[mask] = np.linalg.pinv(Kss) @ F_all[mask]
+    return out
+
+
+def harmonic_response(model, freqs_hz, forces, output: str = "displacement",
+                      method: str = "direct") -> np.ndarray:
     """Steady-state complex response to harmonic forces.
 
     Parameters
@@ -134,6 +179,8 @@ def harmonic_response(model, freqs_hz, forces, output: str = "displacement") -> 
         amplitudes give phase. A unit force at one DOF gives that column of the FRF matrix.
     output : "displacement" (receptance, m/N), "velocity" (mobility, m/s/N) or "acceleration"
         (accelerance, m/s^2/N).
+    method : "direct" (dynamic-stiffness solve, any damping) or "modal" (superposition of all
+        modes; proportional damping only, refused with dashpots).
 
     Returns
     -------
@@ -154,7 +201,12 @@ def harmonic_response(model, freqs_hz, forces, output: str = "displacement") -> 
 
             raise ModelError("force: " + _no_dof_message(system.model, *key))
         F[index[key]] += complex(amp)
-    X = _dynamic_solve(system, f, lambda w: F)
+    if method == "direct":
+        X = _dynamic_solve(system, f, lambda w: F)
+    elif method == "modal":
+        X = _modal_solve(system, f, F)
+    else:
+        raise ModelError(f'method must be "direct" or "modal", got {method!r}')
     return _convert(_retained(system, X), f, output)
 
 
