@@ -204,6 +204,11 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
     masses = np.asarray(mass_of_dof, float)
     M_full = sp.diags(masses, format="csr") if n_all else sp.csr_matrix((0, 0))
 
+    for m in model.masses:
+        extra = [d for d in m.fixed if d not in directions]
+        if extra:
+            warnings.append(f'mass "{m.id}": locked direction {", ".join(extra)} does not exist'
+                            f' in this model (it moves in {", ".join(directions)}); ignored')
     for s in springs:
         if s.a in node_dofs and s.b in node_dofs and all(i < 0 for i in node_dofs[s.a]) and all(
                 i < 0 for i in node_dofs[s.b]):

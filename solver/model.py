@@ -316,12 +316,9 @@ class Model:
                         f'{what} "{el.id}": id is already used by a {seen[el.id]}; ids must be unique')
                 seen[el.id] = what
         allowed = directions_for(self.kind, self.axis)
-        for m in self.masses:
-            for d in m.fixed:
-                if d not in allowed:
-                    raise ModelError(
-                        f'mass "{m.id}": fixed direction "{d}" does not exist in a {self._kind_text()}'
-                        f' (allowed: {", ".join(allowed)})')
+        # A locked direction the model kind does not have (y in a line model along x) locks
+        # nothing; assemble() reports it as a warning rather than refusing the model, so that
+        # switching a model's kind never invalidates it.
         nodes = {m.id: m for m in self.masses}
         nodes.update({a.id: a for a in self.anchors})
         for what, items in (("spring", self.springs), ("dashpot", self.dampers)):
