@@ -24,6 +24,7 @@ from .modes import ModalResult, ZeroMode, modes
 from .response import FreeResponse, free_response
 from .frequency import (Peak, base_transmissibility, find_peaks, harmonic_response,
                         isolation_efficiency, rms_over_band)
+from .damping import DampedModes, damped_modes, rayleigh_coefficients
 from .margins import Conflict, MarginResult, margin_check, source_bands
 from .tuning import SweepResult, rank_elements, retune, sweep, with_value
 
@@ -35,5 +36,5 @@ __all__ = [
     "ZeroMode", "modes", "FreeResponse", "free_response", "Peak", "base_transmissibility",
     "find_peaks", "harmonic_response", "isolation_efficiency", "rms_over_band", "Conflict",
     "MarginResult", "margin_check", "source_bands", "SweepResult", "rank_elements", "retune",
-    "sweep", "with_value",
+    "sweep", "with_value", "DampedModes", "damped_modes", "rayleigh_coefficients",
 ]
