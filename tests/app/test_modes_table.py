@@ -1,0 +1,95 @@
+import os
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import csv
+import io
+
+import numpy as np
+import pytest
+from PySide6.QtCore import Qt
+
+import solver
+from app.modes_table import ModesTable, mode_table_csv, mode_table_rows
+
+from _models_for_views import td3s, chain
+
+
+def test_rows_match_solver_modes():
+    """TD-3S (REFERENCES.md 2; Rao ch. 5): w = 20 and 34.64102 rad/s; table rows are solver.modes."""
+    model = td3s()
+    a = solver.analyse(model)
+    rows = mode_table_rows(a)
+    ref = solver.modes(model)
+    assert len(rows) == ref.n_modes == 2
+    np.testing.assert_allclose([r["frequency_hz"] for r in rows], ref.frequencies_hz, rtol=1e-12)
+    np.testing.assert_allclose([r["omega_rad_s"] for r in rows], [20.0, 34.64102], rtol=1e-6)
+    assert rows[-1]["cumulative_percent"]["x"] == pytest.approx(100.0)
+
+
+def test_zero_mode_flagged_with_cause():
+    """TD-FREE (REFERENCES.md 2, math): two masses, one spring, no anchor: a rigid zero mode."""
+    m = solver.Model(kind="line", masses=(solver.Mass("a", 0, 0, 2), solver.Mass("b", 1, 0, 2)),
+                     springs=(solver.Spring("k", "a", "b", 800),))
+    rows = mode_table_rows(solver.analyse(m))
+    assert rows[0]["zero_frequency"] and rows[0]["zero_kind"] == "rigid"
+    assert rows[0]["zero_cause"] and rows[0]["zero_cause"] in rows[0]["flags"]
+    assert rows[1]["omega_rad_s"] == pytest.approx(28.28427, rel=1e-6)
+
+
+def test_csv_round_trips_numbers(tmp_path, qtbot):
+    """common practice: CSV export keeps full precision, so re-read numbers are identical."""
+    a = solver.analyse(chain(6))
+    table = ModesTable()
+    qtbot.addWidget(table)
+    table.set_analysis(a)
+    path = tmp_path / "modes.csv"
+    table.to_csv(path)
+    with open(path, encoding="utf-8") as fh:
+        recs = list(csv.DictReader(fh))
+    assert len(recs) == a.modal.n_modes
+    np.testing.assert_array_equal([float(r["frequency_hz"]) for r in recs], a.modal.frequencies_hz)
+    np.testing.assert_array_equal([float(r["effective_mass_x"]) for r in recs],
+                                  a.modal.effective_mass["x"])
+
+
+def test_click_row_emits_mode_selected(qtbot):
+    """common practice: clicking a mode's row selects it for animation (mode numbers from 1)."""
+    table = ModesTable()
+    qtbot.addWidget(table)
+    table.resize(700, 300)
+    table.show()
+    table.set_analysis(solver.analyse(td3s()))
+    view = table.view
+    rect = view.visualRect(view.model().index(1, 1))
+    with qtbot.waitSignal(table.mode_selected, timeout=1000) as blocker:
+        qtbot.mouseClick(view.viewport(), Qt.MouseButton.LeftButton, pos=rect.center())
+    assert blocker.args == [2]
+    assert table.selected_mode() == 2
+
+
+def test_select_mode_does_not_echo_and_stale_marks(qtbot):
+    """common practice: programmatic selection does not re-emit; stale results are marked."""
+    table = ModesTable()
+    qtbot.addWidget(table)
+    table.set_analysis(solver.analyse(td3s()))
+    with qtbot.assertNotEmitted(table.mode_selected):
+        table.select_mode(1)
+    assert table.selected_mode() == 1
+    table.set_stale(True)
+    assert table.is_stale() and not table._banner.isHidden()
+    table.set_analysis(solver.analyse(td3s()))
+    assert not table.is_stale() and table.selected_mode() == 1
+
+
+def test_clipboard_is_tab_separated(qtbot):
+    """common practice: spreadsheet paste wants tab-separated rows with a header."""
+    table = ModesTable()
+    qtbot.addWidget(table)
+    a = solver.analyse(td3s())
+    table.set_analysis(a)
+    text = table.copy_to_clipboard()
+    lines = text.strip().split("\n")
+    assert len(lines) == 1 + a.modal.n_modes
+    assert lines[0].split("\t")[:2] == ["mode", "frequency_hz"]
+    assert text == mode_table_csv(a, delimiter="\t")
