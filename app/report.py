@@ -211,7 +211,10 @@ def _title_block(pg: _Page, model, modal, date: str):
 def _model_sketch(pg: _Page, model):
     d = pg.dpi
     crowded = len(model.masses) > 10
-    h = round(2.6 * d) if model.kind != "line" else round(1.3 * d if crowded else 1.7 * d)
+    ys = [n.y for n in list(model.masses) + list(model.anchors)]
+    flat = not ys or max(ys) - min(ys) < 1e-9   # everything on one row: a shallow band will do
+    h = round(2.6 * d) if model.kind != "line" and not flat else \
+        round(1.3 * d if crowded or flat else 1.7 * d)
     rect = QRectF(pg.left, pg.y, pg.right - pg.left, h)
     paint_sketch(pg.p, model, rect, style=pg.st, labels=False if crowded else "values",
                  base=0.22 * d)
