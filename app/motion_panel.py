@@ -285,7 +285,7 @@ class MotionPanel(QWidget):
 
         self.play_button = QPushButton("Play", self)
         self.play_button.setCheckable(True)
-        self.play_button.setToolTip("Play or pause (Space)")
+        self.play_button.setToolTip("Play or pause the animation")
         self.play_button.toggled.connect(self._on_play_toggled)
         self.step_button = QPushButton("Step", self)
         self.step_button.setToolTip("Advance one frame")
