@@ -329,6 +329,11 @@ class MainWindow(QMainWindow):
         answer = box.exec()
         return {QMessageBox.Save: "save", QMessageBox.Discard: "discard"}.get(answer, "cancel")
 
+    def _notify_error(self, title: str, message: str) -> None:
+        """Tell the user a file action failed (tests replace this to avoid a modal box)."""
+        if self.isVisible():
+            QMessageBox.warning(self, title, message)
+
     def maybe_save(self) -> bool:
         """True when it is fine to drop the current model (saved, discarded or clean)."""
         if not self.document.dirty:
@@ -358,7 +363,7 @@ class MainWindow(QMainWindow):
             self.document.open(path)
         except ModelError as exc:
             self.statusBar().showMessage(f"Not opened: {exc}", 12000)
-            QMessageBox.warning(self, "Cannot open", str(exc)) if self.isVisible() else None
+            self._notify_error("Cannot open", str(exc))
             return False
         self._add_recent(self.document.path)
         self.scene.set_mode(Mode.SELECT)
@@ -387,8 +392,7 @@ class MainWindow(QMainWindow):
         except OSError as exc:
             msg = f"Not saved to {path}: {exc.strerror or exc}; the previous file is unchanged"
             self.statusBar().showMessage(msg, 12000)
-            if self.isVisible():
-                QMessageBox.warning(self, "Cannot save", msg)
+            self._notify_error("Cannot save", msg)
             return False
         self._add_recent(written)
         self.statusBar().showMessage(f"Saved {written}", 6000)

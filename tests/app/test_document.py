@@ -1,0 +1,139 @@
+"""Document: undo history, dirty flag, save/open round trip and safe failed saves."""
+
+import os
+import stat
+
+import pytest
+
+from app.document import Document
+from solver.io import load_model, save_model
+
+
+def test_delete_mass_removes_its_springs_in_one_undo_step(qtbot, two_mass_model):
+    """Common practice (Qt undo framework): one user action is one history entry."""
+    doc = Document(two_mass_model)
+    doc.remove(["m1"])
+    assert [m.id for m in doc.model.masses] == ["m2"]
+    assert doc.model.springs == ()
+    assert doc.undo_stack.count() == 1
+    doc.undo_stack.undo()
+    assert doc.model == two_mass_model
+
+
+def test_refused_edit_leaves_model_and_history_unchanged(qtbot, two_mass_model):
+    """Common practice: an invalid edit raises with the reason and changes nothing."""
+    from solver.errors import ModelError
+
+    doc = Document(two_mass_model)
+    with pytest.raises(ModelError, match="stiffness k must be positive"):
+        doc.set_element("s1", k=-200.0)
+    assert doc.model is two_mass_model
+    assert doc.undo_stack.count() == 0
+    assert not doc.dirty
+
+
+def test_dirty_flag_follows_edits_undo_and_save(qtbot, tmp_path, two_mass_model):
+    """Common practice: dirty after an edit, clean after save and after undoing back to it."""
+    doc = Document(two_mass_model)
+    seen = []
+    doc.dirty_changed.connect(seen.append)
+    doc.set_element("m1", mass=3.0)
+    assert doc.dirty and seen[-1] is True
+    doc.save(tmp_path / "a.json")
+    assert not doc.dirty and seen[-1] is False
+    doc.undo_stack.undo()
+    assert doc.dirty
+    doc.undo_stack.redo()
+    assert not doc.dirty
+
+
+def test_save_close_reopen_gives_an_equal_model(qtbot, tmp_path, two_mass_model):
+    """Common practice: what is saved is what opens (the file keeps every value exactly)."""
+    doc = Document(two_mass_model)
+    doc.set_element("s2", k=1234.5678, label="bracket")
+    doc.move_nodes({"m2": (0.55, 0.1)})
+    path = doc.save(tmp_path / "model.json")
+    saved = doc.model
+    again = Document()
+    again.open(path)
+    assert again.model == saved
+    assert again.path == path and not again.dirty
+
+
+def test_save_into_missing_folder_fails_and_keeps_state(qtbot, tmp_path, two_mass_model):
+    """Common practice: a failed save raises OSError; the document stays dirty on its old path."""
+    doc = Document(two_mass_model)
+    doc.save(tmp_path / "old.json")
+    doc.set_element("m1", mass=5.0)
+    with pytest.raises(OSError):
+        doc.save(tmp_path / "no such folder" / "new.json")
+    assert doc.dirty
+    assert doc.path == (tmp_path / "old.json").resolve()
+    assert load_model(tmp_path / "old.json") == two_mass_model
+
+
+@pytest.mark.skipif(hasattr(os, "geteuid") and os.geteuid() == 0,
+                    reason="root can write into read-only folders")
+def test_failed_save_in_read_only_folder_leaves_old_file_intact(qtbot, tmp_path, two_mass_model):
+    """Common practice (atomic save: temp file + rename): the old file survives a failed save."""
+    folder = tmp_path / "ro"
+    folder.mkdir()
+    target = folder / "m.json"
+    save_model(two_mass_model, target)
+    before = target.read_bytes()
+    doc = Document()
+    doc.open(target)
+    doc.set_element("m1", mass=9.0)
+    folder.chmod(stat.S_IRUSR | stat.S_IXUSR)
+    try:
+        with pytest.raises(OSError):
+            doc.save()
+    finally:
+        folder.chmod(stat.S_IRWXU)
+    assert target.read_bytes() == before
+    assert doc.dirty
+
+
+def test_window_failed_save_reports_and_keeps_old_file(window, tmp_path, two_mass_model):
+    """Common practice: the window says why a save failed; the previous file is unchanged."""
+    good = tmp_path / "good.json"
+    save_model(two_mass_model, good)
+    before = good.read_bytes()
+    assert window.open_path(good, ask=False)
+    window.document.set_element("m2", mass=4.0)
+    assert not window.save_to(tmp_path / "missing" / "x.json")
+    assert "Not saved" in window.statusBar().currentMessage()
+    assert good.read_bytes() == before
+    assert window.isWindowModified()
+
+
+def test_window_title_shows_name_and_dirty_mark(window, tmp_path, two_mass_model):
+    """Common practice: title "name[*] — Springwright", the mark shown while unsaved."""
+    path = tmp_path / "fixture.json"
+    save_model(two_mass_model, path)
+    window.open_path(path, ask=False)
+    assert window.windowTitle() == "fixture[*] — Springwright"
+    assert not window.isWindowModified()
+    window.document.set_element("m1", mass=2.5)
+    assert window.isWindowModified()
+
+
+def test_autosave_and_recovery_offer(qtbot, window, tmp_path, two_mass_model, settings):
+    """Common practice: unsaved work is autosaved and offered back after an unclean exit."""
+    from app.main_window import MainWindow
+
+    window.document.new(model=two_mass_model)
+    window.document.set_element("m1", mass=7.0)
+    assert window.recovery.autosave()
+    assert window.recovery.model_path.exists()
+    # the program "crashes" here: a second window starts with the same settings and folder
+    again = MainWindow(settings=settings, recovery_folder=tmp_path / "recovery")
+    qtbot.addWidget(again)
+    assert again.check_recovery()
+    assert not again.recovery_bar.isHidden()
+    again.restore_recovery()
+    assert again.document.model.element("m1").mass == 7.0
+    assert again.document.dirty
+    again.recovery.mark_clean_exit()
+    assert again.recovery.pending() is None
+    again.solver.shutdown()
