@@ -20,6 +20,8 @@ class CanvasView(QGraphicsView):
         self.setViewportUpdateMode(QGraphicsView.BoundingRectViewportUpdate)
         self.setAcceptDrops(False)  # files dropped here go to the main window
         self._pan_from = None
+        # an area selects what it encloses, not every spring it touches
+        self.setRubberBandSelectionMode(Qt.ContainsItemShape)
         scene.mode_changed.connect(self._on_mode_change)
         self._on_mode_change(scene.mode)
 
