@@ -1,0 +1,405 @@
+"""Retune, sweep and rank (solver.tuning) against closed forms and identities.
+
+Defaults as in REFERENCES.md: m = 2 kg, k = 800 N/m, w0 = 20 rad/s.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+
+import numpy as np
+import pytest
+import scipy.linalg
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+import solver
+from solver import Anchor, Damping, Mass, Model, ModelError, Spring
+from sw_builders import chain
+
+TWO_PI = 2 * math.pi
+m0, k0 = 2.0, 800.0
+
+
+def single(m=m0, k=k0):
+    return Model(masses=(Mass(id="m", x=1, y=0, mass=m),), anchors=(Anchor(id="A", x=0, y=0),),
+                 springs=(Spring(id="s", a="A", b="m", k=k),))
+
+
+def between(m=m0, k1=k0, k2=k0):
+    """A mass between spring k1 (to anchor A) and spring k2 (to anchor B)."""
+    return Model(masses=(Mass(id="m", x=1, y=0, mass=m),),
+                 anchors=(Anchor(id="A", x=0, y=0), Anchor(id="B", x=2, y=0)),
+                 springs=(Spring(id="k1", a="A", b="m", k=k1), Spring(id="k2", a="m", b="B", k=k2)))
+
+
+def ts2(kt=3000.0, J1=0.5, J2=1.5):
+    """TS-2: two discs on a shaft, no anchor (REFERENCES.md 7)."""
+    return Model(kind="torsion", masses=(Mass(id="d1", x=0, y=0, mass=J1),
+                                         Mass(id="d2", x=1, y=0, mass=J2)),
+                 springs=(Spring(id="shaft", a="d1", b="d2", k=kt),))
+
+
+def td3s(m=m0, k=k0, k2=None):
+    """TD-3S: two masses, three springs, walls both sides (REFERENCES.md 2)."""
+    return chain([m, m], [k, k if k2 is None else k2, k], left=True, right=True)
+
+
+def numbers_in(message):
+    return [float(x) for x in re.findall(r"[-+]?\d+(?:\.\d+)?(?:e[-+]?\d+)?", message)]
+
+
+# --------------------------------------------------------------------------------------------
+# retune against closed forms
+
+
+@pytest.mark.parametrize("f", [0.5, 3.0, 3.183098861837907, 17.0, 250.0])
+def test_single_mass_spring_and_mass(f):
+    """Single DOF: k = m (2 pi f)^2 and m = k / (2 pi f)^2 (math). rtol 1e-9."""
+    model = single()
+    k = solver.retune(model, "s", 1, f)
+    assert k == pytest.approx(m0 * (TWO_PI * f) ** 2, rel=1e-9)
+    m = solver.retune(model, "m", 1, f)
+    assert m == pytest.approx(k0 / (TWO_PI * f) ** 2, rel=1e-9)
+    # field names given explicitly mean the same
+    assert solver.retune(model, "s", 1, f, field="k") == pytest.approx(k, rel=1e-12)
+    assert solver.retune(model, "m", 1, f, field="mass") == pytest.approx(m, rel=1e-12)
+    assert solver.modes(solver.with_value(model, "s", k)).frequencies_hz[0] == pytest.approx(
+        f, rel=1e-9)
+
+
+@pytest.mark.parametrize("f", [5.0, 14.23525, 40.0])
+def test_ts2_torsion_shaft_and_disc(f):
+    """TS-2 (Rao, ch. 5 (mem)): w^2 = kt (J1 + J2)/(J1 J2), so kt = w^2 J1 J2/(J1 + J2) and
+    J1 = 1/(w^2/kt - 1/J2) (math); mode 1 is the zero mode. rtol 1e-9."""
+    J1, J2, kt = 0.5, 1.5, 3000.0
+    model = ts2(kt, J1, J2)
+    w2 = (TWO_PI * f) ** 2
+    assert solver.retune(model, "shaft", 2, f) == pytest.approx(w2 * J1 * J2 / (J1 + J2), rel=1e-9)
+    if w2 > kt / J2:  # reachable by the inertia of disc 1 (J1 -> 0 gives w -> inf)
+        J = solver.retune(model, "d1", 2, f, field="inertia")
+        assert J == pytest.approx(1.0 / (w2 / kt - 1.0 / J2), rel=1e-9)
+    assert solver.tuning.unit_of(model, "shaft") == "N m/rad"
+    assert solver.tuning.unit_of(model, "d1") == "kg m^2"
+
+
+def test_ts2_reference_frequency_returns_present_value():
+    """TS-2 at its own 14.23525 Hz (REFERENCES.md 7, Rao ch. 5 (mem)): kt = 3000 N m/rad, 1e-6."""
+    assert solver.retune(ts2(), "shaft", 2, 14.23525) == pytest.approx(3000.0, rel=1e-6)
+
+
+def test_zero_frequency_mode_refused():
+    """TS-2 mode 1 is the rigid rotation (w = 0, REFERENCES.md 7): no value gives it a frequency."""
+    with pytest.raises(ModelError, match="zero-frequency"):
+        solver.retune(ts2(), "shaft", 1, 5.0)
+    with pytest.raises(ModelError, match="zero-frequency"):
+        solver.retune(ts2(), "d1", 1, 5.0)
+
+
+@pytest.mark.parametrize("f", [3.5, 5.5, 8.0, 30.0])
+def test_td3s_middle_spring_mode2(f):
+    """TD-3S (Rao, ch. 5 (mem)): mode 2 w^2 = (k + 2 k2)/m, so k2 = (m w^2 - k)/2 (math). 1e-9."""
+    k2 = solver.retune(td3s(), "s2", 2, f)
+    assert k2 == pytest.approx((m0 * (TWO_PI * f) ** 2 - k0) / 2, rel=1e-9)
+
+
+def test_td3s_mode1_does_not_depend_on_middle_spring():
+    """TD-3S mode 1 [1, 1] does not stretch k2 (Rao, ch. 5 (mem)): the error says so and gives
+    sqrt(k/m)/(2 pi) = 3.183099 Hz."""
+    with pytest.raises(ModelError, match="does not depend") as err:
+        solver.retune(td3s(), "s2", 1, 5.0)
+    msg = str(err.value)
+    assert '"s2"' in msg and "Hz" in msg
+    assert any(abs(v - 20 / TWO_PI) < 1e-4 for v in numbers_in(msg)), msg
+
+
+def test_unreachable_below_lower_limit():
+    """A mass between k1 and k2 (to ground): f = sqrt((k1 + k2)/m)/(2 pi) in (sqrt(k1/m)/(2 pi), inf)
+    as k2 runs over (0, inf) (math). A target below the limit: ModelError with the limit
+    (3.183099 Hz, to 1e-5) and the present frequency (4.501582 Hz)."""
+    model = between()
+    with pytest.raises(ModelError, match="cannot reach") as err:
+        solver.retune(model, "k2", 1, 2.0)
+    nums = numbers_in(str(err.value))
+    lim, now = math.sqrt(k0 / m0) / TWO_PI, math.sqrt(2 * k0 / m0) / TWO_PI
+    assert any(abs(v - lim) <= 1e-5 * lim for v in nums), str(err.value)
+    assert any(abs(v - now) <= 1e-5 * now for v in nums), str(err.value)
+    # just above the limit is reachable: k2 = m w^2 - k1
+    f = lim * 1.01
+    assert solver.retune(model, "k2", 1, f) == pytest.approx(m0 * (TWO_PI * f) ** 2 - k0, rel=1e-8)
+    # high targets are reachable (within the ten decades retune searches)
+    assert solver.retune(model, "k2", 1, 100.0) == pytest.approx(
+        m0 * (TWO_PI * 100.0) ** 2 - k0, rel=1e-9)
+
+
+def test_unreachable_above_upper_limit_and_second_mode():
+    """m1 = 1 on k1 = 1000 to ground, m2 = 3 on k2 to m1 (math): as k2 -> inf mode 1 -> the rigid
+    pair sqrt(k1/(m1 + m2))/(2 pi) = 2.516461 Hz from below; as k2 -> 0 mode 2 -> sqrt(k1/m1)/(2 pi)
+    = 5.032921 Hz from above. Targets beyond: ModelError naming each limit (1e-5)."""
+    model = chain([1.0, 3.0], [1000.0, 500.0], left=True)
+    with pytest.raises(ModelError, match="cannot reach") as err:
+        solver.retune(model, "s2", 1, 10.0)
+    up = math.sqrt(1000.0 / 4.0) / TWO_PI
+    assert any(abs(v - up) <= 1e-5 * up for v in numbers_in(str(err.value))), str(err.value)
+    with pytest.raises(ModelError, match="cannot reach") as err:
+        solver.retune(model, "s2", 2, 1.0)
+    lo = math.sqrt(1000.0) / TWO_PI
+    assert any(abs(v - lo) <= 1e-5 * lo for v in numbers_in(str(err.value))), str(err.value)
+
+
+def _two_dof_freqs(m1, m2, k1, k2):
+    K = np.array([[k1 + k2, -k2], [-k2, k2]])
+    return np.sqrt(scipy.linalg.eigh(K, np.diag([m1, m2]), eigvals_only=True)) / TWO_PI
+
+
+def test_retune_two_dof_against_eigh():
+    """Retuned k2 of the 2-DOF chain, checked by scipy.linalg.eigh(K, M) of the hand-built
+    matrices (REFERENCES.md section 10): the mode lands on the target to 1e-9."""
+    model = chain([1.0, 3.0], [1000.0, 500.0], left=True)
+    for mode, f in ((1, 1.0), (1, 2.5), (2, 6.0), (2, 40.0)):
+        k2 = solver.retune(model, "s2", mode, f)
+        assert _two_dof_freqs(1.0, 3.0, 1000.0, k2)[mode - 1] == pytest.approx(f, rel=1e-9)
+    # m2 -> inf holds m2 still: mode 2 -> sqrt((k1 + k2)/m1)/(2 pi) = 6.164 Hz from above (math)
+    for mode, f in ((1, 1.0), (1, 2.5), (2, 7.0), (2, 40.0)):
+        m2 = solver.retune(model, "m2", mode, f)
+        assert _two_dof_freqs(1.0, m2, 1000.0, 500.0)[mode - 1] == pytest.approx(f, rel=1e-9)
+    with pytest.raises(ModelError, match="cannot reach") as err:
+        solver.retune(model, "m2", 2, 6.0)
+    lim = math.sqrt(1500.0) / TWO_PI
+    assert any(abs(v - lim) <= 1e-5 * lim for v in numbers_in(str(err.value))), str(err.value)
+
+
+def test_planar_transverse_stiffness():
+    """A planar mass on one spring along x (k = 800) with transverse k_t: modes sqrt(k_t/m) (y) and
+    sqrt(k/m) (x) (math, REFERENCES.md PL-1 generalised). Mode 1 = min of the two, so retuning k_t
+    reaches (0, sqrt(k/m)/(2 pi) = 3.183099 Hz); beyond: ModelError with that limit."""
+    model = Model(kind="planar", masses=(Mass(id="m", x=1, y=0, mass=m0),),
+                  anchors=(Anchor(id="A", x=0, y=0),),
+                  springs=(Spring(id="s", a="A", b="m", k=k0, k_t=200.0),))
+    kt = solver.retune(model, "s", 1, 2.0, field="k_t")
+    assert kt == pytest.approx(m0 * (TWO_PI * 2.0) ** 2, rel=1e-9)
+    k = solver.retune(model, "s", 2, 5.0)  # mode 2 is the axial one
+    assert k == pytest.approx(m0 * (TWO_PI * 5.0) ** 2, rel=1e-9)
+    with pytest.raises(ModelError, match="cannot reach") as err:
+        solver.retune(model, "s", 1, 4.0, field="k_t")
+    lim = 20 / TWO_PI
+    assert any(abs(v - lim) <= 1e-5 * lim for v in numbers_in(str(err.value))), str(err.value)
+
+
+@pytest.mark.parametrize("args, match", [
+    (("nope", 1, 3.0), "nope"),
+    (("A", 1, 3.0), "not a spring or a mass"),
+    (("s", 1, 3.0, "c"), "field"),
+    (("s", 1, 3.0, "k_t"), "planar"),
+    (("m", 1, 3.0, "k"), "field"),
+    (("s", 0, 3.0), "mode"),
+    (("s", 2, 3.0), "mode 2"),
+    (("s", 1.5, 3.0), "mode"),
+    (("s", True, 3.0), "mode"),
+    (("s", 1, 0.0), "positive"),
+    (("s", 1, -3.0), "positive"),
+    (("s", 1, float("nan")), "positive"),
+    (("s", 1, float("inf")), "positive"),
+])
+def test_bad_requests_refused(args, match):
+    """Bad ids, fields, modes and targets raise ModelError naming the problem (DESIGN.md 3)."""
+    with pytest.raises(ModelError, match=match):
+        solver.retune(single(), *args)
+
+
+def test_bad_with_value_and_sweep_refused():
+    """with_value and sweep share the checks; sweep values must be positive and finite
+    (DESIGN.md 3: errors a user can act on)."""
+    with pytest.raises(ModelError):
+        solver.with_value(single(), "A", 5.0)
+    with pytest.raises(ModelError):
+        solver.with_value(single(), "s", -5.0)  # the Model refuses a negative stiffness
+    for bad in ([100.0, -1.0], [0.0, 1.0], [float("nan")], [[1.0, 2.0]]):
+        with pytest.raises(ModelError):
+            solver.sweep(single(), "s", bad)
+
+
+# --------------------------------------------------------------------------------------------
+# sweep
+
+
+def test_sweep_td3s_closed_form():
+    """Sweep of k2 in TD-3S: f1 = sqrt(k/m)/(2 pi), f2 = sqrt((k + 2 k2)/m)/(2 pi) (math); the
+    modes swap order below k2 = 0 only, so over k2 > 0 the columns follow the formulas. 1e-10."""
+    values = np.geomspace(1.0, 1e5, 13)
+    res = solver.sweep(td3s(), "s2", values)
+    assert res.frequencies_hz.shape == (13, 2) and res.field == "k"
+    np.testing.assert_allclose(res.values, values)
+    np.testing.assert_allclose(res.frequencies_hz[:, 0], math.sqrt(k0 / m0) / TWO_PI, rtol=1e-10)
+    np.testing.assert_allclose(res.frequencies_hz[:, 1], np.sqrt((k0 + 2 * values) / m0) / TWO_PI,
+                               rtol=1e-10)
+
+
+def test_sweep_against_direct_eigh():
+    """Sweep of one spring and of one mass of a random 4-mass chain against scipy.linalg.eigh(K, M)
+    of hand-built matrices at the same values (REFERENCES.md section 10). rtol 1e-10."""
+    rng = np.random.default_rng(7)
+    masses = rng.uniform(0.5, 3.0, 4)
+    ks = rng.uniform(200.0, 3000.0, 5)
+    model = chain(masses, ks, left=True, right=True)
+
+    def direct(ms, kk):
+        K = np.zeros((4, 4))
+        for i in range(5):  # spring i joins node i-1 and i (node -1 = A, node 4 = B)
+            a, b = i - 1, i
+            if a >= 0:
+                K[a, a] += kk[i]
+            if b <= 3:
+                K[b, b] += kk[i]
+            if a >= 0 and b <= 3:
+                K[a, b] -= kk[i]
+                K[b, a] -= kk[i]
+        return np.sqrt(scipy.linalg.eigh(K, np.diag(ms), eigvals_only=True)) / TWO_PI
+
+    kvals = np.array([50.0, 400.0, 2500.0, 2e4])
+    res = solver.sweep(model, "s3", kvals)
+    for row, v in zip(res.frequencies_hz, kvals):
+        kk = ks.copy()
+        kk[2] = v
+        np.testing.assert_allclose(row, direct(masses, kk), rtol=1e-10)
+    mvals = np.array([0.1, 1.0, 7.5])
+    res = solver.sweep(model, "m2", mvals)
+    assert res.field == "mass"
+    for row, v in zip(res.frequencies_hz, mvals):
+        ms = masses.copy()
+        ms[1] = v
+        np.testing.assert_allclose(row, direct(ms, ks), rtol=1e-10)
+    # count limits the modes reported
+    assert solver.sweep(model, "s3", kvals, count=2).frequencies_hz.shape == (4, 2)
+
+
+# --------------------------------------------------------------------------------------------
+# monotonicity (Rayleigh's theorem; Courant-Fischer, math)
+
+
+def _random_model(seed, kind):
+    rng = np.random.default_rng(seed)
+    n = int(rng.integers(1, 5))
+    masses = [Mass(id=f"m{i}", x=float(rng.uniform(-2, 2)), y=float(rng.uniform(-2, 2)),
+                   mass=float(rng.uniform(0.2, 5.0))) for i in range(n)]
+    anchors = [Anchor(id=f"A{i}", x=float(rng.uniform(-3, 3)), y=float(rng.uniform(-3, 3)))
+               for i in range(2)]
+    nodes = [m.id for m in masses] + [a.id for a in anchors]
+    springs = []
+    # every mass tied to something, plus a few random extra springs
+    pairs = [(masses[i].id, nodes[int(rng.integers(0, len(nodes)))]) for i in range(n)]
+    for _ in range(int(rng.integers(0, 4))):
+        a, b = rng.choice(len(nodes), 2, replace=False)
+        pairs.append((nodes[a], nodes[b]))
+    for j, (a, b) in enumerate(pairs):
+        if a == b or (a.startswith("A") and b.startswith("A")):
+            continue
+        kt = float(rng.uniform(0, 2000.0)) if (kind == "planar" and rng.random() < 0.6) else 0.0
+        springs.append(Spring(id=f"s{j}", a=a, b=b, k=float(rng.uniform(50.0, 5000.0)), k_t=kt))
+    return Model(kind=kind, masses=tuple(masses), anchors=tuple(anchors), springs=tuple(springs))
+
+
+@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(seed=st.integers(0, 2 ** 32 - 1), kind=st.sampled_from(["line", "planar", "torsion"]),
+       factor=st.floats(1.01, 20.0))
+def test_monotone_in_every_stiffness_and_mass(seed, kind, factor):
+    """Raising any k (or k_t in planar) never lowers any mode's frequency; raising any mass never
+    raises one (Rayleigh's theorem of constraint / stiffness monotonicity; Courant-Fischer, math).
+    Tolerance 1e-9 of the largest eigenvalue (round-off of the eigen-solver)."""
+    model = _random_model(seed, kind)
+    lam0 = solver.modes(model).eigenvalues
+    tol = 1e-9 * max(lam0.max(), 1.0)
+    for s in model.springs:
+        fields = ["k"] + (["k_t"] if kind == "planar" and s.k_t > 0 else [])
+        for f in fields:
+            lam = solver.modes(solver.with_value(model, s.id, getattr(s, f) * factor, f)).eigenvalues
+            assert np.all(lam >= lam0 - tol), (s.id, f, lam0, lam)
+    for m in model.masses:
+        lam = solver.modes(solver.with_value(model, m.id, m.mass * factor)).eigenvalues
+        assert np.all(lam <= lam0 + tol), (m.id, lam0, lam)
+
+
+# --------------------------------------------------------------------------------------------
+# rank_elements
+
+
+def test_rank_td3s_closed_form():
+    """TD-3S strain energy in mode 2: 16.67 / 66.67 / 16.67 % and d lambda/dk = 0.25, 1, 0.25
+    (REFERENCES.md 8; Fox and Kapoor, AIAA J. 6(12), 1968 (mem)): (k/f)(df/dk) = k dlambda/dk /
+    (2 lambda) = 1/12, 1/3, 1/12; mode 1: 1/4, 0, 1/4; every mass -1/4 in both modes (math). 1e-10."""
+    for mode, springs in ((1, {"s1": 0.25, "s2": 0.0, "s3": 0.25}),
+                          (2, {"s1": 1 / 12, "s2": 1 / 3, "s3": 1 / 12})):
+        ranked = solver.rank_elements(td3s(), mode)
+        got = {(eid, f): s for eid, f, s in ranked}
+        want = {(k, "k"): v for k, v in springs.items()} | {("m1", "mass"): -0.25,
+                                                            ("m2", "mass"): -0.25}
+        assert set(got) == set(want)
+        for key, v in want.items():
+            assert got[key] == pytest.approx(v, abs=1e-10)
+        mags = [abs(s) for _, _, s in ranked]
+        assert mags == sorted(mags, reverse=True)
+    assert solver.rank_elements(td3s(), 2)[0][:2] == ("s2", "k")
+    with pytest.raises(ModelError):
+        solver.rank_elements(td3s(), 3)
+    with pytest.raises(ModelError):
+        solver.rank_elements(td3s(), 0)
+
+
+@pytest.mark.parametrize("kind", ["line", "planar", "torsion"])
+def test_rank_equals_half_energy_fractions(kind):
+    """(k/f)(df/dk) = k (phi_a - phi_b)^2 / (2 lambda) = half the spring's strain-energy fraction and
+    (m/f)(df/dm) = -half the mass's kinetic-energy fraction, for mass-normalised modes; the spring
+    terms sum to 1/2 and the mass terms to -1/2 (Euler's theorem on homogeneous functions) (math).
+    Distinct elastic modes only. atol 1e-10."""
+    for seed in range(12):
+        model = _random_model(1000 + seed, kind)
+        res = solver.modes(model)
+        energy = solver.energy_fractions(res)
+        for mode in range(1, res.n_modes + 1):
+            if res.is_zero[mode - 1] or res.repeated_group(mode):
+                continue
+            ranked = solver.rank_elements(model, mode)
+            got = {(eid, f): s for eid, f, s in ranked}
+            strain = energy.strain_energy_fraction(mode)
+            kinetic = energy.kinetic_energy_fraction(mode)
+            for s in model.springs:
+                half = 0.5 * strain[s.id]
+                if kind == "planar":
+                    # the fraction covers k and k_t together
+                    total = got[(s.id, "k")] + got.get((s.id, "k_t"), 0.0)
+                    assert total == pytest.approx(half, abs=1e-10)
+                else:
+                    assert got[(s.id, "k")] == pytest.approx(half, abs=1e-10)
+            for m in model.masses:
+                assert got[(m.id, "mass")] == pytest.approx(-0.5 * kinetic[m.id], abs=1e-10)
+            assert sum(v for (_, f), v in got.items() if f != "mass") == pytest.approx(0.5, abs=1e-9)
+            assert sum(v for (_, f), v in got.items() if f == "mass") == pytest.approx(-0.5, abs=1e-9)
+
+
+@pytest.mark.parametrize("kind", ["line", "planar", "torsion"])
+def test_rank_against_finite_differences(kind):
+    """Normalised sensitivities against central differences of log f in log p (math), step
+    h = 1e-4 (truncation ~h^2): atol 1e-6."""
+    h = 1e-4
+    checked = 0
+    for seed in range(6):
+        model = _random_model(2000 + seed, kind)
+        res = solver.modes(model)
+        lam = res.eigenvalues
+        for mode in range(1, res.n_modes + 1):
+            i = mode - 1
+            if res.is_zero[i] or res.repeated_group(mode):
+                continue
+            # keep to well separated modes so the difference does not cross a neighbour
+            gaps = np.abs(np.delete(lam, i) - lam[i]) / lam[i]
+            if gaps.size and gaps.min() < 1e-3:
+                continue
+            for eid, field, s in solver.rank_elements(model, mode):
+                v = solver.tuning.value_of(model, eid, field)
+                up = solver.modes(solver.with_value(model, eid, v * (1 + h), field)).omegas[i]
+                dn = solver.modes(solver.with_value(model, eid, v * (1 - h), field)).omegas[i]
+                fd = (math.log(up) - math.log(dn)) / (math.log1p(h) - math.log1p(-h))
+                assert s == pytest.approx(fd, abs=1e-6), (seed, mode, eid, field)
+                checked += 1
+    assert checked > 10
