@@ -66,9 +66,27 @@ def _schema_message(data, error) -> str:
     import jsonschema
 
     # oneOf failures hide the useful reason one level down: pick the branch that matched best.
-    best = jsonschema.exceptions.best_match([error])
+    # (best_match may itself descend into a oneOf's branches and pick the wrong one, so the
+    # branches are examined on the raw error)
+    best = error if error.validator in ("oneOf", "anyOf") else jsonschema.exceptions.best_match(
+        [error])
     if best.validator in ("oneOf", "anyOf") and best.context:
-        best = jsonschema.exceptions.best_match(best.context)
+        # The branches are told apart by a const ("model": "modal", "type": "band"): report the
+        # errors of the branch the file meant, else that the discriminator itself is unknown.
+        by_branch: dict = {}
+        for e in best.context:
+            by_branch.setdefault(e.relative_schema_path[0], []).append(e)
+        meant = [errs for errs in by_branch.values()
+                 if not any(e.validator == "const" for e in errs)]
+        consts = [e for e in best.context if e.validator == "const"]
+        if len(meant) == 1:
+            best = jsonschema.exceptions.best_match(meant[0])
+        elif not meant and len(consts) == len(by_branch):
+            allowed = ", ".join(repr(e.schema["const"]) for e in consts)
+            return (f"{_where(data, consts[0].absolute_path)}: {consts[0].instance!r} is not"
+                    f" allowed (allowed: {allowed})")
+        else:
+            best = jsonschema.exceptions.best_match(best.context)
     where = _where(data, best.absolute_path)
     v = best.validator
     if v == "additionalProperties":
@@ -103,7 +121,8 @@ def model_from_dict(data: dict) -> Model:
         raise ModelFileError(f'this is not a Springwright model: "format" must be "{FORMAT}",'
                              f" got {data.get('format')!r}")
     version = data.get("version")
-    if isinstance(version, int) and not isinstance(version, bool) and version > VERSION:
+    # JSON Schema counts 2.0 as an integer, so a float version must be refused here too
+    if isinstance(version, (int, float)) and not isinstance(version, bool) and version > VERSION:
         raise ModelFileError(f"the file is format version {version}, newer than this program"
                              f" knows (up to {VERSION}); open it with a newer Springwright")
     validator = _validator()

@@ -221,7 +221,29 @@ def modes(model_or_system, count: int | None = None, method: str | None = None) 
     else:
         lam, phi = _sparse_eig(system, M_diag, want, bound)
         method = "shift-invert Lanczos"
-    return _finish(system, lam, phi, M_diag, bound, warnings, complete=(want == n), method=method)
+    return _finish(system, lam, phi, M_diag, _zero_scale(system, M_diag, bound), warnings,
+                   complete=(want == n), method=method)
+
+
+def _zero_scale(system: System, M_diag: np.ndarray, bound: float) -> float:
+    """Eigenvalue scale against which a computed eigenvalue counts as zero.
+
+    Condensing massless junctions subtracts nearly equal stiffnesses, so the condensed K can be
+    pure rounding (e.g. a junction that lets a mass move freely) with a spectral bound near zero.
+    The rounding is relative to the springs before condensation, so the scale is the bound of the
+    uncondensed stiffness on the mass-carrying DOFs (never smaller: the Schur complement only
+    lowers stiffness).
+    """
+    if len(system.dofs) == len(system.all_dofs):
+        return bound
+    lookup = {d: i for i, d in enumerate(system.all_dofs)}
+    keep = np.array([lookup[d] for d in system.dofs], dtype=np.int64)
+    K_full = system.K_full
+    if sp.issparse(K_full):
+        K_mm = sp.csr_matrix(K_full)[keep][:, keep]
+    else:
+        K_mm = np.asarray(K_full)[np.ix_(keep, keep)]
+    return max(bound, _spectral_bound(M_diag, K_mm))
 
 
 def _dense_eig(system: System, M_diag: np.ndarray, want: int):
