@@ -17,32 +17,9 @@ gives the dark variant) or ask for ``LIGHT`` / ``DARK`` directly. The report alw
 
 from __future__ import annotations
 
-import ctypes
-import sys
 from dataclasses import dataclass
 
-import PySide6
 from PySide6.QtGui import QColor, QGuiApplication, QPalette
-
-
-def _guard_none_refcount() -> None:
-    """Work round a binding bug: PySide6 6.12.0 on CPython 3.11 returns None from void methods
-    (QPainterPath.lineTo, QPainter.drawLine, ...) without a new reference, so every call lowers
-    None's reference count by one and a long paint (a report, a minute of animation) aborts with
-    "none_dealloc". From Python 3.12 None is immortal and nothing happens. Here we give None a
-    huge reserve of references once, which is what 3.12 does by design. Remove when the project
-    moves to Python >= 3.12 or a fixed PySide6.
-    """
-    if sys.version_info >= (3, 12) or sys.implementation.name != "cpython":
-        return
-    if not PySide6.__version__.startswith("6.12."):
-        return
-    refcnt = ctypes.c_ssize_t.from_address(id(None))  # ob_refcnt is PyObject's first field
-    if refcnt.value < (1 << 40):
-        refcnt.value += 1 << 40
-
-
-_guard_none_refcount()
 
 
 def _c(hex_rgb: str, alpha: int = 255) -> QColor:
