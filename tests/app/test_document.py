@@ -128,6 +128,7 @@ def test_autosave_and_recovery_offer(qtbot, window, tmp_path, two_mass_model, se
     assert window.recovery.model_path.exists()
     # the program "crashes" here: a second window starts with the same settings and folder
     again = MainWindow(settings=settings, recovery_folder=tmp_path / "recovery")
+    again._ask_save_changes = lambda: "discard"
     qtbot.addWidget(again)
     assert again.check_recovery()
     assert not again.recovery_bar.isHidden()
