@@ -28,7 +28,7 @@ run: setup qt-libs
 test: setup
 	@sh tools/qt_libs.sh offscreen
 	QT_QPA_PLATFORM=offscreen $(BIN)/lint-imports --config pyproject.toml
-	QT_QPA_PLATFORM=offscreen $(BIN)/python -m pytest
+	QT_QPA_PLATFORM=offscreen $(BIN)/python -m pytest -q
 
 bench: setup
 	$(BIN)/python bench/solver_bench.py

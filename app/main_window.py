@@ -99,8 +99,7 @@ class MainWindow(QMainWindow):
         self.solver.pending_changed.connect(self._on_pending_change)
         if hasattr(self.modes_table, "mode_selected"):
             self.modes_table.mode_selected.connect(self._on_mode_selected)
-        if hasattr(self.motion_panel, "initial_condition_requested"):
-            self.motion_panel.initial_condition_requested.connect(self._on_initial_request)
+        self.motion_panel.initial_conditions_requested.connect(self._on_initial_request)
 
         self._make_actions()
         self.setAcceptDrops(True)
@@ -303,20 +302,23 @@ class MainWindow(QMainWindow):
         self.warnings_label.setText("\n".join(f"⚠ {w}" for w in warnings))
         self.warnings_label.show()
 
-    def _on_initial_request(self, value):
-        from solver.model import Initial, Model
+    def _on_initial_request(self, value: dict):
+        """A drag in the motion view: ``{mass_id: {direction: displacement}}`` becomes one undo
+        entry; the masses' initial velocities are kept."""
+        from solver.model import Initial
 
+        model = self.document.model
+        put = []
+        for mass_id, disp in value.items():
+            old = model.initial_of(mass_id) or Initial(mass_id=mass_id)
+            merged = dict(old.displacement)
+            merged.update({d: float(v) for d, v in disp.items()})
+            put.append(Initial(mass_id=mass_id, displacement=tuple(merged.items()),
+                               velocity=old.velocity))
         try:
-            if isinstance(value, Model):
-                self.document.apply(value, "Set initial conditions")
-            elif isinstance(value, Initial):
-                self.document.apply(self.document.model.with_changes(put=[value]),
-                                    f"Set initial condition of {value.mass_id}")
-            else:
-                put = [v for v in value if isinstance(v, Initial)]
-                self.document.apply(self.document.model.with_changes(put=put),
-                                    "Set initial conditions")
-        except (ModelError, TypeError) as exc:
+            names = ", ".join(value)
+            self.document.apply(model.with_changes(put=put), f"Set initial displacement of {names}")
+        except ModelError as exc:
             self.statusBar().showMessage(f"Initial conditions refused: {exc}", 8000)
 
     # -- files --------------------------------------------------------------------------------
