@@ -242,18 +242,16 @@ def test_shipped_examples_load_and_solve(path, tmp_path):
 
 def test_rod_chain_example_is_near_the_wave_equation():
     """Uniform rod (math; any vibration text): f_1 = c / (2L), c = sqrt(E/rho). The shipped steel
-    rod example (1 m, fixed both ends, 40 masses) is within 2 % of it for steel
-    (E = 200-210 GPa, rho = 7850 kg/m^3). The example gives each of the N masses rho A L / N while
-    its N + 1 springs are E A (N + 1) / L, which puts the end half-segments' mass on the masses and
-    lowers f_1 by about sqrt(N/(N+1)), 1.2 % at N = 40: hence 2 %, not the 0.01 % of a lumping with
-    rho A L/(N+1) per mass."""
+    rod example (1 m, fixed both ends, 40 masses of rho A L/(N + 1) on N + 1 springs of
+    E A (N + 1)/L) is within 0.1 % of it for E = 200 GPa, rho = 7850 kg/m^3 (the lumping error
+    of the first mode is about (pi/(N + 1))^2 / 24, 0.02 % at N = 40)."""
     path = ROOT / "assets" / "examples" / "rod_chain.json"
     if not path.exists():
         pytest.skip("rod_chain.json not shipped")
     r = solver.modes(solver.load_model(path))
     f1 = r.frequencies_hz[0]
-    lo, hi = math.sqrt(200e9 / 7850) / 2, math.sqrt(210e9 / 7850) / 2
-    assert lo * 0.98 < f1 < hi * 1.02, (f1, lo, hi)
+    exact = math.sqrt(200e9 / 7850) / 2
+    assert f1 == pytest.approx(exact, rel=1e-3)
 
 
 # ------------------------------------------------------------------ command line
