@@ -70,6 +70,19 @@ def _schema_message(data, error) -> str:
     # branches are examined on the raw error)
     best = error if error.validator in ("oneOf", "anyOf") else jsonschema.exceptions.best_match(
         [error])
+    if best.validator in ("oneOf", "anyOf") and isinstance(best.instance, dict):
+        # a missing discriminator ("model" of damping, "type" of an excitation) says it all
+        branches = best.schema.get(best.validator, [])
+        keys = {k: [] for b in branches for k, v in b.get("properties", {}).items()
+                if "const" in v}
+        for b in branches:
+            for k, v in b.get("properties", {}).items():
+                if "const" in v:
+                    keys[k].append(v["const"])
+        for key, values in keys.items():
+            if key not in best.instance:
+                return (f"{_where(data, best.absolute_path)}: {key!r} is required (one of"
+                        f" {', '.join(map(repr, values))})")
     if best.validator in ("oneOf", "anyOf") and best.context:
         # The branches are told apart by a const ("model": "modal", "type": "band"): report the
         # errors of the branch the file meant, else that the discriminator itself is unknown.
