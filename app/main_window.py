@@ -35,6 +35,46 @@ def _optional_widget(module: str, cls: str):
         return None
 
 
+CAUTION_TEXT = (
+    "A lumped spring-mass model is an approximation of the real assembly: its frequencies, shapes,"
+    " margins and responses depend on how the structure was idealised and on stiffness and mass"
+    " values that are often uncertain. Confirm them by test or detailed analysis before they feed"
+    " a decision about equipment that can hurt people. Local codes and licensed engineering"
+    " practice govern.")
+
+GUIDE_HTML = """
+<h2>Springwright quick guide</h2>
+<p><b>The main loop:</b> draw the assembly, read its natural frequencies, watch a mode,
+set an initial push and play it, change a part to move a resonance, export the report.</p>
+<h3>Drawing (Tools menu and toolbar)</h3>
+<table cellpadding="3">
+<tr><td><b>S</b></td><td>Select: click an element, drag to move, drag on empty canvas to
+select an area. Delete removes the selection (a mass goes with its springs).</td></tr>
+<tr><td><b>M</b></td><td>Place mass: click on the canvas. A mass of 0 kg is a massless
+junction.</td></tr>
+<tr><td><b>A</b></td><td>Place anchor: a fixed point (ground).</td></tr>
+<tr><td><b>K</b></td><td>Connect spring: drag from one node to another.</td></tr>
+<tr><td><b>D</b></td><td>Connect dashpot: drag from one node to another.</td></tr>
+<tr><td><b>Esc</b></td><td>Back to Select.</td></tr>
+<tr><td><b>F</b>, wheel, middle drag</td><td>Fit, zoom, pan. <b>G</b> toggles grid snap.</td></tr>
+<tr><td><b>Ctrl+Z / Ctrl+Shift+Z</b></td><td>Undo / redo every edit; a drag is one step.</td></tr>
+</table>
+<h3>Values</h3>
+<p>The Properties panel edits the selection. Fields take a number with a unit
+(<i>12 lbf/in</i>, <i>3.5 kN/mm</i>, <i>20 lb</i>, <i>0.4 kg m^2</i>); a plain number is in
+the display units chosen at the top. A bad entry is refused in place with the reason.
+The file always stores SI units.</p>
+<h3>Modes and motion</h3>
+<p>The Modes table updates after every edit: frequency, period, effective modal mass per
+direction and its running total, and notes (zero-frequency modes with their cause, repeated
+frequencies, modes within the margin of an excitation). Selecting a row animates that mode in
+the Motion panel. Switch the Motion panel to the free response to play the motion from the
+initial conditions; drag a mass there and let go to set its initial displacement.</p>
+<h3>Cautions</h3>
+<p>""" + CAUTION_TEXT + """</p>
+"""
+
+
 class MainWindow(QMainWindow):
     def __init__(self, settings: QSettings | None = None, recovery_folder=None):
         super().__init__()
@@ -85,6 +125,10 @@ class MainWindow(QMainWindow):
         self.statusBar().addPermanentWidget(self.pending_label)
         self.mode_label = QLabel("")
         self.statusBar().addPermanentWidget(self.mode_label)
+        caution = QLabel("Lumped-model estimate: confirm by test or detailed analysis")
+        caution.setObjectName("caution_label")
+        caution.setToolTip(CAUTION_TEXT)
+        self.statusBar().addPermanentWidget(caution)
 
         # -- wiring ---------------------------------------------------------------------------
         self.scene.selection_ids_changed.connect(self.properties.set_selection)
@@ -229,6 +273,25 @@ class MainWindow(QMainWindow):
         tb.addSeparator()
         tb.addAction(self.act_undo)
         tb.addAction(self.act_redo)
+
+        h = mb.addMenu("&Help")
+        self._action("&Quick guide", self.show_guide, QKeySequence.HelpContents,
+                     "How to draw a model, read its modes and move a resonance", h)
+        self._action("&Cautions", self.show_guide, "",
+                     "What a lumped model can and cannot tell you", h)
+
+    def show_guide(self):
+        """A non-modal window with the tools, their keys, the main loop and the cautions."""
+        from PySide6.QtWidgets import QTextBrowser
+
+        if getattr(self, "_guide", None) is None:
+            self._guide = QTextBrowser()
+            self._guide.setObjectName("quick_guide")
+            self._guide.setWindowTitle("Springwright quick guide")
+            self._guide.setHtml(GUIDE_HTML)
+            self._guide.resize(620, 560)
+        self._guide.show()
+        self._guide.raise_()
 
     # -- title, status ------------------------------------------------------------------------
     def _update_title(self, *_):

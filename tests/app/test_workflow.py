@@ -55,3 +55,20 @@ def test_modes_table_follows_an_edit(qtbot, window, two_mass_model):
     assert table.rowCount() == 2
     shown = [float(table.index(r, 1).data()) for r in range(table.rowCount())]
     np.testing.assert_allclose(shown, expected, rtol=1e-4)
+
+
+def test_window_carries_the_caution_and_a_quick_guide(qtbot, window):
+    """common practice: a lumped model is an approximation to be confirmed by test or detailed
+    analysis, and local codes and licensed practice govern; the window says so at all times and
+    the guide (F1) lists the tools with their keys, without a modal dialog."""
+    from PySide6.QtWidgets import QLabel
+
+    label = window.findChild(QLabel, "caution_label")
+    assert label is not None and label.isVisible()
+    assert "licensed engineering" in label.toolTip()
+    qtbot.keyClick(window, Qt.Key_F1)
+    guide = window._guide
+    assert guide.isVisible() and not guide.isModal()
+    text = guide.toPlainText()
+    for key in ("Place mass", "Connect spring", "approximation"):
+        assert key in text
