@@ -146,6 +146,7 @@ class MainWindow(QMainWindow):
         self.motion_panel.initial_conditions_requested.connect(self._on_initial_request)
 
         self._make_actions()
+        self._add_tune_panels()
         self.setAcceptDrops(True)
         self.recovery = Recovery(self.document, self.settings, folder=recovery_folder, parent=self)
         geometry = self.settings.value("window/geometry")
@@ -279,6 +280,39 @@ class MainWindow(QMainWindow):
                      "How to draw a model, read its modes and move a resonance", h)
         self._action("&Cautions", self.show_guide, "",
                      "What a lumped model can and cannot tell you", h)
+
+    def _add_tune_panels(self):
+        """Tune panel beside the modes table, sensitivity table tabbed with it, energy tint."""
+        from .energy_view import EnergyTint
+        from .sensitivity_table import SensitivityTable
+        from .tune_panel import TunePanel
+
+        self.tune_panel = TunePanel(self.document, self.solver)
+        self.tune_panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+        tune_dock = self._dock("Tune", self.tune_panel, Qt.BottomDockWidgetArea, "dock_tune")
+        modes_dock = self.findChild(QDockWidget, "dock_modes")
+        if modes_dock is not None:
+            self.splitDockWidget(modes_dock, tune_dock, Qt.Horizontal)
+        self.sensitivity_table = SensitivityTable(self.solver)
+        sens_dock = self._dock("Sensitivity", self.sensitivity_table, Qt.BottomDockWidgetArea,
+                               "dock_sensitivity")
+        self.tabifyDockWidget(tune_dock, sens_dock)
+        tune_dock.raise_()
+        self.energy_tint = EnergyTint(self.scene, self.view)
+        view_menu = next(a.menu() for a in self.menuBar().actions() if a.text() == "&View")
+        view_menu.addSeparator()
+        self.act_energy = self._action(
+            "&Energy tint", self.energy_tint.set_enabled, "E",
+            "Tint springs by strain-energy share and masses by kinetic-energy share in the"
+            " selected mode", view_menu, checkable=True)
+
+        def follow_mode(mode):
+            self.tune_panel.set_mode(mode)
+            self.energy_tint.show(self.solver.last_analysis, mode)
+
+        self.solver.results_ready.connect(lambda a: self.energy_tint.show(a, self._selected_mode))
+        if hasattr(self.modes_table, "mode_selected"):
+            self.modes_table.mode_selected.connect(follow_mode)
 
     def show_guide(self):
         """A non-modal window with the tools, their keys, the main loop and the cautions."""

@@ -119,6 +119,16 @@ class SolveService(QObject):
             self._timer.stop()
             self._start()
 
+    def offer(self, model, analysis) -> bool:
+        """Take results computed elsewhere (the tune panel solves small models at once while a
+        slider is dragged) if they are for the latest model; the debounced solve is then skipped.
+        True when taken."""
+        if model is not self._model or analysis is None:
+            return False
+        self._timer.stop()
+        self._on_done(self._generation, analysis, "")
+        return True
+
     def wait(self, msecs: int = 30000) -> bool:
         """Block until no solve is queued or running (tests, export). True when idle."""
         from PySide6.QtCore import QCoreApplication, QElapsedTimer

@@ -59,6 +59,8 @@ class MassItem(NodeItem):
         selected = self.isSelected()
         painter.setPen(self.pen(st.accent if selected else st.mass_edge))
         fill = st.junction if self.element.mass <= 0 else st.mass_fill
+        if getattr(self, "energy_color", None) is not None and self.element.mass > 0:
+            fill = self.energy_color   # energy tint (app.energy_view): kinetic-energy share
         painter.setBrush(QBrush(st.accent_soft if selected else fill))
         painter.drawPath(self._path)
         if self.kind == "line" and self.element.mass > 0:

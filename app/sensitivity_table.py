@@ -1,0 +1,150 @@
+"""Sensitivity table: how much each mode's frequency moves per change of each element.
+
+Rows are the springs (``k``; ``k_t`` too in a planar model) and masses; columns the modes. A cell is
+the normalised sensitivity ``(p/f)(df/dp)`` from ``Analysis.sensitivity`` (Fox and Kapoor
+eigenvalue derivatives, see :mod:`solver.metrics`): the % change of the mode's frequency per % change
+of the element's value. Stiffness entries are >= 0 and sum to 0.5 over the springs of a mode; mass
+entries are <= 0 and sum to -0.5. Zero-frequency modes have none ("—"). Click a header to sort.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from PySide6.QtCore import QAbstractTableModel, QModelIndex, QSortFilterProxyModel, Qt
+from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QLabel, QTableView, QVBoxLayout, QWidget
+
+from .style import current_style
+
+SORT_ROLE = Qt.ItemDataRole.UserRole + 1
+DASH = "—"
+
+
+def sensitivity_rows(analysis) -> list[tuple[str, str, str, np.ndarray]]:
+    """``[(element_id, field, label, values (n_modes,))]``: every stiffness, then every mass."""
+    if analysis is None:
+        return []
+    model, sens = analysis.model, analysis.sensitivity
+    rows = []
+    for j, sid in enumerate(sens.spring_ids):
+        label = model.element(sid).label
+        rows.append((sid, "k", f"{label} · k", np.asarray(sens.normalised_k[:, j], float)))
+        if model.kind == "planar":
+            rows.append((sid, "k_t", f"{label} · k_t",
+                         np.asarray(sens.normalised_kt[:, j], float)))
+    for j, mid in enumerate(sens.mass_ids):
+        m = model.element(mid)
+        what = "inertia" if model.kind == "torsion" else "m"
+        rows.append((mid, "mass", f"{m.label} · {what}", np.asarray(sens.normalised_m[:, j], float)))
+    return rows
+
+
+class _SensitivityModel(QAbstractTableModel):
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        self._rows = []
+        self._freqs = np.zeros(0)
+
+    def set_analysis(self, analysis):
+        self.beginResetModel()
+        self._rows = sensitivity_rows(analysis)
+        self._freqs = (np.asarray(analysis.modal.frequencies_hz, float) if analysis is not None
+                       else np.zeros(0))
+        self.endResetModel()
+
+    def rowCount(self, parent=QModelIndex()):  # noqa: N802
+        return 0 if parent.isValid() else len(self._rows)
+
+    def columnCount(self, parent=QModelIndex()):  # noqa: N802
+        return 0 if parent.isValid() else 1 + len(self._freqs)
+
+    def headerData(self, section, orientation, role=Qt.ItemDataRole.DisplayRole):  # noqa: N802
+        if orientation != Qt.Orientation.Horizontal or role != Qt.ItemDataRole.DisplayRole:
+            return None
+        if section == 0:
+            return "element"
+        return f"mode {section}\n{self._freqs[section - 1]:.4g} Hz"
+
+    def value(self, row: int, mode: int) -> float:
+        return float(self._rows[row][3][mode - 1])
+
+    def data(self, index, role=Qt.ItemDataRole.DisplayRole):
+        if not index.isValid():
+            return None
+        eid, field, label, vals = self._rows[index.row()]
+        c = index.column()
+        if c == 0:
+            if role in (Qt.ItemDataRole.DisplayRole, SORT_ROLE):
+                return label
+            if role == Qt.ItemDataRole.ToolTipRole:
+                return f"{eid} ({field})"
+            return None
+        v = float(vals[c - 1])
+        if role == Qt.ItemDataRole.DisplayRole:
+            return DASH if not math.isfinite(v) else f"{v:+.4f}"
+        if role == SORT_ROLE:
+            return v if math.isfinite(v) else -math.inf
+        if role == Qt.ItemDataRole.TextAlignmentRole:
+            return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+        if role == Qt.ItemDataRole.ToolTipRole:
+            if not math.isfinite(v):
+                return "zero-frequency mode: no sensitivity"
+            return (f"a 1 % change of {label} moves mode {c} by about {v:+.3g} %"
+                    f" ({self._freqs[c - 1]:.4g} Hz)")
+        if role == Qt.ItemDataRole.ForegroundRole and math.isfinite(v) and abs(v) >= 0.1:
+            return current_style().accent
+        return None
+
+
+class SensitivityTable(QWidget):
+    """Sortable table of normalised sensitivities; follows the solve service's results."""
+
+    def __init__(self, solve_service=None, parent=None):
+        super().__init__(parent)
+        self.model = _SensitivityModel(self)
+        self.proxy = QSortFilterProxyModel(self)
+        self.proxy.setSourceModel(self.model)
+        self.proxy.setSortRole(SORT_ROLE)
+        self.view = QTableView()
+        self.view.setObjectName("sensitivity_table")
+        self.view.setModel(self.proxy)
+        self.view.setSortingEnabled(True)
+        self.view.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
+        self.view.verticalHeader().setVisible(False)
+        self.view.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Interactive)
+        self.view.horizontalHeader().setDefaultSectionSize(86)
+        self.view.setAlternatingRowColors(True)
+        note = QLabel("(p/f)(df/dp): % change of a mode's frequency per % change of an element."
+                      " Springs sum to +0.5 in each mode, masses to −0.5.")
+        note.setWordWrap(True)
+        note.setStyleSheet(f"color: {current_style().ink_soft_hex};")
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(2, 2, 2, 2)
+        lay.addWidget(note)
+        lay.addWidget(self.view, 1)
+        if solve_service is not None:
+            solve_service.results_ready.connect(self.set_analysis)
+            if solve_service.last_analysis is not None:
+                self.set_analysis(solve_service.last_analysis)
+
+    def set_analysis(self, analysis):
+        self.model.set_analysis(analysis)
+        if self.view.columnWidth(0) < 140:
+            self.view.setColumnWidth(0, 180)
+
+    def cell_value(self, element_id: str, field: str, mode: int) -> float:
+        """The value shown for an element (id, field) in mode ``mode`` (from 1)."""
+        for i, (eid, f, _label, vals) in enumerate(self.model._rows):
+            if eid == element_id and f == field:
+                return float(vals[mode - 1])
+        raise KeyError((element_id, field))
+
+    def cell_text(self, element_id: str, field: str, mode: int) -> str:
+        for i, (eid, f, _label, _vals) in enumerate(self.model._rows):
+            if eid == element_id and f == field:
+                return self.model.data(self.model.index(i, mode))
+        raise KeyError((element_id, field))
+
+
+__all__ = ["SensitivityTable", "sensitivity_rows"]

@@ -1,0 +1,606 @@
+"""Tune panel: move a resonance by changing one spring or mass, live.
+
+Pick a spring (``k``, or ``k_t`` in a planar model) or a mass; a log-scale slider spans
+:data:`DECADES` decade either way of the value it had when picked. Dragging pushes each preview
+through the document with one merge key per drag, so a whole drag is one undo entry. Small models
+are solved here at once and the results handed to the solve service (which then skips its own
+debounced solve), so the modes table, motion view and canvas tint follow the slider; larger ones
+are left to the service's debounce and worker thread.
+
+Beside the controls, the sweep plot: every mode's frequency (Hz) against the value over the slider
+range (:func:`solver.sweep`, log-spaced, recomputed only when the element, the range or the rest of
+the model changes), the excitation sources as horizontal bands widened by the margin
+(:func:`solver.source_bands`), a cursor at the current value and the points where a mode curve
+enters or leaves a widened band.
+
+Below, the retune row: mode, target Hz, *Propose* (ranks the elements by normalised sensitivity,
+:func:`solver.rank_elements`, and picks the strongest), *Retune* (solves for the value,
+:func:`solver.retune`, and previews it on the plot), *Apply* (one undo entry). A target out of
+reach is explained in the panel, not in a dialog.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pyqtgraph as pg
+from PySide6.QtCore import QSignalBlocker, Qt, Signal
+from PySide6.QtWidgets import (QComboBox, QDoubleSpinBox, QGridLayout, QHBoxLayout, QLabel,
+                               QListWidget, QPushButton, QSizePolicy, QSlider, QSpinBox,
+                               QSplitter, QVBoxLayout, QWidget)
+
+import solver
+from solver.errors import ModelError
+from solver.margins import source_bands
+from solver.model import Mass, Spring
+from solver.tuning import FIELDS, unit_of, value_of, with_value
+
+from .solve_service import dof_count
+from .style import current_style
+
+#: The slider spans this many decades either side of the value at selection time.
+DECADES = 1.0
+#: Slider positions across the whole span (an integer slider; 500 per decade here).
+SLIDER_STEPS = 1000
+#: Log-spaced points of the sweep plot.
+SWEEP_POINTS = 40
+#: Up to this many DOFs the panel solves each slider step itself (a dense eigensolve of a few
+#: hundred DOFs takes milliseconds); above, the solve service's debounce and worker take over.
+SYNC_DOF_LIMIT = 300
+
+
+def tunable_elements(model) -> list[tuple[str, str, str]]:
+    """``[(element_id, field, text)]`` of every spring stiffness and positive mass of ``model``."""
+    out = []
+    for s in model.springs:
+        out.append((s.id, "k", f"spring {s.label} · k"))
+        if model.kind == "planar":
+            out.append((s.id, "k_t", f"spring {s.label} · k_t"))
+    for m in model.masses:
+        if m.mass > 0:
+            what = "disc" if model.kind == "torsion" else "mass"
+            out.append((m.id, "mass", f"{what} {m.label}"))
+    return out
+
+
+def source_texts(model) -> list[str]:
+    """One line per excitation source: speed with orders (and their Hz), or band."""
+    out = []
+    for e in model.excitations:
+        if e.type == "speed":
+            hz = ", ".join(f"{o:g}× = {o * e.rpm / 60:.4g} Hz" for o in e.orders)
+            out.append(f"{e.label}: {e.rpm:g} rpm, orders {hz}")
+        else:
+            out.append(f"{e.label}: band {e.f_min_hz:.4g} to {e.f_max_hz:.4g} Hz")
+    return out
+
+
+def band_crossings(values, freqs, bands) -> list[tuple[float, float]]:
+    """Points ``(value, Hz)`` where a mode curve crosses an edge of a widened band.
+
+    values : (n,) SI, log-spaced.  freqs : (n, n_modes) Hz (NaN allowed).  bands : as
+    :func:`solver.source_bands`. Interpolated linearly in log(value) between sweep points.
+    """
+    pts = []
+    lv = np.log10(np.asarray(values, float))
+    F = np.asarray(freqs, float)
+    edges = sorted({b[4] for b in bands} | {b[5] for b in bands})
+    for j in range(F.shape[1] if F.ndim == 2 else 0):
+        f = F[:, j]
+        for edge in edges:
+            d = f - edge
+            for i in range(len(d) - 1):
+                if not (np.isfinite(d[i]) and np.isfinite(d[i + 1])):
+                    continue
+                if d[i] == 0 or d[i] * d[i + 1] < 0:
+                    t = 0.0 if d[i] == 0 else d[i] / (d[i] - d[i + 1])
+                    pts.append((float(10 ** (lv[i] + t * (lv[i + 1] - lv[i]))), float(edge)))
+    return pts
+
+
+class TunePanel(QWidget):
+    """Slider, sweep plot, retune row and the list of excitation sources.
+
+    ``document`` is the :class:`app.document.Document`; ``solve_service`` (optional) the
+    :class:`app.solve_service.SolveService` whose results the panel shows and to which it hands
+    the results it computes itself during a drag.
+
+    Signals
+    -------
+    status_message(str)
+    element_changed(str, str) : the picked element id and field.
+    """
+
+    status_message = Signal(str)
+    element_changed = Signal(str, str)
+
+    def __init__(self, document, solve_service=None, parent=None):
+        super().__init__(parent)
+        self.document = document
+        self.solve_service = solve_service
+        self._key: tuple[str, str] | None = None
+        self._center = 1.0
+        self._sweep = None
+        self._sweep_base = None
+        self._drag_serial = 0
+        self._proposed: float | None = None
+        self._combo_signature = None
+        self._analysis = None
+        self._applying = False
+        self._build_ui()
+        document.model_changed.connect(self._on_model_change)
+        if solve_service is not None:
+            solve_service.results_ready.connect(self.set_analysis)
+        self._on_model_change(document.model)
+
+    # -- UI -----------------------------------------------------------------------------------
+    def _build_ui(self):
+        st = current_style()
+        self.element_combo = QComboBox()
+        self.element_combo.setObjectName("tune_element")
+        self.element_combo.setToolTip("The spring stiffness or mass the slider changes")
+        self.element_combo.currentIndexChanged.connect(self._on_element_pick)
+        self.slider = QSlider(Qt.Orientation.Horizontal)
+        self.slider.setObjectName("tune_slider")
+        self.slider.setRange(0, SLIDER_STEPS)
+        self.slider.setSingleStep(SLIDER_STEPS // 200)
+        self.slider.setPageStep(SLIDER_STEPS // 20)   # a tenth of a decade
+        self.slider.setTickPosition(QSlider.TickPosition.TicksBelow)
+        self.slider.setTickInterval(SLIDER_STEPS // 2)
+        self.slider.setToolTip("Drag to change the value live (log scale, a decade either way of"
+                               " the value when picked); the whole drag is one undo step")
+        self.slider.valueChanged.connect(self._on_slider_value)
+        self.slider.sliderPressed.connect(self._new_gesture)
+        self.slider.sliderReleased.connect(self._new_gesture)
+        self.low_label, self.high_label = QLabel(), QLabel()
+        self.value_label = QLabel()
+        self.value_label.setObjectName("tune_value")
+        self.value_label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+
+        self.mode_spin = QSpinBox()
+        self.mode_spin.setObjectName("tune_mode")
+        self.mode_spin.setRange(1, 1)
+        self.mode_spin.setPrefix("mode ")
+        self.target_spin = QDoubleSpinBox()
+        self.target_spin.setObjectName("tune_target")
+        self.target_spin.setDecimals(4)
+        self.target_spin.setRange(1e-4, 1e7)
+        self.target_spin.setSuffix(" Hz")
+        self.target_spin.setToolTip("The natural frequency the chosen mode should have")
+        self.propose_button = QPushButton("Propose")
+        self.propose_button.setObjectName("tune_propose")
+        self.propose_button.setToolTip("Rank the springs and masses by how strongly they govern"
+                                       " this mode and pick the strongest")
+        self.retune_button = QPushButton("Retune")
+        self.retune_button.setObjectName("tune_retune")
+        self.retune_button.setToolTip("Find the value of the picked element that puts the mode"
+                                      " on the target (previewed, not applied)")
+        self.apply_button = QPushButton("Apply")
+        self.apply_button.setObjectName("tune_apply")
+        self.apply_button.setToolTip("Set the retuned value (one undo step)")
+        self.apply_button.setEnabled(False)
+        self.propose_button.clicked.connect(self.propose)
+        self.retune_button.clicked.connect(self.compute_retune)
+        self.apply_button.clicked.connect(self.apply_retune)
+        self.message = QLabel()
+        self.message.setObjectName("tune_message")
+        self.message.setWordWrap(True)
+        self.message.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        self.ranking_label = QLabel()
+        self.ranking_label.setObjectName("tune_ranking")
+        self.ranking_label.setWordWrap(True)
+        self.ranking_label.setStyleSheet(f"color: {st.ink_soft_hex};")
+        self.sources_list = QListWidget()
+        self.sources_list.setObjectName("tune_sources")
+        self.sources_list.setToolTip("Excitation sources of the model; the margin is set with the"
+                                     " model's properties (nothing selected on the canvas)")
+        self.sources_list.setMaximumHeight(90)
+        self.sources_title = QLabel()
+
+        left = QWidget()
+        grid = QGridLayout(left)
+        grid.setContentsMargins(4, 4, 4, 4)
+        grid.addWidget(QLabel("Element"), 0, 0)
+        grid.addWidget(self.element_combo, 0, 1, 1, 3)
+        grid.addWidget(self.slider, 1, 0, 1, 4)
+        grid.addWidget(self.low_label, 2, 0)
+        grid.addWidget(self.value_label, 2, 1, 1, 2, Qt.AlignmentFlag.AlignHCenter)
+        grid.addWidget(self.high_label, 2, 3, Qt.AlignmentFlag.AlignRight)
+        row = QHBoxLayout()
+        row.addWidget(self.mode_spin)
+        row.addWidget(QLabel("to"))
+        row.addWidget(self.target_spin, 1)
+        grid.addLayout(row, 3, 0, 1, 4)
+        row2 = QHBoxLayout()
+        row2.addWidget(self.propose_button)
+        row2.addWidget(self.retune_button)
+        row2.addWidget(self.apply_button)
+        grid.addLayout(row2, 4, 0, 1, 4)
+        grid.addWidget(self.message, 5, 0, 1, 4)
+        grid.addWidget(self.ranking_label, 6, 0, 1, 4)
+        grid.addWidget(self.sources_title, 7, 0, 1, 4)
+        grid.addWidget(self.sources_list, 8, 0, 1, 4)
+        grid.setRowStretch(9, 1)
+        grid.setColumnStretch(1, 1)
+        left.setMinimumWidth(260)
+
+        pg.setConfigOptions(antialias=True)
+        self.plot = pg.PlotWidget()
+        self.plot.setObjectName("tune_plot")
+        self.plot.setBackground(st.background)
+        pi = self.plot.getPlotItem()
+        pi.setLogMode(x=True, y=False)
+        pi.showGrid(x=True, y=True, alpha=0.25)
+        pi.setLabel("left", "natural frequency", units="Hz")
+        pi.setMenuEnabled(False)
+        for ax in ("left", "bottom"):
+            pi.getAxis(ax).setTextPen(st.ink)
+            pi.getAxis(ax).setPen(st.ink_soft)
+        self.plot.setSizePolicy(QSizePolicy.Policy.Expanding, QSizePolicy.Policy.Expanding)
+        self.plot.setMinimumSize(300, 180)
+
+        split = QSplitter(Qt.Orientation.Horizontal)
+        split.addWidget(left)
+        split.addWidget(self.plot)
+        split.setStretchFactor(1, 1)
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.addWidget(split)
+        self._cursor = None
+        self._cursor_dots = None
+        self._proposal_line = None
+
+    # -- state --------------------------------------------------------------------------------
+    @property
+    def element(self) -> tuple[str, str] | None:
+        """``(element_id, field)`` the slider changes, or None."""
+        return self._key
+
+    @property
+    def sweep_result(self):
+        return self._sweep
+
+    @property
+    def span(self) -> tuple[float, float]:
+        """Slider range in SI units."""
+        return self._center * 10 ** -DECADES, self._center * 10 ** DECADES
+
+    def value_at(self, position: int) -> float:
+        """SI value of a slider position (log scale)."""
+        u = (position - SLIDER_STEPS / 2) / (SLIDER_STEPS / 2)
+        return self._center * 10 ** (DECADES * u)
+
+    def position_of(self, value: float) -> int:
+        u = math.log10(value / self._center) / DECADES
+        return int(round(SLIDER_STEPS / 2 * (1 + u)))
+
+    def select_element(self, element_id: str, field: str | None = None) -> bool:
+        """Pick an element (and field) in the combo; False when it is not tunable."""
+        for i in range(self.element_combo.count()):
+            eid, f = self.element_combo.itemData(i)
+            if eid == element_id and (field is None or f == field):
+                self.element_combo.setCurrentIndex(i)
+                self._on_element_pick(i)
+                return True
+        return False
+
+    # -- model -> panel -----------------------------------------------------------------------
+    def _on_model_change(self, model):
+        items = tunable_elements(model)
+        signature = tuple(items)
+        if signature != self._combo_signature:
+            self._combo_signature = signature
+            with QSignalBlocker(self.element_combo):
+                self.element_combo.clear()
+                for eid, f, text in items:
+                    self.element_combo.addItem(text, (eid, f))
+                idx = -1
+                if self._key is not None:
+                    idx = self.element_combo.findData(self._key)
+                if idx < 0 and items:
+                    idx = 0
+                self.element_combo.setCurrentIndex(idx)
+            key = self.element_combo.currentData() if idx >= 0 else None
+            if key != self._key:
+                self._set_key(key, model)
+        self._refresh_sources(model)
+        if self._key is None:
+            self._update_value_label(model)
+            return
+        v = value_of(model, *self._key)
+        lo, hi = self.span
+        if not (lo * (1 - 1e-12) <= v <= hi * (1 + 1e-12)) or v <= 0:
+            self._recentre(model, v)
+        elif self._sweep_base is None or \
+                with_value(model, self._key[0], self._center, self._key[1]) != self._sweep_base:
+            self._recentre(model, self._center)   # another element changed: the sweep is stale
+        self._place_slider(v)
+        self._update_value_label(model)
+        self._update_cursor(model)
+
+    def _set_key(self, key, model):
+        self._key = tuple(key) if key else None
+        self._proposed = None
+        self.apply_button.setEnabled(False)
+        self._new_gesture()
+        if self._key is not None:
+            v = value_of(model, *self._key)
+            self._recentre(model, v)
+            self.element_changed.emit(*self._key)
+        else:
+            self._sweep = None
+            self._draw_sweep(model)
+
+    def _on_element_pick(self, index):
+        key = self.element_combo.itemData(index) if index >= 0 else None
+        model = self.document.model
+        if key is None:
+            return
+        if tuple(key) != self._key:
+            self._set_key(key, model)
+        self._place_slider(value_of(model, *self._key))
+        self._update_value_label(model)
+        self._update_cursor(model)
+
+    def _recentre(self, model, value: float):
+        """A new slider range around ``value`` and a new sweep."""
+        eid, f = self._key
+        if value <= 0:
+            value = 1.0
+        self._center = float(value)
+        self._sweep_base = with_value(model, eid, self._center, f)
+        lo, hi = self.span
+        values = np.logspace(math.log10(lo), math.log10(hi), SWEEP_POINTS)
+        try:
+            self._sweep = solver.sweep(self._sweep_base, eid, values, field=f)
+        except ModelError as exc:
+            self._sweep = None
+            self.message.setText(f"No sweep: {exc}")
+        unit = unit_of(model, eid, f)
+        self.low_label.setText(f"{lo:.3g} {unit}")
+        self.high_label.setText(f"{hi:.3g} {unit}")
+        self._draw_sweep(model)
+
+    def _place_slider(self, value: float):
+        if value <= 0:
+            return
+        with QSignalBlocker(self.slider):
+            self.slider.setValue(max(0, min(SLIDER_STEPS, self.position_of(value))))
+
+    def _update_value_label(self, model):
+        if self._key is None:
+            self.value_label.setText("no spring or mass to tune")
+            return
+        eid, f = self._key
+        v = value_of(model, eid, f)
+        name = FIELDS[(Spring if f in ("k", "k_t") else Mass, f)][0]
+        self.value_label.setText(f"{name} = {v:.5g} {unit_of(model, eid, f)}")
+
+    def _refresh_sources(self, model):
+        self.sources_list.clear()
+        texts = source_texts(model)
+        for t in texts:
+            self.sources_list.addItem(t)
+        if texts:
+            self.sources_title.setText(f"Excitation sources (margin {model.margin_percent:g} %)")
+        else:
+            self.sources_title.setText("No excitation sources in this model")
+        self.sources_list.setVisible(bool(texts))
+
+    # -- results ------------------------------------------------------------------------------
+    def set_analysis(self, analysis):
+        """New results of the document's model: moves the cursor dots and the mode choice."""
+        self._analysis = analysis
+        n = analysis.modal.n_modes if analysis is not None else 0
+        with QSignalBlocker(self.mode_spin):
+            self.mode_spin.setRange(1, max(1, n))
+        self._update_cursor(self.document.model)
+
+    def set_mode(self, mode: int):
+        """The mode the retune row works on (follows the selected mode in the window)."""
+        with QSignalBlocker(self.mode_spin):
+            self.mode_spin.setValue(int(mode))
+
+    # -- slider -------------------------------------------------------------------------------
+    def _new_gesture(self):
+        """Start a new undo entry for the next slider change (press, release, new element)."""
+        self._drag_serial += 1
+
+    def _on_slider_value(self, position: int):
+        if self._key is None:
+            return
+        self.set_value(self.value_at(position), merge=True)
+
+    def set_value(self, value: float, merge: bool = True, text: str | None = None) -> bool:
+        """Push ``value`` (SI) of the picked element through the document.
+
+        With ``merge`` the edit merges with the previous one of the same gesture (a drag is one
+        undo entry). Small models are solved here at once so every view follows the change.
+        """
+        eid, f = self._key
+        model = self.document.model
+        try:
+            new = with_value(model, eid, value, f)
+        except ModelError as exc:
+            self.message.setText(str(exc))
+            return False
+        label = model.element(eid).label
+        text = text or f"Tune {f} of {label}"
+        key = ("tune", eid, f, self._drag_serial) if merge else None
+        changed = self.document.apply(new, text, merge_key=key)
+        if changed:
+            self.solve_small(self.document.model)
+        return changed
+
+    def solve_small(self, model) -> bool:
+        """Solve ``model`` here when it is small and hand the results to the solve service."""
+        if self.solve_service is None or dof_count(model) > SYNC_DOF_LIMIT:
+            return False
+        try:
+            analysis = solver.analyse(model)
+        except ModelError:
+            return False   # the service's own solve will report why
+        return self.solve_service.offer(model, analysis)
+
+    # -- retune -------------------------------------------------------------------------------
+    def propose(self) -> list:
+        """Rank elements for the chosen mode (top few shown) and pick the strongest one."""
+        model = self.document.model
+        mode = self.mode_spin.value()
+        try:
+            ranked = solver.rank_elements(model, mode)
+        except ModelError as exc:
+            self.message.setText(str(exc))
+            return []
+        if not ranked:
+            self.message.setText(f"Mode {mode} has no sensitivity to any element (a zero-frequency"
+                                 " mode?)")
+            return []
+        lines = []
+        for eid, f, s in ranked[:5]:
+            lines.append(f"{model.element(eid).label} · {f}: {s:+.3f}")
+        self.ranking_label.setText(f"Governing mode {mode} ((p/f) df/dp, % per %): "
+                                   + "; ".join(lines))
+        eid, f, _s = ranked[0]
+        self.select_element(eid, f)
+        self.message.setText(f"Picked {model.element(eid).label} · {f}, the strongest for mode"
+                             f" {mode}. Press Retune to find its value.")
+        return ranked
+
+    def compute_retune(self) -> float | None:
+        """Solve for the value that puts the chosen mode on the target; preview it."""
+        if self._key is None:
+            return None
+        model = self.document.model
+        eid, f = self._key
+        mode, target = self.mode_spin.value(), self.target_spin.value()
+        try:
+            value = solver.retune(model, eid, mode, target, field=f)
+        except ModelError as exc:
+            self._proposed = None
+            self.apply_button.setEnabled(False)
+            self.message.setStyleSheet(f"color: {current_style().error_hex};")
+            self.message.setText(str(exc))
+            self._draw_proposal()
+            return None
+        self._proposed = value
+        self.apply_button.setEnabled(True)
+        self.message.setStyleSheet("")
+        now = value_of(model, eid, f)
+        self.message.setText(f"{model.element(eid).label} · {f} = {value:.6g}"
+                             f" {unit_of(model, eid, f)} puts mode {mode} on {target:g} Hz"
+                             f" ({(value / now - 1) * 100:+.1f} % from now). Apply to set it.")
+        self._draw_proposal()
+        return value
+
+    def apply_retune(self) -> bool:
+        """Set the previewed retune value: one undo entry."""
+        if self._proposed is None or self._key is None:
+            return False
+        value = self._proposed
+        self._new_gesture()
+        changed = self.set_value(value, merge=False,
+                                 text=f"Retune {self._key[1]} of"
+                                      f" {self.document.model.element(self._key[0]).label}")
+        self._proposed = None
+        self.apply_button.setEnabled(False)
+        self._draw_proposal()
+        if changed:
+            self.status_message.emit(self.message.text().replace(" Apply to set it.", " Applied."))
+        return changed
+
+    # -- plot ---------------------------------------------------------------------------------
+    def _draw_sweep(self, model):
+        st = current_style()
+        pi = self.plot.getPlotItem()
+        pi.clear()
+        self._cursor = self._cursor_dots = self._proposal_line = None
+        if self._sweep is None or self._key is None:
+            pi.setTitle("")
+            return
+        eid, f = self._key
+        unit = unit_of(model, eid, f)
+        pi.setLabel("bottom", f"{model.element(eid).label} · {f} ({unit})")
+        values, F = self._sweep.values, self._sweep.frequencies_hz
+        finite = F[np.isfinite(F)]
+        top = float(np.nanmax(finite)) if finite.size else 1.0
+        bands = source_bands(model)
+        lx0 = math.log10(values[0])
+        labels = {e.id: e.label for e in model.excitations}
+        warn = st.warning
+        for sid, order, lo, hi, lo_w, hi_w in bands:
+            c = pg.mkColor(warn)
+            c.setAlpha(45)
+            region = pg.LinearRegionItem(values=(lo_w, hi_w), orientation="horizontal",
+                                         movable=False, brush=pg.mkBrush(c),
+                                         pen=pg.mkPen(warn, width=0.5))
+            region.setZValue(-10)
+            pi.addItem(region)
+            if hi > lo:
+                c2 = pg.mkColor(warn)
+                c2.setAlpha(90)
+                core = pg.LinearRegionItem(values=(lo, hi), orientation="horizontal",
+                                           movable=False, brush=pg.mkBrush(c2),
+                                           pen=pg.mkPen(None))
+                core.setZValue(-9)
+                pi.addItem(core)
+            else:
+                pi.addItem(pg.InfiniteLine(pos=lo, angle=0, pen=pg.mkPen(warn, width=1,
+                                                                      style=Qt.PenStyle.DashLine)))
+            name = labels.get(sid, sid)
+            text = pg.TextItem(f"{name}" + (f" ×{order:g}" if order is not None else ""),
+                               color=warn, anchor=(0, 1))
+            text.setPos(lx0, hi_w)
+            pi.addItem(text)
+        for j in range(F.shape[1]):
+            pi.plot(values, F[:, j], pen=pg.mkPen(st.ink, width=1.4))
+        pts = band_crossings(values, F, bands)
+        if pts:
+            xs, ys = zip(*pts)
+            pi.plot(list(xs), list(ys), pen=None, symbol="o", symbolSize=7,
+                    symbolBrush=pg.mkBrush(st.error), symbolPen=pg.mkPen(st.background))
+        self.crossings = pts
+        self._cursor = pg.InfiniteLine(angle=90, pen=pg.mkPen(st.accent, width=2))
+        pi.addItem(self._cursor)
+        self._cursor_dots = pi.plot([], [], pen=None, symbol="o", symbolSize=8,
+                                    symbolBrush=pg.mkBrush(st.accent),
+                                    symbolPen=pg.mkPen(st.background))
+        self._proposal_line = pg.InfiniteLine(angle=90, pen=pg.mkPen(st.accent, width=1.2,
+                                                                     style=Qt.PenStyle.DashLine))
+        self._proposal_line.hide()
+        pi.addItem(self._proposal_line)
+        band_top = max([b[5] for b in bands if b[5] < 3 * top] + [0.0])
+        pi.setXRange(math.log10(values[0]), math.log10(values[-1]), padding=0.02)
+        pi.setYRange(0, max(top, band_top) * 1.05, padding=0)
+        pi.setTitle(f"every mode against {model.element(eid).label} · {f}", color=st.ink_soft_hex,
+                    size="9pt")
+        self._update_cursor(model)
+        self._draw_proposal()
+
+    def _update_cursor(self, model):
+        if self._cursor is None or self._key is None:
+            return
+        v = value_of(model, *self._key)
+        if v <= 0:
+            return
+        self._cursor.setPos(math.log10(v))
+        a = self._analysis
+        if a is not None and a.model is model:
+            fr = np.asarray(a.modal.frequencies_hz, float)
+            self._cursor_dots.setData(np.full(fr.shape, v), fr)
+        else:
+            self._cursor_dots.setData([], [])
+
+    def _draw_proposal(self):
+        if self._proposal_line is None:
+            return
+        if self._proposed is None or self._proposed <= 0:
+            self._proposal_line.hide()
+            return
+        self._proposal_line.setPos(math.log10(self._proposed))
+        self._proposal_line.show()
+
+
+__all__ = ["TunePanel", "tunable_elements", "band_crossings", "source_texts", "DECADES",
+           "SLIDER_STEPS", "SWEEP_POINTS", "SYNC_DOF_LIMIT"]
