@@ -120,6 +120,12 @@ class MainWindow(QMainWindow):
         MotionPanel = _optional_widget("motion_panel", "MotionPanel")
         self.motion_panel = MotionPanel() if MotionPanel else QLabel("(motion view not available)")
         self._dock("Motion", self.motion_panel, Qt.RightDockWidgetArea, "dock_motion")
+        from .response_panel import ResponsePanel
+
+        self.response_panel = ResponsePanel(self.document)
+        self.response_panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+        self.response_dock = self._dock("Response", self.response_panel, Qt.BottomDockWidgetArea,
+                                        "dock_response")
 
         self.pending_label = QLabel("")
         self.statusBar().addPermanentWidget(self.pending_label)
@@ -139,6 +145,7 @@ class MainWindow(QMainWindow):
         self.document.model_changed.connect(lambda _m: self._update_title())
         self.document.opened.connect(lambda _m: self.view.fit())
         self.solver.results_ready.connect(self._on_results)
+        self.solver.results_ready.connect(self.response_panel.set_analysis)
         self.solver.solve_failed.connect(self._on_solve_failed)
         self.solver.pending_changed.connect(self._on_pending_change)
         if hasattr(self.modes_table, "mode_selected"):
@@ -223,6 +230,10 @@ class MainWindow(QMainWindow):
         f.addSeparator()
         self._action("Export &report (PNG)…", self.export_report_dialog, "Ctrl+R",
                      "Write the review report as a PNG image", f)
+        self._action("Export response &plot (PNG)…", self.response_panel.export_png_dialog, None,
+                     "Write the Response panel's plot as a PNG image", f)
+        self._action("Export response &data (CSV)…", self.response_panel.export_csv_dialog, None,
+                     "Write the Response panel's curves (magnitude, phase) as CSV", f)
         self._action("Export mode &table (CSV)…", self.export_csv_dialog, None,
                      "Write the modes table as CSV", f)
         f.addSeparator()
@@ -534,7 +545,8 @@ class MainWindow(QMainWindow):
         try:
             from .report import render_report
 
-            render_report(self.document.model, self.solver.last_analysis, path)
+            render_report(self.document.model, self.solver.last_analysis, path,
+                          response=self.response_panel.response)
         except (ImportError, OSError, ModelError) as exc:
             self.statusBar().showMessage(f"Report not written: {exc}", 12000)
             return False

@@ -351,6 +351,12 @@ class PropertyPanel(QWidget):
         self._kind_error.setStyleSheet(f"color: {current_style().error.name()};")
         self._kind_error.hide()
         self.form.addRow(self._kind_error)
+        from .damping_editor import DampingEditor  # the model's damping, one undo entry per edit
+
+        self.damping_editor = DampingEditor(self.document)
+        self.damping_editor.status_message.connect(self.status_message)
+        self.form.addRow(self.damping_editor)
+        self._widgets["damping"] = self.damping_editor
 
     def _add_quantity(self, name, kind, label, getter, setter):
         field = QuantityField(kind, self.unit_system)

@@ -110,11 +110,15 @@ class _Page:
 
 
 def render_report(model, analysis, path, dpi: int = 200, date: str | None = None,
-                  max_modes: int = MAX_REPORTED_MODES) -> dict:
+                  max_modes: int = MAX_REPORTED_MODES, response=None) -> dict:
     """Write the report of ``model`` (with its ``analysis``; computed when None) to a PNG.
 
     Returns ``{"path", "width", "height", "dpi", "modes_shown", "modes_total",
     "modes_left_out"}`` (pixel sizes).
+
+    ``response`` (app.response_data.ResponseCurves, e.g. the Response panel's curves) adds a
+    forced-response section; without one, a model with dashpots or damping gets the base
+    transmissibility of its masses (``default_report_response``).
     """
     _ensure_app()
     if analysis is None:
@@ -146,6 +150,15 @@ def render_report(model, analysis, path, dpi: int = 200, date: str | None = None
         if n_shown:
             pg.heading("Mode shapes")
             _thumbnails(pg, model, analysis, n_shown, n_total)
+        if response is None:
+            from .response_data import default_report_response
+
+            response = default_report_response(model, modal)
+        if response is not None and response.curves:
+            from .report_response import draw_response_section
+
+            pg.heading("Forced response")
+            draw_response_section(pg, response)
         pg.heading("Notes")
         _notes(pg, model, analysis, n_shown)
         pg.heading("Cautions")
