@@ -342,6 +342,23 @@ class PropertyPanel(QWidget):
             self.form.addRow("Axis", axis)
             self._widgets["axis"] = axis
             self._text_getters["axis"] = (axis, lambda m: m.axis)
+        def percent(text: str) -> float:
+            try:
+                return float(text.replace("%", "").strip())
+            except ValueError:
+                raise ModelError(f'margin: give a number of %, e.g. 15; got "{text}"') from None
+
+        margin = QLineEdit()
+        margin.setObjectName("field_margin_percent")
+        margin.setToolTip("Frequency margin in %: a mode must lie at least this far from every"
+                          " excitation frequency (common practice 10 to 20 %)")
+        margin.editingFinished.connect(
+            lambda e=margin: self._try(lambda: self.document.set_top(
+                margin_percent=percent(e.text()),
+                text="Change frequency margin"), None))
+        self.form.addRow("Margin (%)", margin)
+        self._widgets["margin_percent"] = margin
+        self._text_getters["margin_percent"] = (margin, lambda m: f"{m.margin_percent:g}")
         info = QLabel(f"{len(model.masses)} masses, {len(model.anchors)} anchors,"
                       f" {len(model.springs)} springs, {len(model.dampers)} dashpots")
         info.setWordWrap(True)

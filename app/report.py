@@ -159,6 +159,11 @@ def render_report(model, analysis, path, dpi: int = 200, date: str | None = None
 
             pg.heading("Forced response")
             draw_response_section(pg, response)
+        if model.excitations:
+            from .report_margins import paint_margin_check
+
+            pg.heading("Frequency margin check")
+            paint_margin_check(pg, model, analysis)
         pg.heading("Notes")
         _notes(pg, model, analysis, n_shown)
         pg.heading("Cautions")
@@ -316,7 +321,7 @@ def _thumbnails(pg: _Page, model, analysis, n_shown: int, n_total: int):
     tw = (pg.right - pg.left - (cols - 1) * gap) / cols
     th = tw * (0.62 if cols == 4 else 0.72)
     cap_pt = 7.5 if cols == 4 else 6.5
-    cap_h = 2.2 * QFontMetricsF(pg.font(cap_pt)).lineSpacing()
+    cap_h = 3.3 * QFontMetricsF(pg.font(cap_pt)).lineSpacing()  # title, eff. mass, spring
     base = 0.13 * d if cols == 4 else 0.10 * d
     dirs = list(modal.effective_mass)
     pct = modal.effective_mass_percent
@@ -353,8 +358,16 @@ def _thumbnails(pg: _Page, model, analysis, n_shown: int, n_total: int):
         eff = "  ".join(f"{dd} {pct[dd][i]:.1f} %" for dd in dirs)
         pg.text(QRectF(x, y + th + 0.02 * d, tw, cap_h), title, cap_pt, True,
                 st.warning if z is not None else st.ink)
-        pg.text(QRectF(x, y + th + 0.02 * d + cap_h / 2.2, tw, cap_h), "eff. mass " + eff,
+        pg.text(QRectF(x, y + th + 0.02 * d + cap_h / 3.3, tw, cap_h), "eff. mass " + eff,
                 cap_pt, False, st.ink_soft)
+        dominant = analysis.energy.dominant_spring(n)
+        if dominant is not None:
+            share = analysis.energy.strain[i, analysis.energy.spring_ids.index(dominant)]
+            pg.text(QRectF(x, y + th + 0.02 * d + 2 * cap_h / 3.3, tw, cap_h / 3.3),
+                    QFontMetricsF(pg.font(cap_pt)).elidedText(
+                        f"most strain ({100 * share:.0f} %): {model.element(dominant).label}",
+                        Qt.TextElideMode.ElideRight, tw),
+                    cap_pt, False, st.ink_soft, Qt.AlignmentFlag.AlignLeft)
     pg.y = y + th + cap_h + 0.05 * d
     pg.paragraph("Each thumbnail shows the mode shape (magnified to be visible; its size is"
                  " arbitrary) over the undeformed layout in grey.", 7.5, st.ink_soft)
