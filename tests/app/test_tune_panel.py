@@ -1,0 +1,183 @@
+"""Tune panel, energy tint and sensitivity table, driven through the real window (offscreen)."""
+
+import math
+
+import numpy as np
+import pytest
+from PySide6.QtCore import QPoint, Qt
+from PySide6.QtWidgets import QApplication, QStyle, QStyleOptionSlider
+
+import solver
+from solver.model import Anchor, Mass, Model, Spring
+from app.style import current_style
+
+
+def _open(window, model):
+    window.document.new(model=model)
+    window.solver.wait()
+    return window.tune_panel
+
+
+def _handle_centre(slider) -> QPoint:
+    opt = QStyleOptionSlider()
+    slider.initStyleOption(opt)
+    rect = slider.style().subControlRect(QStyle.ComplexControl.CC_Slider, opt,
+                                         QStyle.SubControl.SC_SliderHandle, slider)
+    return rect.center()
+
+
+def _table_frequencies(window):
+    return np.array([r["frequency_hz"] for r in window.modes_table.rows()])
+
+
+def test_mouse_drag_is_live_and_one_undo_entry(qtbot, window, two_mass_model):
+    """math: the modes table shows solver.modes of the document's model after each drag step
+    (rtol 1e-12); the drag is one undo entry and undo gives back k exactly (1000.0 N/m)."""
+    panel = _open(window, two_mass_model)
+    assert panel.select_element("s1", "k")
+    sweep_before = panel.sweep_result
+    slider = panel.slider
+    start = _handle_centre(slider)
+    qtbot.mousePress(slider, Qt.MouseButton.LeftButton, pos=start)
+    seen = []
+    for dx in (10, 25, 40, 60):
+        qtbot.mouseMove(slider, start + QPoint(dx, 0))
+        QApplication.processEvents()
+        k_now = window.document.model.element("s1").k
+        seen.append(k_now)
+        # the table follows while the button is still down
+        np.testing.assert_allclose(_table_frequencies(window),
+                                   solver.modes(window.document.model).frequencies_hz, rtol=1e-12)
+    qtbot.mouseRelease(slider, Qt.MouseButton.LeftButton, pos=start + QPoint(60, 0))
+    window.solver.wait()
+    assert seen[-1] > 1000.0 and len(set(seen)) == len(seen)   # rose step by step
+    assert window.document.undo_stack.count() == 1
+    assert panel.sweep_result is sweep_before                   # not recomputed per tick
+    window.document.undo_stack.undo()
+    assert window.document.model.element("s1").k == 1000.0
+    window.solver.wait()
+    np.testing.assert_allclose(_table_frequencies(window),
+                               solver.modes(window.document.model).frequencies_hz, rtol=1e-12)
+
+
+def test_page_up_steps_a_tenth_of_a_decade(qtbot, window, two_mass_model):
+    """math: the slider is log scale, a page is 1/10 decade: two PageUp give k 10^0.2 times
+    larger (rtol 1e-12); one undo restores it exactly."""
+    panel = _open(window, two_mass_model)
+    panel.select_element("s2", "k")
+    panel.slider.setFocus()
+    qtbot.keyClick(panel.slider, Qt.Key.Key_PageUp)
+    qtbot.keyClick(panel.slider, Qt.Key.Key_PageUp)
+    assert window.document.model.element("s2").k == pytest.approx(500.0 * 10 ** 0.2, rel=1e-12)
+    window.solver.wait()
+    np.testing.assert_allclose(_table_frequencies(window),
+                               solver.modes(window.document.model).frequencies_hz, rtol=1e-12)
+    assert window.document.undo_stack.count() == 1
+    window.document.undo_stack.undo()
+    assert window.document.model.element("s2").k == 500.0
+
+
+def test_retune_single_dof_puts_mode_on_target(qtbot, window):
+    """common practice (closed form, single DOF): k = m (2 pi f)^2; m = 2 kg, f = 5 Hz gives
+    k = 1973.92 N/m (rtol 1e-9); Apply is one undo entry."""
+    model = Model(kind="line", name="sdof", masses=(Mass("m1", 0.2, 0.0, 2.0),),
+                  anchors=(Anchor("g", 0.0, 0.0),), springs=(Spring("s1", "g", "m1", 1000.0),))
+    panel = _open(window, model)
+    panel.select_element("s1", "k")
+    panel.mode_spin.setValue(1)
+    panel.target_spin.setValue(5.0)
+    qtbot.mouseClick(panel.retune_button, Qt.MouseButton.LeftButton)
+    assert window.document.model.element("s1").k == 1000.0      # only previewed
+    assert panel.apply_button.isEnabled()
+    qtbot.mouseClick(panel.apply_button, Qt.MouseButton.LeftButton)
+    k = window.document.model.element("s1").k
+    assert k == pytest.approx(2.0 * (2 * math.pi * 5.0) ** 2, rel=1e-9)
+    assert window.document.undo_stack.count() == 1
+    window.solver.wait()
+    assert _table_frequencies(window)[0] == pytest.approx(5.0, rel=1e-9)
+
+
+def test_unreachable_target_is_explained_in_the_panel(qtbot, window, two_mass_model):
+    """math (Rayleigh monotonicity): with s2 rigid, mode 1 of the two-mass chain tends to
+    sqrt(1000 / 3) / 2 pi = 2.906 Hz, so 50 Hz is out of s2's reach; the reason shows in the panel,
+    no modal dialog, nothing applied."""
+    panel = _open(window, two_mass_model)
+    panel.select_element("s2", "k")
+    panel.mode_spin.setValue(1)
+    panel.target_spin.setValue(50.0)
+    qtbot.mouseClick(panel.retune_button, Qt.MouseButton.LeftButton)
+    assert "cannot reach" in panel.message.text()
+    assert QApplication.activeModalWidget() is None
+    assert not panel.apply_button.isEnabled()
+    assert window.document.undo_stack.count() == 0
+
+
+def test_propose_picks_the_strongest_element(qtbot, window, two_mass_model):
+    """math: Propose takes the first of solver.rank_elements (largest |(p/f) df/dp|)."""
+    panel = _open(window, two_mass_model)
+    panel.mode_spin.setValue(2)
+    qtbot.mouseClick(panel.propose_button, Qt.MouseButton.LeftButton)
+    top = solver.rank_elements(window.document.model, 2)[0]
+    assert panel.element == (top[0], top[1])
+    assert f"{top[2]:+.3f}" in panel.ranking_label.text()
+
+
+def test_energy_tint_follows_strain_energy_share(qtbot, window, two_mass_model):
+    """math: strain-energy share of each spring in mode 1 (solver.energy_fractions); the spring
+    with the larger share gets the ramp colour of that share, different from the other's."""
+    _open(window, two_mass_model)
+    window.act_energy.trigger()
+    assert window.act_energy.isChecked()
+    share = window.solver.last_analysis.energy.strain_energy_fraction(1)
+    big, small = sorted(share, key=share.get, reverse=True)
+    c_big = window.scene.links[big].energy_color
+    c_small = window.scene.links[small].energy_color
+    st = current_style()
+    assert c_big == st.energy_color(share[big]) and c_small == st.energy_color(share[small])
+    assert c_big != c_small
+    assert f"{100 * share[big]:.1f} %" in window.scene.links[big].toolTip()
+    kin = window.solver.last_analysis.energy.kinetic_energy_fraction(1)
+    assert window.scene.nodes["m1"].energy_color == st.energy_color(kin["m1"])
+    assert window.energy_tint.legend.isVisible()
+    window.act_energy.trigger()
+    assert window.scene.links[big].energy_color is None
+
+
+def test_sensitivity_is_half_the_strain_energy_share(qtbot, window, two_mass_model):
+    """math: for a mass-normalised mode, (k/f) df/dk = k (dphi)^2 / (2 w^2) = half the spring's
+    strain-energy fraction (rtol 1e-12); masses sum to -1/2 in each mode."""
+    _open(window, two_mass_model)
+    a = window.solver.last_analysis
+    table = window.sensitivity_table
+    for mode in (1, 2):
+        for j, sid in enumerate(a.energy.spring_ids):
+            assert table.cell_value(sid, "k", mode) == pytest.approx(
+                0.5 * a.energy.strain[mode - 1, j], rel=1e-12)
+        total_m = sum(table.cell_value(mid, "mass", mode) for mid in ("m1", "m2"))
+        assert total_m == pytest.approx(-0.5, rel=1e-12)
+
+
+def test_zero_mode_sensitivity_shows_a_dash(qtbot, window):
+    """math: a free-free pair has a rigid-body mode with no frequency to differentiate."""
+    model = Model(kind="line", masses=(Mass("a", 0, 0, 2), Mass("b", 1, 0, 2)),
+                  springs=(Spring("k", "a", "b", 800),))
+    _open(window, model)
+    table = window.sensitivity_table
+    assert table.cell_text("k", "k", 1) == "—"
+    assert table.cell_value("k", "k", 2) == pytest.approx(0.5, rel=1e-12)
+    table.view.sortByColumn(2, Qt.SortOrder.DescendingOrder)   # sortable, no crash
+
+
+def test_sources_listed_and_bands_crossed(qtbot, window, two_mass_model):
+    """math: a speed source at 90 rpm has order lines at 1.5 and 3 Hz (order x rpm / 60); a mode
+    curve that runs through a widened band is marked where it enters and leaves."""
+    from solver.model import Excitation
+    import dataclasses
+
+    model = dataclasses.replace(two_mass_model, excitations=(
+        Excitation("fan", "speed", rpm=90.0, orders=(1.0, 2.0)),))
+    panel = _open(window, model)
+    panel.select_element("s1", "k")
+    texts = [panel.sources_list.item(i).text() for i in range(panel.sources_list.count())]
+    assert texts and "90 rpm" in texts[0] and "1.5 Hz" in texts[0] and "3 Hz" in texts[0]
+    assert panel.crossings   # mode 1 (2.6 Hz at 1000 N/m) sweeps across the 3 Hz line
