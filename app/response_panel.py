@@ -164,30 +164,40 @@ class ResponsePanel(QWidget):
             p.getAxis("left").setWidth(58)
         self.phase_plot.setLabel("bottom", "frequency", units="Hz")
         self.phase_plot.setLabel("left", "phase (deg)")
-        self.legend = self.mag_plot.addLegend(offset=(10, 10), brush=pg.mkBrush(
+        self.legend = self.mag_plot.addLegend(offset=(10, -10), labelTextSize="8pt", brush=pg.mkBrush(
             st.background.red(), st.background.green(), st.background.blue(), 210))
         self.curve_items = []
         split.addWidget(self.plots)
         split.setStretchFactor(0, 0)
         split.setStretchFactor(1, 1)
-        split.setSizes([140, 600])
-        outer.addWidget(split, 3)
+        split.setSizes([110, 600])
+        left.setMaximumWidth(160)
+        vsplit = QSplitter(Qt.Vertical)
+        vsplit.addWidget(split)
+        below = QWidget()
+        bl = QVBoxLayout(below)
+        bl.setContentsMargins(0, 0, 0, 0)
+        vsplit.addWidget(below)
+        vsplit.setStretchFactor(0, 4)
+        vsplit.setStretchFactor(1, 1)
+        outer.addWidget(vsplit, 1)
 
         self.note_label = QLabel()
         self.note_label.setObjectName("response_note")
         self.note_label.setWordWrap(True)
         self.note_label.setTextInteractionFlags(Qt.TextSelectableByMouse)
-        outer.addWidget(self.note_label)
+        bl.addWidget(self.note_label)
         self.peaks_table = QTableWidget(0, 5)
         self.peaks_table.setObjectName("response_peaks")
         self.peaks_table.setHorizontalHeaderLabels(
-            ["output", "peak (Hz)", "amplitude", "half-power width (Hz)", "damping ratio ≈"])
+            ["output", "peak (Hz)", "amplitude", "−3 dB width (Hz)", "damping ratio ≈"])
         self.peaks_table.horizontalHeader().setSectionResizeMode(QHeaderView.Stretch)
         self.peaks_table.verticalHeader().hide()
         self.peaks_table.setEditTriggers(QTableWidget.NoEditTriggers)
         self.peaks_table.setToolTip("Damping ratio from the half-power bandwidth / (2 f)"
                                     " (valid for light damping and well separated peaks)")
-        outer.addWidget(self.peaks_table, 1)
+        self.peaks_table.verticalHeader().setDefaultSectionSize(20)
+        bl.addWidget(self.peaks_table, 1)
 
     # -- model --------------------------------------------------------------------------------
     def _on_model_change(self, model):
