@@ -39,14 +39,19 @@ class System:
     Attributes
     ----------
     M, K, C : (n, n) ndarray or scipy.sparse matrix
-        Mass (kg or kg m^2), stiffness (N/m or N m/rad) and dashpot damping (N s/m) matrices on
-        ``dofs``, after static condensation of massless junctions. ``M`` is diagonal and positive.
+        Mass (kg or kg m^2), stiffness (N/m or N m/rad) and damping (N s/m) matrices on ``dofs``,
+        after static condensation of massless junctions. ``M`` is diagonal and positive. ``C``
+        is the whole viscous damping: the dashpots plus the model's damping (Rayleigh
+        ``alpha M + beta K``, or for modal ratios ``M Phi diag(2 zeta_i w_i) Phi^T M`` over all
+        modes), so that ``[[0, I], [-M^-1 K, -M^-1 C]]`` is the system's state matrix.
+    C_dashpots : the dashpots' part of ``C`` alone.
     dofs : tuple of (mass_id, direction)
         The DOFs that carry mass, in the order of the matrices' rows.
     all_dofs : tuple of (mass_id, direction)
         Every free DOF, junctions included; ``recovery @ x`` maps a vector on ``dofs`` to them.
     recovery : (n_all, n) ndarray or sparse matrix
-    M_full, K_full, C_full : matrices on ``all_dofs`` before condensation (M_full may be singular).
+    M_full, K_full, C_full : matrices on ``all_dofs`` before condensation (M_full may be singular);
+        ``C_full`` holds the dashpots only.
     sparse : bool
         True when the matrices are scipy.sparse (large models).
     warnings : tuple of str
@@ -70,6 +75,7 @@ class System:
     spring_dofs: np.ndarray = field(default=None, repr=False)
     spring_axis: np.ndarray = field(default=None, repr=False)
     mass_dofs: dict = field(default=None, repr=False)
+    C_dashpots: object = field(default=None, repr=False)
 
     @property
     def n_dof(self) -> int:
@@ -236,10 +242,46 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
         M, K, C = (np.asarray(x.toarray()) for x in (M, K, C))
         recovery = np.asarray(recovery.toarray()) if sp.issparse(recovery) else recovery
         M_full, K_full, C_full = (np.asarray(x.toarray()) for x in (M_full, K_full, C_full))
-    return System(model=model, M=M, K=K, C=C, dofs=dofs, all_dofs=tuple(all_dofs),
+    C_dash = C
+    C, msg = _model_damping(model, M, K, C_dash)
+    warnings.extend(msg)
+    return System(model=model, M=M, K=K, C=C, C_dashpots=C_dash, dofs=dofs,
+                  all_dofs=tuple(all_dofs),
                   recovery=recovery, M_full=M_full, K_full=K_full, C_full=C_full,
                   sparse=use_sparse, warnings=tuple(warnings), spring_dofs=s_dofs,
                   spring_axis=s_axis, mass_dofs=mass_dofs)
+
+
+#: Modal damping needs every mode to build C; above this many DOFs it is left out of C (warned).
+MODAL_DAMPING_DOF_LIMIT = 3000
+
+
+def _model_damping(model: Model, M, K, C_dash):
+    """C = dashpots + the damping model's matrix on the retained DOFs."""
+    d = model.damping
+    n = M.shape[0]
+    if d.model == "rayleigh" and (d.alpha or d.beta):
+        return C_dash + d.alpha * M + d.beta * K, []
+    if d.model != "modal" or n == 0:
+        return C_dash, []
+    if n > MODAL_DAMPING_DOF_LIMIT:
+        return C_dash, [f"modal damping ratios need every mode; with {n} DOFs they are left out"
+                        " of the damping matrix C (use Rayleigh damping or dashpots)"]
+    m = np.asarray(M.diagonal()).ravel()
+    Kd = K.toarray() if sp.issparse(K) else np.asarray(K)
+    s = 1.0 / np.sqrt(m)
+    lam, u = scipy.linalg.eigh(Kd * s[:, None] * s[None, :], driver="evd")
+    w = np.sqrt(np.maximum(lam, 0.0))
+    zeta = np.full(n, d.ratio)
+    for mode, ratio in d.mode_ratios:
+        if mode <= n:
+            zeta[mode - 1] = ratio
+    # M Phi = M^(1/2) U for mass-normalised Phi = M^(-1/2) U
+    MPhi = u * np.sqrt(m)[:, None]
+    Cm = (MPhi * (2 * zeta * w)[None, :]) @ MPhi.T
+    if sp.issparse(C_dash):
+        return sp.csr_matrix(C_dash + Cm), []
+    return C_dash + Cm, []
 
 
 def _condense(K_full, C_full, retained, slaves, all_dofs):

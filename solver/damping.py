@@ -66,8 +66,6 @@ class DampedModes:
 
 def damped_modes(model_or_system) -> DampedModes:
     """State-space eigenvalues of a model with its dashpots and damping model (dense)."""
-    from .frequency import damping_matrix_full
-
     system = model_or_system if isinstance(model_or_system, System) else assemble(model_or_system)
     if not isinstance(system.model, Model):
         raise ModelError("damped_modes: expected a Model or System")
@@ -77,18 +75,7 @@ def damped_modes(model_or_system) -> DampedModes:
         return DampedModes(z.astype(complex), z, z, z)
     M = system.dense("M")
     K = system.dense("K")
-    # damping on the retained DOFs: condensed dashpots plus the damping model
-    C = system.dense("C")
-    d = system.model.damping
-    if d.model == "rayleigh":
-        C = C + d.alpha * M + d.beta * K
-    elif d.model == "modal":
-        full = damping_matrix_full(system)
-        full = full.toarray() if hasattr(full, "toarray") else np.asarray(full)
-        modal_part = full - system.dense("C_full")  # the dashpots are already in C
-        index = {dof: i for i, dof in enumerate(system.all_dofs)}
-        cols = [index[dof] for dof in system.dofs]
-        C = C + modal_part[np.ix_(cols, cols)]
+    C = system.dense("C")  # condensed dashpots plus the damping model
     minv = 1.0 / np.diag(M)
     A = np.zeros((2 * n, 2 * n))
     A[:n, n:] = np.eye(n)

@@ -57,7 +57,7 @@ def damping_matrix_full(system: System) -> np.ndarray | sp.spmatrix:
     elif d.model == "modal":
         from .response import modal_damping_coefficients
 
-        res = modes(system, count=None)
+        res = modes(system, count=system.n_dof if system.n_dof <= 3000 else None)
         if not res.complete:
             raise ModelError("modal damping ratios need every mode; this model is too large for"
                              " that: use Rayleigh damping or dashpots instead")
@@ -73,11 +73,25 @@ def _dynamic_solve(system: System, f: np.ndarray, rhs_fn) -> np.ndarray:
     """Solve (K - w^2 M + i w C) X = rhs(w) on all DOFs for each frequency: (n_freq, n_all)."""
     K, M = system.K_full, system.M_full
     C = damping_matrix_full(system)
-    n = K.shape[0]
+    n_total = K.shape[0]
     w = 2 * np.pi * f
+    out_total = np.zeros((len(f), n_total), complex)
+    if n_total == 0:
+        return out_total
+    # A direction of a massless junction that no spring, dashpot or mass touches (a planar
+    # junction between springs in line) has an all-zero row: it carries no force and takes no
+    # part in the response, so it is left out of the solve (its motion reported as zero).
+    def _rows_nonzero(x):
+        x = abs(x)
+        return np.asarray(x.sum(axis=1)).ravel() > 0
+    live = _rows_nonzero(K) | _rows_nonzero(M) | _rows_nonzero(C)
+    if not live.all():
+        idx = np.flatnonzero(live)
+        K, M, C = (x[idx][:, idx] for x in (K, M, C))
+        full_rhs = rhs_fn
+        rhs_fn = lambda wi: full_rhs(wi)[idx]  # noqa: E731
+    n = K.shape[0]
     out = np.empty((len(f), n), complex)
-    if n == 0:
-        return out
     # a sparse LU per frequency beats dense LAPACK by far on the banded matrices of chains and
     # lattices; modal damping makes C dense, which sends the solve to the dense path
     nnz = sum((x.nnz if sp.issparse(x) else np.count_nonzero(x)) for x in (K, C))
@@ -91,7 +105,8 @@ def _dynamic_solve(system: System, f: np.ndarray, rhs_fn) -> np.ndarray:
                 out[i] = spla.splu(Z).solve(rhs_fn(wi).astype(complex))
             except RuntimeError:  # exactly singular: a rigid-body mode at w = 0
                 out[i] = np.inf
-        return out
+        out_total[:, live] = out
+        return out_total
     K, M, C = (x.toarray() if sp.issparse(x) else np.asarray(x) for x in (K, M, C))
     chunk = max(1, int(_CHUNK_BYTES // (16 * n * n)))
     for s in range(0, len(w), chunk):
@@ -106,7 +121,8 @@ def _dynamic_solve(system: System, f: np.ndarray, rhs_fn) -> np.ndarray:
                     out[s + j] = np.linalg.solve(Z[j], B[j])
                 except np.linalg.LinAlgError:
                     out[s + j] = np.inf
-    return out
+    out_total[:, live] = out
+    return out_total
 
 
 def _retained(system: System, X_all: np.ndarray) -> np.ndarray:

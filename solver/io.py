@@ -273,6 +273,8 @@ def write_atomic(path, text: str) -> None:
     """Write text to ``path`` atomically: temporary file in the same folder, fsync, rename."""
     path = Path(path)
     folder = path.parent if str(path.parent) else Path(".")
+    if not folder.is_dir():
+        raise FileNotFoundError(2, f"the folder {folder} does not exist", str(path))
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:

@@ -24,7 +24,7 @@ from .errors import ModelError
 from .model import Model
 
 #: Up to this many DOFs every mode is found by dense LAPACK (chosen with bench/solver_bench.py).
-DENSE_DOF_LIMIT = 1000
+DENSE_DOF_LIMIT = 2000
 #: Above this many DOFs a request for a few modes goes to the sparse solver (bench/solver_bench.py).
 SWITCH_DOF = 600
 #: Lowest modes found by default in a model too large for the dense path.
@@ -164,7 +164,8 @@ def _spectral_bound(M_diag: np.ndarray, K) -> float:
         A = abs(sp.diags(s) @ K @ sp.diags(s))
         rows = np.asarray(A.sum(axis=1)).ravel()
     else:
-        rows = (np.abs(K) * s[:, None] * s[None, :]).sum(axis=1)
+        with np.errstate(over="ignore", invalid="ignore"):  # refused later, with the element
+            rows = (np.abs(K) * s[:, None] * s[None, :]).sum(axis=1)
     return float(rows.max(initial=0.0))
 
 
@@ -215,12 +216,22 @@ def modes(model_or_system, count: int | None = None, method: str | None = None) 
         raise ModelError(f'modes: method must be "dense" or "sparse", got {method!r}')
     use_dense = (want >= n - 1 or n <= SWITCH_DOF or 3 * want > n) if method is None else (
         method == "dense" or want >= n - 1)
+    use_dense = use_dense or want == 0
     if use_dense:
         lam, phi = _dense_eig(system, M_diag, want)
         method = "dense"
     else:
         lam, phi = _sparse_eig(system, M_diag, want, bound)
         method = "shift-invert Lanczos"
+    if not np.all(np.isfinite(lam)) or not np.all(np.isfinite(phi)):
+        model = system.model
+        light = min((m for m in model.masses if m.mass > 0), key=lambda m: m.mass)
+        stiff = max(model.springs, key=lambda s_: max(s_.k, s_.k_t), default=None)
+        raise ModelError(
+            "the values span too wide a range to solve in double precision (lightest mass"
+            f' "{light.id}" {light.mass:.3g}'
+            + (f', stiffest spring "{stiff.id}" {max(stiff.k, stiff.k_t):.3g}' if stiff else "")
+            + "); check the units of these values")
     return _finish(system, lam, phi, M_diag, _zero_scale(system, M_diag, bound), warnings,
                    complete=(want == n), method=method)
 
@@ -249,7 +260,8 @@ def _zero_scale(system: System, M_diag: np.ndarray, bound: float) -> float:
 def _dense_eig(system: System, M_diag: np.ndarray, want: int):
     K = system.dense("K")
     s = 1.0 / np.sqrt(M_diag)
-    A = K * s[:, None] * s[None, :]
+    with np.errstate(over="ignore", invalid="ignore"):  # non-finite results are refused
+        A = K * s[:, None] * s[None, :]
     if want == 0:
         return np.zeros(0), np.zeros((len(M_diag), 0))
     if want < len(M_diag):
@@ -274,9 +286,13 @@ def _sparse_eig(system: System, M_diag: np.ndarray, want: int, bound: float):
     lam, phi = spla.eigsh(K, k=want, M=M, sigma=sigma, which="LM", OPinv=op, ncv=ncv, tol=1e-12)
     order = np.argsort(lam)
     lam, phi = lam[order], phi[:, order]
-    # eigsh returns M-orthonormal vectors up to its tolerance; re-normalise exactly
+    # eigsh returns M-orthonormal vectors up to its tolerance; re-normalise exactly, and take
+    # each eigenvalue as the Rayleigh quotient of its vector: the vectors converge well, while
+    # the shift near the rigid-body modes limits the accuracy of the returned eigenvalues
     norms = np.sqrt(np.einsum("ij,i,ij->j", phi, M_diag, phi))
-    return lam, phi / norms
+    phi = phi / norms
+    lam = np.einsum("ij,ij->j", phi, np.asarray(K @ phi))
+    return lam, phi
 
 
 def _finish(system, lam, phi, M_diag, bound, warnings, complete, method):
@@ -287,6 +303,11 @@ def _finish(system, lam, phi, M_diag, bound, warnings, complete, method):
     rigid, rigid_info = _rigid_body_basis(system, M_diag)
     n_zero_numeric = int(np.sum(lam <= zero_tol))
     if system.model.kind == "planar":
+        if n_zero_numeric > rigid.shape[1]:
+            # a very stiff link can push a real soft mode under the numerical threshold:
+            # keep only the candidates that strain no spring, judged by geometry (relative end
+            # motion against the motion itself), which no stiffness contrast disturbs
+            n_zero_numeric = _strain_free_count(system, phi[:, :n_zero_numeric])
         n_zero = max(n_zero_numeric, rigid.shape[1])
     else:
         n_zero = rigid.shape[1]
@@ -336,6 +357,27 @@ def _finish(system, lam, phi, M_diag, bound, warnings, complete, method):
                        effective_mass=effective, participation=participation, total_mass=total,
                        zero_modes=tuple(zero_modes), repeated=repeated, warnings=tuple(warnings),
                        complete=complete, method=method)
+
+
+def _strain_free_count(system: System, Z: np.ndarray, rtol: float = 1e-6) -> int:
+    """Dimension of the combinations of the columns of Z (on dofs) that strain no spring."""
+    model = system.model
+    if not len(model.springs):
+        return Z.shape[1]
+    Z_all = np.asarray(system.recovery @ Z)
+    Z_all = np.vstack([Z_all, np.zeros((1, Z.shape[1]))])  # row -1: ground
+    idx = system.spring_dofs
+    delta = Z_all[idx[:, 2:]] - Z_all[idx[:, :2]]  # (n_s, 2, n_cand)
+    e = system.spring_axis
+    n = np.stack([-e[:, 1], e[:, 0]], axis=1)
+    axial = np.einsum("si,sim->sm", e, delta)
+    trans = np.einsum("si,sim->sm", n, delta)
+    has_kt = np.array([sp_.k_t > 0 for sp_ in model.springs])
+    S = np.vstack([axial, trans[has_kt]])
+    scale = max(np.abs(Z_all).max(), 1e-300)
+    sv = np.linalg.svd(S / scale, compute_uv=False)
+    rank = int(np.sum(sv > rtol))
+    return Z.shape[1] - rank
 
 
 def _repeated_groups(lam, n_zero):
@@ -583,6 +625,8 @@ def _explain_mechanism(system: System, vec, M_diag):
         elif perpendicular:
             reason = ("its springs are in line, so nothing resists motion at right angles to"
                       " them (add a spring at an angle or a transverse stiffness k_t)")
+            if len(top) > 1:
+                reason = reason.replace("its springs are", f'the springs of "{mid}" are')
         else:
             reason = "the springs around it form a linkage that can move without stretching"
         who = f'mass "{mid}"' if len(top) == 1 else "masses " + ", ".join(f'"{t}"' for t in top)

@@ -20,6 +20,9 @@ from .errors import ModelError
 from .model import Model
 from .modes import ModalResult, modes
 
+#: Up to this many DOFs a modal free response uses every mode (a dense solve of a few seconds).
+FULL_MODAL_DOF_LIMIT = 3000
+
 
 @dataclass(frozen=True, eq=False)
 class FreeResponse:
@@ -175,7 +178,8 @@ def free_response(model, times, result: ModalResult | None = None, x0=None, v0=N
         return FreeResponse(t, system.all_dofs, z, z.copy(), "modal", tuple(warnings))
     has_dashpots = damped and len(model.dampers) > 0 and system.C_full.sum() != 0
     if not has_dashpots:
-        res = result if result is not None else modes(system)
+        res = result if result is not None and result.complete else modes(
+            system, count=system.n_dof if system.n_dof <= FULL_MODAL_DOF_LIMIT else None)
         if not res.complete:
             warnings.append(f"free response uses the lowest {res.n_modes} modes only")
         M_diag = np.asarray(system.M.diagonal()).ravel()
@@ -189,7 +193,7 @@ def free_response(model, times, result: ModalResult | None = None, x0=None, v0=N
     # non-proportional damping: exact state-space solution
     M = system.dense("M")
     K = system.dense("K")
-    C = system.dense("C") + _proportional_damping_matrix(system, model)
+    C = system.dense("C")  # dashpots plus the damping model
     n = system.n_dof
     Minv = 1.0 / np.diag(M)
     A = np.zeros((2 * n, 2 * n))
@@ -202,19 +206,6 @@ def free_response(model, times, result: ModalResult | None = None, x0=None, v0=N
     disp = (R @ Z[:n]).T
     vel = (R @ Z[n:]).T
     return FreeResponse(t, system.all_dofs, disp, vel, "state-space", tuple(warnings))
-
-
-def _proportional_damping_matrix(system: System, model: Model) -> np.ndarray:
-    """The damping-model part of C (modal or Rayleigh), added to the dashpots' C."""
-    d = model.damping
-    if d.model == "rayleigh":
-        return d.alpha * system.dense("M") + d.beta * system.dense("K")
-    if d.model == "modal":
-        res = modes(system)
-        c = modal_damping_coefficients(model, res)
-        Mphi = system.dense("M") @ res.shapes
-        return Mphi @ np.diag(c) @ Mphi.T
-    return np.zeros((system.n_dof, system.n_dof))
 
 
 def _expm_series(A, z0, t):

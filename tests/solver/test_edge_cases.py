@@ -1,0 +1,110 @@
+"""Edge cases found in review: each checked against an independent answer."""
+
+import json
+
+import numpy as np
+import pytest
+import scipy.linalg
+
+import solver
+from solver import Anchor, Damper, Damping, Mass, Model, Spring
+
+
+def test_planar_junction_between_springs_in_line_does_not_block_the_response():
+    """math: springs a-j-m in line along x through a massless junction j act as k/2 in x; the
+    junction's y has no stiffness and carries no force. Receptance of m with a dashpot
+    c = 4 N s/m to ground: 1 / (k/2 - w^2 m + i w c) at 1 Hz. rtol 1e-12."""
+    model = Model(kind="planar", masses=(Mass("j", 1, 0, 0), Mass("m", 2, 0, 2)),
+                  anchors=(Anchor("a", 0, 0),),
+                  springs=(Spring("s1", "a", "j", 800), Spring("s2", "j", "m", 800)),
+                  dampers=(Damper("d", "a", "m", 4),))
+    w = 2 * np.pi
+    H = solver.harmonic_response(model, [1.0], {("m", "x"): 1.0})
+    i = solver.assemble(model).dof_index("m", "x")
+    assert H[0, i] == pytest.approx(1 / (400 - w * w * 2 + 1j * w * 4), rel=1e-12)
+    T = solver.base_transmissibility(model, [1.0], "x")
+    assert np.all(np.isfinite(T))
+
+
+def test_damping_matrix_includes_the_damping_model():
+    """Chopra, Dynamics of Structures, 11.4 (mem): Rayleigh C = alpha M + beta K; one mode with
+    modal ratio zeta has c = 2 zeta w m. m = 2 kg, k = 800 N/m (w = 20 rad/s)."""
+    base = Model(kind="line", masses=(Mass("m", 1, 0, 2),), anchors=(Anchor("g", 0, 0),),
+                 springs=(Spring("s", "g", "m", 800),))
+    ray = base.with_changes(damping=Damping("rayleigh", alpha=1.0, beta=1e-3))
+    assert solver.assemble(ray).C[0, 0] == pytest.approx(1.0 * 2 + 1e-3 * 800, rel=1e-14)
+    modal = base.with_changes(damping=Damping("modal", ratio=0.05))
+    assert solver.assemble(modal).C[0, 0] == pytest.approx(2 * 0.05 * 20 * 2, rel=1e-12)
+    dash = base.with_changes(dampers=(Damper("c", "g", "m", 4.0),),
+                             damping=Damping("modal", ratio=0.05))
+    system = solver.assemble(dash)
+    assert system.C[0, 0] == pytest.approx(4.0 + 4.0, rel=1e-12)
+    assert system.C_dashpots[0, 0] == pytest.approx(4.0)
+
+
+def test_stiff_link_in_a_planar_model_is_not_a_mechanism():
+    """scipy.linalg.eigh(K, M) (REFERENCES.md section 10): two 5 kg masses on soft isolators
+    joined by a link a hundred billion times stiffer keep a real, non-zero lowest mode.
+    rtol 1e-4 (the stiffness contrast limits double precision)."""
+    model = Model(kind="planar", masses=(Mass("a", 0, 0, 5), Mass("b", 1, 0, 5)),
+                  anchors=(Anchor("g1", -.5, -.5), Anchor("g2", 1.5, -.5), Anchor("g3", .5, -1)),
+                  springs=(Spring("i1", "g1", "a", 2000), Spring("i2", "g2", "b", 2000),
+                           Spring("i3", "g3", "a", 2000), Spring("i4", "g3", "b", 2000),
+                           Spring("L", "a", "b", 1e14, k_t=1e14)))
+    res = solver.modes(model)
+    assert res.zero_modes == ()
+    system = solver.assemble(model)
+    lam = scipy.linalg.eigh(system.K, system.M, eigvals_only=True)
+    np.testing.assert_allclose(res.omegas[:2], np.sqrt(lam[:2]), rtol=1e-4)
+
+
+def test_sparse_path_frequencies_of_a_free_lattice_match_dense():
+    """scipy.linalg.eigh (REFERENCES.md section 10): a free planar 12 x 12 lattice with
+    diagonals (288 DOF, three rigid-body modes); the shift-invert path's lowest elastic
+    frequencies equal the dense ones to rtol 1e-9."""
+    n = 12
+    masses = tuple(Mass(f"n{i}_{j}", float(i), float(j), 1.0) for i in range(n) for j in range(n))
+    springs = []
+    for i in range(n):
+        for j in range(n):
+            for di, dj in ((1, 0), (0, 1), (1, 1)):
+                if i + di < n and j + dj < n:
+                    springs.append(Spring(f"s{i}_{j}_{di}{dj}", f"n{i}_{j}", f"n{i + di}_{j + dj}",
+                                          1e4))
+    model = Model(kind="planar", masses=masses, springs=tuple(springs))
+    sparse = solver.modes(model, count=8, method="sparse")
+    dense = solver.modes(model, method="dense")
+    assert [z.kind for z in sparse.zero_modes] == ["rigid"] * 3
+    np.testing.assert_allclose(sparse.omegas[3:], dense.omegas[3:8], rtol=1e-9)
+
+
+def test_free_response_of_a_large_model_starts_at_its_initial_condition():
+    """math: x(0) = x0 for any model; on 1,100 DOF (above the dense default) the modal free
+    response still uses every mode. atol 1e-12 m."""
+    n = 1100
+    model = Model(kind="line", masses=tuple(Mass(f"m{i}", float(i + 1), 0, 1.0) for i in range(n)),
+                  anchors=(Anchor("g", 0, 0),),
+                  springs=tuple(Spring(f"s{i}", "g" if i == 0 else f"m{i - 1}", f"m{i}", 1e4)
+                                for i in range(n)))
+    fr = solver.free_response(model, [0.0], x0={("m0", "x"): 1e-3})
+    assert fr.of("m0", "x")[0] == pytest.approx(1e-3, abs=1e-12)
+    assert np.abs(fr.displacement[0, 1:]).max() < 1e-12
+
+
+def test_damping_parameters_default_to_zero_in_the_file(tmp_path):
+    """DESIGN.md section 4: everything but format, version, kind and element values has a
+    default; a Rayleigh entry may give alpha alone."""
+    path = tmp_path / "m.json"
+    path.write_text(json.dumps({"format": "springwright-model", "version": 1, "kind": "line",
+                                "damping": {"model": "rayleigh", "alpha": 0.1}}))
+    model = solver.load_model(path)
+    assert (model.damping.alpha, model.damping.beta) == (0.1, 0.0)
+
+
+def test_values_beyond_double_precision_are_refused_with_the_element():
+    """common practice: a mass of 1e-320 kg is a units mistake; the solver says which element
+    instead of returning NaN."""
+    model = Model(kind="line", masses=(Mass("tiny", 1, 0, 1e-320),), anchors=(Anchor("g", 0, 0),),
+                  springs=(Spring("s", "g", "tiny", 1.0),))
+    with pytest.raises(solver.ModelError, match="tiny"):
+        solver.modes(model)
