@@ -128,7 +128,9 @@ class TunePanel(QWidget):
         self._combo_signature = None
         self._analysis = None
         self._applying = False
+        self._target_set = False
         self._build_ui()
+        self.target_spin.valueChanged.connect(lambda _v: setattr(self, "_target_set", True))
         document.model_changed.connect(self._on_model_change)
         if solve_service is not None:
             solve_service.results_ready.connect(self.set_analysis)
@@ -205,23 +207,23 @@ class TunePanel(QWidget):
         grid.addWidget(self.element_combo, 0, 1, 1, 3)
         grid.addWidget(self.slider, 1, 0, 1, 4)
         grid.addWidget(self.low_label, 2, 0)
-        grid.addWidget(self.value_label, 2, 1, 1, 2, Qt.AlignmentFlag.AlignHCenter)
         grid.addWidget(self.high_label, 2, 3, Qt.AlignmentFlag.AlignRight)
+        grid.addWidget(self.value_label, 3, 0, 1, 4)
         row = QHBoxLayout()
         row.addWidget(self.mode_spin)
         row.addWidget(QLabel("to"))
         row.addWidget(self.target_spin, 1)
-        grid.addLayout(row, 3, 0, 1, 4)
+        grid.addLayout(row, 4, 0, 1, 4)
         row2 = QHBoxLayout()
         row2.addWidget(self.propose_button)
         row2.addWidget(self.retune_button)
         row2.addWidget(self.apply_button)
-        grid.addLayout(row2, 4, 0, 1, 4)
-        grid.addWidget(self.message, 5, 0, 1, 4)
-        grid.addWidget(self.ranking_label, 6, 0, 1, 4)
-        grid.addWidget(self.sources_title, 7, 0, 1, 4)
-        grid.addWidget(self.sources_list, 8, 0, 1, 4)
-        grid.setRowStretch(9, 1)
+        grid.addLayout(row2, 5, 0, 1, 4)
+        grid.addWidget(self.message, 6, 0, 1, 4)
+        grid.addWidget(self.ranking_label, 7, 0, 1, 4)
+        grid.addWidget(self.sources_title, 8, 0, 1, 4)
+        grid.addWidget(self.sources_list, 9, 0, 1, 4)
+        grid.setRowStretch(10, 1)
         grid.setColumnStretch(1, 1)
         left.setMinimumWidth(260)
 
@@ -234,6 +236,7 @@ class TunePanel(QWidget):
         pi.showGrid(x=True, y=True, alpha=0.25)
         pi.setLabel("left", "natural frequency", units="Hz")
         pi.setMenuEnabled(False)
+        pi.getAxis("bottom").setStyle(maxTickLevel=0)   # decade labels only: minor ones collide
         for ax in ("left", "bottom"):
             pi.getAxis(ax).setTextPen(st.ink)
             pi.getAxis(ax).setPen(st.ink_soft)
@@ -395,6 +398,10 @@ class TunePanel(QWidget):
         n = analysis.modal.n_modes if analysis is not None else 0
         with QSignalBlocker(self.mode_spin):
             self.mode_spin.setRange(1, max(1, n))
+        if n and not self._target_set:
+            # a starting target the user can edit: the chosen mode's frequency now
+            with QSignalBlocker(self.target_spin):
+                self.target_spin.setValue(float(analysis.modal.frequencies_hz[self.mode_spin.value() - 1]))
         self._update_cursor(self.document.model)
 
     def set_mode(self, mode: int):
