@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from PySide6.QtCore import QSettings, Qt, QUrl
+from PySide6.QtCore import QSettings, Qt, QTimer, QUrl
 from PySide6.QtGui import QAction, QActionGroup, QKeySequence
 from PySide6.QtWidgets import (QDockWidget, QFileDialog, QFrame, QHBoxLayout, QLabel, QMainWindow,
                                QMessageBox, QPushButton, QVBoxLayout, QWidget)
@@ -21,6 +21,9 @@ from .properties import PropertyPanel
 from .recovery import Recovery
 from .solve_service import SolveService
 from .style import current_style
+
+#: A pending solve is marked out of date only when it takes longer than this (ms).
+STALE_DELAY_MS = 120
 
 MAX_RECENT = 8
 FILE_FILTER = "Springwright models (*.json);;All files (*)"
@@ -146,7 +149,12 @@ class MainWindow(QMainWindow):
         self.document.opened.connect(lambda _m: self.view.fit())
         self.solver.results_ready.connect(self._on_results)
         self.solver.results_ready.connect(self.response_panel.set_analysis)
+        self.solver.live_changed.connect(self.response_panel.set_live)
         self.solver.solve_failed.connect(self._on_solve_failed)
+        self._stale_timer = QTimer(self)
+        self._stale_timer.setSingleShot(True)
+        self._stale_timer.setInterval(STALE_DELAY_MS)
+        self._stale_timer.timeout.connect(lambda: self._show_stale(True))
         self.solver.pending_changed.connect(self._on_pending_change)
         if hasattr(self.modes_table, "mode_selected"):
             self.modes_table.mode_selected.connect(self._on_mode_selected)
@@ -351,9 +359,20 @@ class MainWindow(QMainWindow):
         self.statusBar().showMessage(MODE_INFO[mode][2])
 
     def _on_pending_change(self, pending: bool):
-        if hasattr(self.modes_table, "set_stale"):
-            self.modes_table.set_stale(pending)
+        # A solve that answers within STALE_DELAY_MS (small models, every slider step) never
+        # flashes the out-of-date marks; a slower one shows them until its results arrive.
         if pending:
+            self._stale_timer.start()
+        else:
+            self._stale_timer.stop()
+            self._show_stale(False)
+
+    def _show_stale(self, stale: bool):
+        stale = bool(stale) and self.solver.pending
+        if hasattr(self.modes_table, "set_stale") and \
+                getattr(self.modes_table, "is_stale", lambda: None)() != stale:
+            self.modes_table.set_stale(stale)
+        if stale:
             self.pending_label.setText("results out of date")
             self.pending_label.setStyleSheet(f"color: {current_style().warning.name()};")
         else:

@@ -197,13 +197,22 @@ class _ModesModel(QAbstractTableModel):
         self._header: list[str] = mode_table_header(None)
         self.stale = False
 
-    def set_analysis(self, analysis):
-        self.beginResetModel()
+    def set_analysis(self, analysis) -> bool:
+        """Take new results; True when the table kept its shape (updated in place, the view's
+        selection and scroll position untouched), False when it was reset."""
+        rows = mode_table_rows(analysis)
+        cells = mode_table_cells(analysis, rows)
+        header = mode_table_header(analysis)
         self._analysis = analysis
-        self._rows = mode_table_rows(analysis)
-        self._cells = mode_table_cells(analysis, self._rows)
-        self._header = mode_table_header(analysis)
+        if cells and len(cells) == len(self._cells) and header == self._header:
+            # same modes and columns (a slider step, a property edit): new values only
+            self._rows, self._cells = rows, cells
+            self.dataChanged.emit(self.index(0, 0), self.index(len(cells) - 1, len(header) - 1))
+            return True
+        self.beginResetModel()
+        self._rows, self._cells, self._header = rows, cells, header
         self.endResetModel()
+        return False
 
     def set_stale(self, stale: bool):
         self.stale = bool(stale)
@@ -275,7 +284,10 @@ class ModesTable(QWidget):
         self.view.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
         self.view.verticalHeader().setVisible(False)
         self.view.horizontalHeader().setStretchLastSection(True)
-        self.view.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)
+        # columns are fitted to their contents when the table changes shape or a value grows
+        # longer, not on every update: measuring every cell each slider step costs a frame
+        self.view.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Interactive)
+        self._col_chars: list[int] = []
         self.view.setAlternatingRowColors(True)
         self.view.setToolTip("Select a mode to animate it. Hover the notes for zero-frequency"
                              " causes and repeated modes.")
@@ -295,8 +307,10 @@ class ModesTable(QWidget):
         self._analysis = analysis
         self._updating = True
         try:
-            self._model.set_analysis(analysis)
-            if keep and analysis is not None and keep <= _modal(analysis).n_modes:
+            in_place = self._model.set_analysis(analysis)
+            self._fit_columns(in_place)
+            if keep and analysis is not None and keep <= _modal(analysis).n_modes \
+                    and not (in_place and self.selected_mode() == keep):
                 self._select_row(keep - 1)
         finally:
             self._updating = False
@@ -324,6 +338,8 @@ class ModesTable(QWidget):
         """Select mode n (from 1) without emitting ``mode_selected`` (the caller knows already)."""
         if self._analysis is None or not 1 <= int(n) <= self._model.rowCount():
             return
+        if self.selected_mode() == int(n):
+            return
         self._updating = True
         try:
             self._select_row(int(n) - 1)
@@ -348,6 +364,14 @@ class ModesTable(QWidget):
         return text
 
     # -- internals ---------------------------------------------------------------------------
+    def _fit_columns(self, in_place: bool):
+        cells, header = self._model._cells, self._model._header
+        chars = [max([len(header[c])] + [len(r[c]) for r in cells]) for c in range(len(header))]
+        if not in_place or len(chars) != len(self._col_chars) or \
+                any(a > b for a, b in zip(chars, self._col_chars)):
+            self.view.resizeColumnsToContents()
+            self._col_chars = chars
+
     def _select_row(self, row: int):
         self.view.selectRow(row)
         self.view.scrollTo(self._model.index(row, 0))

@@ -261,6 +261,8 @@ class MotionPanel(QWidget):
         self._duration = 1.0
         self._f_max = 1.0
         self._scale_locked = False
+        self._free_fit_due = False
+        self._traces_due = False
         self._free_scale = 1.0
         self._positions: dict = {}
         self._clock = QElapsedTimer()
@@ -407,8 +409,11 @@ class MotionPanel(QWidget):
             self._mode = 1 if self._modal is not None and self._modal.n_modes else None
         self._pick_time_scale()
         self._fill_trace_list()
-        if not self._scale_locked:
-            self._fit_free_scale(lock=False)
+        # the free response is sampled only when it is shown (a slider drag in the mode view
+        # must not pay for it on every step)
+        self._free_fit_due = not self._scale_locked
+        if self._view_kind == FREE_VIEW:
+            self._catch_up_free()
         self._rebuild_traces()
         self._refresh()
 
@@ -483,10 +488,19 @@ class MotionPanel(QWidget):
         return self.view.scale
 
     # -- internals ---------------------------------------------------------------------------
+    def _catch_up_free(self):
+        if self._free_fit_due:
+            self._free_fit_due = False
+            self._fit_free_scale(lock=False)
+        if self._traces_due:
+            self._rebuild_traces()
+
     def _set_view_kind(self, kind):
         if kind == self._view_kind:
             return
         self._view_kind = kind
+        if kind == FREE_VIEW:
+            self._catch_up_free()
         self.kind_box.blockSignals(True)
         self.kind_box.setCurrentIndex(0 if kind == MODE_VIEW else 1)
         self.kind_box.blockSignals(False)
@@ -494,6 +508,8 @@ class MotionPanel(QWidget):
 
     def _on_kind_change(self, _i):
         self._view_kind = self.kind_box.currentData()
+        if self._view_kind == FREE_VIEW:
+            self._catch_up_free()
         self._sync_controls()
         self._refresh()
 
@@ -621,6 +637,10 @@ class MotionPanel(QWidget):
         legend = self.plot.plotItem.legend
         if legend is not None:
             legend.clear()
+        if self._view_kind != FREE_VIEW:
+            self._traces_due = True   # drawn when the free-response view is shown
+            return
+        self._traces_due = False
         table = self._free_table(self._t)
         if table is None:
             return

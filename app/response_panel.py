@@ -7,7 +7,10 @@ linked frequency axis; excitation sources are shaded; the peaks of every curve a
 their half-power bandwidth and the damping ratio it implies. The input chosen is a view preference
 held here, never written to the model. The curves are recomputed, debounced, after every model
 change (synchronously: the direct solve of a few hundred DOFs at ~900 frequencies takes well under
-a second). The curves themselves come from :mod:`app.response_data`, which has no Qt.
+a second; with proportional damping the modal path reuses the solve service's modes and takes
+milliseconds). During a continuous gesture (a Tune slider drag, :meth:`set_live`) the panel holds
+its curves, dimmed and marked, and recomputes once on release, so the drag stays smooth. The
+curves themselves come from :mod:`app.response_data`, which has no Qt.
 """
 
 from __future__ import annotations
@@ -60,6 +63,8 @@ class ResponsePanel(QWidget):
         self.f_range = (1.0, 1000.0)
         self.error = ""
         self._choices: list[rd.ResponseInput] = []
+        self._live = False
+        self._held = False
         self._timer = QTimer(self)
         self._timer.setSingleShot(True)
         self._timer.setInterval(delay_ms)
@@ -203,7 +208,33 @@ class ResponsePanel(QWidget):
     def _on_model_change(self, model):
         self.model = model
         self._sync_choices(model)
-        self._timer.start()
+        if self._live:
+            self._hold()
+        else:
+            self._timer.start()
+
+    def set_live(self, live: bool) -> None:
+        """True while a slider drag changes the model continuously: the curves are held (dimmed,
+        with a note) and recomputed once when it ends."""
+        self._live = bool(live)
+        if not self._live and self._held:
+            self._held = False
+            self.recompute()
+
+    @property
+    def held(self) -> bool:
+        """True when the curves shown are older than the model (held during a drag)."""
+        return self._held
+
+    def _hold(self):
+        self._timer.stop()
+        if not self._held:
+            self._held = True
+            for item in self.curve_items:
+                item.setOpacity(0.35)
+            self.note_label.setText("Held while the slider moves: the response updates when it"
+                                    " is released.")
+            self.note_label.setStyleSheet(f"color: {current_style().ink_soft_hex};")
 
     def set_model(self, model) -> None:
         """Show ``model`` now (no debounce)."""
@@ -217,6 +248,8 @@ class ResponsePanel(QWidget):
         if model is None:
             return
         self._modal, self._modal_model = analysis.modal, model
+        if self._live:
+            return
         if model is self.model and self._timer.isActive():
             self._timer.stop()
             self.recompute()
@@ -361,6 +394,7 @@ class ResponsePanel(QWidget):
     def recompute(self) -> None:
         """Compute the curves of the current choices and redraw (synchronous)."""
         self._timer.stop()
+        self._held = False
         model = self.model
         self.response, self.error = None, ""
         if model is None or self.input is None or not model.masses:

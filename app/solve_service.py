@@ -69,11 +69,16 @@ class SolveService(QObject):
         out of date).
     pending_changed(bool)
         True while the shown results are older than the model.
+    live_changed(bool)
+        True while a continuous gesture (a slider drag) is changing the model many times a
+        second. Views that are costly to refresh (the response plot, the free-response table)
+        hold their update until it ends; the modes table, canvas and mode animation follow live.
     """
 
     results_ready = Signal(object)
     solve_failed = Signal(str)
     pending_changed = Signal(bool)
+    live_changed = Signal(bool)
 
     def __init__(self, document=None, delay_ms: int = DEBOUNCE_MS,
                  thread_dof_limit: int = THREAD_DOF_LIMIT, parent=None):
@@ -93,6 +98,7 @@ class SolveService(QObject):
         self._pool.setMaxThreadCount(1)
         self.last_analysis = None
         self.last_error = ""
+        self._live = False
         if document is not None:
             document.model_changed.connect(self.request)
             self.request(document.model)
@@ -105,6 +111,18 @@ class SolveService(QObject):
         if value != self._pending:
             self._pending = value
             self.pending_changed.emit(value)
+
+    @property
+    def live(self) -> bool:
+        """True during a continuous gesture (see ``live_changed``)."""
+        return self._live
+
+    def set_live(self, live: bool) -> None:
+        """Mark the start (True) or end (False) of a continuous gesture."""
+        live = bool(live)
+        if live != self._live:
+            self._live = live
+            self.live_changed.emit(live)
 
     def request(self, model) -> None:
         """Solve ``model`` once edits pause for the debounce interval."""

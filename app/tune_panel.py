@@ -153,8 +153,8 @@ class TunePanel(QWidget):
         self.slider.setToolTip("Drag to change the value live (log scale, a decade either way of"
                                " the value when picked); the whole drag is one undo step")
         self.slider.valueChanged.connect(self._on_slider_value)
-        self.slider.sliderPressed.connect(self._new_gesture)
-        self.slider.sliderReleased.connect(self._new_gesture)
+        self.slider.sliderPressed.connect(self._on_slider_pressed)
+        self.slider.sliderReleased.connect(self._on_slider_released)
         self.low_label, self.high_label = QLabel(), QLabel()
         self.value_label = QLabel()
         self.value_label.setObjectName("tune_value")
@@ -413,6 +413,16 @@ class TunePanel(QWidget):
     def _new_gesture(self):
         """Start a new undo entry for the next slider change (press, release, new element)."""
         self._drag_serial += 1
+
+    def _on_slider_pressed(self):
+        self._new_gesture()
+        if self.solve_service is not None:
+            self.solve_service.set_live(True)
+
+    def _on_slider_released(self):
+        self._new_gesture()
+        if self.solve_service is not None:
+            self.solve_service.set_live(False)
 
     def _on_slider_value(self, position: int):
         if self._key is None:

@@ -142,7 +142,8 @@ def _convert(X: np.ndarray, f: np.ndarray, output: str) -> np.ndarray:
     return X
 
 
-def _modal_solve(system: System, f: np.ndarray, F_all: np.ndarray) -> np.ndarray:
+def _modal_solve(system: System, f: np.ndarray, F_all: np.ndarray, result=None,
+                 scale=None) -> np.ndarray:
     """Modal superposition X = sum phi phi^T F / (lambda - w^2 + i w c) on all DOFs.
 
     Exact for proportional damping (none, modal ratios, Rayleigh) with the complete set of modes;
@@ -153,7 +154,7 @@ def _modal_solve(system: System, f: np.ndarray, F_all: np.ndarray) -> np.ndarray
     if len(system.model.dampers):
         raise ModelError("the modal path needs proportional damping; with dashpots use the"
                          " direct solve (method='direct')")
-    res = modes(system)
+    res = result if result is not None and result.complete else modes(system)
     if not res.complete:
         raise ModelError("the modal path needs every mode; this model is too large for that")
     c = modal_damping_coefficients(system.model, res)
@@ -163,9 +164,11 @@ def _modal_solve(system: System, f: np.ndarray, F_all: np.ndarray) -> np.ndarray
     q_force = res.shapes.T @ F_ret  # modal forces, (n_modes,)
     w = 2 * np.pi * f
     denom = res.eigenvalues[None, :] - (w ** 2)[:, None] + 1j * w[:, None] * c[None, :]
+    num = q_force[None, :] if scale is None else scale[:, None] * q_force[None, :]
     with np.errstate(divide="ignore", invalid="ignore"):
-        q = q_force[None, :] / denom
-    X = q @ res.all_shapes.T
+        q = num / denom
+    with np.errstate(invalid="ignore"):   # an undamped resonance hit exactly: inf, nan
+        X = q @ res.all_shapes.T
     if system.n_dof != len(system.all_dofs) and np.any(F_all[_junction_mask(system)]):
         # the junctions' own static flexibility under a force applied to them
         X = X + _junction_static(system, F_all)[None, :]
@@ -187,7 +190,7 @@ def _junction_static(system: System, F_all: np.ndarray) -> np.ndarray:
 
 
 def harmonic_response(model, freqs_hz, forces, output: str = "displacement",
-                      method: str = "direct") -> np.ndarray:
+                      method: str = "direct", result=None) -> np.ndarray:
     """Steady-state complex response to harmonic forces.
 
     Parameters
@@ -200,6 +203,8 @@ def harmonic_response(model, freqs_hz, forces, output: str = "displacement",
         (accelerance, m/s^2/N).
     method : "direct" (dynamic-stiffness solve, any damping) or "modal" (superposition of all
         modes; proportional damping only, refused with dashpots).
+    result : ModalResult of the same model, optional: the modal path reuses its modes when they
+        are complete.
 
     Returns
     -------
@@ -223,13 +228,14 @@ def harmonic_response(model, freqs_hz, forces, output: str = "displacement",
     if method == "direct":
         X = _dynamic_solve(system, f, lambda w: F)
     elif method == "modal":
-        X = _modal_solve(system, f, F)
+        X = _modal_solve(system, f, F, result)
     else:
         raise ModelError(f'method must be "direct" or "modal", got {method!r}')
     return _convert(_retained(system, X), f, output)
 
 
-def base_transmissibility(model, freqs_hz, direction: str, relative: bool = False) -> np.ndarray:
+def base_transmissibility(model, freqs_hz, direction: str, relative: bool = False,
+                          method: str = "direct", result=None) -> np.ndarray:
     """Motion of each DOF per unit harmonic motion of the base (all anchors together).
 
     Parameters
@@ -239,6 +245,13 @@ def base_transmissibility(model, freqs_hz, direction: str, relative: bool = Fals
     direction : the base's direction of motion ("x", "y" or "theta", one the model has).
     relative : False gives absolute transmissibility ``X / U`` (also the ratio of absolute
         accelerations); True gives the motion relative to the base ``(X - r U) / U``.
+    method : "direct" (dynamic-stiffness solve of ``Z(w) y = w^2 M r``, any damping) or "modal"
+        (superposition of all modes with the same effective force; proportional damping only).
+        Both solve for the motion relative to the base, driven by the inertia force
+        ``w^2 M r U``, so damping acts on relative velocity: exact for dashpots and
+        stiffness-proportional damping; mass-proportional (Rayleigh alpha) damping is taken on
+        relative motion, the usual convention (Chopra, Dynamics of Structures, ch. 1 and 13).
+    result : ModalResult of the same model, optional, reused by the modal path.
 
     Returns
     -------
@@ -251,7 +264,13 @@ def base_transmissibility(model, freqs_hz, direction: str, relative: bool = Fals
     f = _freqs(freqs_hz)
     r = np.array([1.0 if d == direction else 0.0 for _, d in system.all_dofs])
     Mr = np.asarray(system.M_full @ r).ravel()
-    Y = _dynamic_solve(system, f, lambda w: (w * w) * Mr)
+    if method == "direct":
+        Y = _dynamic_solve(system, f, lambda w: (w * w) * Mr)
+    elif method == "modal":
+        w = 2 * np.pi * f
+        Y = _modal_solve(system, f, Mr.astype(complex), result, scale=w * w)
+    else:
+        raise ModelError(f'method must be "direct" or "modal", got {method!r}')
     Y = _retained(system, Y)
     if relative:
         return Y

@@ -114,37 +114,48 @@ def modal_damping_coefficients(model: Model, result: ModalResult) -> np.ndarray:
 
 
 def _modal_coordinate(q0, qd0, c, lam, t):
-    """Exact q(t), q'(t) of q'' + c q' + lam q = 0 for arrays of modes (rows) and times (cols)."""
+    """Exact q(t), q'(t) of q'' + c q' + lam q = 0 for arrays of modes (rows) and times (cols).
+
+    With a = c/2 and D = a^2 - lam: q = e^{-a t} [q0 Cf + (qd0 + a q0) Sf] where Cf, Sf are
+    cos(wd t), sin(wd t)/wd (underdamped, wd^2 = -D), cosh(b t), sinh(b t)/b (overdamped,
+    b^2 = D) or 1, t (critical), each times e^{-a t}. Each branch is evaluated only on its own
+    rows (most models are underdamped in every mode).
+    """
     q0, qd0, c, lam = (np.asarray(v, float)[:, None] for v in (q0, qd0, c, lam))
     t = np.asarray(t, float)[None, :]
     a = c / 2.0
     D = a * a - lam  # discriminant / 4
     scale = np.maximum(a * a + lam, 1e-300)
-    under = D < -1e-12 * scale
-    over = D > 1e-12 * scale
+    under = (D < -1e-12 * scale).ravel()
+    over = (D > 1e-12 * scale).ravel()
     crit = ~(under | over)
-    # q = e^{-a t} [q0 Cf(t) + (qd0 + a q0) Sf(t)], Cf = cos/cosh, Sf = sin(wd t)/wd, sinh(b t)/b, t
-    wd = np.sqrt(np.where(under, -D, 0.0))
-    b = np.sqrt(np.where(over, D, 0.0))
-    decay = np.exp(-a * t)
-    cos_u = np.cos(wd * t)
-    sin_u = np.where(wd > 0, np.sin(wd * t) / np.where(wd > 0, wd, 1.0), t)
-    # overdamped: e^{-a t} cosh(b t) and e^{-a t} sinh(b t)/b without overflow
-    ep = np.exp((b - a) * t)
-    em = np.exp(-(a + b) * t)
-    cosh_o = 0.5 * (ep + em)
-    sinh_o = np.where(b * t > 1e-6, 0.5 * (ep - em) / np.where(b > 0, b, 1.0),
-                      t * decay * (1 + (b * t) ** 2 / 6))
-    Cf = np.where(under, decay * cos_u, np.where(over, cosh_o, decay))
-    Sf = np.where(under, decay * sin_u, np.where(over, sinh_o, decay * t))
-    # derivatives: d/dt [e^{-at} Cf0] etc. via the ODE's structure:
-    # with q = q0 Cf + (qd0 + a q0) Sf, and Sf' = Cf - a Sf, Cf' = -a Cf - (lam - a^2)... use
-    # Cf' = -a Cf + (a^2 - lam) Sf (true for all three cases), Sf' = Cf - a Sf.
+    shape = (q0.shape[0], t.shape[1])
+    Cf = np.empty(shape)
+    Sf = np.empty(shape)
+    if under.any():
+        au, wd = a[under], np.sqrt(-D[under])
+        decay = np.exp(-au * t) if np.any(au) else 1.0
+        wt = wd * t
+        Cf[under] = decay * np.cos(wt)
+        Sf[under] = decay * np.sin(wt) / wd
+    if over.any():
+        ao, b = a[over], np.sqrt(D[over])
+        # e^{-a t} cosh(b t) and e^{-a t} sinh(b t)/b without overflow
+        ep = np.exp((b - ao) * t)
+        em = np.exp(-(ao + b) * t)
+        Cf[over] = 0.5 * (ep + em)
+        small = b * t <= 1e-6
+        Sf[over] = np.where(small, t * np.exp(-ao * t) * (1 + (b * t) ** 2 / 6),
+                            0.5 * (ep - em) / b)
+    if crit.any():
+        decay = np.exp(-a[crit] * t)
+        Cf[crit] = decay
+        Sf[crit] = decay * t
+    # derivatives, true in all three cases: Cf' = -a Cf + D Sf, Sf' = Cf - a Sf
     q = q0 * Cf + (qd0 + a * q0) * Sf
     dCf = -a * Cf + D * Sf
     dSf = Cf - a * Sf
     qd = q0 * dCf + (qd0 + a * q0) * dSf
-    del crit
     return q, qd
 
 

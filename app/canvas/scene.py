@@ -13,7 +13,7 @@ from __future__ import annotations
 import enum
 
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt, Signal
-from PySide6.QtGui import QPen
+from PySide6.QtGui import QPainter, QPen
 from PySide6.QtWidgets import QGraphicsLineItem, QGraphicsScene
 
 from app.style import current_style
@@ -97,6 +97,8 @@ class ModelScene(QGraphicsScene):
         self.nodes.clear()
         self.links.clear()
         self.mapper = Mapper.for_model(model)
+        for view in self.views():   # a new grid spacing: the cached background is stale
+            view.resetCachedContent()
         self._on_model_change(model)
 
     # -- mode ---------------------------------------------------------------------------------
@@ -138,7 +140,10 @@ class ModelScene(QGraphicsScene):
                 item.remove_requested.connect(lambda eid: self.document.remove([eid]))
                 self.addItem(item)
                 self.nodes[m.id] = item
-            item.update_from(m, model, reference_mass=reference)
+            key = (m, model.kind, model.axis, reference)
+            if _stale(item, key):   # unchanged items are left alone (a slider step on 200 masses)
+                item.update_from(m, model, reference_mass=reference)
+                _synced(item, key)
         neighbours: dict[str, str] = {}
         for link in model.springs + model.dampers:
             neighbours.setdefault(link.a, link.b)
@@ -154,7 +159,10 @@ class ModelScene(QGraphicsScene):
                 item.remove_requested.connect(lambda eid: self.document.remove([eid]))
                 self.addItem(item)
                 self.nodes[a.id] = item
-            item.update_from(a, model, normal=normal)
+            key = (a, model.kind, model.axis, normal)
+            if _stale(item, key):
+                item.update_from(a, model, normal=normal)
+                _synced(item, key)
         pairs: dict[frozenset, list[str]] = {}
         for link in model.springs + model.dampers:
             pairs.setdefault(frozenset((link.a, link.b)), []).append(link.id)
@@ -174,8 +182,12 @@ class ModelScene(QGraphicsScene):
                 item.remove_requested.connect(lambda eid: self.document.remove([eid]))
                 self.addItem(item)
                 self.links[link.id] = item
-            item.offset = offset
-            item.set_element(link, a_item, b_item)
+            key = (link, offset, id(a_item), a_item._sync_serial, id(b_item), b_item._sync_serial)
+            if getattr(item, "_sync_key", None) != key or a_item.pos() != a_item._sync_pos \
+                    or b_item.pos() != b_item._sync_pos:
+                item.offset = offset
+                item.set_element(link, a_item, b_item)
+                item._sync_key = key
 
     def _update_scene_rect(self):
         rect = self.itemsBoundingRect()
@@ -377,9 +389,25 @@ class ModelScene(QGraphicsScene):
             c = st.grid
             c.setAlpha(90)
             painter.setPen(QPen(c, 0))
+            aa = painter.testRenderHint(QPainter.RenderHint.Antialiasing)
+            painter.setRenderHint(QPainter.RenderHint.Antialiasing, False)  # axis-aligned lines
             painter.drawLines(lines)
+            painter.setRenderHint(QPainter.RenderHint.Antialiasing, aa)
         painter.setPen(QPen(st.grid, 0))
         painter.drawLine(QLineF(rect.left(), 0, rect.right(), 0))
         painter.drawLine(QLineF(0, rect.top(), 0, rect.bottom()))
+
+
+def _stale(item, key) -> bool:
+    """True when a node item must be refreshed: its element (or what its drawing depends on)
+    changed, or it is not where its last refresh put it (a drag preview the model refused)."""
+    return getattr(item, "_sync_key", None) != key or item.pos() != item._sync_pos
+
+
+def _synced(item, key) -> None:
+    item._sync_key = key
+    item._sync_pos = item.pos()
+    item._sync_serial = getattr(item, "_sync_serial", 0) + 1
+
 
 __all__ = ["ModelScene", "Mode", "MODE_INFO"]

@@ -18,12 +18,21 @@ class CanvasView(QGraphicsView):
         self.setTransformationAnchor(QGraphicsView.AnchorUnderMouse)
         self.setResizeAnchor(QGraphicsView.AnchorViewCenter)
         self.setViewportUpdateMode(QGraphicsView.BoundingRectViewportUpdate)
+        # the grid is drawn once per zoom or scroll, not on every repaint of the items over it
+        self.setCacheMode(QGraphicsView.CacheBackground)
         self.setAcceptDrops(False)  # files dropped here go to the main window
         self._pan_from = None
         # an area selects what it encloses, not every spring it touches
         self.setRubberBandSelectionMode(Qt.ContainsItemShape)
         scene.mode_changed.connect(self._on_mode_change)
         self._on_mode_change(scene.mode)
+
+    def changeEvent(self, event):  # noqa: N802
+        from PySide6.QtCore import QEvent
+
+        if event.type() == QEvent.Type.PaletteChange:   # light/dark switch: redraw the grid
+            self.resetCachedContent()
+        super().changeEvent(event)
 
     def _on_mode_change(self, mode):
         if mode == Mode.SELECT:

@@ -49,6 +49,27 @@ def test_displayed_positions_match_solver_at_many_times(panel):
             assert shown[mid]["x"] == pytest.approx(ref[mid]["x"], abs=1e-8)
 
 
+def test_results_arriving_in_mode_view_are_played_when_free_view_opens(panel):
+    """math: the free response is sampled only when its view is shown; results that arrived
+    while the mode view was up (a slider drag) are the ones played, with their traces, equal to
+    solver.free_response of the newest model at the shown time. atol 1e-8 m."""
+    old = td3s()
+    panel.set_analysis(solver.analyse(old))
+    panel.show_mode(1)
+    new = solver.with_value(old, "k2", 3.0 * old.element("k2").k)
+    assert new != old
+    panel.set_analysis(solver.analyse(new))
+    panel.show_free_response()
+    panel.set_loop(False)
+    for t in (0.0, 0.0533, 0.4):
+        panel.set_time(t)
+        ref = solver.free_response(new, [t]).node_displacement(0)
+        shown = panel.displayed_positions()
+        for mid in ("m1", "m2"):
+            assert shown[mid]["x"] == pytest.approx(ref[mid]["x"], abs=1e-8)
+    assert panel._curves, "traces drawn once the free-response view is open"
+
+
 def test_playing_advances_time_with_time_scale(panel, qtbot):
     """common practice: play runs model time at wall time x time scale; pause stops it."""
     panel.set_analysis(solver.analyse(td3s()))

@@ -181,3 +181,49 @@ def test_sources_listed_and_bands_crossed(qtbot, window, two_mass_model):
     texts = [panel.sources_list.item(i).text() for i in range(panel.sources_list.count())]
     assert texts and "90 rpm" in texts[0] and "1.5 Hz" in texts[0] and "3 Hz" in texts[0]
     assert panel.crossings   # mode 1 (2.6 Hz at 1000 N/m) sweeps across the 3 Hz line
+
+
+def test_response_held_during_drag_and_recomputed_on_release(qtbot, window):
+    """common practice: the costly response plot waits while the slider moves and then shows the
+    final model. After release each curve is |T| of the two-DOF chain with the final stiffness,
+    checked against numpy.linalg.solve of (K - w^2 M + i w C) y = w^2 M r built by hand
+    (Chopra, Dynamics of Structures, 13.1, base excitation (mem)); rtol 1e-9."""
+    zeta = 0.05
+    model = Model(kind="line", name="two", axis="x",
+                  masses=(Mass("m1", 0.2, 0.0, 2.0), Mass("m2", 0.4, 0.0, 1.0)),
+                  anchors=(Anchor("g1", 0.0, 0.0),),
+                  springs=(Spring("s1", "g1", "m1", 1000.0), Spring("s2", "m1", "m2", 500.0)),
+                  damping=solver.Damping(model="modal", ratio=zeta))
+    panel = _open(window, model)
+    response = window.response_panel
+    qtbot.waitUntil(lambda: not response._timer.isActive(), timeout=3000)
+    before = response.plotted_data()
+    assert panel.select_element("s1", "k")
+    slider = panel.slider
+    start = _handle_centre(slider)
+    qtbot.mousePress(slider, Qt.MouseButton.LeftButton, pos=start)
+    assert window.solver.live
+    for dx in (15, 30, 45):
+        qtbot.mouseMove(slider, start + QPoint(dx, 0))
+        QApplication.processEvents()
+        assert response.held                       # not recomputed per step
+        for (_l, f0, m0), (_l1, f1, m1) in zip(before, response.plotted_data()):
+            np.testing.assert_array_equal(m0, m1)
+    qtbot.mouseRelease(slider, Qt.MouseButton.LeftButton, pos=start + QPoint(45, 0))
+    window.solver.wait()
+    assert not window.solver.live and not response.held
+    final = window.document.model
+    k1, k2 = final.element("s1").k, final.element("s2").k
+    assert k1 > 1000.0
+    Mm = np.diag([2.0, 1.0])
+    Kk = np.array([[k1 + k2, -k2], [-k2, k2]])
+    lam, phi = np.linalg.eigh(np.linalg.inv(np.sqrt(Mm)) @ Kk @ np.linalg.inv(np.sqrt(Mm)))
+    phi = np.linalg.inv(np.sqrt(Mm)) @ phi                      # mass-normalised shapes
+    C = Mm @ phi @ np.diag(2 * zeta * np.sqrt(lam)) @ phi.T @ Mm
+    index = {lab: j for j, lab in enumerate(("m1", "m2"))}
+    for label, f, mag in response.plotted_data():
+        w = 2 * np.pi * f
+        ref = np.array([np.abs(np.linalg.solve(Kk - wi ** 2 * Mm + 1j * wi * C,
+                                               wi ** 2 * Mm @ np.ones(2))[index[label]] + 1.0)
+                        for wi in w])
+        np.testing.assert_allclose(mag, ref, rtol=1e-9)

@@ -57,6 +57,30 @@ def test_modes_table_follows_an_edit(qtbot, window, two_mass_model):
     np.testing.assert_allclose(shown, expected, rtol=1e-4)
 
 
+def test_slow_solve_marks_results_out_of_date_until_they_arrive(qtbot, window, two_mass_model):
+    """common practice: results older than the model are visibly marked while a solve is
+    pending (past STALE_DELAY_MS), and the mark goes when the new results are shown; the values
+    then match the edited model (eigenvalues of M^-1/2 K M^-1/2 by numpy.linalg.eigvalsh, rtol 1e-4)."""
+    from app.main_window import STALE_DELAY_MS
+
+    window.document.apply(two_mass_model, "start")
+    _wait_results(qtbot, window, window.document.model)
+    assert not window.modes_table.is_stale()
+    window.solver._timer.setInterval(STALE_DELAY_MS + 2000)   # a solve that takes its time
+    edited = two_mass_model.with_changes(put=[solver.Spring("s2", "m1", "m2", 4000.0)])
+    window.document.apply(edited, "stiffer s2")
+    qtbot.waitUntil(window.modes_table.is_stale, timeout=STALE_DELAY_MS + 1500)
+    assert "out of date" in window.pending_label.text()
+    window.solver.wait()
+    assert not window.modes_table.is_stale() and window.pending_label.text() == ""
+    _wait_results(qtbot, window, edited)
+    K = np.array([[5000.0, -4000.0], [-4000.0, 4000.0]])
+    M = np.diag([2.0, 1.0])
+    expected = np.sqrt(np.linalg.eigvalsh(np.linalg.inv(np.sqrt(M)) @ K @ np.linalg.inv(np.sqrt(M))))
+    shown = [r["frequency_hz"] * 2 * np.pi for r in window.modes_table.rows()]
+    np.testing.assert_allclose(shown, expected, rtol=1e-4)
+
+
 def test_window_carries_the_caution_and_a_quick_guide(qtbot, window):
     """common practice: a lumped model is an approximation to be confirmed by test or detailed
     analysis, and local codes and licensed practice govern; the window says so at all times and
