@@ -25,6 +25,16 @@ from .style import current_style
 #: A pending solve is marked out of date only when it takes longer than this (ms).
 STALE_DELAY_MS = 120
 
+
+def first_size(available=None) -> tuple[int, int]:
+    """Window size on a first start: most of the screen, at least 1100 x 720 and at most
+    1800 x 1100 (the panels need the room; a saved geometry wins afterwards)."""
+    if available is None:
+        return 1400, 880
+    w = int(min(1800, max(1100, available.width() * 0.92)))
+    h = int(min(1100, max(720, available.height() * 0.92)))
+    return min(w, available.width()), min(h, available.height())
+
 MAX_RECENT = 8
 FILE_FILTER = "Springwright models (*.json);;All files (*)"
 
@@ -168,14 +178,31 @@ class MainWindow(QMainWindow):
         if geometry is not None:
             self.restoreGeometry(geometry)
         else:
-            self.resize(1400, 880)
+            self.resize(*first_size(self.screen().availableGeometry().size()
+                                    if self.screen() is not None else None))
         state = self.settings.value("window/state")
         if state is not None:
             self.restoreState(state)
+        else:
+            QTimer.singleShot(0, self._first_layout)   # once the window has its real size
         self._update_title()
         self._on_mode_change(self.scene.mode)
 
     # -- layout helpers -----------------------------------------------------------------------
+    def _first_layout(self):
+        """Dock sizes on a first start: the modes table wide enough for its effective-mass
+        columns, the canvas and the bottom row sharing the height."""
+        docks = {d.objectName(): d for d in self.findChildren(QDockWidget)}
+        row = [docks[n] for n in ("dock_modes", "dock_tune", "dock_response") if n in docks]
+        w, h = self.width(), self.height()
+        if len(row) == 3:
+            self.resizeDocks(row, [int(w * 0.27), int(w * 0.33), int(w * 0.40)], Qt.Horizontal)
+            self.resizeDocks(row[:1], [int(h * 0.45)], Qt.Vertical)
+        side = [docks[n] for n in ("dock_properties", "dock_motion") if n in docks]
+        if len(side) == 2:
+            self.resizeDocks(side, [int(h * 0.28), int(h * 0.30)], Qt.Vertical)
+        QTimer.singleShot(0, self.view.fit)   # the canvas has its final size now
+
     def _dock(self, title, widget, area, name):
         dock = QDockWidget(title, self)
         dock.setObjectName(name)

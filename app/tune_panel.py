@@ -76,6 +76,32 @@ def source_texts(model) -> list[str]:
     return out
 
 
+_SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
+
+
+def value_text(v: float) -> str:
+    """A tick label for a value on a log axis: ``50``, ``0.2``, ``5×10⁶``."""
+    if 1e-3 <= v < 1e4:
+        return f"{v:g}"
+    e = int(math.floor(math.log10(v) + 1e-9))
+    m = v / 10 ** e
+    exp = str(e).translate(_SUPERSCRIPT)
+    return f"10{exp}" if abs(m - 1) < 1e-6 else f"{m:g}×10{exp}"
+
+
+def log_value_ticks(lo: float, hi: float, labelled=(1, 2, 5)):
+    """pyqtgraph ticks (log10 units) from lo to hi: ``labelled`` mantissas of each decade carry a
+    label, the other integers are unlabelled minor ticks (the default ticks overlap)."""
+    major, minor = [], []
+    for e in range(int(math.floor(math.log10(lo))) - 1, int(math.ceil(math.log10(hi))) + 1):
+        for m in range(1, 10):
+            v = m * 10.0 ** e
+            if lo / 1.001 <= v <= hi * 1.001:
+                (major if m in labelled else minor).append((math.log10(v), value_text(v)
+                                                            if m in labelled else ""))
+    return [major, minor]
+
+
 def band_crossings(values, freqs, bands) -> list[tuple[float, float]]:
     """Points ``(value, Hz)`` where a mode curve crosses an edge of a widened band.
 
@@ -236,7 +262,7 @@ class TunePanel(QWidget):
         pi.showGrid(x=True, y=True, alpha=0.25)
         pi.setLabel("left", "natural frequency", units="Hz")
         pi.setMenuEnabled(False)
-        pi.getAxis("bottom").setStyle(maxTickLevel=0)   # decade labels only: minor ones collide
+        pi.getAxis("bottom").setStyle(maxTickLevel=1)   # ticks set per sweep (log_value_ticks)
         for ax in ("left", "bottom"):
             pi.getAxis(ax).setTextPen(st.ink)
             pi.getAxis(ax).setPen(st.ink_soft)
@@ -589,6 +615,8 @@ class TunePanel(QWidget):
         pi.addItem(self._proposal_line)
         band_top = max([b[5] for b in bands if b[5] < 3 * top] + [0.0])
         pi.setXRange(math.log10(values[0]), math.log10(values[-1]), padding=0.02)
+        # a decade either way: label 1 and 5 of each decade (1, 2, 5 would overlap here)
+        pi.getAxis("bottom").setTicks(log_value_ticks(values[0], values[-1], labelled=(1, 5)))
         pi.setYRange(0, max(top, band_top) * 1.05, padding=0)
         pi.setTitle(f"every mode against {model.element(eid).label} · {f}", color=st.ink_soft_hex,
                     size="9pt")
