@@ -231,8 +231,11 @@ def _model_sketch(pg: _Page, model):
     crowded = len(model.masses) > 10
     ys = [n.y for n in list(model.masses) + list(model.anchors)]
     flat = not ys or max(ys) - min(ys) < 1e-9   # everything on one row: a shallow band will do
+    tall = _is_tall(model)   # a stack: give it height
     h = round(2.6 * d) if model.kind != "line" and not flat else \
         round(1.3 * d if crowded or flat else 1.7 * d)
+    if tall:
+        h = max(h, round(3.0 * d))
     rect = QRectF(pg.left, pg.y, pg.right - pg.left, h)
     paint_sketch(pg.p, model, rect, style=pg.st, labels=False if crowded else "values",
                  base=0.22 * d)
@@ -339,14 +342,25 @@ def _thumbnails(pg: _Page, model, analysis, n_shown: int, n_total: int):
         pg.p.setBrush(Qt.BrushStyle.NoBrush)
         shape = modal.node_displacement(n)
         inner = box.adjusted(4, 4, -4, -4)
-        if model.kind == "line" and len(model.masses) > 1:
+        if model.kind == "line" and len(model.masses) > 1 and _is_tall(model):
+            # A stack (a rack, a tower): the drawing on the left, each mass's displacement
+            # along the axis plotted sideways at its own height (the sway curve).
+            sketch_box = QRectF(inner.left(), inner.top(), inner.width() * 0.45, inner.height())
+            curve_box = QRectF(sketch_box.right(), inner.top(), inner.width() - sketch_box.width(),
+                               inner.height())
+            inner = sketch_box
+            lay = SketchLayout(model, inner, base=base)
+            _sway_curve(pg, model, shape, curve_box, lay)
+        elif model.kind == "line" and len(model.masses) > 1:
             # Motion along the line is hard to see on a long chain: plot each mass's
             # displacement across the line above the drawing, the textbook mode-shape curve.
             curve_box = QRectF(inner.left(), inner.top(), inner.width(), inner.height() * 0.55)
             inner = QRectF(inner.left(), curve_box.bottom(), inner.width(),
                            inner.height() - curve_box.height())
             _shape_curve(pg, model, shape, curve_box, base)
-        lay = SketchLayout(model, inner, base=base)
+            lay = SketchLayout(model, inner, base=base)
+        else:
+            lay = SketchLayout(model, inner, base=base)
         scale = fit_scale(lay, shape, 0.12)
         paint_sketch(pg.p, model, inner, shape, scale, st, undeformed=True, labels=False,
                      layout=lay)
@@ -376,6 +390,42 @@ def _thumbnails(pg: _Page, model, analysis, n_shown: int, n_total: int):
                      st.ink_soft)
 
 
+def _is_tall(model) -> bool:
+    """The nodes span more height than width (a stack of levels)."""
+    nodes = list(model.masses) + list(model.anchors)
+    if not nodes:
+        return False
+    xs, ys = [n.x for n in nodes], [n.y for n in nodes]
+    return (max(ys) - min(ys)) > 1.5 * (max(xs) - min(xs))
+
+
+def _sway_curve(pg: _Page, model, shape: dict, box: QRectF, lay: SketchLayout):
+    """A stacked line model: displacement (sideways) of each mass at its drawn height."""
+    st = pg.st
+    # anchors are the still points the curve starts from (a base, a ceiling)
+    pts = sorted([(lay.to_px(m.x, m.y).y(), shape.get(m.id, {}).get(model.axis, 0.0))
+                  for m in model.masses] +
+                 [(lay.to_px(a.x, a.y).y(), 0.0) for a in model.anchors], key=lambda t: -t[0])
+    big = max((abs(u) for _h, u in pts), default=0.0) or 1.0
+    mid = box.center().x()
+    amp = 0.4 * box.width()
+    pg.p.setPen(QPen(st.grid, 1.0))
+    pg.p.drawLine(QPointF(mid, box.top() + 4), QPointF(mid, box.bottom() - 4))
+    pg.p.setPen(QPen(st.accent, max(1.5, 0.008 * pg.dpi)))
+    prev = None
+    for h, u in pts:
+        q = QPointF(mid + amp * u / big, h)
+        if prev is not None:
+            pg.p.drawLine(prev, q)
+        prev = q
+    r = max(1.5, 0.012 * pg.dpi) if len(pts) <= 20 else 0
+    if r:
+        pg.p.setBrush(st.accent)
+        for h, u in pts:
+            pg.p.drawEllipse(QPointF(mid + amp * u / big, h), r, r)
+    pg.p.setBrush(Qt.BrushStyle.NoBrush)
+
+
 def _shape_curve(pg: _Page, model, shape: dict, box: QRectF, base: float):
     """Displacement of each mass (along the axis) plotted against its drawn position."""
     st = pg.st
@@ -386,18 +436,11 @@ def _shape_curve(pg: _Page, model, shape: dict, box: QRectF, base: float):
         u = shape.get(m.id, {}).get(axis)
         if u is None:
             u = 0.0
-        p = lay.to_px(m.x, m.y)
-        along = p.x() if axis == "x" else -p.y()
-        pts.append((along, u))
+        pts.append((lay.to_px(m.x, m.y).x(), u))   # a wide layout: positions run across
     pts.sort()
     big = max((abs(u) for _a, u in pts), default=0.0) or 1.0
     mid = box.center().y()
     amp = 0.4 * box.height()
-    if axis == "y":  # positions run up the page; spread them across the box instead
-        lo, hi = pts[0][0], pts[-1][0]
-        span = (hi - lo) or 1.0
-        pts = [(box.left() + 0.1 * box.width() + 0.8 * box.width() * (a - lo) / span, u)
-               for a, u in pts]
     pg.p.setPen(QPen(st.grid, 1.0))
     pg.p.drawLine(QPointF(box.left() + 4, mid), QPointF(box.right() - 4, mid))
     pen = QPen(st.accent, max(1.5, 0.008 * pg.dpi))

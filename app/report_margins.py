@@ -105,8 +105,9 @@ def paint_margin_check(pg, model, analysis) -> None:
                  " % margin). A mode in the light or dark shade is too close.", 7.5, st.ink_soft)
     if result.conflicts:
         for c in result.conflicts:
-            pg.paragraph("✗ " + c.message + f" (nearest clear: {c.move_hz:+.3g} Hz)", 8.5,
-                         st.error, indent=0.1 * d)
+            way = "lower it" if c.move_hz < 0 else "raise it"
+            pg.paragraph("✗ " + c.message + f" (the smaller move: {way} by"
+                         f" {abs(c.move_hz):.3g} Hz)", 8.5, st.error, indent=0.1 * d)
     else:
         pg.paragraph(f"✓ Every elastic mode clears every source by at least"
                      f" {result.margin_percent:g} %.", 8.5, st.accent, indent=0.1 * d)

@@ -17,7 +17,7 @@ import math
 from statistics import median
 
 from PySide6.QtCore import QPointF, QRectF, Qt
-from PySide6.QtGui import QBrush, QColor, QFont, QFontMetricsF, QPainter, QPen
+from PySide6.QtGui import QBrush, QFont, QFontMetricsF, QPainter, QPen
 
 from . import shapes
 from .style import LIGHT, Style, current_style
@@ -338,6 +338,8 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
     pen.setJoinStyle(Qt.PenJoinStyle.RoundJoin)
     painter.setBrush(Qt.BrushStyle.NoBrush)
     label_jobs = []
+    mass_jobs = []      # placed first: a mass's label matters most
+    obstacles = []      # symbol rectangles labels should not cover
 
     # anchors (never move)
     for a in model.anchors:
@@ -345,11 +347,17 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
         c = lay.point(a.id)
         normal = lay.anchor_normal(a.id)
         painter.drawPath(shapes.anchor_path(c, 1.5 * base, normal))
+        obstacles.append(QRectF(c.x() - 0.8 * base, c.y() - 0.8 * base, 1.6 * base, 1.6 * base))
         if labels and not grey:
-            # label on the hatched side, out of the way of the springs
+            # label on the hatched side, out of the way of the springs; beside a wall it ends
+            # (or starts) clear of the hatching instead of centring across it
             off = 0.75 * base + 0.5 * fm.height()
-            label_jobs.append((QPointF(c.x() - normal.x() * off, c.y() - normal.y() * off),
-                               a.label, st.ink_soft, None))
+            pos = QPointF(c.x() - normal.x() * off, c.y() - normal.y() * off)
+            align = None
+            if abs(normal.x()) > 0.5:
+                align = "right" if normal.x() > 0 else "left"
+                pos = QPointF(c.x() - normal.x() * 0.9 * base, c.y())
+            label_jobs.append((pos, a.label, st.ink_soft, align))
 
     # springs
     for s in model.springs:
@@ -420,6 +428,7 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
             rect = lay.mass_rect(m, c)
             painter.drawRect(rect)
             below = rect.height() / 2
+        obstacles.append(QRectF(c.x() - below, c.y() - below, 2 * below, 2 * below))
         if m.fixed and not grey:
             painter.setPen(QPen(st.ink_soft, lw))
             _paint_locks(painter, lay, c, below, m.fixed)
@@ -433,15 +442,15 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
             side = _free_side(lay, m.id)
             gap = below + 0.2 * base
             if side == "below":
-                label_jobs.append((QPointF(c.x(), c.y() + gap + 0.5 * fm.height()),
+                mass_jobs.append((QPointF(c.x(), c.y() + gap + 0.5 * fm.height()),
                                    text, st.label, None))
             elif side == "above":
-                label_jobs.append((QPointF(c.x(), c.y() - gap - 0.5 * fm.height()),
+                mass_jobs.append((QPointF(c.x(), c.y() - gap - 0.5 * fm.height()),
                                    text, st.label, None))
             elif side == "right":
-                label_jobs.append((QPointF(c.x() + gap, c.y()), text, st.label, "left"))
+                mass_jobs.append((QPointF(c.x() + gap, c.y()), text, st.label, "left"))
             else:
-                label_jobs.append((QPointF(c.x() - gap, c.y()), text, st.label, "right"))
+                mass_jobs.append((QPointF(c.x() - gap, c.y()), text, st.label, "right"))
 
     if labels and not grey and model.kind == "line":
         # a small arrow saying which way the masses move
@@ -458,13 +467,31 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
                            model.axis, st.ink_soft, "left"))
 
     bounds = lay.rect
-    for pos, text, color, align in label_jobs:
+    placed: list[QRectF] = []
+    h = fm.height()
+    for pos, text, color, align in mass_jobs + label_jobs:
         painter.setPen(QPen(color))
         w = fm.horizontalAdvance(text)
         x = pos.x() if align == "left" else pos.x() - w if align == "right" else pos.x() - w / 2
         # keep labels inside the sketch's rectangle
         x = min(max(x, bounds.left() + 2), bounds.right() - w - 2)
-        painter.drawText(QPointF(x, pos.y() + fm.ascent() / 2 - fm.descent() / 2), text)
+        rect = QRectF(x, pos.y() - h / 2, w, h)
+        rect = _clear_spot(rect, placed, obstacles, h) or rect
+        placed.append(rect)
+        painter.drawText(QPointF(rect.left(), rect.center().y() + fm.ascent() / 2
+                                 - fm.descent() / 2), text)
+
+
+def _clear_spot(rect: QRectF, placed, obstacles, h: float) -> QRectF | None:
+    """``rect`` or the nearest vertical shift of it (up to three lines either way) that overlaps
+    no label already placed and no symbol; None when every try collides."""
+    for k in (0, -1, 1, -2, 2, -3, 3):
+        r = rect.translated(0, k * 0.9 * h)
+        probe = r.adjusted(-2, -1, 2, 1)
+        if not any(probe.intersects(o) for o in placed) and \
+                not any(probe.intersects(o) for o in obstacles):
+            return r
+    return None
 
 
 def _beside(p1: QPointF, p2: QPointF, off: float, fm: QFontMetricsF, text: str,

@@ -12,7 +12,7 @@ in plain words. Shapes are mass-normalised: ``Phi^T M Phi = I``.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
 import numpy as np
 import scipy.linalg
