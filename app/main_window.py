@@ -68,7 +68,11 @@ junction.</td></tr>
 <tr><td><b>A</b></td><td>Place anchor: a fixed point (ground).</td></tr>
 <tr><td><b>K</b></td><td>Connect spring: drag from one node to another.</td></tr>
 <tr><td><b>D</b></td><td>Connect dashpot: drag from one node to another.</td></tr>
-<tr><td><b>Esc</b></td><td>Back to Select.</td></tr>
+<tr><td><b>Esc</b></td><td>Back to Select (or cancel a connection).</td></tr>
+<tr><td><b>Arrows, Tab, Enter</b></td><td>Without a mouse: in a place or connect tool the
+arrows move a cross-hair one grid step (Shift: five), Tab jumps it from node to node, Enter
+places there or starts and then ends a spring or dashpot. In Select, Tab walks the elements and
+the arrows nudge the selected masses and anchors.</td></tr>
 <tr><td><b>F</b>, wheel, middle drag</td><td>Fit, zoom, pan. <b>G</b> toggles grid snap.</td></tr>
 <tr><td><b>Ctrl+Z / Ctrl+Shift+Z</b></td><td>Undo / redo every edit; a drag is one step.</td></tr>
 </table>
@@ -82,7 +86,16 @@ The file always stores SI units.</p>
 direction and its running total, and notes (zero-frequency modes with their cause, repeated
 frequencies, modes within the margin of an excitation). Selecting a row animates that mode in
 the Motion panel. Switch the Motion panel to the free response to play the motion from the
-initial conditions; drag a mass there and let go to set its initial displacement.</p>
+initial conditions; drag a mass there and let go to set its initial displacement (or type it
+in the mass's properties). Keys: <b>[</b> and <b>]</b> previous and next mode, <b>I</b> free
+response, <b>P</b> play or pause, <b>.</b> one step, <b>Home</b> back to t = 0,
+<b>Ctrl+R</b> export the report.</p>
+<h3>Moving a resonance</h3>
+<p>The Tune panel changes one spring or mass with a slider (a decade either way) while the modes
+follow; the sweep plot shows every mode against that value with the excitation bands and their
+margin. <i>Propose</i> picks the element that governs the chosen mode, <i>Retune</i> finds the
+value that puts it on a target frequency, <i>Apply</i> sets it (one undo step). The Sensitivity
+tab lists (p/f) df/dp of every mode to every element.</p>
 <h3>Cautions</h3>
 <p>""" + CAUTION_TEXT + """</p>
 """
@@ -305,6 +318,20 @@ class MainWindow(QMainWindow):
                             "Snap placed and moved nodes to the grid", v, checkable=True)
         snap.setChecked(self.scene.snap)
 
+        mo = mb.addMenu("&Motion")
+        self._action("&Play / pause", self._toggle_play, "P",
+                     "Play or pause the mode animation or the free response", mo)
+        self._action("&Step", self._motion("step"), ".", "Advance the animation one frame", mo)
+        self._action("&Restart", lambda: self.motion_panel.set_time(0.0), "Home",
+                     "Back to t = 0 of the free response", mo)
+        mo.addSeparator()
+        self._action("&Free response", self._motion("show_free_response"), "I",
+                     "Play the response to the model's initial conditions", mo)
+        self._action("&Next mode", lambda: self._step_mode(+1), "]",
+                     "Select and animate the next mode", mo)
+        self._action("P&revious mode", lambda: self._step_mode(-1), "[",
+                     "Select and animate the previous mode", mo)
+
         t = mb.addMenu("&Tools")
         tb = self.addToolBar("Tools")
         tb.setObjectName("toolbar_tools")
@@ -326,6 +353,26 @@ class MainWindow(QMainWindow):
                      "How to draw a model, read its modes and move a resonance", h)
         self._action("&Cautions", self.show_guide, "",
                      "What a lumped model can and cannot tell you", h)
+
+    def _motion(self, name):
+        return lambda: getattr(self.motion_panel, name, lambda: None)()
+
+    def _toggle_play(self):
+        mp = self.motion_panel
+        if hasattr(mp, "is_playing"):
+            mp.pause() if mp.is_playing() else mp.play()
+
+    def _step_mode(self, delta: int):
+        n_modes = getattr(getattr(self.analysis, "modal", None), "n_modes", 0) \
+            if getattr(self, "analysis", None) is not None else 0
+        if not n_modes:
+            return
+        mode = min(max(1, self._selected_mode + delta), n_modes)
+        self._select_mode(mode)
+        self._on_mode_selected(mode)
+        if hasattr(self, "tune_panel"):
+            self.tune_panel.set_mode(mode)
+            self.energy_tint.show(self.solver.last_analysis, mode)
 
     def _add_tune_panels(self):
         """Tune panel beside the modes table, sensitivity table tabbed with it, energy tint."""

@@ -13,8 +13,8 @@ from __future__ import annotations
 import enum
 
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt, Signal
-from PySide6.QtGui import QPainter, QPen
-from PySide6.QtWidgets import QGraphicsLineItem, QGraphicsScene
+from PySide6.QtGui import QPainter, QPainterPath, QPen
+from PySide6.QtWidgets import QGraphicsItem, QGraphicsLineItem, QGraphicsPathItem, QGraphicsScene
 
 from app.style import current_style
 from solver.errors import ModelError
@@ -40,15 +40,16 @@ class Mode(enum.Enum):
 #: Per mode: menu text, keyboard shortcut, status-bar hint.
 MODE_INFO = {
     Mode.SELECT: ("&Select", "S", "Select: click an element, drag to move, drag on empty canvas to"
-                  " select an area; wheel zooms, middle button pans"),
-    Mode.PLACE_MASS: ("Place &mass", "M", "Place mass: click where the mass goes (Esc: back to"
-                      " select)"),
-    Mode.PLACE_ANCHOR: ("Place &anchor", "A", "Place anchor: click where the ground point goes"
-                        " (Esc: back to select)"),
+                  " select an area; Tab walks the elements, arrows nudge; wheel zooms, middle"
+                  " button pans"),
+    Mode.PLACE_MASS: ("Place &mass", "M", "Place mass: click where the mass goes, or arrows/Tab"
+                      " and Enter (Esc: back to select)"),
+    Mode.PLACE_ANCHOR: ("Place &anchor", "A", "Place anchor: click where the ground point goes, or"
+                        " arrows/Tab and Enter (Esc: back to select)"),
     Mode.CONNECT_SPRING: ("Connect s&pring", "K", "Connect spring: drag from one mass or anchor"
-                          " to another (Esc: back to select)"),
+                          " to another, or Tab to a node, Enter, Tab on, Enter (Esc: back)"),
     Mode.CONNECT_DASHPOT: ("Connect &dashpot", "D", "Connect dashpot: drag from one mass or"
-                           " anchor to another (Esc: back to select)"),
+                           " anchor to another, or Tab to a node, Enter, Tab on, Enter (Esc: back)"),
 }
 
 _PARALLEL_GAP = 16.0  # scene units between links joining the same two nodes
@@ -82,6 +83,9 @@ class ModelScene(QGraphicsScene):
         self._press_positions: dict[str, QPointF] | None = None
         self._connect_from: str | None = None
         self._preview: QGraphicsLineItem | None = None
+        self._kb_connecting = False     # a connection started with Enter ends with Enter
+        self._nudges = 0
+        self._kb_cursor: QGraphicsPathItem | None = None
         self._clipboard: tuple = ()
         self._paste_count = 0
         self.selectionChanged.connect(self._on_selection_change)
@@ -104,6 +108,8 @@ class ModelScene(QGraphicsScene):
     # -- mode ---------------------------------------------------------------------------------
     def set_mode(self, mode: Mode) -> None:
         self._cancel_connect()
+        if mode == Mode.SELECT:
+            self._hide_cursor()
         if mode != self.mode:
             self.mode = mode
             self.mode_changed.emit(mode)
@@ -280,17 +286,7 @@ class ModelScene(QGraphicsScene):
             return
         pos = event.scenePos()
         if self.mode in (Mode.PLACE_MASS, Mode.PLACE_ANCHOR):
-            x, y = self.mapper.snapped_model(pos, self.snap)
-            try:
-                if self.mode == Mode.PLACE_MASS:
-                    new_id = self.document.add_mass(x, y)
-                else:
-                    new_id = self.document.add_anchor(x, y)
-            except ModelError as exc:
-                self.status_message.emit(f"Not placed: {exc}")
-            else:
-                self.select_ids([new_id])
-                self.status_message.emit(f"Placed {new_id} at x {x:.4g} m, y {y:.4g} m")
+            self._place_at(pos)
             event.accept()
             return
         node = self.node_at(pos)
@@ -298,6 +294,25 @@ class ModelScene(QGraphicsScene):
             self.status_message.emit("Start the drag on a mass or an anchor")
             event.accept()
             return
+        self._start_connect(node, pos)
+        event.accept()
+
+    def _place_at(self, pos: QPointF) -> str | None:
+        """Place a mass or an anchor (by the mode) at a scene point; the new id or None."""
+        x, y = self.mapper.snapped_model(pos, self.snap)
+        try:
+            if self.mode == Mode.PLACE_MASS:
+                new_id = self.document.add_mass(x, y)
+            else:
+                new_id = self.document.add_anchor(x, y)
+        except ModelError as exc:
+            self.status_message.emit(f"Not placed: {exc}")
+            return None
+        self.select_ids([new_id])
+        self.status_message.emit(f"Placed {new_id} at x {x:.4g} m, y {y:.4g} m")
+        return new_id
+
+    def _start_connect(self, node: NodeItem, pos: QPointF) -> None:
         self._connect_from = node.element_id
         self._preview = QGraphicsLineItem(QLineF(node.pos(), pos))
         pen = QPen(current_style().accent, 1.5, Qt.DashLine)
@@ -305,7 +320,23 @@ class ModelScene(QGraphicsScene):
         self._preview.setPen(pen)
         self._preview.setZValue(5)
         self.addItem(self._preview)
-        event.accept()
+
+    def _finish_connect(self, target: NodeItem | None) -> str | None:
+        """End a connection on ``target`` (None: nothing added); the new link's id or None."""
+        source = self._connect_from
+        self._cancel_connect()
+        what = "spring" if self.mode == Mode.CONNECT_SPRING else "dashpot"
+        if target is None or source is None:
+            self.status_message.emit(f"No {what} added: end on a second mass or anchor")
+            return None
+        try:
+            new_id = self.document.connect(what, source, target.element_id)
+        except ModelError as exc:
+            self.status_message.emit(f"No {what} added: {exc}")
+            return None
+        self.select_ids([new_id])
+        self.status_message.emit(f"Added {what} {new_id}: {source}–{target.element_id}")
+        return new_id
 
     def mouseMoveEvent(self, event):  # noqa: N802
         if self._preview is not None:
@@ -316,21 +347,9 @@ class ModelScene(QGraphicsScene):
         super().mouseMoveEvent(event)
 
     def mouseReleaseEvent(self, event):  # noqa: N802
-        if self._connect_from is not None:
-            source = self._connect_from
-            target = self.node_at(event.scenePos(), exclude=source)
-            self._cancel_connect()
-            what = "spring" if self.mode == Mode.CONNECT_SPRING else "dashpot"
-            if target is None:
-                self.status_message.emit(f"No {what} added: release on a second mass or anchor")
-            else:
-                try:
-                    new_id = self.document.connect(what, source, target.element_id)
-                except ModelError as exc:
-                    self.status_message.emit(f"No {what} added: {exc}")
-                else:
-                    self.select_ids([new_id])
-                    self.status_message.emit(f"Added {what} {new_id}: {source}–{target.element_id}")
+        if self._connect_from is not None and not self._kb_connecting:
+            target = self.node_at(event.scenePos(), exclude=self._connect_from)
+            self._finish_connect(target)
             event.accept()
             return
         super().mouseReleaseEvent(event)
@@ -357,10 +376,178 @@ class ModelScene(QGraphicsScene):
             self.removeItem(self._preview)
         self._preview = None
         self._connect_from = None
+        self._kb_connecting = False
+
+    # -- keyboard -----------------------------------------------------------------------------
+    # Every mouse gesture has a keyboard form. In the place and connect tools a cross-hair
+    # cursor moves by one grid step per arrow key (five with Shift) and Tab jumps it from node to
+    # node; Enter places a mass or anchor there, or starts and then ends a connection on the node
+    # under it. In the select tool, arrows nudge the selected masses and anchors (one undo entry
+    # per press) and Tab walks the selection through the elements.
+    def keyboard_cursor(self) -> QPointF | None:
+        """Scene position of the keyboard cross-hair, None while it is hidden."""
+        item = self._kb_cursor
+        return QPointF(item.pos()) if item is not None and item.isVisible() else None
+
+    def _show_cursor(self, pos: QPointF | None = None) -> QPointF:
+        if self._kb_cursor is None:
+            path = QPainterPath()
+            for a, b in (((-9, 0), (-3, 0)), ((3, 0), (9, 0)), ((0, -9), (0, -3)),
+                         ((0, 3), (0, 9))):
+                path.moveTo(*a)
+                path.lineTo(*b)
+            path.addEllipse(QPointF(0, 0), 3, 3)
+            item = QGraphicsPathItem(path)
+            pen = QPen(current_style().accent, 2)
+            pen.setCosmetic(True)
+            item.setPen(pen)
+            item.setZValue(30)
+            item.setFlag(QGraphicsItem.GraphicsItemFlag.ItemIgnoresTransformations)
+            self.addItem(item)
+            self._kb_cursor = item
+        if pos is None:
+            if self._kb_cursor.isVisible() and self._kb_cursor.scene() is self:
+                pos = self._kb_cursor.pos()
+            else:
+                sel = [self.nodes[e] for e in self.selected_ids() if e in self.nodes]
+                if sel:
+                    pos = sel[0].pos()
+                elif self.views():
+                    v = self.views()[0]
+                    pos = v.mapToScene(v.viewport().rect().center())
+                else:
+                    pos = QPointF(0, 0)
+                pos = self.mapper.snap_scene(pos) if self.snap else pos
+        self._kb_cursor.setPos(pos)
+        self._kb_cursor.show()
+        if self._preview is not None:
+            line = self._preview.line()
+            self._preview.setLine(QLineF(line.p1(), pos))
+        for v in self.views():
+            v.ensureVisible(QRectF(pos.x() - 20, pos.y() - 20, 40, 40))
+        return pos
+
+    def _hide_cursor(self):
+        if self._kb_cursor is not None:
+            self._kb_cursor.hide()
+
+    def _ordered_nodes(self) -> list[NodeItem]:
+        """Masses and anchors in reading order (left to right, then top to bottom)."""
+        model = self.document.model
+        nodes = sorted(model.masses + model.anchors, key=lambda n: (round(n.x, 9), -n.y))
+        return [self.nodes[n.id] for n in nodes if n.id in self.nodes]
+
+    def cycle(self, forward: bool = True) -> bool:
+        """Tab: the next element (select tool) or node (other tools). False past the last one,
+        so focus can move on to the next widget."""
+        if self.mode == Mode.SELECT:
+            m = self.document.model
+            order = [n.element_id for n in self._ordered_nodes()] + \
+                [e.id for e in m.springs + m.dampers if e.id in self.links]
+            sel = self.selected_ids()
+        else:
+            order = [n.element_id for n in self._ordered_nodes()]
+            here = self.keyboard_cursor()
+            at = self.node_at(here) if here is not None else None
+            sel = [at.element_id] if at is not None else []
+        if not order:
+            return False
+        if sel and sel[0] in order:
+            i = order.index(sel[0]) + (1 if forward else -1)
+            if not 0 <= i < len(order):
+                if self.mode == Mode.SELECT:
+                    return False          # let focus move on to the next panel
+                i %= len(order)           # a tool is active: go round (Esc leaves it)
+        else:
+            i = 0 if forward else len(order) - 1
+        eid = order[i]
+        if self.mode == Mode.SELECT:
+            self.select_ids([eid])
+            el = self.document.model.element(eid)
+            self.status_message.emit(f"Selected {el.label} ({eid})")
+            for v in self.views():
+                item = self.nodes.get(eid) or self.links.get(eid)
+                v.ensureVisible(item.sceneBoundingRect())
+        else:
+            self._show_cursor(self.nodes[eid].pos())
+            self.status_message.emit(f"At {self.document.model.element(eid).label} ({eid}):"
+                                     " Enter to use it")
+        return True
+
+    def _nudge(self, dx: int, dy: int, steps: int) -> bool:
+        ids = [e for e in self.selected_ids() if e in self.nodes]
+        if not ids:
+            return False
+        model = self.document.model
+        g = self.mapper.grid_m * steps
+        moved = {}
+        for eid in ids:
+            el = model.element(eid)
+            moved[eid] = (round(el.x + dx * g, 9), round(el.y + dy * g, 9))
+        try:
+            self._nudges += 1
+            self.document.move_nodes(moved, merge_key=("nudge", self._nudges))  # one per press
+        except ModelError as exc:
+            self.status_message.emit(f"Move refused: {exc}")
+            return True
+        self.status_message.emit(f"Moved {len(ids)} node(s) by {dx * g:+.4g} m, {dy * g:+.4g} m")
+        return True
+
+    def _enter(self) -> None:
+        pos = self.keyboard_cursor()
+        if pos is None:
+            self._show_cursor()
+            self.status_message.emit("Arrow keys or Tab move the cross-hair; Enter again to act")
+            return
+        if self.mode in (Mode.PLACE_MASS, Mode.PLACE_ANCHOR):
+            self._place_at(pos)
+            return
+        node = self.node_at(pos, exclude=self._connect_from)
+        if self._connect_from is None:
+            if node is None:
+                self.status_message.emit("Move the cross-hair onto a mass or an anchor (Tab)")
+                return
+            self._start_connect(node, pos)
+            self._kb_connecting = True
+            self.status_message.emit(f"From {node.element_id}: move to a second node and press"
+                                     " Enter (Esc cancels)")
+        else:
+            self._finish_connect(node)
 
     def keyPressEvent(self, event):  # noqa: N802
-        if event.key() == Qt.Key_Escape:
-            self.set_mode(Mode.SELECT)
+        key = event.key()
+        if key == Qt.Key_Escape:
+            if self._connect_from is not None:
+                self._cancel_connect()
+                self.status_message.emit("Connection cancelled")
+            elif self.mode != Mode.SELECT:
+                self._hide_cursor()
+                self.set_mode(Mode.SELECT)
+            else:
+                self.select_ids([])        # Esc in Select: nothing selected, Tab starts over
+            event.accept()
+            return
+        arrows = {Qt.Key_Left: (-1, 0), Qt.Key_Right: (1, 0), Qt.Key_Up: (0, 1),
+                  Qt.Key_Down: (0, -1)}
+        if key in arrows:
+            dx, dy = arrows[key]   # model directions: y up
+            steps = 5 if event.modifiers() & Qt.ShiftModifier else 1
+            if self.mode == Mode.SELECT:
+                if self._nudge(dx, dy, steps):
+                    event.accept()
+                    return
+                super().keyPressEvent(event)
+                return
+            here = self.keyboard_cursor()
+            if here is None:
+                self._show_cursor()
+            else:
+                g = self.mapper.grid_m * self.mapper.px_per_m * steps
+                self._show_cursor(QPointF(here.x() + dx * g, here.y() - dy * g))
+            event.accept()
+            return
+        if key in (Qt.Key_Return, Qt.Key_Enter) and self.mode != Mode.SELECT:
+            self._enter()
             event.accept()
             return
         super().keyPressEvent(event)

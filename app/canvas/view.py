@@ -27,6 +27,13 @@ class CanvasView(QGraphicsView):
         scene.mode_changed.connect(self._on_mode_change)
         self._on_mode_change(scene.mode)
 
+    def focusNextPrevChild(self, next_: bool) -> bool:  # noqa: N802
+        """Tab walks the model's elements first; past the last one focus moves on as usual."""
+        scene = self.scene()
+        if scene is not None and hasattr(scene, "cycle") and scene.cycle(next_):
+            return True
+        return super().focusNextPrevChild(next_)
+
     def changeEvent(self, event):  # noqa: N802
         from PySide6.QtCore import QEvent
 
