@@ -1,7 +1,7 @@
 """Autosave to a recovery file, and the check on start for work a crash left behind.
 
-Every ~30 s, while the document has unsaved edits, the model is written (atomically, with
-solver.save_model) to ``recovery.json`` in the per-user application data folder, with a small
+A couple of seconds after the last edit (and every ~30 s while edits stay unsaved) the model is
+written (atomically, with solver.save_model) to ``recovery.json`` in the per-user application data folder, with a small
 side file naming the document's own path. A clean save or a clean exit removes both. On start, a
 recovery file newer than the last clean exit means the program did not end cleanly with unsaved
 work, so the window offers to restore it.
@@ -20,6 +20,8 @@ from solver.errors import ModelError
 from solver.io import load_model, save_model, write_atomic
 
 AUTOSAVE_MS = 30_000
+#: Quiet time after an edit before it is written to the recovery file.
+AFTER_EDIT_MS = 2_000
 
 
 def recovery_folder() -> Path:
@@ -29,7 +31,8 @@ def recovery_folder() -> Path:
 
 class Recovery(QObject):
     def __init__(self, document, settings: QSettings, folder: Path | None = None,
-                 interval_ms: int = AUTOSAVE_MS, parent=None):
+                 interval_ms: int = AUTOSAVE_MS, after_edit_ms: int = AFTER_EDIT_MS,
+                 parent=None):
         super().__init__(parent)
         self.document = document
         self.settings = settings
@@ -38,6 +41,11 @@ class Recovery(QObject):
         self.timer.setInterval(interval_ms)
         self.timer.timeout.connect(self.autosave)
         self.timer.start()
+        self.soon = QTimer(self)            # debounced: a drag or typing is written once
+        self.soon.setSingleShot(True)
+        self.soon.setInterval(after_edit_ms)
+        self.soon.timeout.connect(self.autosave)
+        document.model_changed.connect(lambda _m: self.soon.start())
         document.dirty_changed.connect(self._on_dirty_change)
 
     @property

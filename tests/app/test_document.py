@@ -138,3 +138,54 @@ def test_autosave_and_recovery_offer(qtbot, window, tmp_path, two_mass_model, se
     again.recovery.mark_clean_exit()
     assert again.recovery.pending() is None
     again.solver.shutdown()
+
+
+_CRASHING_SESSION = r'''
+import os, sys
+os.environ["QT_QPA_PLATFORM"] = "offscreen"
+from pathlib import Path
+from PySide6.QtCore import QSettings, QTimer
+from PySide6.QtWidgets import QApplication
+app = QApplication([])
+from app.main_window import MainWindow
+folder, ini = Path(sys.argv[1]), sys.argv[2]
+w = MainWindow(settings=QSettings(ini, QSettings.IniFormat), recovery_folder=folder)
+w.show()
+from solver import load_model
+w.document.new(model=load_model("assets/examples/shaker_fixture.json"))
+w.document.set_element(w.document.model.masses[0].id, mass=4.321)
+def crash():
+    if (folder / "recovery.json").exists():
+        os._exit(3)              # no clean exit, no atexit, no save: a hard crash
+t = QTimer(); t.timeout.connect(crash); t.start(50)
+QTimer.singleShot(20000, lambda: os._exit(4))   # never reached when autosave works
+app.exec()
+'''
+
+
+def test_edit_survives_a_hard_crash(qtbot, tmp_path):
+    """Common practice: an edit is on disk within seconds (debounced autosave, not only the
+    30 s timer); a process killed without any clean-up leaves it, and the next start offers it
+    back with the edited value."""
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    from PySide6.QtCore import QSettings
+
+    from app.main_window import MainWindow
+
+    folder = tmp_path / "recovery"
+    ini = tmp_path / "crash.ini"
+    root = Path(__file__).resolve().parents[2]
+    proc = subprocess.run([sys.executable, "-c", _CRASHING_SESSION, str(folder), str(ini)],
+                          cwd=root, capture_output=True, text=True, timeout=60)
+    assert proc.returncode == 3, proc.stderr[-2000:]
+    again = MainWindow(settings=QSettings(str(ini), QSettings.IniFormat), recovery_folder=folder)
+    again._ask_save_changes = lambda: "discard"
+    qtbot.addWidget(again)
+    assert again.check_recovery() and not again.recovery_bar.isHidden()
+    again.restore_recovery()
+    assert again.document.model.masses[0].mass == 4.321
+    again.recovery.mark_clean_exit()
+    again.solver.shutdown()
