@@ -69,8 +69,10 @@ def solve_json(analysis) -> dict:
             "effective_mass_kg": {d: _num(v[i]) for d, v in modal.effective_mass.items()},
             "effective_mass_percent": {d: _num(v[i]) for d, v in pct.items()},
             "participation_factor": {d: _num(v[i]) for d, v in modal.participation.items()},
-            "strain_energy_fraction": analysis.energy.strain_energy_fraction(n),
-            "kinetic_energy_fraction": analysis.energy.kinetic_energy_fraction(n),
+            "strain_energy_fraction": {k: _num(v) for k, v in
+                                       analysis.energy.strain_energy_fraction(n).items()},
+            "kinetic_energy_fraction": {k: _num(v) for k, v in
+                                        analysis.energy.kinetic_energy_fraction(n).items()},
             "repeated_with": [m for m in modal.repeated_group(n) if m != n],
             "conflicts": list(dict.fromkeys(c.source_id for c in margins.conflicts if c.mode == n)),
         }
@@ -199,7 +201,15 @@ def main(argv=None) -> int:
         p.add_argument("file")
         p.add_argument("-o", "--output", required=True, help="PNG file to write")
         args = parser.parse_args(argv)
-        return cmd_solve(args) if args.command == "solve" else cmd_report(args)
+        try:
+            return cmd_solve(args) if args.command == "solve" else cmd_report(args)
+        except Exception as exc:   # a bug, not the user's input: one line, the details on request
+            if os.environ.get("SPRINGWRIGHT_DEBUG"):
+                raise
+            print(f"springwright: internal error on {args.file}: {type(exc).__name__}: {exc}"
+                  " (set SPRINGWRIGHT_DEBUG=1 for the traceback; please report it)",
+                  file=sys.stderr)
+            return 1
     parser = _Parser(prog="springwright",
                      description="Open the Springwright desktop program (on a built-in example"
                                  " when no FILE is given). Also: springwright solve FILE [--json],"

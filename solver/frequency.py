@@ -24,7 +24,7 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from .assemble import System, assemble
-from .errors import ModelError
+from .errors import ModelError, number, numbers
 from .model import Model
 from .modes import modes
 
@@ -41,7 +41,7 @@ def _system(model_or_system) -> System:
 
 
 def _freqs(freqs_hz) -> np.ndarray:
-    f = np.atleast_1d(np.asarray(freqs_hz, float))
+    f = np.atleast_1d(numbers(freqs_hz, "frequencies"))
     if f.ndim != 1 or not np.all(np.isfinite(f)) or np.any(f < 0):
         raise ModelError("frequencies must be a 1-D list of finite values >= 0 Hz")
     return f
@@ -224,7 +224,7 @@ def harmonic_response(model, freqs_hz, forces, output: str = "displacement",
             from .assemble import _no_dof_message
 
             raise ModelError("force: " + _no_dof_message(system.model, *key))
-        F[index[key]] += complex(amp)
+        F[index[key]] += number(amp, f"force amplitude at {key[0]} in {key[1]}", complex)
     if method == "direct":
         X = _dynamic_solve(system, f, lambda w: F)
     elif method == "modal":

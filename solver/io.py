@@ -244,6 +244,8 @@ def model_to_dict(model: Model) -> dict:
 
 def load_model(path) -> Model:
     """Read a model file. Raises :class:`ModelFileError` naming the file and the problem."""
+    if not isinstance(path, (str, os.PathLike)):
+        raise ModelFileError(f"load_model: expected a file path, got {type(path).__name__}")
     path = Path(path)
     try:
         raw = path.read_bytes()
@@ -292,4 +294,8 @@ def write_atomic(path, text: str) -> None:
 
 def save_model(model: Model, path) -> None:
     """Write a model file atomically. ``load_model(path) == model`` afterwards."""
+    if not isinstance(model, Model):
+        raise ModelError(f"save_model: expected a Model, got {type(model).__name__}")
+    if not isinstance(path, (str, os.PathLike)):
+        raise ModelError(f"save_model: expected a file path, got {type(path).__name__}")
     write_atomic(path, dumps_model(model))

@@ -14,6 +14,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from .errors import number
 from .model import Model
 
 #: Relative tolerance on a widened edge: a mode within this of an edge is on it (round-off of the
@@ -72,7 +73,8 @@ def source_bands(model: Model, margin_percent: float | None = None) -> tuple:
 
 def margin_check(model: Model, modal, margin_percent: float | None = None) -> MarginResult:
     """Check every elastic mode of ``modal`` (a ModalResult) against the model's sources."""
-    pct = model.margin_percent if margin_percent is None else float(margin_percent)
+    pct = model.margin_percent if margin_percent is None else number(margin_percent,
+                                                                     "margin_percent")
     bands = source_bands(model, pct)
     zero = modal.is_zero
     conflicts = []

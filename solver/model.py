@@ -44,18 +44,30 @@ def _finite(owner: str, name: str, value, unit: str = "") -> float:
     return v
 
 
-def _nonneg(owner: str, name: str, value, unit: str) -> float:
+#: Magnitudes a physical value may take (besides 0): far wider than any real mass, stiffness,
+#: damping or frequency, narrow enough that squares and products stay finite in double precision.
+TINY, HUGE = 1e-30, 1e30
+
+
+def _in_range(owner: str, name: str, v: float, unit: str) -> float:
+    if v != 0 and not (TINY <= abs(v) <= HUGE):
+        raise ModelError(f"{owner}: {name} = {v:.3g} {unit} is outside the range a model can be"
+                         f" solved in ({TINY:g} to {HUGE:g} {unit}, or 0)")
+    return v
+
+
+def _nonneg(owner: str, name: str, value, unit: str, ranged: bool = False) -> float:
     v = _finite(owner, name, value, f" in {unit}")
     if v < 0:
         raise ModelError(f"{owner}: {name} must be zero or positive, got {_fmt(v)} {unit}")
-    return v
+    return _in_range(owner, name, v, unit) if ranged else v
 
 
-def _positive(owner: str, name: str, value, unit: str) -> float:
+def _positive(owner: str, name: str, value, unit: str, ranged: bool = False) -> float:
     v = _finite(owner, name, value, f" in {unit}")
     if v <= 0:
         raise ModelError(f"{owner}: {name} must be positive, got {_fmt(v)} {unit}")
-    return v
+    return _in_range(owner, name, v, unit) if ranged else v
 
 
 def _fmt(v: float) -> str:
@@ -92,7 +104,8 @@ class Mass:
         owner = f'mass "{self.id}"'
         _set(self, "x", _finite(owner, "x", self.x, " in m"))
         _set(self, "y", _finite(owner, "y", self.y, " in m"))
-        _set(self, "mass", _nonneg(owner, "mass", self.mass, "kg (kg m^2 for a disc)"))
+        _set(self, "mass", _nonneg(owner, "mass", self.mass, "kg (kg m^2 for a disc)",
+                                       ranged=True))
         _set(self, "label", str(self.label) if self.label else self.id)
         fixed = tuple(self.fixed)
         for d in fixed:
@@ -145,8 +158,9 @@ class Spring:
         owner = f'spring "{self.id}"'
         _set(self, "a", _check_id(f"{owner} end a", self.a))
         _set(self, "b", _check_id(f"{owner} end b", self.b))
-        _set(self, "k", _positive(owner, "stiffness k", self.k, "N/m"))
-        _set(self, "k_t", _nonneg(owner, "transverse stiffness k_t", self.k_t, "N/m"))
+        _set(self, "k", _positive(owner, "stiffness k", self.k, "N/m", ranged=True))
+        _set(self, "k_t", _nonneg(owner, "transverse stiffness k_t", self.k_t, "N/m",
+                                      ranged=True))
         _set(self, "label", str(self.label) if self.label else self.id)
 
 
@@ -165,7 +179,8 @@ class Damper:
         owner = f'dashpot "{self.id}"'
         _set(self, "a", _check_id(f"{owner} end a", self.a))
         _set(self, "b", _check_id(f"{owner} end b", self.b))
-        _set(self, "c", _nonneg(owner, "damping coefficient c", self.c, "N s/m"))
+        _set(self, "c", _nonneg(owner, "damping coefficient c", self.c, "N s/m",
+                                    ranged=True))
         _set(self, "label", str(self.label) if self.label else self.id)
 
 

@@ -16,7 +16,7 @@ import numpy as np
 import scipy.linalg
 
 from .assemble import System, assemble
-from .errors import ModelError
+from .errors import ModelError, number, numbers
 from .model import Model
 from .modes import ModalResult, modes
 
@@ -83,8 +83,17 @@ def initial_vectors(system: System, x0=None, v0=None):
         else:
             items = list(given.items())
         for key, value in items:
+            if not (isinstance(key, tuple) and len(key) == 2):
+                raise ModelError(f"free response: initial {what} keys are (mass_id, direction),"
+                                 f" got {key!r}")
+            value = number(value, f"initial {what} of {key[0]} in {key[1]}")
             if key in lookup:
-                vec[lookup[key]] = float(value)
+                vec[lookup[key]] = value
+            elif key[0] not in {m.id for m in model.masses} or key[1] not in model.directions:
+                from .assemble import _no_dof_message
+
+                raise ModelError(f"free response: initial {what}: "
+                                 + _no_dof_message(model, *key))
             elif value:
                 warnings.append(f'initial {what} of "{key[0]}" in {key[1]} is ignored: that'
                                 " direction is locked or belongs to a massless junction")
@@ -179,7 +188,7 @@ def free_response(model, times, result: ModalResult | None = None, x0=None, v0=N
     system = model if isinstance(model, System) else (result.system if result is not None
                                                        else assemble(model))
     model = system.model
-    t = np.atleast_1d(np.asarray(times, float))
+    t = np.atleast_1d(numbers(times, "free response: times"))
     if t.ndim != 1 or not np.all(np.isfinite(t)):
         raise ModelError("free response: times must be a 1-D array of finite values in s")
     x, v, warnings = initial_vectors(system, x0, v0)

@@ -15,7 +15,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 from scipy.optimize import brentq
 
-from .errors import ModelError
+from .errors import ModelError, number, numbers
 from .model import Mass, Model, Spring
 from .modes import modes
 
@@ -97,7 +97,7 @@ def retune(model: Model, element_id: str, mode: int, target_hz: float,
         reachable range; or on a bad id, field, mode or target.
     """
     el, f = _field_for(model, element_id, field)
-    target = float(target_hz)
+    target = number(target_hz, "retune: target frequency (Hz)")
     if not math.isfinite(target) or target <= 0:
         raise ModelError(f"retune: target frequency must be a positive number of Hz, got {target_hz!r}")
     if isinstance(mode, bool) or int(mode) != mode or mode < 1:
@@ -186,7 +186,7 @@ def sweep(model: Model, element_id: str, values, field: str | None = None,
           count: int | None = None) -> SweepResult:
     """Solve the model at each value of one element's stiffness or mass."""
     el, f = _field_for(model, element_id, field)
-    values = np.asarray(values, float)
+    values = numbers(values, f'sweep of "{element_id}": values')
     if values.ndim != 1 or not np.all(np.isfinite(values)) or np.any(values <= 0):
         raise ModelError(f'sweep of "{element_id}": values must be positive finite numbers')
     rows = []

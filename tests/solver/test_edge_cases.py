@@ -104,7 +104,80 @@ def test_damping_parameters_default_to_zero_in_the_file(tmp_path):
 def test_values_beyond_double_precision_are_refused_with_the_element():
     """common practice: a mass of 1e-320 kg is a units mistake; the solver says which element
     instead of returning NaN."""
-    model = Model(kind="line", masses=(Mass("tiny", 1, 0, 1e-320),), anchors=(Anchor("g", 0, 0),),
-                  springs=(Spring("s", "g", "tiny", 1.0),))
     with pytest.raises(solver.ModelError, match="tiny"):
-        solver.modes(model)
+        Model(kind="line", masses=(Mass("tiny", 1, 0, 1e-320),), anchors=(Anchor("g", 0, 0),),
+              springs=(Spring("s", "g", "tiny", 1.0),))
+    # within the accepted range but 1e25 apart: the solver still names the problem
+    model = Model(kind="line", masses=(Mass("tiny", 1, 0, 1e-20),), anchors=(Anchor("g", 0, 0),),
+                  springs=(Spring("s", "g", "tiny", 1e6),))
+    try:
+        res = solver.modes(model)
+    except solver.ModelError as exc:
+        assert "tiny" in str(exc) or "range" in str(exc)
+    else:
+        assert np.all(np.isfinite(res.frequencies_hz))
+
+
+def test_subnormal_values_are_refused_when_the_model_is_built_and_loaded(tmp_path):
+    """common practice: 5e-324 N/m or kg is no physical value; the element, the field and the
+    allowed range are named, in the model and in the file (ModelFileError)."""
+    with pytest.raises(solver.ModelError, match=r'spring "s".*1e-30 to 1e\+30'):
+        Spring("s", "g", "m", 5e-324)
+    path = tmp_path / "sub.json"
+    path.write_text(json.dumps({
+        "format": "springwright-model", "version": 1, "kind": "line",
+        "masses": [{"id": "m", "x": 1, "y": 0, "mass": 5e-324}],
+        "anchors": [{"id": "g", "x": 0, "y": 0}],
+        "springs": [{"id": "s", "a": "g", "b": "m", "k": 1000}]}))
+    with pytest.raises(solver.ModelFileError, match=r'mass "m"'):
+        solver.load_model(path)
+
+
+@pytest.mark.parametrize("call", [
+    lambda m: solver.harmonic_response(m, ["a"], {("m", "x"): 1.0}),
+    lambda m: solver.harmonic_response(m, [1.0], {("m", "x"): "abc"}),
+    lambda m: solver.base_transmissibility(m, "fast", "x"),
+    lambda m: solver.free_response(m, ["a"]),
+    lambda m: solver.free_response(m, [0.1], x0={("zz", "x"): 1.0}),
+    lambda m: solver.free_response(m, [0.1], x0={("m", "x"): "five"}),
+    lambda m: solver.sweep(m, "s", ["a"]),
+    lambda m: solver.retune(m, "s", 1, "abc"),
+    lambda m: solver.retune(m, "s", 1, None),
+    lambda m: solver.margin_check(m, solver.modes(m), margin_percent="a"),
+    lambda m: solver.load_model(None),
+    lambda m: solver.save_model("not a model", "x.json"),
+], ids=["freqs", "force", "base-freqs", "times", "ic-id", "ic-value", "sweep", "target",
+        "target-none", "margin", "load-none", "save-type"])
+def test_bad_arguments_raise_model_error_only(call):
+    """DESIGN.md: bad input raises solver.ModelError (ModelFileError for files) with a message,
+    never another exception type."""
+    model = Model(kind="line", masses=(Mass("m", 1, 0, 2.0),), anchors=(Anchor("g", 0, 0),),
+                  springs=(Spring("s", "g", "m", 800.0),))
+    with pytest.raises(solver.ModelError) as info:
+        call(model)
+    assert type(info.value) in (solver.ModelError, solver.ModelFileError)
+    assert str(info.value)
+
+
+def test_readme_scripting_example_runs():
+    """The README's scripting lines run as written on the example they name, and the retuned
+    stiffness puts mode 1 on 7.0 Hz (checked by a fresh solve, rtol 1e-9)."""
+    import pathlib
+    import re
+
+    root = pathlib.Path(__file__).resolve().parents[2]
+    text = (root / "README.md").read_text("utf-8")
+    block = re.search(r"```python\n(.*?)```", text, re.S).group(1)
+    env = {}
+    import os
+
+    cwd = os.getcwd()
+    os.chdir(root)
+    try:
+        exec(compile(block, "README.md", "exec"), env)
+    finally:
+        os.chdir(cwd)
+    k = env["k"]
+    model = solver.with_value(env["model"], "post1", k)
+    assert solver.modes(model).frequencies_hz[0] == pytest.approx(7.0, rel=1e-9)
+    assert env["H"].shape == (2, len(solver.assemble(env["model"]).dofs))
