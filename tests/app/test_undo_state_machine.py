@@ -34,7 +34,7 @@ class UndoMachine(RuleBasedStateMachine):
         m = self.doc.model
         return [n.id for n in m.masses + m.anchors]
 
-    @rule(x=coords, y=coords, mass=st.floats(0, 50))
+    @rule(x=coords, y=coords, mass=st.just(0.0) | st.floats(1e-6, 50))
     def add_mass(self, x, y, mass):
         self.doc.add_mass(x, y, mass)
         self._did(True)
