@@ -11,7 +11,7 @@ import io
 import math
 
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt, Signal
-from PySide6.QtGui import QGuiApplication
+from PySide6.QtGui import QColor, QGuiApplication
 from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QLabel, QTableView, QVBoxLayout, QWidget
 
 from .style import current_style
@@ -36,20 +36,17 @@ def _directions(analysis) -> list[str]:
     return dirs + [d for d in modal.effective_mass if d not in dirs]
 
 
-def _excitation_hits(model, f_hz: float) -> list[str]:
-    """Excitations whose frequency (or band) lies within the model's margin of ``f_hz``."""
-    if f_hz <= 0:
-        return []
-    m = model.margin_percent / 100.0
+def _excitation_hits(model, margin, mode: int) -> list[str]:
+    """Sources (with order) whose margin-widened interval holds ``mode``: the solver's margin
+    check (:func:`solver.margin_check`), so the table, the report and the command line agree."""
+    labels = {e.id: e.label for e in model.excitations}
     hits = []
-    for ex in model.excitations:
-        for i, (lo, hi) in enumerate(ex.frequencies_hz()):
-            if lo * (1 - m) <= f_hz <= hi * (1 + m):
-                if ex.type == "speed":
-                    order = ex.orders[i]
-                    hits.append(f"{ex.label} order {order:g} ({lo:.4g} Hz)")
-                else:
-                    hits.append(f"{ex.label} ({lo:.4g} to {hi:.4g} Hz)")
+    for c in margin.for_mode(mode):
+        name = labels.get(c.source_id, c.source_id)
+        if c.order is not None:
+            hits.append(f"{name} order {c.order:g} ({c.low_hz:.4g} Hz)")
+        else:
+            hits.append(f"{name} ({c.low_hz:.4g} to {c.high_hz:.4g} Hz)")
     return hits
 
 
@@ -74,11 +71,14 @@ def mode_table_rows(analysis) -> list[dict]:
     pct = modal.effective_mass_percent
     cum = modal.cumulative_percent
     rows = []
+    from solver.margins import margin_check
+
+    margin = margin_check(model, modal)
     for i in range(modal.n_modes):
         n = i + 1
         z = modal.zero_mode(n)
         group = tuple(g for g in modal.repeated_group(n) if g != n)
-        near = _excitation_hits(model, float(f[i]))
+        near = _excitation_hits(model, margin, n)
         flags = []
         if z is not None:
             flags.append(f"zero frequency ({z.kind}): {z.cause}")
@@ -122,7 +122,9 @@ def _short_flags(row: dict) -> str:
     if row["repeated_with"]:
         parts.append("repeated")
     if row["near_excitation"]:
-        parts.append("near excitation")
+        first = row["near_excitation"][0].split(" (")[0]
+        more = len(row["near_excitation"]) - 1
+        parts.append(f"in margin of {first}" + (f" (+{more})" if more else ""))
     return ", ".join(parts)
 
 
@@ -251,9 +253,16 @@ class _ModesModel(QAbstractTableModel):
             st = current_style()
             if self.stale:
                 return st.undeformed
-            if c == last and (row["zero_frequency"] or row["near_excitation"]):
+            if row["near_excitation"] and c in (0, 1, last):
+                return st.warning
+            if c == last and row["zero_frequency"]:
                 return st.warning
             return None
+        if role == Qt.ItemDataRole.BackgroundRole and row["near_excitation"] and not self.stale:
+            # the whole row is tinted, so a conflict shows even with the notes scrolled away
+            tint = QColor(current_style().warning)
+            tint.setAlpha(38)
+            return tint
         if role == Qt.ItemDataRole.UserRole:
             return row
         return None

@@ -218,7 +218,7 @@ def compute_response(model, response_input: ResponseInput, outputs, quantity="di
         v = np.where(np.isfinite(v), v, np.nan)
         label = f"{mass_id} {d}" if len(model.directions) > 1 else mass_id
         curves.append(Curve(label=label, mass_id=mass_id, direction=d, values=v,
-                            peaks=tuple(solver.find_peaks(freqs, np.nan_to_num(np.abs(v))))))
+                            peaks=tuple(solver.find_peaks(freqs, np.abs(v)))))
         if response_input.kind == "base" and not relative:
             crossovers[label] = _crossings(freqs, np.abs(v), 1.0)
     if model.damping.model == "none" and not model.dampers:

@@ -167,7 +167,9 @@ class ResponsePanel(QWidget):
         for p in (self.mag_plot, self.phase_plot):
             p.showGrid(x=True, y=True, alpha=0.25)
             p.getAxis("left").setWidth(58)
-        self.phase_plot.setLabel("bottom", "frequency", units="Hz")
+        # plain "Hz": on a log axis with our own ticks, pyqtgraph's SI prefix would say "kHz"
+        # over labels that are in Hz
+        self.phase_plot.setLabel("bottom", "frequency (Hz)")
         self.phase_plot.setLabel("left", "phase (deg)")
         self.legend = self.mag_plot.addLegend(offset=(10, -10), labelTextSize="8pt", brush=pg.mkBrush(
             st.background.red(), st.background.green(), st.background.blue(), 210))

@@ -26,7 +26,7 @@ import math
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QSignalBlocker, Qt, Signal
-from PySide6.QtWidgets import (QComboBox, QDoubleSpinBox, QGridLayout, QHBoxLayout, QLabel,
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QGridLayout, QHBoxLayout, QLabel,
                                QListWidget, QPushButton, QSizePolicy, QSlider, QSpinBox,
                                QSplitter, QVBoxLayout, QWidget)
 
@@ -100,6 +100,41 @@ def log_value_ticks(lo: float, hi: float, labelled=(1, 2, 5)):
                 (major if m in labelled else minor).append((math.log10(v), value_text(v)
                                                             if m in labelled else ""))
     return [major, minor]
+
+
+def default_element(model):
+    """The (spring id, field) a model opens with in the Tune panel: the spring that governs the
+    first mode in conflict with a source, else the first elastic mode; None without springs."""
+    if not model.springs:
+        return None
+    try:
+        res = solver.modes(model)
+        conflicts = solver.margin_check(model, res).conflicts if model.excitations else ()
+        elastic = [i + 1 for i in range(res.n_modes) if not res.is_zero[i]]
+        mode = conflicts[0].mode if conflicts else (elastic[0] if elastic else None)
+        if mode is None:
+            return (model.springs[0].id, "k")
+        ranked = [r for r in solver.rank_elements(model, mode) if r[1] in ("k", "k_t")]
+    except ModelError:
+        return (model.springs[0].id, "k")
+    return (ranked[0][0], ranked[0][1]) if ranked else (model.springs[0].id, "k")
+
+
+def margin_summary(model) -> str:
+    """One sentence on the margin check of ``model`` (empty when it has no sources)."""
+    if not model.excitations:
+        return ""
+    try:
+        result = solver.margin_check(model, solver.modes(model))
+    except ModelError as exc:
+        return f"Margin check not possible: {exc}"
+    if result.ok:
+        return (f"Margin check: every elastic mode clears every source by at least"
+                f" {model.margin_percent:g} %.")
+    modes_in = sorted({c.mode for c in result.conflicts})
+    return (f"Margin check: mode{'s' if len(modes_in) > 1 else ''}"
+            f" {', '.join(map(str, modes_in))} still within {model.margin_percent:g} % of a"
+            " source.")
 
 
 def band_crossings(values, freqs, bands) -> list[tuple[float, float]]:
@@ -190,6 +225,7 @@ class TunePanel(QWidget):
         self.mode_spin.setObjectName("tune_mode")
         self.mode_spin.setRange(1, 1)
         self.mode_spin.setPrefix("mode ")
+        self.mode_spin.valueChanged.connect(lambda _v: self._target_from_mode())
         self.target_spin = QDoubleSpinBox()
         self.target_spin.setObjectName("tune_target")
         self.target_spin.setDecimals(4)
@@ -208,6 +244,12 @@ class TunePanel(QWidget):
         self.apply_button.setObjectName("tune_apply")
         self.apply_button.setToolTip("Set the retuned value (one undo step)")
         self.apply_button.setEnabled(False)
+        self.springs_only = QCheckBox("springs only")
+        self.springs_only.setObjectName("tune_springs_only")
+        self.springs_only.setChecked(True)
+        self.springs_only.setToolTip("Propose among the springs only: mounts, brackets and joints"
+                                     " are the usual design levers, the equipment's masses seldom"
+                                     " are. Untick to rank the masses too.")
         self.propose_button.clicked.connect(self.propose)
         self.retune_button.clicked.connect(self.compute_retune)
         self.apply_button.clicked.connect(self.apply_retune)
@@ -241,6 +283,7 @@ class TunePanel(QWidget):
         row.addWidget(self.target_spin, 1)
         grid.addLayout(row, 4, 0, 1, 4)
         row2 = QHBoxLayout()
+        row2.addWidget(self.springs_only)
         row2.addWidget(self.propose_button)
         row2.addWidget(self.retune_button)
         row2.addWidget(self.apply_button)
@@ -260,7 +303,7 @@ class TunePanel(QWidget):
         pi = self.plot.getPlotItem()
         pi.setLogMode(x=True, y=False)
         pi.showGrid(x=True, y=True, alpha=0.25)
-        pi.setLabel("left", "natural frequency", units="Hz")
+        pi.setLabel("left", "natural frequency (Hz)")   # no SI prefix switching
         pi.setMenuEnabled(False)
         pi.getAxis("bottom").setStyle(maxTickLevel=1)   # ticks set per sweep (log_value_ticks)
         for ax in ("left", "bottom"):
@@ -324,11 +367,12 @@ class TunePanel(QWidget):
                 self.element_combo.clear()
                 for eid, f, text in items:
                     self.element_combo.addItem(text, (eid, f))
-                idx = -1
-                if self._key is not None:
-                    idx = self.element_combo.findData(self._key)
+                keys = [(eid, f) for eid, f, _t in items]
+                idx = keys.index(tuple(self._key)) if self._key is not None and \
+                    tuple(self._key) in keys else -1
                 if idx < 0 and items:
-                    idx = 0
+                    default = default_element(model)
+                    idx = keys.index(default) if default in keys else 0
                 self.element_combo.setCurrentIndex(idx)
             key = self.element_combo.currentData() if idx >= 0 else None
             if key != self._key:
@@ -431,9 +475,24 @@ class TunePanel(QWidget):
         self._update_cursor(self.document.model)
 
     def set_mode(self, mode: int):
-        """The mode the retune row works on (follows the selected mode in the window)."""
+        """The mode the retune row works on (follows the selected mode in the window); the
+        target starts again at that mode's frequency, a target typed for another mode being
+        meaningless for this one."""
         with QSignalBlocker(self.mode_spin):
             self.mode_spin.setValue(int(mode))
+        self._target_from_mode()
+
+    def _target_from_mode(self):
+        a = self._analysis
+        n = self.mode_spin.value()
+        if a is None or not 1 <= n <= a.modal.n_modes:
+            return
+        with QSignalBlocker(self.target_spin):
+            self.target_spin.setValue(float(a.modal.frequencies_hz[n - 1]))
+        self._target_set = False
+        self._proposed = None
+        self.apply_button.setEnabled(False)
+        self._draw_proposal()
 
     # -- slider -------------------------------------------------------------------------------
     def _new_gesture(self):
@@ -496,6 +555,8 @@ class TunePanel(QWidget):
         except ModelError as exc:
             self.message.setText(str(exc))
             return []
+        if self.springs_only.isChecked():
+            ranked = [r for r in ranked if r[1] in ("k", "k_t")]
         if not ranked:
             self.message.setText(f"Mode {mode} has no sensitivity to any element (a zero-frequency"
                                  " mode?)")
@@ -550,7 +611,10 @@ class TunePanel(QWidget):
         self.apply_button.setEnabled(False)
         self._draw_proposal()
         if changed:
-            self.status_message.emit(self.message.text().replace(" Apply to set it.", " Applied."))
+            text = self.message.text().replace(" Apply to set it.", " Applied.")
+            text += " " + margin_summary(self.document.model)
+            self.message.setText(text)
+            self.status_message.emit(text)
         return changed
 
     # -- plot ---------------------------------------------------------------------------------
@@ -568,6 +632,8 @@ class TunePanel(QWidget):
         values, F = self._sweep.values, self._sweep.frequencies_hz
         finite = F[np.isfinite(F)]
         top = float(np.nanmax(finite)) if finite.size else 1.0
+        if not top > 0:
+            top = 1.0          # only zero-frequency modes: keep the axis at 0 and up
         bands = source_bands(model)
         lx0 = math.log10(values[0])
         labels = {e.id: e.label for e in model.excitations}

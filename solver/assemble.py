@@ -76,6 +76,9 @@ class System:
     spring_axis: np.ndarray = field(default=None, repr=False)
     mass_dofs: dict = field(default=None, repr=False)
     C_dashpots: object = field(default=None, repr=False)
+    #: (n_all, n_loose) orthonormal directions of massless junctions held by no spring and no
+    #: dashpot (K_full, C_full and M_full are all zero along them); empty when there are none.
+    loose: np.ndarray = field(default=None, repr=False)
 
     @property
     def n_dof(self) -> int:
@@ -227,11 +230,12 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
     retained = np.flatnonzero(masses > 0)
     slaves = np.flatnonzero(masses == 0)
     dofs = tuple(all_dofs[i] for i in retained)
+    loose = np.zeros((n_all, 0))
     if len(slaves) == 0:
         recovery = sp.identity(n_all, format="csr")
         M, K, C = M_full, K_full, C_full
     else:
-        K, C, recovery, msg = _condense(K_full, C_full, retained, slaves, all_dofs)
+        K, C, recovery, msg, loose = _condense(K_full, C_full, retained, slaves, all_dofs)
         M = sp.diags(masses[retained], format="csr")
         warnings.extend(msg)
         if model.dampers and C_full[slaves][:, :].nnz:
@@ -249,7 +253,7 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
                   all_dofs=tuple(all_dofs),
                   recovery=recovery, M_full=M_full, K_full=K_full, C_full=C_full,
                   sparse=use_sparse, warnings=tuple(warnings), spring_dofs=s_dofs,
-                  spring_axis=s_axis, mass_dofs=mass_dofs)
+                  spring_axis=s_axis, mass_dofs=mass_dofs, loose=loose)
 
 
 #: Modal damping needs every mode to build C; above this many DOFs it is left out of C (warned).
@@ -285,7 +289,10 @@ def _model_damping(model: Model, M, K, C_dash):
 
 
 def _condense(K_full, C_full, retained, slaves, all_dofs):
-    """Static condensation of the massless DOFs ``slaves``; returns K, C, recovery, warnings."""
+    """Static condensation of the massless DOFs ``slaves``.
+
+    Returns K, C, recovery, warnings and the loose junction directions (see ``System.loose``).
+    """
     warnings = []
     Kmm = K_full[retained][:, retained]
     Kms = K_full[retained][:, slaves]
@@ -302,11 +309,19 @@ def _condense(K_full, C_full, retained, slaves, all_dofs):
         pinv = scipy.linalg.pinv(Kss_d, atol=1e-11 * scale) if n_s else np.zeros((0, 0))
         G = -(pinv @ Ksm.toarray())
         G = sp.csr_matrix(G)
+        null = vt[len(sv) - loose:].T if loose else np.zeros((n_s, 0))
     else:
-        reg = Kss + sp.identity(n_s) * (1e-13 * abs(Kss.diagonal()).max())
-        lu = spla.splu(reg.tocsc())
+        try:   # exact when every junction direction is held (the usual case)
+            lu = spla.splu(Kss.tocsc())
+        except RuntimeError:
+            # a loose direction among thousands of junctions: a regularised factor, warned
+            lu = spla.splu((Kss + sp.identity(n_s) * (1e-13 * abs(Kss.diagonal()).max())).tocsc())
+            warnings.append("some massless junctions have a direction held by no spring; with"
+                            " more than 2000 junctions their condensation is regularised"
+                            " (results approximate: lock those directions)")
         G = sp.csr_matrix(-lu.solve(Ksm.toarray()))
         loose = 0
+        null = np.zeros((n_s, 0))
     if loose:
         names = sorted({all_dofs[i][0] for i in slaves[np.flatnonzero(
             np.abs(K_full[slaves][:, slaves].diagonal()) <= 0)]})
@@ -321,6 +336,18 @@ def _condense(K_full, C_full, retained, slaves, all_dofs):
     Css = C_full[slaves][:, slaves]
     C = Cmm + Cms @ G + G.T @ Csm + G.T @ Css @ G
     n_all = K_full.shape[0]
+    # directions no spring holds and no dashpot damps: Z(w) = K - w^2 M + i w C is singular
+    # along them at every frequency; the direct frequency-domain solve takes them out
+    loose_full = np.zeros((n_all, 0))
+    if null.shape[1]:
+        Css_d = Css.toarray() if sp.issparse(Css) else np.asarray(Css)
+        c_scale = max(np.abs(Css_d).max(initial=0.0), 1e-300)
+        keep = [j for j in range(null.shape[1])
+                if abs(null[:, j] @ Css_d @ null[:, j]) <= 1e-11 * c_scale]
+        if keep:
+            q, _r = np.linalg.qr(null[:, keep])
+            loose_full = np.zeros((n_all, len(keep)))
+            loose_full[np.asarray(slaves)] = q
     # recovery: rows of retained DOFs are identity, rows of slaves are G
     rec = sp.lil_matrix((n_all, len(retained)))
     rec[retained, np.arange(len(retained))] = 1.0
@@ -328,4 +355,4 @@ def _condense(K_full, C_full, retained, slaves, all_dofs):
     rec_s = sp.csr_matrix((np.ones(len(slaves)), (slaves, np.arange(len(slaves)))),
                           shape=(n_all, len(slaves)))
     recovery = rec + rec_s @ G
-    return sp.csr_matrix(K), sp.csr_matrix(C), recovery.tocsr(), warnings
+    return sp.csr_matrix(K), sp.csr_matrix(C), recovery.tocsr(), warnings, loose_full

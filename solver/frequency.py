@@ -78,6 +78,17 @@ def _dynamic_solve(system: System, f: np.ndarray, rhs_fn) -> np.ndarray:
     out_total = np.zeros((len(f), n_total), complex)
     if n_total == 0:
         return out_total
+    L = getattr(system, "loose", None)
+    if L is not None and L.shape[1]:
+        # Junction directions held by nothing make Z(w) singular along L at every frequency.
+        # Z L = 0 and L^T Z = 0, so adding s L L^T leaves the solution orthogonal to L unchanged
+        # and fixes the loose motion at zero (the least motion, as the modal path gives); a
+        # force along L has nothing to push against and is left out.
+        Ls = sp.csr_matrix(L)
+        s = float(np.abs(K.diagonal()).max()) if K.shape[0] else 1.0
+        K = K + (s or 1.0) * (Ls @ Ls.T if sp.issparse(K) else (Ls @ Ls.T).toarray())
+        inner = rhs_fn
+        rhs_fn = lambda wi: (lambda r: r - L @ (L.T @ r))(inner(wi))  # noqa: E731
     # A direction of a massless junction that no spring, dashpot or mass touches (a planar
     # junction between springs in line) has an all-zero row: it carries no force and takes no
     # part in the response, so it is left out of the solve (its motion reported as zero).
@@ -298,13 +309,58 @@ class Peak:
     damping_ratio: float
 
 
-def find_peaks(freqs_hz, values) -> list[Peak]:
-    """Local maxima of ``|values|`` with half-power bandwidths, by linear interpolation."""
+#: A local maximum counts as a peak when it stands at least this factor above the higher of
+#: the two valleys that separate it from higher ground (its prominence, as a ratio).
+PEAK_PROMINENCE = 1.02
+
+
+def find_peaks(freqs_hz, values, prominence: float = PEAK_PROMINENCE) -> list[Peak]:
+    """Resonance peaks of ``|values|`` with half-power bandwidths, by linear interpolation.
+
+    A peak is a local maximum that rises at least ``prominence`` times above the higher of its
+    two bases (the lowest value between it and the nearest higher point on each side, or the end
+    of the data): ripples, plateaus and the slow approach to a high-frequency asymptote are not
+    peaks. A run of non-finite values (an undamped resonance hit on the grid) is one peak of
+    infinite amplitude at the run's middle, with no bandwidth and zero damping.
+    """
     f = np.asarray(freqs_hz, float)
-    a = np.abs(np.asarray(values))
+    a = np.abs(np.asarray(values)).astype(float)
+    n = len(a)
+    if n < 3:
+        return []
+    bad = ~np.isfinite(a)
     peaks = []
-    for i in range(1, len(a) - 1):
-        if not (a[i] > a[i - 1] and a[i] >= a[i + 1]) or not np.isfinite(a[i]):
+    # undamped resonances: runs of inf / nan
+    i = 0
+    while i < n:
+        if bad[i]:
+            j = i
+            while j + 1 < n and bad[j + 1]:
+                j += 1
+            if 0 < i and j < n - 1:
+                mid = (i + j) // 2
+                peaks.append(Peak(frequency_hz=float(f[mid]), amplitude=float("inf"),
+                                  bandwidth_hz=float("nan"), damping_ratio=0.0))
+            i = j + 1
+        else:
+            i += 1
+    b = np.where(bad, np.inf, a)    # non-finite samples are higher ground for the bases
+
+    def base(i, step):
+        lowest = b[i]
+        j = i + step
+        while 0 <= j < n:
+            if b[j] > b[i]:
+                return lowest
+            lowest = min(lowest, b[j])
+            j += step
+        return lowest
+
+    for i in range(1, n - 1):
+        if bad[i] or not (a[i] > b[i - 1] and a[i] >= b[i + 1]):
+            continue
+        floor = max(base(i, -1), base(i, 1))
+        if floor > 0 and a[i] < prominence * floor:
             continue
         # refine the peak by a parabola through three points (in the data's own spacing)
         y0, y1, y2 = a[i - 1], a[i], a[i + 1]
@@ -316,18 +372,19 @@ def find_peaks(freqs_hz, values) -> list[Peak]:
         half = ap / np.sqrt(2)
         lo = hi = np.nan
         j = i
-        while j > 0 and a[j] > half:
+        while j > 0 and b[j] > half:
             j -= 1
-        if a[j] <= half:
+        if b[j] <= half:
             lo = f[j] + (half - a[j]) * (f[j + 1] - f[j]) / (a[j + 1] - a[j])
         j = i
-        while j < len(a) - 1 and a[j] > half:
+        while j < n - 1 and b[j] > half:
             j += 1
-        if a[j] <= half:
+        if b[j] <= half:
             hi = f[j - 1] + (a[j - 1] - half) * (f[j] - f[j - 1]) / (a[j - 1] - a[j])
         bw = hi - lo
         peaks.append(Peak(frequency_hz=float(fp), amplitude=float(ap), bandwidth_hz=float(bw),
                           damping_ratio=float(bw / (2 * fp)) if np.isfinite(bw) else np.nan))
+    peaks.sort(key=lambda p: p.frequency_hz)
     return peaks
 
 

@@ -232,7 +232,20 @@ def modes(model_or_system, count: int | None = None, method: str | None = None) 
             f' "{light.id}" {light.mass:.3g}'
             + (f', stiffest spring "{stiff.id}" {max(stiff.k, stiff.k_t):.3g}' if stiff else "")
             + "); check the units of these values")
-    return _finish(system, lam, phi, M_diag, _zero_scale(system, M_diag, bound), warnings,
+    zero_bound = _zero_scale(system, M_diag, bound)
+    if method == "dense" and len(lam):
+        # a dense solver's eigenvalue error is ~ eps x the largest eigenvalue: a very stiff
+        # link next to soft mounts costs the lowest frequencies digits
+        elastic = lam[lam > zero_bound]
+        if len(elastic) >= 2:
+            rel = np.finfo(float).eps * float(elastic.max()) / float(elastic.min())
+            if rel > 1e-8:
+                warnings.append(
+                    f"the eigenvalues span a factor of {elastic.max() / elastic.min():.2g}: the"
+                    f" lowest frequencies are accurate to about {0.5 * rel:.1g} (relative);"
+                    " a link far stiffer than the rest may be better modelled as rigid"
+                    " (merge its nodes)")
+    return _finish(system, lam, phi, M_diag, zero_bound, warnings,
                    complete=(want == n), method=method)
 
 

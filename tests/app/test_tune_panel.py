@@ -113,13 +113,40 @@ def test_unreachable_target_is_explained_in_the_panel(qtbot, window, two_mass_mo
 
 
 def test_propose_picks_the_strongest_element(qtbot, window, two_mass_model):
-    """math: Propose takes the first of solver.rank_elements (largest |(p/f) df/dp|)."""
+    """math: Propose takes the first of solver.rank_elements (largest |(p/f) df/dp|), among the
+    springs by default and among springs and masses with "springs only" unticked."""
     panel = _open(window, two_mass_model)
     panel.mode_spin.setValue(2)
     qtbot.mouseClick(panel.propose_button, Qt.MouseButton.LeftButton)
-    top = solver.rank_elements(window.document.model, 2)[0]
+    ranked = solver.rank_elements(window.document.model, 2)
+    top = [r for r in ranked if r[1] == "k"][0]
     assert panel.element == (top[0], top[1])
     assert f"{top[2]:+.3f}" in panel.ranking_label.text()
+    panel.springs_only.setChecked(False)
+    qtbot.mouseClick(panel.propose_button, Qt.MouseButton.LeftButton)
+    assert panel.element == (ranked[0][0], ranked[0][1])
+
+
+def test_mode_pick_resets_target_and_apply_reports_margin(qtbot, window):
+    """math: picking mode 2 sets the target to mode 2's frequency (solver.modes); after Apply the
+    panel states the margin check (solver.margin_check) of the new model."""
+    model = solver.load_model("assets/examples/shaker_fixture.json")
+    panel = _open(window, model)
+    res = solver.modes(model)
+    panel.set_mode(2)
+    assert panel.target_spin.value() == pytest.approx(res.frequencies_hz[1], rel=1e-4)
+    panel.set_mode(1)
+    # the opening element governs the conflicting mode 1: a spring, the top-ranked one
+    ranked = [r for r in solver.rank_elements(model, 1) if r[1] == "k"]
+    assert panel.element == (ranked[0][0], "k")
+    lower = solver.margin_check(model, res).conflicts[0].lower_to_hz
+    panel.target_spin.setValue(0.9 * lower)
+    qtbot.mouseClick(panel.retune_button, Qt.MouseButton.LeftButton)
+    qtbot.mouseClick(panel.apply_button, Qt.MouseButton.LeftButton)
+    new = window.document.model
+    ok = solver.margin_check(new, solver.modes(new)).ok
+    assert "Apply to set it" not in panel.message.text()
+    assert ("clears every source" in panel.message.text()) == ok
 
 
 def test_energy_tint_follows_strain_energy_share(qtbot, window, two_mass_model):

@@ -181,3 +181,85 @@ def test_readme_scripting_example_runs():
     model = solver.with_value(env["model"], "post1", k)
     assert solver.modes(model).frequencies_hz[0] == pytest.approx(7.0, rel=1e-9)
     assert env["H"].shape == (2, len(solver.assemble(env["model"]).dofs))
+
+
+def test_dashpot_between_two_masses_damps_the_free_response():
+    """A dashpot joining two free masses (no dashpot to ground) makes damping non-proportional:
+    the free response is exp(A t) of the hand-built state matrix [[0, I], [-M^-1 K, -M^-1 C]]
+    (scipy.linalg.expm), not the undamped modal sum. atol 1e-12 m."""
+    model = Model(kind="line", masses=(Mass("m1", 1, 0, 1.0), Mass("m2", 2, 0, 2.0)),
+                  anchors=(Anchor("g", 0, 0),),
+                  springs=(Spring("s1", "g", "m1", 400.0), Spring("s2", "m1", "m2", 300.0)),
+                  dampers=(Damper("d", "m1", "m2", 3.0),))
+    M = np.diag([1.0, 2.0])
+    K = np.array([[700.0, -300.0], [-300.0, 300.0]])
+    C = np.array([[3.0, -3.0], [-3.0, 3.0]])
+    A = np.block([[np.zeros((2, 2)), np.eye(2)],
+                  [-np.linalg.solve(M, K), -np.linalg.solve(M, C)]])
+    z0 = np.array([0.01, 0.0, 0.0, 0.0])
+    t = np.array([0.0, 0.3, 1.0, 2.5])
+    res = solver.free_response(model, t, x0={("m1", "x"): 0.01})
+    ref = np.array([scipy.linalg.expm(A * ti) @ z0 for ti in t])[:, :2]
+    np.testing.assert_allclose(res.displacement, ref, atol=1e-12)
+    undamped = solver.free_response(model, t, x0={("m1", "x"): 0.01}, damped=False)
+    assert np.abs(undamped.displacement[-1] - ref[-1]).max() > 1e-4   # the test can tell
+
+
+def test_loose_junction_direction_does_not_spoil_the_direct_solve():
+    """A massless junction on one axial spring drawn at 30 degrees carries no load; its sideways
+    direction is held by nothing. Direct and modal responses equal those of the model without
+    it (force and base input, undamped and Rayleigh), rtol 1e-10 (math: the junction adds no
+    stiffness, mass or damping to the masses)."""
+    c, s = np.cos(np.pi / 6), np.sin(np.pi / 6)
+    anchors = (Anchor("A", -1, 0), Anchor("B", 0, -1))
+    with_j = Model(kind="planar", anchors=anchors,
+                   masses=(Mass("P", 0, 0, 1.0), Mass("J", c, s, 0.0)),
+                   springs=(Spring("s1", "A", "P", 1000.0), Spring("s2", "B", "P", 400.0),
+                            Spring("sJ", "P", "J", 500.0)))
+    without = with_j.with_changes(remove=["J"])
+    f = np.linspace(0.5, 10, 120)
+    for d in (Damping(), Damping(model="rayleigh", alpha=0.3, beta=1e-4)):
+        a, b = with_j.with_changes(damping=d), without.with_changes(damping=d)
+        ref = solver.harmonic_response(b, f, {("P", "x"): 1.0})
+        fin = np.isfinite(ref).all(axis=1)
+        for method in ("direct", "modal"):
+            X = solver.harmonic_response(a, f, {("P", "x"): 1.0}, method=method)
+            np.testing.assert_allclose(X[fin], ref[fin], rtol=1e-10,
+                                       atol=1e-12 * np.abs(ref[fin]).max())
+        T = solver.base_transmissibility(a, f, "x")
+        Tr = solver.base_transmissibility(b, f, "x")
+        np.testing.assert_allclose(T[fin], Tr[fin], rtol=1e-10, atol=1e-12)
+
+
+def test_long_junction_chain_is_condensed_exactly():
+    """A fixed-free chain of 2 masses joined through 2,100 massless junctions (more than the
+    dense condensation handles) has the frequencies of the two masses on the series springs:
+    k_eff = k / (n + 1) (springs in series, math); rtol 1e-9."""
+    n_j, k, m = 2100, 1e6, 1.0
+    nodes = [Mass("m1", 0, 0, m)] + [Mass(f"j{i}", i + 1, 0, 0.0) for i in range(n_j)] + \
+        [Mass("m2", n_j + 1, 0, m)]
+    ids = ["m1"] + [f"j{i}" for i in range(n_j)] + ["m2"]
+    springs = [Spring("g", "A", "m1", k)] + [Spring(f"s{i}", ids[i], ids[i + 1], k)
+                                              for i in range(len(ids) - 1)]
+    model = Model(kind="line", masses=tuple(nodes), anchors=(Anchor("A", -1, 0),),
+                  springs=tuple(springs))
+    k2 = k / (n_j + 1)
+    K = np.array([[k + k2, -k2], [-k2, k2]])
+    expected = np.sqrt(np.linalg.eigvalsh(K / m)) / (2 * np.pi)
+    np.testing.assert_allclose(solver.modes(model).frequencies_hz, expected, rtol=1e-9)
+
+
+def test_find_peaks_counts_an_undamped_resonance_once_and_skips_plateaus():
+    """common practice: a resonance hit exactly on the grid (non-finite samples) is one peak of
+    infinite amplitude; a curve easing onto its high-frequency level has no peak there; a
+    ripple below the prominence ratio is not a peak."""
+    f = np.linspace(1.0, 10.0, 91)
+    a = 1.0 / np.abs(1.0 - (f / 4.0) ** 2 + 1e-300)
+    a[np.argmin(np.abs(f - 4.0))] = np.inf
+    (p,) = solver.find_peaks(f, a)
+    assert p.frequency_hz == pytest.approx(4.0) and p.amplitude == np.inf
+    plateau = 1.0 + 0.002 * np.exp(-((f - 7.0) ** 2))     # a 0.2 % bump on a level
+    assert solver.find_peaks(f, plateau) == []
+    sdof = 1.0 / np.sqrt((1 - (f / 5) ** 2) ** 2 + (0.1 * f / 5) ** 2)
+    (q,) = solver.find_peaks(f, sdof)
+    assert q.frequency_hz == pytest.approx(5.0 * np.sqrt(1 - 2 * 0.05 ** 2), rel=2e-3)
