@@ -213,7 +213,7 @@ class MainWindow(QMainWindow):
             self.resizeDocks(row[:1], [int(h * 0.45)], Qt.Vertical)
         side = [docks[n] for n in ("dock_properties", "dock_motion") if n in docks]
         if len(side) == 2:
-            self.resizeDocks(side, [int(h * 0.28), int(h * 0.30)], Qt.Vertical)
+            self.resizeDocks(side, [int(h * 0.22), int(h * 0.36)], Qt.Vertical)
         QTimer.singleShot(0, self.view.fit)   # the canvas has its final size now
 
     def _dock(self, title, widget, area, name):

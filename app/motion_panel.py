@@ -25,7 +25,7 @@ import math
 
 import numpy as np
 from PySide6.QtCore import QElapsedTimer, QPointF, QRectF, Qt, QTimer, Signal
-from PySide6.QtGui import QFont, QPainter
+from PySide6.QtGui import QFont, QFontMetrics, QPainter
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QHBoxLayout, QLabel,
                                QListWidget, QListWidgetItem, QPushButton, QSizePolicy, QSlider,
                                QSplitter, QVBoxLayout, QWidget)
@@ -93,7 +93,7 @@ class MotionView(QWidget):
 
     def __init__(self, parent=None):
         super().__init__(parent)
-        self.setMinimumSize(240, 160)
+        self.setMinimumSize(200, 110)
         self.setSizePolicy(QSizePolicy.Policy.Expanding, QSizePolicy.Policy.Expanding)
         self.setMouseTracking(True)
         self.model = None
@@ -126,7 +126,8 @@ class MotionView(QWidget):
         return self._layout
 
     def _sketch_rect(self) -> QRectF:
-        return QRectF(8, 26, max(10, self.width() - 16), max(10, self.height() - 34))
+        # a band at the top for the caption and one at the bottom for the hint
+        return QRectF(8, 26, max(10, self.width() - 16), max(10, self.height() - 50))
 
     def paintEvent(self, event):
         st = current_style(self.palette())
@@ -151,12 +152,16 @@ class MotionView(QWidget):
             f = QFont(p.font())
             f.setPixelSize(13)
             p.setFont(f)
+            fm = QFontMetrics(f)
             p.drawText(QRectF(8, 4, self.width() - 16, 20),
-                       Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter, self.caption)
+                       Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter,
+                       fm.elidedText(self.caption, Qt.TextElideMode.ElideRight, self.width() - 16))
             if self.hint:
                 p.setPen(st.ink_soft)
                 p.drawText(QRectF(8, self.height() - 22, self.width() - 16, 20),
-                           Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter, self.hint)
+                           Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter,
+                           fm.elidedText(self.hint, Qt.TextElideMode.ElideRight,
+                                         self.width() - 16))
         finally:
             p.end()
 
@@ -332,7 +337,7 @@ class MotionPanel(QWidget):
         self.trace_list.setToolTip("Masses whose displacement is traced against time")
         self.trace_list.itemChanged.connect(lambda _i: self._rebuild_traces())
         self.plot = pg.PlotWidget(self)
-        self.plot.setMinimumHeight(110)
+        self.plot.setMinimumHeight(70)   # small: the dock must not squeeze the bottom row
         self.plot.setLabel("bottom", "time", units="s")
         self.plot.setLabel("left", "displacement")
         self.plot.addLegend(offset=(5, 5))

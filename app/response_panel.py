@@ -83,6 +83,7 @@ class ResponsePanel(QWidget):
         row.addWidget(QLabel("Input:"))
         self.input_combo = QComboBox()
         self.input_combo.setObjectName("response_input")
+        self.input_combo.setSizeAdjustPolicy(QComboBox.SizeAdjustPolicy.AdjustToContents)
         self.input_combo.setToolTip("What drives the model: a unit harmonic force at a mass, or"
                                     " harmonic motion of the base (every anchor together)")
         self.input_combo.currentIndexChanged.connect(self._on_input_change)
@@ -172,7 +173,7 @@ class ResponsePanel(QWidget):
         self.phase_plot.setLabel("bottom", "frequency (Hz)")
         self.phase_plot.setLabel("left", "phase (deg)")
         self.legend = self.mag_plot.addLegend(offset=(10, -10), labelTextSize="8pt", brush=pg.mkBrush(
-            st.background.red(), st.background.green(), st.background.blue(), 210))
+            st.background.red(), st.background.green(), st.background.blue(), 150))
         self.curve_items = []
         split.addWidget(self.plots)
         split.setStretchFactor(0, 0)

@@ -26,7 +26,7 @@ import math
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QSignalBlocker, Qt, Signal
-from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QGridLayout, QHBoxLayout, QLabel,
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QScrollArea, QDoubleSpinBox, QGridLayout, QHBoxLayout, QLabel,
                                QListWidget, QPushButton, QSizePolicy, QSlider, QSpinBox,
                                QSplitter, QVBoxLayout, QWidget)
 
@@ -313,7 +313,13 @@ class TunePanel(QWidget):
         self.plot.setMinimumSize(300, 180)
 
         split = QSplitter(Qt.Orientation.Horizontal)
-        split.addWidget(left)
+        scroll = QScrollArea()      # a long message or ranking scrolls instead of being cut off
+        scroll.setWidget(left)
+        scroll.setWidgetResizable(True)
+        scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        scroll.setFrameShape(QScrollArea.Shape.NoFrame)
+        scroll.setMinimumWidth(280)
+        split.addWidget(scroll)
         split.addWidget(self.plot)
         split.setStretchFactor(1, 1)
         lay = QVBoxLayout(self)
