@@ -95,14 +95,15 @@ def solve_json(analysis) -> dict:
 def solve_table(analysis) -> str:
     """The human-readable mode table of ``springwright solve``."""
     from solver.margins import margin_check
+    from solver.model import count
 
     modal = analysis.modal
     model = analysis.model
     unit = "kg m^2" if model.kind == "torsion" else "kg"
     lines = [f"Model: {model.name or '(unnamed)'}   kind: {model.kind}"
              + (f" along {model.axis}" if model.kind == "line" else "")
-             + f"   {len(model.masses)} masses, {len(model.springs)} springs,"
-               f" {modal.system.n_dof} DOF"]
+             + f"   {count(len(model.masses), 'mass', 'masses')},"
+               f" {count(len(model.springs), 'spring')}, {modal.system.n_dof} DOF"]
     if modal.n_modes == 0:
         lines.append(modal.message or "no modes")
         return "\n".join(lines)
@@ -144,6 +145,9 @@ def solve_table(analysis) -> str:
         lines.append(f"warning: {w}")
     for c in margins.conflicts:
         lines.append(f"margin: {c.message}")
+    if model.excitations and margins.ok:
+        lines.append(f"margin: every elastic mode clears every source by at least"
+                     f" {model.margin_percent:g} %")
     lines.append("")
     lines.append(CAUTION)
     return "\n".join(lines)
@@ -159,10 +163,13 @@ def cmd_solve(args) -> int:
         analysis = analyse(model)
     except ModelError as exc:
         return _fail(f"{args.file}: {exc}")
-    if args.json:
-        print(json.dumps(solve_json(analysis), indent=2, allow_nan=False))
-    else:
-        print(solve_table(analysis))
+    text = json.dumps(solve_json(analysis), indent=2, allow_nan=False) if args.json \
+        else solve_table(analysis)
+    try:
+        print(text)
+        sys.stdout.flush()
+    except BrokenPipeError:   # `springwright solve FILE | head`: the reader has what it wanted
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
     return 0
 
 
@@ -178,6 +185,8 @@ def cmd_report(args) -> int:
 
         analysis = analyse(model)
         out = Path(args.output)
+        if out.suffix.lower() != ".png":
+            print(f"note: {out} gets PNG data (the report is always a PNG)", file=sys.stderr)
         if out.parent and not out.parent.exists():
             return _fail(f"{out}: the folder {out.parent} does not exist")
         render_report(model, analysis, out)

@@ -213,9 +213,13 @@ def _title_block(pg: _Page, model, modal, date: str):
             "SPRINGWRIGHT · LUMPED MODEL REPORT", 8, True, st.accent)
     h = pg.text(QRectF(box.left() + pad, top + pad + 0.22 * d, left_w, 0.9 * d),
                 model.name or "Unnamed model", 18, True, st.ink)
-    n_el = (f"{len(model.masses)} {'discs' if model.kind == 'torsion' else 'masses'}, "
-            f"{len(model.springs)} springs, {len(model.dampers)} dashpots, "
-            f"{len(model.anchors)} anchors")
+    from solver.model import count
+
+    torsion = model.kind == "torsion"
+    n_el = ", ".join((count(len(model.masses), "disc" if torsion else "mass",
+                            "discs" if torsion else "masses"),
+                      count(len(model.springs), "spring"), count(len(model.dampers), "dashpot"),
+                      count(len(model.anchors), "anchor")))
     pg.text(QRectF(box.left() + pad, top + pad + 0.26 * d + h, left_w, 0.3 * d),
             n_el, 9, False, st.ink_soft)
     y = top + pad
