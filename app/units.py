@@ -118,9 +118,19 @@ def parse(text: str, kind: str, system: str = "SI") -> float:
 def _parse_with_pint(s: str, qk: QuantityKind) -> float:
     import pint
 
+    import re
+
     ureg = registry()
+    if re.search(r"\d,\d", s):
+        raise UnitError(f"cannot read {s!r}: use a decimal point (1.5, not 1,5); try {qk.example}")
+    if re.fullmatch(r"[+-]?(nan|inf|infinity)(\s.*)?", s, re.I):
+        raise UnitError(f"{qk.name} must be a finite number, got {s!r}")
     try:
         q = ureg.Quantity(s.replace("²", "^2").replace("·", " "))
+    except pint.errors.UndefinedUnitError as exc:
+        names = ", ".join(repr(n) for n in (exc.unit_names if isinstance(exc.unit_names, (list, tuple))
+                                            else [exc.unit_names]))
+        raise UnitError(f"cannot read {s!r}: {names} is not a unit; try {qk.example}") from None
     except Exception as exc:  # pint's parser raises many types for odd text; all mean "unreadable"
         reason = str(exc).splitlines()[0] if str(exc) else "not a quantity"
         raise UnitError(f"cannot read {s!r} as a {qk.name} ({reason}); try {qk.example}") from None

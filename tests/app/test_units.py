@@ -64,6 +64,10 @@ def test_plain_numbers_are_in_the_display_system():
     ("-5 N/m", "must be positive"),
     ("1e999", "finite"),
     ("12 lbf/", "cannot read"),
+    ("abc", "'abc' is not a unit"),
+    ("1,5", "decimal point"),
+    ("nan", "finite"),
+    ("-inf N/m", "finite"),
 ])
 def test_bad_entries_are_refused_with_a_reason(text, reason):
     """Common practice: refuse input that is not a positive finite stiffness, saying why."""
