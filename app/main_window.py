@@ -382,6 +382,8 @@ class MainWindow(QMainWindow):
 
         self.tune_panel = TunePanel(self.document, self.solver)
         self.tune_panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+        self.tune_panel.set_unit_system(getattr(self.properties, "unit_system", "SI"))
+        self.properties.unit_system_changed.connect(self.tune_panel.set_unit_system)
         tune_dock = self._dock("Tune", self.tune_panel, Qt.BottomDockWidgetArea, "dock_tune")
         modes_dock = self.findChild(QDockWidget, "dock_modes")
         if modes_dock is not None:

@@ -34,7 +34,7 @@ import solver
 from solver.errors import ModelError
 from solver.margins import source_bands
 from solver.model import Mass, Spring
-from solver.tuning import FIELDS, unit_of, value_of, with_value
+from solver.tuning import FIELDS, value_of, with_value
 
 from .solve_service import dof_count
 from .style import current_style
@@ -186,10 +186,12 @@ class TunePanel(QWidget):
         self._sweep_base = None
         self._drag_serial = 0
         self._proposed: float | None = None
+        self._plot_factor = 1.0
         self._combo_signature = None
         self._analysis = None
         self._applying = False
         self._target_set = False
+        self.unit_system = "SI"
         self._build_ui()
         self.target_spin.valueChanged.connect(lambda _v: setattr(self, "_target_set", True))
         document.model_changed.connect(self._on_model_change)
@@ -329,6 +331,37 @@ class TunePanel(QWidget):
         self._cursor_dots = None
         self._proposal_line = None
 
+    # -- display units ------------------------------------------------------------------------
+    def set_unit_system(self, system: str) -> None:
+        """Show values in "SI" or "US" units (the model and the slider stay SI)."""
+        self.unit_system = system
+        model = self.document.model
+        if self._key is not None:
+            self._recentre(model, value_of(model, *self._key))
+            self._place_slider(value_of(model, *self._key))
+        self._update_value_label(model)
+
+    def _unit_kind(self, model, eid, f) -> str:
+        if f == "mass":
+            return "inertia" if model.kind == "torsion" else "mass"
+        if model.kind == "torsion":
+            return "torsional stiffness"
+        return "stiffness"
+
+    def _factor(self, model, eid, f) -> float:
+        """SI units per display unit of the picked element's field."""
+        from .units import KINDS
+
+        return KINDS[self._unit_kind(model, eid, f)].factor(self.unit_system)
+
+    def _unit(self, model, eid, f) -> str:
+        from .units import unit_label
+
+        return unit_label(self._unit_kind(model, eid, f), self.unit_system)
+
+    def _show(self, model, eid, f, v: float, digits: int = 5) -> str:
+        return f"{v / self._factor(model, eid, f):.{digits}g} {self._unit(model, eid, f)}"
+
     # -- state --------------------------------------------------------------------------------
     @property
     def element(self) -> tuple[str, str] | None:
@@ -436,9 +469,8 @@ class TunePanel(QWidget):
         except ModelError as exc:
             self._sweep = None
             self.message.setText(f"No sweep: {exc}")
-        unit = unit_of(model, eid, f)
-        self.low_label.setText(f"{lo:.3g} {unit}")
-        self.high_label.setText(f"{hi:.3g} {unit}")
+        self.low_label.setText(self._show(model, eid, f, lo, 3))
+        self.high_label.setText(self._show(model, eid, f, hi, 3))
         self._draw_sweep(model)
 
     def _place_slider(self, value: float):
@@ -454,7 +486,7 @@ class TunePanel(QWidget):
         eid, f = self._key
         v = value_of(model, eid, f)
         name = FIELDS[(Spring if f in ("k", "k_t") else Mass, f)][0]
-        self.value_label.setText(f"{name} = {v:.5g} {unit_of(model, eid, f)}")
+        self.value_label.setText(f"{name} = {self._show(model, eid, f, v)}")
 
     def _refresh_sources(self, model):
         self.sources_list.clear()
@@ -598,8 +630,9 @@ class TunePanel(QWidget):
         self.apply_button.setEnabled(True)
         self.message.setStyleSheet("")
         now = value_of(model, eid, f)
-        self.message.setText(f"{model.element(eid).label} · {f} = {value:.6g}"
-                             f" {unit_of(model, eid, f)} puts mode {mode} on {target:g} Hz"
+        self.message.setText(f"{model.element(eid).label} · {f} ="
+                             f" {self._show(model, eid, f, value, 6)} puts mode {mode} on"
+                             f" {target:g} Hz"
                              f" ({(value / now - 1) * 100:+.1f} % from now). Apply to set it.")
         self._draw_proposal()
         return value
@@ -633,9 +666,10 @@ class TunePanel(QWidget):
             pi.setTitle("")
             return
         eid, f = self._key
-        unit = unit_of(model, eid, f)
-        pi.setLabel("bottom", f"{model.element(eid).label} · {f} ({unit})")
-        values, F = self._sweep.values, self._sweep.frequencies_hz
+        pi.setLabel("bottom", f"{model.element(eid).label} · {f} ({self._unit(model, eid, f)})")
+        # the plot's x is in display units; the sweep and the crossings stay SI
+        self._plot_factor = self._factor(model, eid, f)
+        values, F = self._sweep.values / self._plot_factor, self._sweep.frequencies_hz
         finite = F[np.isfinite(F)]
         top = float(np.nanmax(finite)) if finite.size else 1.0
         if not top > 0:
@@ -670,9 +704,10 @@ class TunePanel(QWidget):
             pi.addItem(text)
         for j in range(F.shape[1]):
             pi.plot(values, F[:, j], pen=pg.mkPen(st.ink, width=1.4))
-        pts = band_crossings(values, F, bands)
+        pts = band_crossings(self._sweep.values, F, bands)
         if pts:
             xs, ys = zip(*pts)
+            xs = [x / self._plot_factor for x in xs]
             pi.plot(list(xs), list(ys), pen=None, symbol="o", symbolSize=7,
                     symbolBrush=pg.mkBrush(st.error), symbolPen=pg.mkPen(st.background))
         self.crossings = pts
@@ -701,11 +736,11 @@ class TunePanel(QWidget):
         v = value_of(model, *self._key)
         if v <= 0:
             return
-        self._cursor.setPos(math.log10(v))
+        self._cursor.setPos(math.log10(v / self._plot_factor))
         a = self._analysis
         if a is not None and a.model is model:
             fr = np.asarray(a.modal.frequencies_hz, float)
-            self._cursor_dots.setData(np.full(fr.shape, v), fr)
+            self._cursor_dots.setData(np.full(fr.shape, v / self._plot_factor), fr)
         else:
             self._cursor_dots.setData([], [])
 
@@ -715,7 +750,7 @@ class TunePanel(QWidget):
         if self._proposed is None or self._proposed <= 0:
             self._proposal_line.hide()
             return
-        self._proposal_line.setPos(math.log10(self._proposed))
+        self._proposal_line.setPos(math.log10(self._proposed / self._plot_factor))
         self._proposal_line.show()
 
 

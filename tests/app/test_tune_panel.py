@@ -254,3 +254,18 @@ def test_response_held_during_drag_and_recomputed_on_release(qtbot, window):
                                                wi ** 2 * Mm @ np.ones(2))[index[label]] + 1.0)
                         for wi in w])
         np.testing.assert_allclose(mag, ref, rtol=1e-9)
+
+
+def test_tune_panel_follows_the_display_unit_system(qtbot, window, two_mass_model):
+    """Handbook factor 1 lbf/in = 175.126835 N/m (NIST SP 811 (mem)): with US units chosen in
+    Properties, the Tune value reads k in lbf/in; the model keeps N/m."""
+    panel = _open(window, two_mass_model)
+    assert panel.select_element("s1", "k")
+    combo = window.properties.units_combo
+    combo.setCurrentIndex(combo.findText("US", Qt.MatchFlag.MatchContains))
+    assert panel.unit_system == "US"
+    text = panel.value_label.text()
+    assert "lbf/in" in text
+    shown = float(text.split("=")[1].split()[0])
+    assert shown == pytest.approx(1000.0 / 175.126835, rel=1e-4)
+    assert window.document.model.element("s1").k == 1000.0
