@@ -288,6 +288,8 @@ class MainWindow(QMainWindow):
         self._action("&Quit", self.close, QKeySequence.Quit, "Close Springwright", f)
 
         e = mb.addMenu("&Edit")
+        # every edit says what it did (more specific messages from the canvas follow it)
+        self.document.undo_stack.indexChanged.connect(self._on_undo_index)
         self.act_undo = self.document.undo_stack.createUndoAction(self, "&Undo")
         self.act_undo.setShortcut(QKeySequence.Undo)
         self.act_redo = self.document.undo_stack.createRedoAction(self, "&Redo")
@@ -353,6 +355,17 @@ class MainWindow(QMainWindow):
                      "How to draw a model, read its modes and move a resonance", h)
         self._action("&Cautions", self.show_guide, "",
                      "What a lumped model can and cannot tell you", h)
+
+    def _on_undo_index(self, index: int):
+        try:
+            stack = self.document.undo_stack
+            before, self._undo_index = getattr(self, "_undo_index", 0), index
+            if index < before and index < stack.count():
+                self.statusBar().showMessage(f"Undone: {stack.text(index)}", 5000)
+            elif index > 0 and stack.count():
+                self.statusBar().showMessage(stack.text(index - 1) or "Edited", 5000)
+        except RuntimeError:   # the window is being torn down
+            pass
 
     def _motion(self, name):
         return lambda: getattr(self.motion_panel, name, lambda: None)()
