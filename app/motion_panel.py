@@ -45,6 +45,9 @@ MAX_TABLE = 4_000_000
 #: Displacement used to size the drawing when the model has no initial conditions (m, rad).
 _DEFAULT_IC = {"x": 0.01, "y": 0.01, "theta": 0.05}
 
+#: Beyond this many masses the motion view leaves the labels off (they would be unreadable).
+LABEL_LIMIT = 40
+
 MODE_VIEW = "mode"
 FREE_VIEW = "free"
 
@@ -147,7 +150,8 @@ class MotionView(QWidget):
                 disp[mid] = self._drag_displacement(mid, grab, self._drag_pos)
                 highlight = {mid}
             paint_sketch(p, self.model, lay.rect, disp, self.scale, st, undeformed=True,
-                         energy=self.energy, labels=True, layout=lay, highlight=highlight)
+                         energy=self.energy, labels=len(self.model.masses) <= LABEL_LIMIT,
+                         layout=lay, highlight=highlight)
             p.setPen(st.ink)
             f = QFont(p.font())
             f.setPixelSize(13)

@@ -467,8 +467,10 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
                            model.axis, st.ink_soft, "left"))
 
     bounds = lay.rect
-    placed: list[QRectF] = []
     h = fm.height()
+    taken = _RectIndex(max(h, 8.0))
+    for o in obstacles:
+        taken.add(o)
     for pos, text, color, align in mass_jobs + label_jobs:
         painter.setPen(QPen(color))
         w = fm.horizontalAdvance(text)
@@ -476,20 +478,40 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
         # keep labels inside the sketch's rectangle
         x = min(max(x, bounds.left() + 2), bounds.right() - w - 2)
         rect = QRectF(x, pos.y() - h / 2, w, h)
-        rect = _clear_spot(rect, placed, obstacles, h) or rect
-        placed.append(rect)
+        rect = _clear_spot(rect, taken, h) or rect
+        taken.add(rect)
         painter.drawText(QPointF(rect.left(), rect.center().y() + fm.ascent() / 2
                                  - fm.descent() / 2), text)
 
 
-def _clear_spot(rect: QRectF, placed, obstacles, h: float) -> QRectF | None:
+class _RectIndex:
+    """Rectangles bucketed on a square grid, so "does this overlap anything?" looks only at the
+    neighbourhood (labels of a 200-mass model are placed in linear time)."""
+
+    def __init__(self, cell: float):
+        self.cell = cell
+        self.cells: dict[tuple[int, int], list[QRectF]] = {}
+
+    def _keys(self, r: QRectF):
+        c = self.cell
+        for i in range(math.floor(r.left() / c), math.floor(r.right() / c) + 1):
+            for j in range(math.floor(r.top() / c), math.floor(r.bottom() / c) + 1):
+                yield i, j
+
+    def add(self, r: QRectF) -> None:
+        for k in self._keys(r):
+            self.cells.setdefault(k, []).append(r)
+
+    def hits(self, r: QRectF) -> bool:
+        return any(r.intersects(o) for k in self._keys(r) for o in self.cells.get(k, ()))
+
+
+def _clear_spot(rect: QRectF, taken: _RectIndex, h: float) -> QRectF | None:
     """``rect`` or the nearest vertical shift of it (up to three lines either way) that overlaps
     no label already placed and no symbol; None when every try collides."""
     for k in (0, -1, 1, -2, 2, -3, 3):
         r = rect.translated(0, k * 0.9 * h)
-        probe = r.adjusted(-2, -1, 2, 1)
-        if not any(probe.intersects(o) for o in placed) and \
-                not any(probe.intersects(o) for o in obstacles):
+        if not taken.hits(r.adjusted(-2, -1, 2, 1)):
             return r
     return None
 

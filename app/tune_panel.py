@@ -740,7 +740,14 @@ class TunePanel(QWidget):
         a = self._analysis
         if a is not None and a.model is model:
             fr = np.asarray(a.modal.frequencies_hz, float)
-            self._cursor_dots.setData(np.full(fr.shape, v / self._plot_factor), fr)
+            st = current_style()
+            bad = {c.mode for c in solver.margin_check(model, a.modal).conflicts} \
+                if model.excitations else set()
+            # a mode inside a widened band is marked in the error colour at the cursor
+            brushes = [pg.mkBrush(st.error if i + 1 in bad else st.accent)
+                       for i in range(len(fr))]
+            self._cursor_dots.setData(np.full(fr.shape, v / self._plot_factor), fr,
+                                      symbolBrush=brushes)
         else:
             self._cursor_dots.setData([], [])
 
