@@ -127,6 +127,7 @@ def retune(model: Model, element_id: str, mode: int, target_hz: float,
     direction = 1.0 if (h0 < 0) == rising else -1.0
     step = math.log(10.0)
     prev_u, prev_h = u0, h0
+    saturated = False
     for i in range(MAX_DECADES):
         u = prev_u + direction * step
         try:
@@ -143,19 +144,38 @@ def retune(model: Model, element_id: str, mode: int, target_hz: float,
         if saturated:
             break
     far_f = prev_h + target
-    low_f, high_f = sorted((h0 + target, far_f))
+    far_sat = saturated
+    # the other way's limit too, so the message gives the whole reachable range
+    back_u, back_h, back_sat = u0, h0, False
+    for i in range(MAX_DECADES):
+        u = back_u - direction * step
+        try:
+            h = g(u)
+        except ModelError:
+            break
+        back_sat = abs(h - back_h) <= 1e-9 * target
+        back_u, back_h = u, h
+        if back_sat:
+            break
+    back_f = back_h + target
     unit = unit_of(model, element_id, f)
     way = "raising" if direction > 0 else "lowering"
-    if high_f - low_f <= 1e-6 * max(high_f, target):
+    now_f = h0 + target
+    if abs(far_f - back_f) <= 1e-6 * max(far_f, back_f, target):
         raise ModelError(
             f'retune: mode {mode} does not depend on the {name} of "{element_id}" (it stays at'
-            f" {low_f:.6g} Hz whatever the value: the element does not deform in this mode);"
+            f" {now_f:.6g} Hz whatever the value: the element does not deform in this mode);"
             " change another element")
+    ends = sorted([(far_f, far_sat), (back_f, back_sat)])
+    (lo_f, lo_sat), (hi_f, hi_sat) = ends
+    lo_txt = f"{lo_f:.6g} Hz" if lo_sat else ("almost 0 Hz" if lo_f < 1e-3 * now_f
+                                              else f"below {lo_f:.4g} Hz")
+    hi_txt = f"{hi_f:.6g} Hz" if hi_sat else f"above {hi_f:.4g} Hz"
     raise ModelError(
         f'retune: mode {mode} cannot reach {target:.6g} Hz by changing the {name} of'
-        f' "{element_id}" alone: {way} it from {v0:.6g} {unit} moves the mode only between'
-        f" {low_f:.6g} and {high_f:.6g} Hz (the frequency is monotone in each stiffness and"
-        " mass, so the other way moves it further off); change another element or add one")
+        f' "{element_id}" alone: over any value of it the mode stays between {lo_txt} and'
+        f" {hi_txt} (now {now_f:.6g} Hz at {v0:.6g} {unit}; {way} it gets no closer than"
+        f" {far_f:.6g} Hz); change another element or add one")
 
 
 def reachable_range(model: Model, element_id: str, mode: int, field: str | None = None,
