@@ -187,7 +187,8 @@ class PropertyPanel(QWidget):
         self.selection = [i for i in self.selection if i in model.ids()]
         elements = [model.element(i) for i in self.selection]
         signature = (tuple(self.selection), model.kind, model.axis, self.unit_system,
-                     tuple(getattr(e, "fixed", ()) for e in elements))
+                     tuple(getattr(e, "fixed", ()) for e in elements),
+                     tuple(getattr(e, "mass", None) == 0 for e in elements))  # junction or mass
         if signature != self._signature:
             self._signature = signature
             self._rebuild(model, elements)
