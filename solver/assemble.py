@@ -342,11 +342,13 @@ def _condense(K_full, C_full, retained, slaves, all_dofs):
     if null.shape[1]:
         Css_d = Css.toarray() if sp.issparse(Css) else np.asarray(Css)
         c_scale = max(np.abs(Css_d).max(initial=0.0), 1e-300)
-        keep = [j for j in range(null.shape[1])
-                if abs(null[:, j] @ Css_d @ null[:, j]) <= 1e-11 * c_scale]
-        if keep:
-            q, _r = np.linalg.qr(null[:, keep])
-            loose_full = np.zeros((n_all, len(keep)))
+        # undamped directions inside the undetermined ones: the null space of N^T Css N (a
+        # combination of damped basis vectors can itself be undamped)
+        w, V = np.linalg.eigh(null.T @ Css_d @ null)
+        free = V[:, np.abs(w) <= 1e-11 * c_scale]
+        if free.shape[1]:
+            q, _r = np.linalg.qr(null @ free)
+            loose_full = np.zeros((n_all, free.shape[1]))
             loose_full[np.asarray(slaves)] = q
     # recovery: rows of retained DOFs are identity, rows of slaves are G
     rec = sp.lil_matrix((n_all, len(retained)))

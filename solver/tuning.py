@@ -144,18 +144,17 @@ def retune(model: Model, element_id: str, mode: int, target_hz: float,
         if saturated:
             break
     far_f = prev_h + target
-    far_sat = saturated
     # the other way's limit too, so the message gives the whole reachable range
-    back_u, back_h, back_sat = u0, h0, False
+    back_u, back_h = u0, h0
     for i in range(MAX_DECADES):
         u = back_u - direction * step
         try:
             h = g(u)
         except ModelError:
             break
-        back_sat = abs(h - back_h) <= 1e-9 * target
+        levelled = abs(h - back_h) <= 1e-9 * target
         back_u, back_h = u, h
-        if back_sat:
+        if levelled:
             break
     back_f = back_h + target
     unit = unit_of(model, element_id, f)
@@ -166,15 +165,12 @@ def retune(model: Model, element_id: str, mode: int, target_hz: float,
             f'retune: mode {mode} does not depend on the {name} of "{element_id}" (it stays at'
             f" {now_f:.6g} Hz whatever the value: the element does not deform in this mode);"
             " change another element")
-    ends = sorted([(far_f, far_sat), (back_f, back_sat)])
-    (lo_f, lo_sat), (hi_f, hi_sat) = ends
-    lo_txt = f"{lo_f:.6g} Hz" if lo_sat else ("almost 0 Hz" if lo_f < 1e-3 * now_f
-                                              else f"below {lo_f:.4g} Hz")
-    hi_txt = f"{hi_f:.6g} Hz" if hi_sat else f"above {hi_f:.4g} Hz"
+    lo_f, hi_f = sorted((far_f, back_f))
+    lo_txt, hi_txt = f"{lo_f:.6g} Hz", f"{hi_f:.6g} Hz"
     raise ModelError(
         f'retune: mode {mode} cannot reach {target:.6g} Hz by changing the {name} of'
-        f' "{element_id}" alone: over any value of it the mode stays between {lo_txt} and'
-        f" {hi_txt} (now {now_f:.6g} Hz at {v0:.6g} {unit}; {way} it gets no closer than"
+        f' "{element_id}" alone: within {MAX_DECADES} decades either way of its present value'
+        f" the mode stays between {lo_txt} and {hi_txt} (now {now_f:.6g} Hz at {v0:.6g} {unit}; {way} it gets no closer than"
         f" {far_f:.6g} Hz); change another element or add one")
 
 

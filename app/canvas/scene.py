@@ -195,6 +195,16 @@ class ModelScene(QGraphicsScene):
                 item.set_element(link, a_item, b_item)
                 item._sync_key = key
 
+    def restyle(self) -> None:
+        """Redraw every item with the current palette (a light/dark switch)."""
+        for item in list(self.nodes.values()) + list(self.links.values()):
+            item._sync_key = None
+        self._on_model_change(self.document.model)
+        if self._kb_cursor is not None:
+            pen = self._kb_cursor.pen()
+            pen.setColor(current_style().accent)
+            self._kb_cursor.setPen(pen)
+
     def _update_scene_rect(self):
         rect = self.itemsBoundingRect()
         if rect.isNull():
@@ -313,6 +323,7 @@ class ModelScene(QGraphicsScene):
         return new_id
 
     def _start_connect(self, node: NodeItem, pos: QPointF) -> None:
+        self._cancel_connect()          # one connection at a time (a click during a keyboard one)
         self._connect_from = node.element_id
         self._preview = QGraphicsLineItem(QLineF(node.pos(), pos))
         pen = QPen(current_style().accent, 1.5, Qt.DashLine)

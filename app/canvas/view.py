@@ -39,6 +39,9 @@ class CanvasView(QGraphicsView):
 
         if event.type() == QEvent.Type.PaletteChange:   # light/dark switch: redraw the grid
             self.resetCachedContent()
+            scene = self.scene()
+            if scene is not None and hasattr(scene, "restyle"):
+                scene.restyle()         # and the items, whose colours are set when synced
         super().changeEvent(event)
 
     def _on_mode_change(self, mode):

@@ -115,3 +115,43 @@ def test_arrow_nudge_is_one_undo_entry_and_esc_cancels_a_connection(qtbot, windo
     assert window.scene.mode == Mode.CONNECT_SPRING     # first Esc only cancels
     _keys(qtbot, window.view, Qt.Key_Escape)
     assert window.scene.mode == Mode.SELECT
+
+
+def test_click_during_a_keyboard_connection_leaves_no_stray_preview(qtbot, window, two_mass_model):
+    """common practice: one connection gesture at a time; a mouse press while a keyboard
+    connection is open replaces it, and Esc leaves no rubber line behind."""
+    from PySide6.QtWidgets import QGraphicsLineItem
+
+    window.document.new("line", two_mass_model)
+    scene = window.scene
+    scene.set_mode(Mode.CONNECT_SPRING)
+    window.view.setFocus()
+    scene._show_cursor(scene.nodes["m1"].pos())
+    _keys(qtbot, window.view, Qt.Key_Return)
+    vp = window.view.viewport()
+    p = window.view.mapFromScene(scene.nodes["m2"].pos())
+    qtbot.mousePress(vp, Qt.LeftButton, pos=p)
+    qtbot.mouseRelease(vp, Qt.LeftButton, pos=p)
+    _keys(qtbot, window.view, Qt.Key_Escape)
+    assert [i for i in scene.items() if type(i) is QGraphicsLineItem] == []
+
+
+def test_light_dark_switch_recolours_every_canvas_label(qtbot, window, two_mass_model):
+    """common practice: a palette change restyles all items, not only the ones edited after."""
+    from PySide6.QtGui import QColor, QPalette
+
+    from app.style import DARK
+
+    window.document.new("line", two_mass_model)
+    scene = window.scene
+    app = QApplication.instance()
+    old = QPalette(app.palette())
+    pal = QPalette(old)
+    pal.setColor(QPalette.ColorRole.Window, QColor("#202020"))
+    app.setPalette(pal)
+    try:
+        qtbot.wait(20)
+        for eid in ("m1", "m2"):
+            assert scene.nodes[eid].label_item.brush().color().name() == DARK.label_hex
+    finally:
+        app.setPalette(old)

@@ -263,3 +263,17 @@ def test_find_peaks_counts_an_undamped_resonance_once_and_skips_plateaus():
     sdof = 1.0 / np.sqrt((1 - (f / 5) ** 2) ** 2 + (0.1 * f / 5) ** 2)
     (q,) = solver.find_peaks(f, sdof)
     assert q.frequency_hz == pytest.approx(5.0 * np.sqrt(1 - 2 * 0.05 ** 2), rel=2e-3)
+
+
+def test_undamped_combination_of_damped_junction_directions_is_loose():
+    """Two massless junctions joined only by a dashpot: each alone is damped, but moving both
+    together is held and damped by nothing; the mass's receptance is the single-DOF
+    1/(k - m w^2) (math), finite at every frequency."""
+    model = Model(kind="line", masses=(Mass("m", 1, 0, 2.0), Mass("J1", 2, 0, 0.0),
+                                       Mass("J2", 3, 0, 0.0)),
+                  anchors=(Anchor("g", 0, 0),), springs=(Spring("s", "g", "m", 1000.0),),
+                  dampers=(Damper("d", "J1", "J2", 3.0),))
+    f = np.linspace(0.5, 8.0, 40)
+    w = 2 * np.pi * f
+    H = solver.harmonic_response(model, f, {("m", "x"): 1.0})[:, 0]
+    np.testing.assert_allclose(H, 1.0 / (1000.0 - 2.0 * w ** 2), rtol=1e-10)
