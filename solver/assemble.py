@@ -225,6 +225,10 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
         if s.k_t and model.kind != "planar":
             warnings.append(f'spring "{s.id}": transverse stiffness k_t acts only in planar models;'
                             " it is ignored here")
+    if model.kind == "planar" and not model.anchors and any(s.k_t > 0 for s in springs):
+        warnings.append("a transverse stiffness k_t resists the sideways motion of one end"
+                        " relative to the other, rigid rotation included: a free-floating"
+                        " layout with k_t springs has fewer than three rigid-body modes")
 
     use_sparse = (n_all > SPARSE_DOF_LIMIT) if sparse is None else bool(sparse)
     retained = np.flatnonzero(masses > 0)

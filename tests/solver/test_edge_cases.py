@@ -277,3 +277,15 @@ def test_undamped_combination_of_damped_junction_directions_is_loose():
     w = 2 * np.pi * f
     H = solver.harmonic_response(model, f, {("m", "x"): 1.0})[:, 0]
     np.testing.assert_allclose(H, 1.0 / (1000.0 - 2.0 * w ** 2), rtol=1e-10)
+
+
+def test_free_planar_pair_with_transverse_stiffness_warns_about_rotation():
+    """math (k eeT + k_t nnT per spring): a free planar pair has three rigid modes with k_t = 0
+    and two with k_t > 0 (rigid rotation strains k_t); the model says so."""
+    def pair(kt):
+        return Model(kind="planar", masses=(Mass("a", 0, 0, 1.0), Mass("b", 1, 0, 1.0)),
+                     springs=(Spring("s", "a", "b", 1000.0, k_t=kt),))
+    assert len(solver.modes(pair(0.0)).zero_modes) == 3
+    res = solver.modes(pair(50.0))
+    assert len(res.zero_modes) == 2
+    assert any("rigid-body modes" in w for w in res.warnings)
