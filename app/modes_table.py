@@ -292,7 +292,7 @@ class ModesTable(QWidget):
         self.view.setSelectionMode(QAbstractItemView.SelectionMode.SingleSelection)
         self.view.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
         self.view.verticalHeader().setVisible(False)
-        self.view.horizontalHeader().setStretchLastSection(True)
+        self.view.horizontalHeader().setStretchLastSection(False)
         # columns are fitted to their contents when the table changes shape or a value grows
         # longer, not on every update: measuring every cell each slider step costs a frame
         self.view.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Interactive)
@@ -376,6 +376,13 @@ class ModesTable(QWidget):
     def _fit_columns(self, in_place: bool):
         cells, header = self._model._cells, self._model._header
         chars = [max([len(header[c])] + [len(r[c]) for r in cells]) for c in range(len(header))]
+        if not in_place:
+            # the notes (zero-frequency causes, conflicts) read right after the period, before
+            # the effective-mass columns, so a narrow dock still shows them (display order only)
+            hdr = self.view.horizontalHeader()
+            notes = len(header) - 1
+            if notes > 4 and hdr.visualIndex(notes) != 4:
+                hdr.moveSection(hdr.visualIndex(notes), 4)
         if not in_place or len(chars) != len(self._col_chars) or \
                 any(a > b for a, b in zip(chars, self._col_chars)):
             self.view.resizeColumnsToContents()
