@@ -292,6 +292,35 @@ def _model_damping(model: Model, M, K, C_dash):
     return C_dash + Cm, []
 
 
+def _sparse_null(Kss, scale: float):
+    """Orthonormal null space of a large sparse positive semi-definite junction block (the
+    directions no spring holds), usually empty: a sparse LU with healthy pivots proves it is; a
+    suspect factor is followed by shift-invert Lanczos for the smallest eigenvalues.
+
+    Returns (null, lu): lu is the healthy factor of Kss when there is no null space, else None.
+    """
+    n = Kss.shape[0]
+    try:
+        lu = spla.splu(Kss)
+        piv = np.abs(lu.U.diagonal())
+        if piv.size and piv.min() > 1e-11 * piv.max():
+            return np.zeros((n, 0)), lu
+    except RuntimeError:   # an exactly zero pivot: certainly a loose direction
+        pass
+    k = 6
+    while True:
+        k = min(k, n - 1)
+        lam, vec = spla.eigsh(Kss, k=k, sigma=-1e-8 * scale, which="LM")
+        zero = lam <= 1e-11 * scale
+        if not zero.all() or k >= n - 1 or k >= 256:
+            break
+        k *= 2
+    if not zero.any():
+        return np.zeros((n, 0)), None
+    q, _r = np.linalg.qr(vec[:, zero])
+    return q, None
+
+
 def _condense(K_full, C_full, retained, slaves, all_dofs):
     """Static condensation of the massless DOFs ``slaves``.
 
@@ -315,17 +344,19 @@ def _condense(K_full, C_full, retained, slaves, all_dofs):
         G = sp.csr_matrix(G)
         null = vt[len(sv) - loose:].T if loose else np.zeros((n_s, 0))
     else:
-        try:   # exact when every junction direction is held (the usual case)
-            lu = spla.splu(Kss.tocsc())
-        except RuntimeError:
-            # a loose direction among thousands of junctions: a regularised factor, warned
-            lu = spla.splu((Kss + sp.identity(n_s) * (1e-13 * abs(Kss.diagonal()).max())).tocsc())
-            warnings.append("some massless junctions have a direction held by no spring; with"
-                            " more than 2000 junctions their condensation is regularised"
-                            " (results approximate: lock those directions)")
+        Kss = sp.csc_matrix(Kss)
+        scale = max(float(abs(Kss).max()), 1e-300)
+        null, lu = _sparse_null(Kss, scale)   # lu: the factor of Kss when nothing is loose
+        if lu is None and null.shape[1]:
+            # Kss + s N N^T is Kss on the held directions and s on the loose ones; the right-hand
+            # sides Ksm x carry nothing along N (K is positive semi-definite), so its solution is
+            # the least-motion one, as the pseudo-inverse gives for smaller models
+            Ns = sp.csr_matrix(null)
+            lu = spla.splu(sp.csc_matrix(Kss + scale * (Ns @ Ns.T)))
+        elif lu is None:   # a suspect pivot but no null space found: the plain factor
+            lu = spla.splu(Kss)
         G = sp.csr_matrix(-lu.solve(Ksm.toarray()))
-        loose = 0
-        null = np.zeros((n_s, 0))
+        loose = null.shape[1]
     if loose:
         names = sorted({all_dofs[i][0] for i in slaves[np.flatnonzero(
             np.abs(K_full[slaves][:, slaves].diagonal()) <= 0)]})

@@ -289,3 +289,38 @@ def test_free_planar_pair_with_transverse_stiffness_warns_about_rotation():
     res = solver.modes(pair(50.0))
     assert len(res.zero_modes) == 2
     assert any("rigid-body modes" in w for w in res.warnings)
+
+
+def test_loose_junctions_among_thousands_are_found_and_taken_out():
+    """Beyond the dense condensation limit (1,010 planar junctions here), a rotated pair of
+    junctions whose sideways directions nothing holds is still detected (warned) and taken out:
+    the FRF of the mass equals the model without the filler junctions (they are held and
+    unconnected to it), rtol 1e-9 (math: they add nothing to the mass's equations)."""
+    import math
+
+    def build(n_fill, ang=0.523):
+        masses = [Mass("m", 0, 0, 2.0)]
+        anchors = [Anchor("g", -1, 0), Anchor("h", 0, -1)]
+        springs = [Spring("sg", "g", "m", 1000.0), Spring("sh", "h", "m", 1500.0)]
+        c, s = math.cos(ang), math.sin(ang)
+        masses.append(Mass("J1", c, s, 0.0))
+        springs.append(Spring("s1", "m", "J1", 700.0))
+        masses.append(Mass("J2", c - s * 0.7, s + c * 0.7, 0.0))
+        springs.append(Spring("s2", "J1", "J2", 300.0))
+        for i in range(n_fill):
+            x = 10 + i
+            masses.append(Mass(f"F{i}", x, 5, 0.0))
+            anchors += [Anchor(f"A{i}", x, 4), Anchor(f"B{i}", x + 1, 5)]
+            springs += [Spring(f"fa{i}", f"A{i}", f"F{i}", 100.0),
+                        Spring(f"fb{i}", f"B{i}", f"F{i}", 100.0)]
+        return Model(kind="planar", masses=tuple(masses), anchors=tuple(anchors),
+                     springs=tuple(springs))
+
+    big, small = build(1010), build(0)
+    assert any("held by no" in w for w in solver.assemble(big).warnings)
+    f = [1.0, 2.0, 3.0]
+    H = solver.harmonic_response(big, f, {("m", "x"): 1.0})
+    Hs = solver.harmonic_response(small, f, {("m", "x"): 1.0})
+    ib = solver.assemble(big).dofs.index(("m", "x"))
+    i_s = solver.assemble(small).dofs.index(("m", "x"))
+    np.testing.assert_allclose(H[:, ib], Hs[:, i_s], rtol=1e-9)

@@ -225,6 +225,8 @@ def invalid_files(draw):
         bad = draw(st.sampled_from(BAD_VALUES))
         if field in ("id", "a", "b") and isinstance(bad, str):
             bad = 5
+        if field in ("orders", "fixed", "mode_ratios") and isinstance(bad, list):
+            bad = "text"     # a list may be a valid value of these list fields
         data[key][i][field] = bad
     elif how == "negative_mass":
         m = draw(st.sampled_from(data["masses"]))
