@@ -7,7 +7,7 @@ VENV   := .venv
 BIN    := $(VENV)/bin
 STAMP  := $(VENV)/.installed
 
-.PHONY: run test setup qt-libs bench clean
+.PHONY: run test fuzz setup qt-libs bench clean
 
 $(BIN)/python:
 	$(PYTHON) -m venv $(VENV)
@@ -29,6 +29,10 @@ test: setup
 	@sh tools/qt_libs.sh offscreen
 	QT_QPA_PLATFORM=offscreen $(BIN)/lint-imports --config pyproject.toml
 	QT_QPA_PLATFORM=offscreen $(BIN)/python -m pytest -q
+
+# fresh random examples for the property tests, ten times as many (finds new edge cases)
+fuzz: setup
+	QT_QPA_PLATFORM=offscreen SW_HYPOTHESIS=fuzz SW_EXAMPLES=500 $(BIN)/python -m pytest -q tests/solver/test_random_models.py tests/solver/test_tuning.py
 
 bench: setup
 	$(BIN)/python bench/solver_bench.py
