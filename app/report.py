@@ -213,7 +213,7 @@ def _title_block(pg: _Page, model, modal, date: str):
             "SPRINGWRIGHT · LUMPED MODEL REPORT", 8, True, st.accent)
     h = pg.text(QRectF(box.left() + pad, top + pad + 0.22 * d, left_w, 0.9 * d),
                 model.name or "Unnamed model", 18, True, st.ink)
-    from solver.model import count
+    from .units import count
 
     torsion = model.kind == "torsion"
     n_el = ", ".join((count(len(model.masses), "disc" if torsion else "mass",

@@ -106,16 +106,20 @@ class ResponseCurves:
                 w.writerow(row)
 
 
-def decade_ticks(lo: float, hi: float) -> list[tuple[float, str]]:
-    """Ticks (Hz) for a log frequency axis from lo to hi: 1, 2 and 5 per decade labelled in plain
-    numbers (``20``, ``500``, ``2k``), the other integers with an empty label (minor)."""
+def _hz_text(v: float) -> str:
+    return f"{v / 1000:g}k" if v >= 1000 else f"{v:g}"
+
+
+def decade_ticks(lo: float, hi: float, labelled=(1, 2, 5), fmt=_hz_text) -> list[tuple[float, str]]:
+    """Ticks for a log axis from lo to hi: the ``labelled`` mantissas of each decade labelled by
+    ``fmt`` (default plain Hz: ``20``, ``500``, ``2k``), the other integers with an empty label
+    (minor)."""
     out = []
     for e in range(int(np.floor(np.log10(lo))) - 1, int(np.ceil(np.log10(hi))) + 1):
         for m in range(1, 10):
             v = m * 10.0 ** e
             if lo / 1.001 <= v <= hi * 1.001:
-                text = (f"{v / 1000:g}k" if v >= 1000 else f"{v:g}") if m in (1, 2, 5) else ""
-                out.append((v, text))
+                out.append((v, fmt(v) if m in labelled else ""))
     return out
 
 

@@ -30,9 +30,10 @@ from .style import current_style
 DEBOUNCE_MS = 80
 
 
-def log_ticks(lo: float, hi: float):
-    """pyqtgraph ticks (log10 units) for a log frequency axis: labelled majors, unlabelled minors."""
-    ticks = rd.decade_ticks(lo, hi)
+def log_ticks(lo: float, hi: float, **kw):
+    """pyqtgraph ticks (log10 units) for a log axis: labelled majors, unlabelled minors
+    (``kw`` as for :func:`app.response_data.decade_ticks`)."""
+    ticks = rd.decade_ticks(lo, hi, **kw)
     return [[(np.log10(v), t) for v, t in ticks if t], [(np.log10(v), "") for v, t in ticks if not t]]
 
 

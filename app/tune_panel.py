@@ -26,16 +26,17 @@ import math
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QSignalBlocker, Qt, Signal
-from PySide6.QtWidgets import (QCheckBox, QComboBox, QScrollArea, QDoubleSpinBox, QGridLayout, QHBoxLayout, QLabel,
-                               QListWidget, QPushButton, QSizePolicy, QSlider, QSpinBox,
-                               QSplitter, QVBoxLayout, QWidget)
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QGridLayout, QHBoxLayout,
+                               QLabel, QListWidget, QPushButton, QScrollArea, QSizePolicy,
+                               QSlider, QSpinBox, QSplitter, QVBoxLayout, QWidget)
 
 import solver
 from solver.errors import ModelError
 from solver.margins import source_bands
 from solver.model import Mass, Spring
-from solver.tuning import FIELDS, value_of, with_value
+from solver.tuning import FIELDS, ranked, value_of, with_value
 
+from .response_panel import log_ticks
 from .solve_service import dof_count
 from .style import current_style
 
@@ -89,35 +90,21 @@ def value_text(v: float) -> str:
     return f"10{exp}" if abs(m - 1) < 1e-6 else f"{m:g}×10{exp}"
 
 
-def log_value_ticks(lo: float, hi: float, labelled=(1, 2, 5)):
-    """pyqtgraph ticks (log10 units) from lo to hi: ``labelled`` mantissas of each decade carry a
-    label, the other integers are unlabelled minor ticks (the default ticks overlap)."""
-    major, minor = [], []
-    for e in range(int(math.floor(math.log10(lo))) - 1, int(math.ceil(math.log10(hi))) + 1):
-        for m in range(1, 10):
-            v = m * 10.0 ** e
-            if lo / 1.001 <= v <= hi * 1.001:
-                (major if m in labelled else minor).append((math.log10(v), value_text(v)
-                                                            if m in labelled else ""))
-    return [major, minor]
-
-
-def default_element(model):
-    """The (spring id, field) a model opens with in the Tune panel: the spring that governs the
-    first mode in conflict with a source, else the first elastic mode; None without springs."""
+def default_element(analysis):
+    """The (spring id, field) a model opens with in the Tune panel, from its analysis (no new
+    solve): the spring that governs the first mode in conflict with a source, else the first
+    elastic mode; None without springs."""
+    model = analysis.model
     if not model.springs:
         return None
-    try:
-        res = solver.modes(model)
-        conflicts = solver.margin_check(model, res).conflicts if model.excitations else ()
-        elastic = [i + 1 for i in range(res.n_modes) if not res.is_zero[i]]
-        mode = conflicts[0].mode if conflicts else (elastic[0] if elastic else None)
-        if mode is None:
-            return (model.springs[0].id, "k")
-        ranked = [r for r in solver.rank_elements(model, mode) if r[1] in ("k", "k_t")]
-    except ModelError:
+    res = analysis.modal
+    conflicts = solver.margin_check(model, res).conflicts if model.excitations else ()
+    elastic = [i + 1 for i in range(res.n_modes) if not res.is_zero[i]]
+    mode = conflicts[0].mode if conflicts else (elastic[0] if elastic else None)
+    if mode is None:
         return (model.springs[0].id, "k")
-    return (ranked[0][0], ranked[0][1]) if ranked else (model.springs[0].id, "k")
+    springs = [r for r in ranked(model, analysis.sensitivity, mode) if r[1] in ("k", "k_t")]
+    return (springs[0][0], springs[0][1]) if springs else (model.springs[0].id, "k")
 
 
 def margin_summary(model) -> str:
@@ -187,6 +174,7 @@ class TunePanel(QWidget):
         self._drag_serial = 0
         self._proposed: float | None = None
         self._plot_factor = 1.0
+        self._auto_pick = False
         self._combo_signature = None
         self._analysis = None
         self._applying = False
@@ -307,7 +295,7 @@ class TunePanel(QWidget):
         pi.showGrid(x=True, y=True, alpha=0.25)
         pi.setLabel("left", "natural frequency (Hz)")   # no SI prefix switching
         pi.setMenuEnabled(False)
-        pi.getAxis("bottom").setStyle(maxTickLevel=1)   # ticks set per sweep (log_value_ticks)
+        pi.getAxis("bottom").setStyle(maxTickLevel=1)   # ticks set per sweep (log_ticks)
         for ax in ("left", "bottom"):
             pi.getAxis(ax).setTextPen(st.ink)
             pi.getAxis(ax).setPen(st.ink_soft)
@@ -410,8 +398,8 @@ class TunePanel(QWidget):
                 idx = keys.index(tuple(self._key)) if self._key is not None and \
                     tuple(self._key) in keys else -1
                 if idx < 0 and items:
-                    default = default_element(model)
-                    idx = keys.index(default) if default in keys else 0
+                    idx = 0
+                    self._auto_pick = True   # the governing spring, once the results arrive
                 self.element_combo.setCurrentIndex(idx)
             key = self.element_combo.currentData() if idx >= 0 else None
             if key != self._key:
@@ -445,6 +433,7 @@ class TunePanel(QWidget):
             self._draw_sweep(model)
 
     def _on_element_pick(self, index):
+        self._auto_pick = False          # the user's (or a proposal's) choice stands
         key = self.element_combo.itemData(index) if index >= 0 else None
         model = self.document.model
         if key is None:
@@ -503,6 +492,11 @@ class TunePanel(QWidget):
     def set_analysis(self, analysis):
         """New results of the document's model: moves the cursor dots and the mode choice."""
         self._analysis = analysis
+        if self._auto_pick and analysis is not None and analysis.model is self.document.model:
+            self._auto_pick = False
+            pick = default_element(analysis)
+            if pick is not None and pick != self._key:
+                self.select_element(*pick)
         n = analysis.modal.n_modes if analysis is not None else 0
         with QSignalBlocker(self.mode_spin):
             self.mode_spin.setRange(1, max(1, n))
@@ -723,7 +717,8 @@ class TunePanel(QWidget):
         band_top = max([b[5] for b in bands if b[5] < 3 * top] + [0.0])
         pi.setXRange(math.log10(values[0]), math.log10(values[-1]), padding=0.02)
         # a decade either way: label 1 and 5 of each decade (1, 2, 5 would overlap here)
-        pi.getAxis("bottom").setTicks(log_value_ticks(values[0], values[-1], labelled=(1, 5)))
+        pi.getAxis("bottom").setTicks(log_ticks(values[0], values[-1], labelled=(1, 5),
+                                                fmt=value_text))
         pi.setYRange(0, max(top, band_top) * 1.05, padding=0)
         pi.setTitle(f"every mode against {model.element(eid).label} · {f}", color=st.ink_soft_hex,
                     size="9pt")

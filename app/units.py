@@ -160,5 +160,10 @@ def format_value(value_si: float, kind: str, system: str = "SI", digits: int = 6
     return f"{v:.{digits}g} {qk.label(system)}"
 
 
+def count(n: int, one: str, many: str | None = None) -> str:
+    """``1 mass``, ``3 masses``: a count with its noun, for display."""
+    return f"{n} {one if n == 1 else (many or one + 's')}"
+
+
 def unit_label(kind: str, system: str = "SI") -> str:
     return KINDS[kind].label(system)

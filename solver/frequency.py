@@ -75,12 +75,12 @@ def _dynamic_solve(system: System, f: np.ndarray, rhs_fn) -> np.ndarray:
     C = damping_matrix_full(system)
     n_total = K.shape[0]
     w = 2 * np.pi * f
-    out_total = np.zeros((len(f), n_total), complex)
     if n_total == 0:
-        return out_total
+        return np.zeros((len(f), 0), complex)
     L = getattr(system, "loose", None)
     if L is not None and L.shape[1]:
-        # Junction directions held by nothing make Z(w) singular along L at every frequency.
+        # Junction directions held by nothing (a planar junction between springs in line, an
+        # axial spring's free end) make Z(w) singular along L at every frequency.
         # Z L = 0 and L^T Z = 0, so adding s L L^T leaves the solution orthogonal to L unchanged
         # and fixes the loose motion at zero (the least motion, as the modal path gives); a
         # force along L has nothing to push against and is left out.
@@ -89,18 +89,6 @@ def _dynamic_solve(system: System, f: np.ndarray, rhs_fn) -> np.ndarray:
         K = K + (s or 1.0) * (Ls @ Ls.T if sp.issparse(K) else (Ls @ Ls.T).toarray())
         inner = rhs_fn
         rhs_fn = lambda wi: (lambda r: r - L @ (L.T @ r))(inner(wi))  # noqa: E731
-    # A direction of a massless junction that no spring, dashpot or mass touches (a planar
-    # junction between springs in line) has an all-zero row: it carries no force and takes no
-    # part in the response, so it is left out of the solve (its motion reported as zero).
-    def _rows_nonzero(x):
-        x = abs(x)
-        return np.asarray(x.sum(axis=1)).ravel() > 0
-    live = _rows_nonzero(K) | _rows_nonzero(M) | _rows_nonzero(C)
-    if not live.all():
-        idx = np.flatnonzero(live)
-        K, M, C = (x[idx][:, idx] for x in (K, M, C))
-        full_rhs = rhs_fn
-        rhs_fn = lambda wi: full_rhs(wi)[idx]  # noqa: E731
     n = K.shape[0]
     out = np.empty((len(f), n), complex)
     # a sparse LU per frequency beats dense LAPACK by far on the banded matrices of chains and
@@ -116,8 +104,7 @@ def _dynamic_solve(system: System, f: np.ndarray, rhs_fn) -> np.ndarray:
                 out[i] = spla.splu(Z).solve(rhs_fn(wi).astype(complex))
             except RuntimeError:  # exactly singular: a rigid-body mode at w = 0
                 out[i] = np.inf
-        out_total[:, live] = out
-        return out_total
+        return out
     K, M, C = (x.toarray() if sp.issparse(x) else np.asarray(x) for x in (K, M, C))
     chunk = max(1, int(_CHUNK_BYTES // (16 * n * n)))
     for s in range(0, len(w), chunk):
@@ -132,8 +119,7 @@ def _dynamic_solve(system: System, f: np.ndarray, rhs_fn) -> np.ndarray:
                     out[s + j] = np.linalg.solve(Z[j], B[j])
                 except np.linalg.LinAlgError:
                     out[s + j] = np.inf
-    out_total[:, live] = out
-    return out_total
+    return out
 
 
 def _retained(system: System, X_all: np.ndarray) -> np.ndarray:

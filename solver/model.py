@@ -70,11 +70,6 @@ def _positive(owner: str, name: str, value, unit: str, ranged: bool = False) -> 
     return _in_range(owner, name, v, unit) if ranged else v
 
 
-def count(n: int, one: str, many: str | None = None) -> str:
-    """``1 mass``, ``3 masses``: a count with its noun."""
-    return f"{n} {one if n == 1 else (many or one + 's')}"
-
-
 def _fmt(v: float) -> str:
     return f"{v:.6g}"
 

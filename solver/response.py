@@ -13,7 +13,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.sparse as sp
 import scipy.linalg
 
 from .assemble import System, assemble
@@ -198,9 +197,7 @@ def free_response(model, times, result: ModalResult | None = None, x0=None, v0=N
         z = np.zeros((len(t), n_all))
         return FreeResponse(t, system.all_dofs, z, z.copy(), "modal", tuple(warnings))
     # any dashpot that does work (to ground or between two DOFs) makes damping non-proportional
-    C_dash = system.C_full
-    has_dashpots = damped and len(model.dampers) > 0 and \
-        (abs(C_dash).sum() if sp.issparse(C_dash) else np.abs(C_dash).sum()) > 0
+    has_dashpots = damped and len(model.dampers) > 0 and abs(system.C_full).sum() > 0
     if not has_dashpots:
         res = result if result is not None and result.complete else modes(
             system, count=system.n_dof if system.n_dof <= FULL_MODAL_DOF_LIMIT else None)

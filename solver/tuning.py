@@ -227,7 +227,11 @@ def rank_elements(model: Model, mode: int) -> list[tuple[str, str, float]]:
     res = modes(model)
     if not 1 <= mode <= res.n_modes:
         raise ModelError(f"mode {mode} does not exist: the model has {res.n_modes} modes")
-    sens = sensitivities(res)
+    return ranked(model, sensitivities(res), mode)
+
+
+def ranked(model: Model, sens, mode: int) -> list[tuple[str, str, float]]:
+    """:func:`rank_elements` from sensitivities already computed (``Analysis.sensitivity``)."""
     out = []
     for j, sid in enumerate(sens.spring_ids):
         out.append((sid, "k", float(sens.normalised_k[mode - 1, j])))
