@@ -27,7 +27,7 @@ run: setup qt-libs
 
 test: setup
 	@sh tools/qt_libs.sh offscreen
-	QT_QPA_PLATFORM=offscreen $(BIN)/lint-imports --config pyproject.toml
+	QT_QPA_PLATFORM=offscreen $(BIN)/lint-imports pyproject.toml
 	QT_QPA_PLATFORM=offscreen $(BIN)/python -m pytest -q
 
 # fresh random examples for the property tests, ten times as many (finds new edge cases)

@@ -95,7 +95,7 @@ def solve_json(analysis) -> dict:
 def solve_table(analysis) -> str:
     """The human-readable mode table of ``springwright solve``."""
     from solver.margins import margin_check
-    from app.units import count
+    from app.text.units import count
 
     modal = analysis.modal
     model = analysis.model

@@ -15,12 +15,14 @@ from PySide6.QtWidgets import (QDockWidget, QFileDialog, QFrame, QHBoxLayout, QL
 
 from solver.errors import ModelError
 
-from .canvas import MODE_INFO, CanvasView, Mode, ModelScene
-from .document import Document
-from .properties import PropertyPanel
-from .recovery import Recovery
-from .solve_service import SolveService
-from .style import current_style
+from app.canvas import MODE_INFO, CanvasView, Mode, ModelScene
+from app.document.document import Document
+from app.docks.modes_table import ModesTable
+from app.docks.motion_panel import MotionPanel
+from app.docks.properties import PropertyPanel
+from app.document.recovery import Recovery
+from app.document.solve_service import SolveService
+from app.drawing.style import current_style
 
 #: A pending solve is marked out of date only when it takes longer than this (ms).
 STALE_DELAY_MS = 120
@@ -38,14 +40,6 @@ def first_size(available=None) -> tuple[int, int]:
 MAX_RECENT = 8
 FILE_FILTER = "Springwright models (*.json);;All files (*)"
 
-
-def _optional_widget(module: str, cls: str):
-    """A panel from the other half of the GUI, or None while it is not there yet."""
-    try:
-        mod = __import__(f"app.{module}", fromlist=[cls])
-        return getattr(mod, cls)
-    except (ImportError, AttributeError):
-        return None
 
 
 CAUTION_TEXT = (
@@ -139,14 +133,12 @@ class MainWindow(QMainWindow):
         self.warnings_label.setTextInteractionFlags(Qt.TextSelectableByMouse)
         self.warnings_label.hide()
         rl.addWidget(self.warnings_label)
-        ModesTable = _optional_widget("modes_table", "ModesTable")
-        self.modes_table = ModesTable() if ModesTable else QLabel("(modes table not available)")
+        self.modes_table = ModesTable()
         rl.addWidget(self.modes_table, 1)
         self._dock("Modes", results, Qt.BottomDockWidgetArea, "dock_modes")
-        MotionPanel = _optional_widget("motion_panel", "MotionPanel")
-        self.motion_panel = MotionPanel() if MotionPanel else QLabel("(motion view not available)")
+        self.motion_panel = MotionPanel()
         self._dock("Motion", self.motion_panel, Qt.RightDockWidgetArea, "dock_motion")
-        from .response_panel import ResponsePanel
+        from app.docks.response_panel import ResponsePanel
 
         self.response_panel = ResponsePanel(self.document)
         self.response_panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
@@ -389,9 +381,9 @@ class MainWindow(QMainWindow):
 
     def _add_tune_panels(self):
         """Tune panel beside the modes table, sensitivity table tabbed with it, energy tint."""
-        from .energy_view import EnergyTint
-        from .sensitivity_table import SensitivityTable
-        from .tune_panel import TunePanel
+        from app.canvas.energy_view import EnergyTint
+        from app.docks.sensitivity_table import SensitivityTable
+        from app.docks.tune_panel import TunePanel
 
         self.tune_panel = TunePanel(self.document, self.solver)
         self.tune_panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
@@ -651,7 +643,7 @@ class MainWindow(QMainWindow):
     def export_report(self, path) -> bool:
         self.solver.wait()
         try:
-            from .report import render_report
+            from app.report import render_report
 
             render_report(self.document.model, self.solver.last_analysis, path,
                           response=self.response_panel.response)

@@ -68,10 +68,10 @@ class TunePath(QWidget):
     def __init__(self):
         super().__init__()
         from app.canvas import CanvasView, ModelScene
-        from app.document import Document
-        from app.modes_table import ModesTable
-        from app.solve_service import SolveService
-        from app.tune_panel import TunePanel
+        from app.document.document import Document
+        from app.docks.modes_table import ModesTable
+        from app.document.solve_service import SolveService
+        from app.docks.tune_panel import TunePanel
 
         self.document = Document(parent=self)
         self.solver = SolveService(self.document, parent=self)

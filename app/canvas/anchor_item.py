@@ -7,8 +7,8 @@ import math
 from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QPainterPath
 
-from app import shapes
-from app.style import current_style
+from app.drawing import shapes
+from app.drawing.style import current_style
 
 from .node_item import NodeItem
 

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from app import shapes
+from app.drawing import shapes
 
 from .link_item import LinkItem
 

@@ -8,7 +8,7 @@ from PySide6.QtCore import QLineF, QPointF, QRectF, Signal
 from PySide6.QtGui import QPainterPath, QPainterPathStroker, QPen
 from PySide6.QtWidgets import QGraphicsItem, QGraphicsObject, QGraphicsSimpleTextItem
 
-from app.style import current_style
+from app.drawing.style import current_style
 
 
 def _edge_inset(node_item, u: QPointF) -> float:

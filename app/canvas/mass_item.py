@@ -5,8 +5,8 @@ from __future__ import annotations
 from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QBrush, QPainterPath
 
-from app import shapes
-from app.style import current_style
+from app.drawing import shapes
+from app.drawing.style import current_style
 
 from .node_item import NodeItem
 

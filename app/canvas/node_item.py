@@ -6,7 +6,7 @@ from PySide6.QtCore import QPointF, Signal
 from PySide6.QtGui import QPen
 from PySide6.QtWidgets import QGraphicsItem, QGraphicsObject, QGraphicsSimpleTextItem
 
-from app.style import current_style
+from app.drawing.style import current_style
 
 from .geometry import Mapper
 

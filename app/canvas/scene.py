@@ -16,7 +16,7 @@ from PySide6.QtCore import QLineF, QPointF, QRectF, Qt, Signal
 from PySide6.QtGui import QPainter, QPainterPath, QPen
 from PySide6.QtWidgets import QGraphicsItem, QGraphicsLineItem, QGraphicsPathItem, QGraphicsScene
 
-from app.style import current_style
+from app.drawing.style import current_style
 from solver.errors import ModelError
 from solver.model import Spring
 

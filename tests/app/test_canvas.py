@@ -1,7 +1,6 @@
 """Canvas: build a model with real mouse gestures and check it against the solver."""
 
 import numpy as np
-import pytest
 from PySide6.QtCore import QPoint, Qt
 
 import solver

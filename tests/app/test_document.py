@@ -5,7 +5,7 @@ import stat
 
 import pytest
 
-from app.document import Document
+from app.document.document import Document
 from solver.io import load_model, save_model
 
 

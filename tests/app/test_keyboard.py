@@ -140,7 +140,7 @@ def test_light_dark_switch_recolours_every_canvas_label(qtbot, window, two_mass_
     """common practice: a palette change restyles all items, not only the ones edited after."""
     from PySide6.QtGui import QColor, QPalette
 
-    from app.style import DARK
+    from app.drawing.style import DARK
 
     window.document.new("line", two_mass_model)
     scene = window.scene

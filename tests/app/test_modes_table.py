@@ -3,14 +3,13 @@ import os
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
 import csv
-import io
 
 import numpy as np
 import pytest
 from PySide6.QtCore import Qt
 
 import solver
-from app.modes_table import ModesTable, mode_table_csv, mode_table_rows
+from app.docks.modes_table import ModesTable, mode_table_csv, mode_table_rows
 
 from _models_for_views import td3s, chain
 

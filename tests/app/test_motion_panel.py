@@ -2,12 +2,11 @@ import os
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
-import numpy as np
 import pytest
 from PySide6.QtCore import QPoint, Qt
 
 import solver
-from app.motion_panel import MotionPanel
+from app.docks.motion_panel import MotionPanel
 
 from _models_for_views import td3s
 

@@ -3,8 +3,8 @@
 import pytest
 from PySide6.QtCore import Qt
 
-from app.document import Document
-from app.properties import PropertyPanel
+from app.document.document import Document
+from app.docks.properties import PropertyPanel
 
 
 def _type(qtbot, field, text):

@@ -8,9 +8,9 @@ from PySide6.QtCore import QPoint, Qt
 from PySide6.QtGui import QImage
 
 from app.canvas import Mode
-from app.document import Document
-from app.response_data import ResponseInput
-from app.response_panel import ResponsePanel
+from app.document.document import Document
+from app.results.response_data import ResponseInput
+from app.docks.response_panel import ResponsePanel
 from solver.damping import rayleigh_coefficients
 from solver.model import Anchor, Damping, Mass, Model, Spring
 

@@ -2,12 +2,11 @@ import os
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
-import math
 
 import pytest
 from PySide6.QtCore import QPointF
 
-from app import shapes
+from app.drawing import shapes
 
 
 def test_coil_path_ends_on_both_points():

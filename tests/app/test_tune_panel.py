@@ -9,7 +9,7 @@ from PySide6.QtWidgets import QApplication, QStyle, QStyleOptionSlider
 
 import solver
 from solver.model import Anchor, Mass, Model, Spring
-from app.style import current_style
+from app.drawing.style import current_style
 
 
 def _open(window, model):

@@ -4,7 +4,7 @@ import hypothesis.strategies as st
 from hypothesis import HealthCheck, settings
 from hypothesis.stateful import RuleBasedStateMachine, invariant, precondition, rule
 
-from app.document import Document
+from app.document.document import Document
 from solver.errors import ModelError
 from solver.model import Anchor, Mass, Model, Spring
 

@@ -5,7 +5,7 @@ import math
 import pint
 import pytest
 
-from app import units
+from app.text import units
 
 # NIST SP 811 (2008), appendix B: exact definitions 1 lbf = 4.4482216152605 N, 1 in = 0.0254 m.
 LBF_PER_IN_IN_N_PER_M = 175.126835

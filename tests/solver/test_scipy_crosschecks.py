@@ -6,7 +6,6 @@ taken from ``solver.assemble`` when the check is of the eigen/response solvers r
 
 from __future__ import annotations
 
-import math
 
 import numpy as np
 import pytest

@@ -15,7 +15,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 import solver
-from solver import Anchor, Damping, Mass, Model, ModelError, Spring
+from solver import Anchor, Mass, Model, ModelError, Spring
 from sw_builders import chain
 
 TWO_PI = 2 * math.pi

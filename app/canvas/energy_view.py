@@ -13,9 +13,9 @@ from PySide6.QtCore import QEvent, QObject, QPointF, QRectF, Qt
 from PySide6.QtGui import QColor, QLinearGradient, QPainter, QPen
 from PySide6.QtWidgets import QWidget
 
-from .canvas.mass_item import MassItem
-from .canvas.spring_item import SpringItem
-from .style import current_style
+from .mass_item import MassItem
+from .spring_item import SpringItem
+from app.drawing.style import current_style
 
 
 class EnergyLegend(QWidget):

@@ -15,7 +15,7 @@ import numpy as np
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, QSortFilterProxyModel, Qt
 from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QLabel, QTableView, QVBoxLayout, QWidget
 
-from .style import current_style
+from app.drawing.style import current_style
 
 SORT_ROLE = Qt.ItemDataRole.UserRole + 1
 DASH = "—"

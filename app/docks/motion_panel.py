@@ -32,8 +32,8 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QHBoxLayout
 
 import pyqtgraph as pg
 
-from .sketch import SketchLayout, fit_scale, paint_sketch
-from .style import current_style
+from app.drawing.sketch import SketchLayout, fit_scale, paint_sketch
+from app.drawing.style import current_style
 
 FPS = 30
 #: Time scales offered (model seconds per wall-clock second).

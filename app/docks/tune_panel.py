@@ -36,9 +36,9 @@ from solver.margins import source_bands
 from solver.model import Mass, Spring
 from solver.tuning import FIELDS, ranked, value_of, with_value
 
-from .response_panel import log_ticks
-from .solve_service import dof_count
-from .style import current_style
+from app.drawing.plot_axes import log_ticks
+from app.document.solve_service import dof_count
+from app.drawing.style import current_style
 
 #: The slider spans this many decades either side of the value at selection time.
 DECADES = 1.0
@@ -338,12 +338,12 @@ class TunePanel(QWidget):
 
     def _factor(self, model, eid, f) -> float:
         """SI units per display unit of the picked element's field."""
-        from .units import KINDS
+        from app.text.units import KINDS
 
         return KINDS[self._unit_kind(model, eid, f)].factor(self.unit_system)
 
     def _unit(self, model, eid, f) -> str:
-        from .units import unit_label
+        from app.text.units import unit_label
 
         return unit_label(self._unit_kind(model, eid, f), self.unit_system)
 

@@ -7,7 +7,7 @@ import numpy as np
 from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QColor, QPainterPath, QPen
 
-from .response_data import decade_ticks
+from app.results.response_data import decade_ticks
 
 
 def _fmt(v: float, digits: int = 4) -> str:

@@ -17,8 +17,8 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QHBoxLayout, Q
 from solver.errors import ModelError
 from solver.model import Anchor, Damper, Mass, Spring
 
-from . import units
-from .style import current_style
+from app.text import units
+from app.drawing.style import current_style
 
 
 class QuantityField(QWidget):
@@ -369,7 +369,7 @@ class PropertyPanel(QWidget):
         self._kind_error.setStyleSheet(f"color: {current_style().error.name()};")
         self._kind_error.hide()
         self.form.addRow(self._kind_error)
-        from .damping_editor import DampingEditor  # the model's damping, one undo entry per edit
+        from app.docks.damping_editor import DampingEditor  # the model's damping, one undo entry per edit
 
         self.damping_editor = DampingEditor(self.document)
         self.damping_editor.status_message.connect(self.status_message)

@@ -24,17 +24,11 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QFileDialog, QHBoxLayout, Q
 
 from solver.errors import ModelError
 
-from . import response_data as rd
-from .style import current_style
+from app.results import response_data as rd
+from app.drawing.plot_axes import log_ticks
+from app.drawing.style import current_style
 
 DEBOUNCE_MS = 80
-
-
-def log_ticks(lo: float, hi: float, **kw):
-    """pyqtgraph ticks (log10 units) for a log axis: labelled majors, unlabelled minors
-    (``kw`` as for :func:`app.response_data.decade_ticks`)."""
-    ticks = rd.decade_ticks(lo, hi, **kw)
-    return [[(np.log10(v), t) for v, t in ticks if t], [(np.log10(v), "") for v, t in ticks if not t]]
 
 
 def _fmt(v: float, digits: int = 4) -> str:

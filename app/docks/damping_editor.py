@@ -21,7 +21,7 @@ from solver.damping import rayleigh_coefficients
 from solver.errors import ModelError
 from solver.model import Damping
 
-from .style import current_style
+from app.drawing.style import current_style
 
 MODELS = (("none", "none (dashpots only)"), ("modal", "modal ratio"),
           ("rayleigh", "Rayleigh (α M + β K)"))

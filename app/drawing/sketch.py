@@ -19,8 +19,8 @@ from statistics import median
 from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QBrush, QFont, QFontMetricsF, QPainter, QPen
 
-from . import shapes
-from .style import LIGHT, Style, current_style
+from app.drawing import shapes
+from app.drawing.style import LIGHT, Style, current_style
 
 #: A rotation drawn larger than this (rad) would wrap visually; fit_scale aims below it.
 _MAX_DRAWN_ROTATION = math.radians(55)

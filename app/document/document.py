@@ -18,7 +18,7 @@ from solver.errors import ModelError
 from solver.io import load_model, save_model
 from solver.model import Anchor, Damper, Initial, Mass, Model, Spring
 
-from . import commands
+from app.document import commands
 
 #: Values a new element starts with, by model kind (SI: kg or kg m^2, N/m or N m/rad, N s/m).
 DEFAULT_MASS = {"line": 1.0, "planar": 1.0, "torsion": 0.01}

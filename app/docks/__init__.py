@@ -1,0 +1,1 @@
+"""Dock panels of the main window (one file per panel)."""

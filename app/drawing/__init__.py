@@ -1,0 +1,1 @@
+"""Shared drawing: the model sketch, element shapes, colours and plot axes."""

@@ -1,0 +1,1 @@
+"""What the panels and the report show, computed from an analysis (no widgets)."""

@@ -1,0 +1,1 @@
+"""Shared text: units and the one number format used by every panel, the report, CSV and CLI."""
