@@ -133,6 +133,7 @@ class ModesTable(QWidget):
         lay.addWidget(self.view)
         self._stale = False
         self._message = ""
+        self.unit_system = "SI"
 
     # -- public API --------------------------------------------------------------------------
     def set_analysis(self, analysis) -> None:
@@ -188,12 +189,17 @@ class ModesTable(QWidget):
         """The rows shown (see :func:`mode_table_rows`)."""
         return list(self._model._rows)
 
+    def set_unit_system(self, system: str) -> None:
+        """"SI" or "US": the unit of the effective masses in the CSV and the clipboard (the
+        columns shown are in Hz, rad/s, s and %, the same in both)."""
+        self.unit_system = system
+
     def to_csv(self, path) -> None:
-        write_mode_table_csv(self._analysis, path)
+        write_mode_table_csv(self._analysis, path, self.unit_system)
 
     def copy_to_clipboard(self) -> str:
         """Copy the table as tab-separated text (pastes into a spreadsheet); returns the text."""
-        text = mode_table_csv(self._analysis, delimiter="\t")
+        text = mode_table_csv(self._analysis, delimiter="\t", system=self.unit_system)
         QGuiApplication.clipboard().setText(text)
         return text
 

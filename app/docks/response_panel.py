@@ -25,14 +25,12 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QFileDialog, QHBoxLayout, Q
 from solver.errors import ModelError
 
 from app.results import response_data as rd
-from app.drawing.plot_axes import log_ticks
+from app.results.names import dof_name, names
+from app.drawing.plot_axes import log_ticks, true_value_axes
 from app.drawing.style import current_style
+from app.text.numbers import FREQ_SIG, hz, number
 
 DEBOUNCE_MS = 80
-
-
-def _fmt(v: float, digits: int = 4) -> str:
-    return "—" if not np.isfinite(v) else f"{v:.{digits}g}"
 
 
 class ResponsePanel(QWidget):
@@ -57,6 +55,7 @@ class ResponsePanel(QWidget):
         self.auto_range = True
         self.f_range = (1.0, 1000.0)
         self.error = ""
+        self.unit_system = "SI"
         self._choices: list[rd.ResponseInput] = []
         self._live = False
         self._held = False
@@ -151,8 +150,9 @@ class ResponsePanel(QWidget):
         self.plots = pg.GraphicsLayoutWidget()
         self.plots.setObjectName("response_plots")
         self.plots.setBackground(st.background)
-        self.mag_plot = self.plots.addPlot(row=0, col=0)
-        self.phase_plot = self.plots.addPlot(row=1, col=0)
+        # true values on every tick, in the unit of the axis title (no hidden x1e6)
+        self.mag_plot = self.plots.addPlot(row=0, col=0, axisItems=true_value_axes())
+        self.phase_plot = self.plots.addPlot(row=1, col=0, axisItems=true_value_axes())
         self.plots.ci.layout.setRowStretchFactor(0, 3)
         self.plots.ci.layout.setRowStretchFactor(1, 2)
         self.mag_plot.setLogMode(x=True, y=True)
@@ -163,8 +163,8 @@ class ResponsePanel(QWidget):
         for p in (self.mag_plot, self.phase_plot):
             p.showGrid(x=True, y=True, alpha=0.25)
             p.getAxis("left").setWidth(58)
-        # plain "Hz": on a log axis with our own ticks, pyqtgraph's SI prefix would say "kHz"
-        # over labels that are in Hz
+        # the frequency axis is shared: its values and title are written once, under the phase
+        self.mag_plot.getAxis("bottom").setStyle(showValues=False)
         self.phase_plot.setLabel("bottom", "frequency (Hz)")
         self.phase_plot.setLabel("left", "phase (deg)")
         self.legend = self.mag_plot.addLegend(offset=(10, -10), labelTextSize="8pt", brush=pg.mkBrush(
@@ -192,8 +192,7 @@ class ResponsePanel(QWidget):
         bl.addWidget(self.note_label)
         self.peaks_table = QTableWidget(0, 5)
         self.peaks_table.setObjectName("response_peaks")
-        self.peaks_table.setHorizontalHeaderLabels(
-            ["output", "peak (Hz)", "amplitude", "−3 dB width (Hz)", "damping ratio ≈"])
+        self.peaks_table.setHorizontalHeaderLabels(self._peak_headers(None))
         self.peaks_table.horizontalHeader().setSectionResizeMode(QHeaderView.Stretch)
         self.peaks_table.verticalHeader().hide()
         self.peaks_table.setEditTriggers(QTableWidget.NoEditTriggers)
@@ -270,11 +269,13 @@ class ResponsePanel(QWidget):
         with QSignalBlocker(self.input_combo):
             self.input_combo.clear()
             for c in choices:
-                self.input_combo.addItem(c.label)
+                self.input_combo.addItem(c.text(model))
             if self.input is not None:
                 self.input_combo.setCurrentIndex(choices.index(self.input))
         dofs = rd.output_dofs(model)
         key = tuple(dofs)
+        shown = names(model)
+        key = (key, tuple(shown.get(m, m) for m, _d in dofs))
         if key != self._outputs_model_key:
             if not (self._outputs & set(dofs)):
                 # default: every mass along the input direction, at most four
@@ -285,8 +286,7 @@ class ResponsePanel(QWidget):
             with QSignalBlocker(self.output_list):
                 self.output_list.clear()
                 for m, d in dofs:
-                    text = f"{m} {d}" if len(model.directions) > 1 else m
-                    it = QListWidgetItem(text)
+                    it = QListWidgetItem(dof_name(model, m, d, shown))
                     it.setData(Qt.UserRole, (m, d))
                     it.setFlags(it.flags() | Qt.ItemIsUserCheckable)
                     it.setCheckState(Qt.Checked if (m, d) in self._outputs else Qt.Unchecked)
@@ -423,9 +423,10 @@ class ResponsePanel(QWidget):
         self.legend.clear()
         self.curve_items = []
         with QSignalBlocker(self.f_lo_edit), QSignalBlocker(self.f_hi_edit):
-            self.f_lo_edit.setText(f"{self.f_range[0]:.4g}")
-            self.f_hi_edit.setText(f"{self.f_range[1]:.4g}")
+            self.f_lo_edit.setText(number(self.f_range[0]))
+            self.f_hi_edit.setText(number(self.f_range[1]))
         self.peaks_table.setRowCount(0)
+        self.peaks_table.setHorizontalHeaderLabels(self._peak_headers(resp))
         if resp is None:
             self.note_label.setText(message)
             self.note_label.setStyleSheet(f"color: {st.error.name()};" if self.error else "")
@@ -450,9 +451,10 @@ class ResponsePanel(QWidget):
                                                         style=Qt.DashLine))
                     line.setZValue(-10)
                     p.addItem(line)
+        unit, factor = resp.display_unit(self.unit_system)
         for i, c in enumerate(resp.curves):
             pen = pg.mkPen(st.trace(i), width=2)
-            mag = c.magnitude
+            mag = c.magnitude / factor
             mag = np.where(mag > 0, mag, np.nan)  # log axis: a true zero has no place on it
             item = self.mag_plot.plot(resp.freqs_hz, mag, pen=pen, name=c.label,
                                       connect="finite")
@@ -462,8 +464,7 @@ class ResponsePanel(QWidget):
             one = pg.InfiniteLine(0.0, angle=0, pen=pg.mkPen(st.ink_soft, width=1,
                                                                  style=Qt.DotLine))
             self.mag_plot.addItem(one)
-        self.mag_plot.setLabel("left", f"|{resp.quantity}|" +
-                               (f" ({resp.unit})" if resp.unit != "—" else ""))
+        self.mag_plot.setLabel("left", resp.axis_label(self.unit_system))
         self.mag_plot.setTitle(resp.title, size="9pt")
         self.mag_plot.setXRange(np.log10(lo), np.log10(hi), padding=0)
         for p in (self.mag_plot, self.phase_plot):
@@ -472,8 +473,9 @@ class ResponsePanel(QWidget):
         rows = [(c.label, p) for c in resp.curves for p in c.peaks]
         self.peaks_table.setRowCount(len(rows))
         for r, (label, p) in enumerate(rows):
-            for col, text in enumerate((label, _fmt(p.frequency_hz, 5), _fmt(p.amplitude),
-                                        _fmt(p.bandwidth_hz), _fmt(p.damping_ratio, 3))):
+            for col, text in enumerate((label, number(p.frequency_hz, FREQ_SIG),
+                                        number(p.amplitude / factor), number(p.bandwidth_hz),
+                                        number(p.damping_ratio))):
                 it = QTableWidgetItem(text)
                 it.setTextAlignment(Qt.AlignRight | Qt.AlignVCenter if col else
                                     Qt.AlignLeft | Qt.AlignVCenter)
@@ -483,7 +485,7 @@ class ResponsePanel(QWidget):
             parts = []
             for label, fs in resp.crossovers_hz.items():
                 if fs:
-                    parts.append(f"{label} above {fs[-1]:.4g} Hz")
+                    parts.append(f"{label} above {hz(fs[-1])}")
             if parts:
                 notes.insert(0, "Isolation (|T| < 1): " + "; ".join(parts) + ".")
             else:
@@ -491,6 +493,20 @@ class ResponsePanel(QWidget):
         self.note_label.setText("  ".join(notes))
         self.note_label.setStyleSheet("")
         self.curves_changed.emit()
+
+    def _peak_headers(self, resp) -> list[str]:
+        unit = resp.display_unit(self.unit_system)[0] if resp is not None else ""
+        return ["output", "peak (Hz)", f"amplitude ({unit or 'ratio'})" if resp is not None
+                else "amplitude", "−3 dB width (Hz)", "damping ratio ≈"]
+
+    def set_unit_system(self, system: str) -> None:
+        """Show magnitudes in "SI" or "US" units (curves, axis, peaks, CSV); the model and the
+        computed curves stay SI."""
+        if system == self.unit_system:
+            return
+        self.unit_system = system
+        if self.response is not None:
+            self._draw(self.response, "")
 
     # -- plotted data (tests, export) ---------------------------------------------------------
     def plotted_data(self) -> list[tuple[str, np.ndarray, np.ndarray]]:
@@ -520,7 +536,7 @@ class ResponsePanel(QWidget):
         """Write the plotted curves as CSV: frequency, then magnitude and phase of each output."""
         if self.response is None:
             raise OSError("no response to export" + (f": {self.error}" if self.error else ""))
-        self.response.write_csv(path)
+        self.response.write_csv(path, self.unit_system)
 
     def _export_dialog(self, what, fn, filt):
         start = "response." + what

@@ -16,6 +16,7 @@ from PySide6.QtCore import QAbstractTableModel, QModelIndex, QSortFilterProxyMod
 from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QLabel, QTableView, QVBoxLayout, QWidget
 
 from app.drawing.style import current_style
+from app.text.numbers import hz, signed
 
 SORT_ROLE = Qt.ItemDataRole.UserRole + 1
 DASH = "—"
@@ -64,7 +65,7 @@ class _SensitivityModel(QAbstractTableModel):
             return None
         if section == 0:
             return "element"
-        return f"mode {section}\n{self._freqs[section - 1]:.4g} Hz"
+        return f"mode {section}\n{hz(self._freqs[section - 1])}"
 
     def value(self, row: int, mode: int) -> float:
         return float(self._rows[row][3][mode - 1])
@@ -82,7 +83,7 @@ class _SensitivityModel(QAbstractTableModel):
             return None
         v = float(vals[c - 1])
         if role == Qt.ItemDataRole.DisplayRole:
-            return DASH if not math.isfinite(v) else f"{v:+.4f}"
+            return DASH if not math.isfinite(v) else signed(v, 3)
         if role == SORT_ROLE:
             return v if math.isfinite(v) else -math.inf
         if role == Qt.ItemDataRole.TextAlignmentRole:
@@ -90,8 +91,8 @@ class _SensitivityModel(QAbstractTableModel):
         if role == Qt.ItemDataRole.ToolTipRole:
             if not math.isfinite(v):
                 return "zero-frequency mode: no sensitivity"
-            return (f"a 1 % change of {label} moves mode {c} by about {v:+.3g} %"
-                    f" ({self._freqs[c - 1]:.4g} Hz)")
+            return (f"a 1 % change of {label} moves mode {c} by about {signed(v, 3)} %"
+                    f" ({hz(self._freqs[c - 1])})")
         if role == Qt.ItemDataRole.ForegroundRole and math.isfinite(v) and abs(v) >= 0.1:
             return current_style().accent
         return None

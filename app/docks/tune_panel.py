@@ -36,9 +36,12 @@ from solver.margins import source_bands
 from solver.model import Mass, Spring
 from solver.tuning import FIELDS, ranked, value_of, with_value
 
-from app.drawing.plot_axes import log_ticks
+from app.drawing.plot_axes import log_ticks, true_value_axes
 from app.document.solve_service import dof_count
 from app.drawing.style import current_style
+from app.results.names import names
+from app.results.verdicts import all_clear, verdicts
+from app.text.numbers import band_text, hz, number, signed
 
 #: The slider spans this many decades either side of the value at selection time.
 DECADES = 1.0
@@ -70,24 +73,16 @@ def source_texts(model) -> list[str]:
     out = []
     for e in model.excitations:
         if e.type == "speed":
-            hz = ", ".join(f"{o:g}× = {o * e.rpm / 60:.4g} Hz" for o in e.orders)
-            out.append(f"{e.label}: {e.rpm:g} rpm, orders {hz}")
+            lines = ", ".join(f"{o:g}× = {hz(o * e.rpm / 60)}" for o in e.orders)
+            out.append(f"{e.label}: {number(e.rpm)} rpm, orders {lines}")
         else:
-            out.append(f"{e.label}: band {e.f_min_hz:.4g} to {e.f_max_hz:.4g} Hz")
+            out.append(f"{e.label}: band {band_text(e.f_min_hz, e.f_max_hz)}")
     return out
 
 
-_SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
-
-
 def value_text(v: float) -> str:
-    """A tick label for a value on a log axis: ``50``, ``0.2``, ``5×10⁶``."""
-    if 1e-3 <= v < 1e4:
-        return f"{v:g}"
-    e = int(math.floor(math.log10(v) + 1e-9))
-    m = v / 10 ** e
-    exp = str(e).translate(_SUPERSCRIPT)
-    return f"10{exp}" if abs(m - 1) < 1e-6 else f"{m:g}×10{exp}"
+    """A tick label for a value on a log axis, in the shared format: ``50``, ``0.2``, ``5e6``."""
+    return number(v)
 
 
 def default_element(analysis):
@@ -116,12 +111,8 @@ def margin_summary(model) -> str:
     except ModelError as exc:
         return f"Margin check not possible: {exc}"
     if result.ok:
-        return (f"Margin check: every elastic mode clears every source by at least"
-                f" {model.margin_percent:g} %.")
-    modes_in = sorted({c.mode for c in result.conflicts})
-    return (f"Margin check: mode{'s' if len(modes_in) > 1 else ''}"
-            f" {', '.join(map(str, modes_in))} still within {model.margin_percent:g} % of a"
-            " source.")
+        return f"Margin check: {all_clear(model, result)}."
+    return "Margin check: " + "; ".join(v.sentence for v in verdicts(model, result)) + "."
 
 
 def band_crossings(values, freqs, bands) -> list[tuple[float, float]]:
@@ -287,7 +278,7 @@ class TunePanel(QWidget):
         left.setMinimumWidth(260)
 
         pg.setConfigOptions(antialias=True)
-        self.plot = pg.PlotWidget()
+        self.plot = pg.PlotWidget(axisItems=true_value_axes())
         self.plot.setObjectName("tune_plot")
         self.plot.setBackground(st.background)
         pi = self.plot.getPlotItem()
@@ -347,8 +338,10 @@ class TunePanel(QWidget):
 
         return unit_label(self._unit_kind(model, eid, f), self.unit_system)
 
-    def _show(self, model, eid, f, v: float, digits: int = 5) -> str:
-        return f"{v / self._factor(model, eid, f):.{digits}g} {self._unit(model, eid, f)}"
+    def _show(self, model, eid, f, v: float, digits: int | None = None) -> str:
+        from app.text.units import show
+
+        return show(v, self._unit_kind(model, eid, f), self.unit_system, digits)
 
     # -- state --------------------------------------------------------------------------------
     @property
@@ -458,8 +451,8 @@ class TunePanel(QWidget):
         except ModelError as exc:
             self._sweep = None
             self.message.setText(f"No sweep: {exc}")
-        self.low_label.setText(self._show(model, eid, f, lo, 3))
-        self.high_label.setText(self._show(model, eid, f, hi, 3))
+        self.low_label.setText(self._show(model, eid, f, lo))
+        self.high_label.setText(self._show(model, eid, f, hi))
         self._draw_sweep(model)
 
     def _place_slider(self, value: float):
@@ -595,7 +588,7 @@ class TunePanel(QWidget):
             return []
         lines = []
         for eid, f, s in ranked[:5]:
-            lines.append(f"{model.element(eid).label} · {f}: {s:+.3f}")
+            lines.append(f"{model.element(eid).label} · {f}: {signed(s, 3)}")
         self.ranking_label.setText(f"Governing mode {mode} ((p/f) df/dp, % per %): "
                                    + "; ".join(lines))
         eid, f, _s = ranked[0]
@@ -625,9 +618,10 @@ class TunePanel(QWidget):
         self.message.setStyleSheet("")
         now = value_of(model, eid, f)
         self.message.setText(f"{model.element(eid).label} · {f} ="
-                             f" {self._show(model, eid, f, value, 6)} puts mode {mode} on"
-                             f" {target:g} Hz"
-                             f" ({(value / now - 1) * 100:+.1f} % from now). Apply to set it.")
+                             f" {self._show(model, eid, f, value)} puts mode {mode} on"
+                             f" {hz(target)}"
+                             f" ({signed((value / now - 1) * 100, 3)} % from now). Apply to set"
+                             " it.")
         self._draw_proposal()
         return value
 
@@ -670,7 +664,7 @@ class TunePanel(QWidget):
             top = 1.0          # only zero-frequency modes: keep the axis at 0 and up
         bands = source_bands(model)
         lx0 = math.log10(values[0])
-        labels = {e.id: e.label for e in model.excitations}
+        labels = names(model)
         warn = st.warning
         for sid, order, lo, hi, lo_w, hi_w in bands:
             c = pg.mkColor(warn)

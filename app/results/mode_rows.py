@@ -9,7 +9,10 @@ from __future__ import annotations
 
 import csv
 import io
-import math
+
+from app.results.verdicts import verdicts
+from app.text.numbers import FREQ_SIG, csv_number, number, percent
+from app.text.units import KINDS
 
 _DIR_SYMBOL = {"x": "x", "y": "y", "theta": "θ"}
 
@@ -31,18 +34,8 @@ def _directions(analysis) -> list[str]:
     return dirs + [d for d in modal.effective_mass if d not in dirs]
 
 
-def _excitation_hits(model, margin, mode: int) -> list[str]:
-    """Sources (with order) whose margin-widened interval holds ``mode``: the solver's margin
-    check (:func:`solver.margin_check`), so the table, the report and the command line agree."""
-    labels = {e.id: e.label for e in model.excitations}
-    hits = []
-    for c in margin.for_mode(mode):
-        name = labels.get(c.source_id, c.source_id)
-        if c.order is not None:
-            hits.append(f"{name} order {c.order:g} ({c.low_hz:.4g} Hz)")
-        else:
-            hits.append(f"{name} ({c.low_hz:.4g} to {c.high_hz:.4g} Hz)")
-    return hits
+def _mass_kind(model) -> str:
+    return "inertia" if model.kind == "torsion" else "mass"
 
 
 def mode_table_rows(analysis) -> list[dict]:
@@ -52,8 +45,10 @@ def mode_table_rows(analysis) -> list[dict]:
     mode), ``effective_mass`` {direction: kg (kg m^2 in torsion)}, ``effective_mass_percent`` and
     ``cumulative_percent`` {direction: %}, ``zero_frequency`` (bool), ``zero_kind`` ("rigid",
     "mechanism" or ""), ``zero_cause`` (plain words), ``repeated_with`` (tuple of the other mode
-    numbers of a repeated group), ``near_excitation`` (list of texts: sources within the model's
-    separation margin), ``flags`` (all of that as one line of text).
+    numbers of a repeated group), ``verdicts`` (:class:`app.results.verdicts.Verdict` per source
+    the mode is too close to: the solver's margin check, so the table, the report and the command
+    line agree), ``near_excitation`` (their texts: "inside Sine test band (20 to 200 Hz): move it
+    below 17 Hz or above 230 Hz"), ``flags`` (all of that as one line of text).
     """
     if analysis is None:
         return []
@@ -68,20 +63,20 @@ def mode_table_rows(analysis) -> list[dict]:
     rows = []
     from solver.margins import margin_check
 
-    margin = margin_check(model, modal)
+    margin = verdicts(model, margin_check(model, modal))
     for i in range(modal.n_modes):
         n = i + 1
         z = modal.zero_mode(n)
         group = tuple(g for g in modal.repeated_group(n) if g != n)
-        near = _excitation_hits(model, margin, n)
+        mine = [v for v in margin if v.mode == n]
+        near = [f"{v.relation} {v.what}: {v.way_out}" for v in mine]
         flags = []
         if z is not None:
             flags.append(f"zero frequency ({z.kind}): {z.cause}")
         if group:
             flags.append("repeated with mode " + ", ".join(str(g) for g in group)
                          + " (shapes are one choice among many)")
-        if near:
-            flags.append(f"within {model.margin_percent:g} % of " + "; ".join(near))
+        flags.extend(near)
         rows.append({
             "mode": n,
             "frequency_hz": float(f[i]),
@@ -94,6 +89,7 @@ def mode_table_rows(analysis) -> list[dict]:
             "zero_kind": z.kind if z is not None else "",
             "zero_cause": z.cause if z is not None else "",
             "repeated_with": group,
+            "verdicts": mine,
             "near_excitation": near,
             "flags": "; ".join(flags),
         })
@@ -116,19 +112,12 @@ def _short_flags(row: dict) -> str:
         parts.append(f"0 Hz: {row['zero_kind']}")
     if row["repeated_with"]:
         parts.append("repeated")
-    if row["near_excitation"]:
-        first = row["near_excitation"][0].split(" (")[0]
-        more = len(row["near_excitation"]) - 1
-        parts.append(f"in margin of {first}" + (f" (+{more})" if more else ""))
+    if row["verdicts"]:
+        # the closest call first: inside a band before within a margin
+        first = min(row["verdicts"], key=lambda v: not v.inside)
+        more = len(row["verdicts"]) - 1
+        parts.append(first.short + (f" (+{more} more)" if more else ""))
     return ", ".join(parts)
-
-
-def _fmt_num(v: float, digits: int = 5) -> str:
-    if math.isinf(v):
-        return "∞"
-    if v == 0:
-        return "0"
-    return f"{v:.{digits}g}"
 
 
 def mode_table_cells(analysis, rows: list[dict] | None = None, short_flags: bool = True) -> list[list[str]]:
@@ -137,49 +126,63 @@ def mode_table_cells(analysis, rows: list[dict] | None = None, short_flags: bool
     dirs = _directions(analysis) if analysis is not None else []
     out = []
     for r in rows:
-        cells = [str(r["mode"]), _fmt_num(r["frequency_hz"]), _fmt_num(r["omega_rad_s"]),
-                 _fmt_num(r["period_s"])]
+        cells = [str(r["mode"]), number(r["frequency_hz"], FREQ_SIG),
+                 number(r["omega_rad_s"], FREQ_SIG), number(r["period_s"])]
         for d in dirs:
-            cells += [f"{r['effective_mass_percent'][d]:.2f}", f"{r['cumulative_percent'][d]:.2f}"]
+            cells += [percent(r["effective_mass_percent"][d]), percent(r["cumulative_percent"][d])]
         cells.append(_short_flags(r) if short_flags else r["flags"])
         out.append(cells)
     return out
 
 
-def _csv_header(analysis) -> list[str]:
+_CSV_UNIT = {"kg": "kg", "kg m²": "kg_m2", "lb": "lb", "lb in²": "lb_in2"}
+
+
+def _csv_mass_unit(analysis, system: str) -> str:
+    label = KINDS[_mass_kind(_model(analysis))].label(system)
+    return _CSV_UNIT.get(label, label.replace(" ", "_"))
+
+
+def _csv_header(analysis, system: str = "SI") -> list[str]:
+    """Every column names its unit (``_hz``, ``_kg``, ``_percent``)."""
+    unit = _csv_mass_unit(analysis, system)
     head = ["mode", "frequency_hz", "omega_rad_s", "period_s"]
     for d in _directions(analysis):
-        head += [f"effective_mass_{d}", f"effective_mass_percent_{d}", f"cumulative_percent_{d}"]
+        head += [f"effective_mass_{d}_{unit}", f"effective_mass_percent_{d}",
+                 f"cumulative_percent_{d}"]
     head += ["zero_frequency", "repeated_with", "notes"]
     return head
 
 
-def _csv_records(analysis) -> list[list]:
+def _csv_records(analysis, system: str = "SI") -> list[list]:
     dirs = _directions(analysis)
+    factor = KINDS[_mass_kind(_model(analysis))].factor(system)
     recs = []
     for r in mode_table_rows(analysis):
-        rec = [r["mode"], repr(r["frequency_hz"]), repr(r["omega_rad_s"]),
-               "inf" if math.isinf(r["period_s"]) else repr(r["period_s"])]
+        rec = [r["mode"], csv_number(r["frequency_hz"]), csv_number(r["omega_rad_s"]),
+               csv_number(r["period_s"])]
         for d in dirs:
-            rec += [repr(r["effective_mass"][d]), repr(r["effective_mass_percent"][d]),
-                    repr(r["cumulative_percent"][d])]
+            rec += [csv_number(r["effective_mass"][d] / factor),
+                    csv_number(r["effective_mass_percent"][d]),
+                    csv_number(r["cumulative_percent"][d])]
         rec += ["yes" if r["zero_frequency"] else "no",
                 " ".join(str(g) for g in r["repeated_with"]), r["flags"]]
         recs.append(rec)
     return recs
 
 
-def mode_table_csv(analysis, delimiter: str = ",") -> str:
-    """The mode table as CSV text with full-precision numbers (SI units named in the header)."""
+def mode_table_csv(analysis, delimiter: str = ",", system: str = "SI") -> str:
+    """The mode table as CSV text: 12 significant digits (:func:`app.text.numbers.csv_number`),
+    every column's unit in its header; effective masses in the display ``system``'s unit."""
     buf = io.StringIO()
     writer = csv.writer(buf, delimiter=delimiter, lineterminator="\n")
     if analysis is not None:
-        writer.writerow(_csv_header(analysis))
-        writer.writerows(_csv_records(analysis))
+        writer.writerow(_csv_header(analysis, system))
+        writer.writerows(_csv_records(analysis, system))
     return buf.getvalue()
 
 
-def write_mode_table_csv(analysis, path) -> None:
+def write_mode_table_csv(analysis, path, system: str = "SI") -> None:
     """Write :func:`mode_table_csv` to ``path`` (UTF-8)."""
     with open(path, "w", encoding="utf-8", newline="") as fh:
-        fh.write(mode_table_csv(analysis))
+        fh.write(mode_table_csv(analysis, system=system))

@@ -17,6 +17,10 @@ import numpy as np
 
 from solver.errors import ModelError
 
+from app.results.names import dof_name, names
+from app.text.numbers import csv_number, number
+from app.text.units import KINDS
+
 #: Log-spaced points over the range, before the refinement around each natural frequency.
 N_POINTS = 800
 #: Relative offsets from each natural frequency added to the grid: ~30 per decade from 1e-4 to
@@ -43,9 +47,20 @@ class ResponseInput:
 
     @property
     def label(self) -> str:
+        """With ids (for messages about a choice that no longer exists); people read
+        :meth:`text`."""
         if self.kind == "base":
             return f"Base motion in {self.direction}"
         return f"Force at {self.mass_id} in {self.direction}"
+
+    def text(self, model) -> str:
+        """As a person reads it: ``Force at Unit under test in y`` (the mass by its label;
+        a torque on a torsion model)."""
+        if self.kind == "base":
+            return f"Base motion in {self.direction}"
+        what = "Torque" if model is not None and model.kind == "torsion" else "Force"
+        name = names(model).get(self.mass_id, self.mass_id) if model is not None else self.mass_id
+        return f"{what} at {name} in {self.direction}"
 
 
 @dataclass(frozen=True, eq=False)
@@ -73,7 +88,9 @@ class ResponseCurves:
 
     freqs_hz : (n_freq,) Hz, ascending.   curves : one :class:`Curve` per output.
     quantity : "displacement" | "velocity" | "acceleration" (force input), or "transmissibility"
-    (base input, absolute) / "relative transmissibility".   unit : text of the magnitude's unit.
+    (base input, absolute) / "relative transmissibility".   unit : text of the magnitude's SI
+    unit ("—" for a ratio).   unit_kind : its :data:`app.text.units.KINDS` key ("" for a ratio),
+    for showing it in another unit system (:meth:`display_unit`).
     bands : ``solver.source_bands`` rows (id, order, lo, hi, lo_widened, hi_widened) in Hz.
     crossovers_hz : per curve, frequencies where |T| falls through 1 (base input only).
     """
@@ -88,32 +105,47 @@ class ResponseCurves:
     natural_frequencies_hz: tuple = ()
     crossovers_hz: dict = field(default_factory=dict)
     notes: tuple = ()
+    unit_kind: str = ""
 
-    def write_csv(self, path) -> None:
-        """One row per frequency: f, then magnitude and phase (deg) of each curve."""
+    def display_unit(self, system: str = "SI") -> tuple[str, float]:
+        """(unit text, SI value of one display unit) of the magnitude in ``system``; ("", 1) for
+        a ratio."""
+        if not self.unit_kind:
+            return "", 1.0
+        k = KINDS[self.unit_kind]
+        return k.label(system), k.factor(system)
+
+    def axis_label(self, system: str = "SI") -> str:
+        """The magnitude axis title with its unit: ``|displacement| (in/lbf)``,
+        ``|transmissibility| (ratio)``."""
+        unit, _f = self.display_unit(system)
+        return f"|{self.quantity}| ({unit or 'ratio'})"
+
+    def write_csv(self, path, system: str = "SI") -> None:
+        """One row per frequency: f, then magnitude (in ``system``'s unit) and phase (deg) of
+        each curve; every header names its unit; 12 significant digits
+        (:func:`app.text.numbers.csv_number`)."""
+        unit, factor = self.display_unit(system)
         header = ["frequency_hz"]
         for c in self.curves:
-            header += [f"{c.label} |{self.quantity}| ({self.unit})", f"{c.label} phase (deg)"]
+            header += [f"{c.label} |{self.quantity}| ({unit or 'ratio'})",
+                       f"{c.label} phase (deg)"]
         with open(path, "w", newline="", encoding="utf-8") as fh:
             w = csv.writer(fh)
             w.writerow(header)
-            mags = [c.magnitude for c in self.curves]
+            mags = [c.magnitude / factor for c in self.curves]
             phases = [c.phase_deg for c in self.curves]
             for i, f in enumerate(self.freqs_hz):
-                row = [f"{f:.9g}"]
+                row = [csv_number(f)]
                 for m, p in zip(mags, phases):
-                    row += [f"{m[i]:.9g}", f"{p[i]:.6g}"]
+                    row += [csv_number(m[i]), csv_number(p[i])]
                 w.writerow(row)
 
 
-def _hz_text(v: float) -> str:
-    return f"{v / 1000:g}k" if v >= 1000 else f"{v:g}"
-
-
-def decade_ticks(lo: float, hi: float, labelled=(1, 2, 5), fmt=_hz_text) -> list[tuple[float, str]]:
+def decade_ticks(lo: float, hi: float, labelled=(1, 2, 5), fmt=number) -> list[tuple[float, str]]:
     """Ticks for a log axis from lo to hi: the ``labelled`` mantissas of each decade labelled by
-    ``fmt`` (default plain Hz: ``20``, ``500``, ``2k``), the other integers with an empty label
-    (minor)."""
+    ``fmt`` (default the shared number format: ``20``, ``500``, ``2000``, ``20e3``), the other
+    integers with an empty label (minor)."""
     out = []
     for e in range(int(np.floor(np.log10(lo))) - 1, int(np.ceil(np.log10(hi))) + 1):
         for m in range(1, 10):
@@ -199,7 +231,7 @@ def compute_response(model, response_input: ResponseInput, outputs, quantity="di
         X = solver.base_transmissibility(system, freqs, response_input.direction,
                                          relative=relative, method=method, result=modal)
         q = "relative transmissibility" if relative else "transmissibility"
-        unit = "—"
+        unit, unit_kind = "—", ""
         title = f"{'Relative' if relative else 'Absolute'} transmissibility, base motion in" \
                 f" {response_input.direction}"
     elif response_input.kind == "force":
@@ -209,18 +241,21 @@ def compute_response(model, response_input: ResponseInput, outputs, quantity="di
         q = quantity
         torsion = model.kind == "torsion"
         unit = (_TORQUE_UNITS if torsion else _FORCE_UNITS)[quantity]
+        unit_kind = ("torsional " if torsion else "") + _FRF_NAMES[quantity]
         title = f"{_FRF_NAMES[quantity].capitalize()}, unit {'torque' if torsion else 'force'}" \
-                f" at {response_input.mass_id} in {response_input.direction}"
+                f" at {names(model).get(response_input.mass_id, response_input.mass_id)} in" \
+                f" {response_input.direction}"
     else:
         raise ModelError(f'response input must be "force" or "base", got "{response_input.kind}"')
     curves = []
     crossovers = {}
+    shown = names(model)
     for mass_id, d in outputs:
         if (mass_id, d) not in index:
             continue  # a locked or removed output: nothing to plot
         v = X[:, index[(mass_id, d)]]
         v = np.where(np.isfinite(v), v, np.nan)
-        label = f"{mass_id} {d}" if len(model.directions) > 1 else mass_id
+        label = dof_name(model, mass_id, d, shown)
         curves.append(Curve(label=label, mass_id=mass_id, direction=d, values=v,
                             peaks=tuple(solver.find_peaks(freqs, np.abs(v)))))
         if response_input.kind == "base" and not relative:
@@ -231,7 +266,7 @@ def compute_response(model, response_input: ResponseInput, outputs, quantity="di
     return ResponseCurves(input=response_input, freqs_hz=freqs, curves=tuple(curves), quantity=q,
                           unit=unit, title=title, bands=tuple(solver.source_bands(model)),
                           natural_frequencies_hz=natural, crossovers_hz=crossovers,
-                          notes=tuple(notes))
+                          notes=tuple(notes), unit_kind=unit_kind)
 
 
 def _crossings(f: np.ndarray, a: np.ndarray, level: float) -> tuple:

@@ -77,6 +77,24 @@ KINDS: dict[str, QuantityKind] = {
     "angle": _k("angle", "rad", ("rad", "rad", 1.0), ("rad", "rad", 1.0), "0.01 rad or 1 deg"),
     "angular velocity": _k("angular velocity", "rad/s", ("rad/s", "rad/s", 1.0),
                            ("rad/s", "rad/s", 1.0), "1 rad/s"),
+    # response per unit force or torque (shown, never typed)
+    "receptance": _k("receptance", "m/N", ("m/N", "m/N", 1.0), ("in/lbf", "in/lbf", _IN / _LBF),
+                     "1e-6 m/N"),
+    "mobility": _k("mobility", "m/s/N", ("m/s/N", "m/s/N", 1.0),
+                   ("in/s/lbf", "in/s/lbf", _IN / _LBF), "1e-3 m/s/N"),
+    "accelerance": _k("accelerance", "m/s**2/N", ("m/s²/N", "m/s**2/N", 1.0),
+                      ("in/s²/lbf", "in/s**2/lbf", _IN / _LBF), "0.1 m/s^2/N"),
+    "torsional receptance": _k("torsional receptance", "rad/(N*m)", ("rad/(N m)", "rad/(N*m)", 1.0),
+                               ("rad/(lbf in)", "rad/(lbf*in)", 1.0 / (_LBF * _IN)),
+                               "1e-4 rad/(N m)"),
+    "torsional mobility": _k("torsional mobility", "rad/s/(N*m)",
+                             ("rad/s/(N m)", "rad/s/(N*m)", 1.0),
+                             ("rad/s/(lbf in)", "rad/s/(lbf*in)", 1.0 / (_LBF * _IN)),
+                             "1e-2 rad/s/(N m)"),
+    "torsional accelerance": _k("torsional accelerance", "rad/s**2/(N*m)",
+                                ("rad/s²/(N m)", "rad/s**2/(N*m)", 1.0),
+                                ("rad/s²/(lbf in)", "rad/s**2/(lbf*in)", 1.0 / (_LBF * _IN)),
+                                "1 rad/s^2/(N m)"),
 }
 
 
@@ -152,12 +170,19 @@ def to_display(value_si: float, kind: str, system: str = "SI") -> float:
 
 
 def format_value(value_si: float, kind: str, system: str = "SI", digits: int = 6) -> str:
-    """Text for a field: the value in the display unit with the unit, e.g. ``12 lbf/in``."""
+    """Text for a field: the value in the display unit with the unit, e.g. ``12 lbf/in``
+    (the shared number format, :func:`app.text.numbers.quantity`)."""
+    from app.text.numbers import quantity
+
     qk = KINDS[kind]
-    v = value_si / qk.factor(system)
-    if v == 0:
-        v = 0.0  # no "-0"
-    return f"{v:.{digits}g} {qk.label(system)}"
+    return quantity(value_si / qk.factor(system), qk.label(system), digits)
+
+
+def show(value_si: float, kind: str, system: str = "SI", sig: int | None = None) -> str:
+    """A value for reading (panels, messages): display unit, the shared significant digits."""
+    from app.text.numbers import SIG
+
+    return format_value(value_si, kind, system, SIG if sig is None else sig)
 
 
 def count(n: int, one: str, many: str | None = None) -> str:

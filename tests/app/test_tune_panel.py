@@ -10,6 +10,7 @@ from PySide6.QtWidgets import QApplication, QStyle, QStyleOptionSlider
 import solver
 from solver.model import Anchor, Mass, Model, Spring
 from app.drawing.style import current_style
+from app.text.numbers import signed
 
 
 def _open(window, model):
@@ -121,7 +122,7 @@ def test_propose_picks_the_strongest_element(qtbot, window, two_mass_model):
     ranked = solver.rank_elements(window.document.model, 2)
     top = [r for r in ranked if r[1] == "k"][0]
     assert panel.element == (top[0], top[1])
-    assert f"{top[2]:+.3f}" in panel.ranking_label.text()
+    assert signed(top[2], 3) in panel.ranking_label.text()
     panel.springs_only.setChecked(False)
     qtbot.mouseClick(panel.propose_button, Qt.MouseButton.LeftButton)
     assert panel.element == (ranked[0][0], ranked[0][1])

@@ -1,0 +1,174 @@
+"""The one number format: every value a person reads (tables, panels, plot ticks, the report, the
+command line) and every value written to CSV goes through here.
+
+Display (:func:`number`, :func:`quantity`, :func:`hz`): a fixed count of significant digits,
+trailing zeros dropped; plain decimals for magnitudes in [0.001, 10000), engineering notation
+outside (the exponent a multiple of three, so it reads as an SI prefix: ``200e-6`` is 200 micro,
+``26.95e3`` is 26.95 kilo). Only ASCII, so the command line prints it on any console and a
+spreadsheet or ``float()`` reads it back.
+
+CSV (:func:`csv_number`): the value rounded to 12 significant digits and written as Python's
+shortest repr, exact to far more digits than any display shows but free of binary noise
+(``0.30000000000000004`` is written ``0.3``).
+"""
+
+from __future__ import annotations
+
+import math
+import re
+
+#: Significant digits of a displayed value (amplitudes, stiffnesses, masses, widths, ratios).
+SIG = 4
+#: Significant digits of a displayed frequency: margins and retune targets are read against it,
+#: so one more digit than other values (0.01 % of the value).
+FREQ_SIG = 5
+#: Magnitudes in [PLAIN_LOW, PLAIN_HIGH) are written without an exponent.
+PLAIN_LOW, PLAIN_HIGH = 1e-3, 1e4
+#: Significant digits kept in CSV.
+CSV_SIG = 12
+
+DASH = "—"
+
+
+def _strip(text: str) -> str:
+    """``200.0`` -> ``200``, ``51.660`` -> ``51.66`` (the digits shown are the significant ones)."""
+    if "." in text:
+        text = text.rstrip("0").rstrip(".")
+    return text
+
+
+def _exponent(value: float) -> int:
+    """Decimal exponent of a finite nonzero value, exact (from its decimal form, not a log)."""
+    return int(f"{value:e}".split("e")[1])
+
+
+def number(value, sig: int = SIG) -> str:
+    """``value`` to ``sig`` significant digits: ``51.66``, ``0.02``, ``200e-6``, ``26.95e3``.
+
+    NaN is a dash, infinity ``inf``; zero ``0`` (never ``-0``).
+    """
+    v = float(value)
+    if math.isnan(v):
+        return DASH
+    if math.isinf(v):
+        return "inf" if v > 0 else "-inf"
+    if v == 0:
+        return "0"
+    # round first: 9999.7 at 4 digits is 1.000e4 and takes the exponent
+    r = float(f"{v:.{sig - 1}e}")
+    e = _exponent(r)
+    if PLAIN_LOW <= abs(r) < PLAIN_HIGH:
+        return _strip(f"{r:.{max(0, sig - 1 - e)}f}")
+    e3 = 3 * math.floor(e / 3)
+    mantissa = r / 10.0 ** e3
+    return _strip(f"{mantissa:.{max(0, sig - 1 - (e - e3))}f}") + f"e{e3}"
+
+
+def signed(value, sig: int = SIG) -> str:
+    """:func:`number` with an explicit ``+`` on positive values (changes, sensitivities)."""
+    text = number(value, sig)
+    return "+" + text if float(value) > 0 and text[0].isdigit() else text
+
+
+def quantity(value, unit: str, sig: int = SIG) -> str:
+    """``number unit``: ``2.5e6 N/m``, ``29.92e-6 m/N``; no unit for a ratio (``unit`` "")."""
+    text = number(value, sig)
+    return f"{text} {unit}" if unit and text != DASH else text
+
+
+def hz(value, sig: int = FREQ_SIG) -> str:
+    """A frequency with its unit: ``51.661 Hz``."""
+    return quantity(value, "Hz", sig)
+
+
+def percent(value, decimals: int = 1) -> str:
+    """A share of a whole (0 to 100) with fixed decimals, as a column of shares lines up:
+    ``26.4``; a dash for NaN."""
+    v = float(value)
+    if math.isnan(v):
+        return DASH
+    text = f"{v:.{decimals}f}"
+    return "0" + text[2:] if text.startswith("-0") and float(text) == 0 else text
+
+
+def band_text(low_hz: float, high_hz: float) -> str:
+    """A frequency interval: ``20 to 200 Hz``; a single line ``49.5 Hz``."""
+    if high_hz <= low_hz:
+        return hz(low_hz)
+    return f"{number(low_hz, FREQ_SIG)} to {hz(high_hz)}"
+
+
+def csv_number(value) -> str:
+    """A CSV cell: 12 significant digits, shortest form (``0.3``, ``1.5e-05``, ``inf``, ``nan``)."""
+    v = float(value)
+    if math.isnan(v):
+        return "nan"
+    if math.isinf(v):
+        return "inf" if v > 0 else "-inf"
+    return repr(float(f"{v:.{CSV_SIG - 1}e}")) if v != 0 else "0.0"
+
+
+def tick_texts(values, spacing: float) -> list[str]:
+    """Labels of the ticks of a linear plot axis: true values, one engineering exponent for the
+    whole axis (``0``, ``0.5e-3``, ``1e-3``) and as many decimals as the spacing needs."""
+    values = [float(v) for v in values]
+    finite = [abs(v) for v in values if math.isfinite(v)]
+    big = max(finite, default=0.0)
+    if big == 0 or PLAIN_LOW <= big < PLAIN_HIGH:
+        e3 = 0
+    else:
+        e3 = 3 * math.floor(_exponent(float(f"{big:.3e}")) / 3)
+    step = abs(spacing) / 10.0 ** e3 if spacing else 0.0
+    places = max(0, math.ceil(-math.log10(step) - 1e-9)) if step > 0 else 0
+    places = min(places, 12)
+    out = []
+    for v in values:
+        m = v / 10.0 ** e3
+        if not math.isfinite(m):
+            out.append("")
+            continue
+        text = f"{m:.{places}f}"
+        if float(text) == 0:
+            out.append("0")
+            continue
+        out.append(text + (f"e{e3}" if e3 else ""))
+    return out
+
+
+_PARSE = re.compile(r"^\s*([-+−]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+−]?\d+)?)\s*(.*)$")
+
+
+def parse_number(text: str) -> float:
+    """Read back a number written by this module (also ``5×10⁶`` and a trailing unit).
+
+    Raises ValueError on text that holds no number."""
+    s = (text or "").strip()
+    if s == DASH:
+        return math.nan
+    if s in ("inf", "∞"):
+        return math.inf
+    s = s.replace("−", "-")
+    sup = str.maketrans("⁻⁰¹²³⁴⁵⁶⁷⁸⁹", "-0123456789")
+    m = re.match(r"^\s*([-+]?[\d.]*)\s*×?\s*10([⁻⁰¹²³⁴⁵⁶⁷⁸⁹]+)", s)
+    if m:
+        mant = float(m.group(1)) if m.group(1) not in ("", "+", "-") else 1.0
+        return mant * 10.0 ** int(m.group(2).translate(sup))
+    m = _PARSE.match(s)
+    if not m:
+        raise ValueError(f"no number in {text!r}")
+    return float(m.group(1))
+
+
+__all__ = [
+    "FREQ_SIG",
+    "SIG",
+    "band_text",
+    "csv_number",
+    "hz",
+    "number",
+    "parse_number",
+    "percent",
+    "quantity",
+    "signed",
+    "tick_texts",
+]
