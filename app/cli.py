@@ -48,13 +48,22 @@ def _num(value: float):
 
 
 def solve_json(analysis) -> dict:
-    """The machine-readable result of ``springwright solve --json`` (DESIGN.md section 5)."""
+    """The machine-readable result of ``springwright solve --json`` (DESIGN.md section 5).
+
+    Ids stay where README gives them; labels are added beside them (``model_labels`` for every
+    element, ``dof_labels`` beside ``dofs``, ``conflict_labels`` beside ``conflicts``,
+    ``margin_conflicts`` with the words of each conflict) and the warnings read by label.
+    """
     from solver.margins import margin_check
+    from app.results.names import dof_name, labels, names
+    from app.results.verdicts import verdicts
 
     modal = analysis.modal
     model = analysis.model
     pct = modal.effective_mass_percent
     margins = margin_check(model, modal)
+    said = verdicts(model, margins)
+    shown = names(model)
     modes_out = []
     for i in range(modal.n_modes):
         n = i + 1
@@ -75,6 +84,12 @@ def solve_json(analysis) -> dict:
                                         analysis.energy.kinetic_energy_fraction(n).items()},
             "repeated_with": [m for m in modal.repeated_group(n) if m != n],
             "conflicts": list(dict.fromkeys(c.source_id for c in margins.conflicts if c.mode == n)),
+            "conflict_labels": list(dict.fromkeys(v.source for v in said if v.mode == n)),
+            "margin_conflicts": [{"source": v.source_id, "label": v.source, "order": v.order,
+                                  "inside_source": v.inside, "low_hz": _num(v.low_hz),
+                                  "high_hz": _num(v.high_hz), "lower_to_hz": _num(v.lower_to_hz),
+                                  "raise_to_hz": _num(v.raise_to_hz), "text": v.sentence}
+                                 for v in said if v.mode == n],
         }
         if z is not None:
             entry["zero_cause"] = z.cause
@@ -84,21 +99,28 @@ def solve_json(analysis) -> dict:
         "model": model.name,
         "kind": model.kind,
         "dofs": [[mid, d] for mid, d in modal.dofs],
+        "dof_labels": [dof_name(model, mid, d, shown) for mid, d in modal.dofs],
+        "model_labels": labels(model),
         "total_mass_kg": {d: _num(v) for d, v in modal.total_mass.items()},
         "modes": modes_out,
         "margin_percent": model.margin_percent,
-        "warnings": list(analysis.warnings) + [c.message for c in margins.conflicts],
+        "warnings": list(analysis.warnings) + [v.sentence for v in said],
         "caution": CAUTION,
     }
 
 
 def solve_table(analysis) -> str:
-    """The human-readable mode table of ``springwright solve``."""
+    """The human-readable mode table of ``springwright solve``: elements by label, numbers in the
+    window's format (:mod:`app.text.numbers`), margin verdicts in the window's words."""
     from solver.margins import margin_check
+    from app.results.names import names
+    from app.results.verdicts import all_clear, verdicts
+    from app.text.numbers import FREQ_SIG, number, percent, quantity
     from app.text.units import count
 
     modal = analysis.modal
     model = analysis.model
+    shown = names(model)
     unit = "kg m^2" if model.kind == "torsion" else "kg"
     lines = [f"Model: {model.name or '(unnamed)'}   kind: {model.kind}"
              + (f" along {model.axis}" if model.kind == "line" else "")
@@ -116,13 +138,13 @@ def solve_table(analysis) -> str:
     head += "  notes"
     lines += ["", head, "-" * len(head)]
     margins = margin_check(model, modal)
+    said = verdicts(model, margins)
     for i in range(modal.n_modes):
         n = i + 1
-        period = modal.periods_s[i]
-        row = (f"{n:>4}  {modal.frequencies_hz[i]:>12.6g}  {modal.omegas[i]:>12.6g}  "
-               f"{(f'{period:.4g}' if math.isfinite(period) else 'inf'):>10}")
+        row = (f"{n:>4}  {number(modal.frequencies_hz[i], FREQ_SIG):>12}"
+               f"  {number(modal.omegas[i], FREQ_SIG):>12}  {number(modal.periods_s[i]):>10}")
         for d in dirs:
-            row += f"  {pct[d][i]:>10.2f}  {cum[d][i]:>6.1f}"
+            row += f"  {percent(pct[d][i]):>10}  {percent(cum[d][i]):>6}"
         notes = []
         z = modal.zero_mode(n)
         if z is not None:
@@ -132,22 +154,23 @@ def solve_table(analysis) -> str:
             notes.append("repeated with " + ", ".join(str(m) for m in group if m != n))
         dom = analysis.energy.dominant_spring(n)
         if dom and z is None:
-            notes.append(f"most strain in {dom} ({100 * analysis.energy.strain_energy_fraction(n)[dom]:.0f} %)")
-        for c in margins.conflicts:
-            if c.mode == n:
-                notes.append(f"inside {c.source_id} +-{model.margin_percent:g} %")
+            share = 100 * analysis.energy.strain_energy_fraction(n)[dom]
+            notes.append(f"most strain in {shown.get(dom, dom)} ({percent(share, 0)} %)")
+        for v in said:
+            if v.mode == n:
+                notes.append(f"{v.relation} {v.source}"
+                             + (f" order {v.order:g}" if v.order is not None else ""))
         row += "  " + "; ".join(notes)
         lines.append(row)
     lines.append("")
     lines.append("total mass free to move: " + ", ".join(
-        f"{d} {modal.total_mass[d]:.6g} {unit}" for d in dirs))
+        f"{d} {quantity(modal.total_mass[d], unit)}" for d in dirs))
     for w in analysis.warnings:
         lines.append(f"warning: {w}")
-    for c in margins.conflicts:
-        lines.append(f"margin: {c.message}")
+    for v in said:
+        lines.append(f"margin: {v.sentence}")
     if model.excitations and margins.ok:
-        lines.append(f"margin: every elastic mode clears every source by at least"
-                     f" {model.margin_percent:g} %")
+        lines.append(f"margin: {all_clear(model, margins)}")
     lines.append("")
     lines.append(CAUTION)
     return "\n".join(lines)

@@ -144,6 +144,13 @@ class MainWindow(QMainWindow):
         self.response_panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
         self.response_dock = self._dock("Response", self.response_panel, Qt.BottomDockWidgetArea,
                                         "dock_response")
+        # the display units chosen in Properties reach every view that shows a unit
+        for view in (self.response_panel, self.modes_table, self.motion_panel):
+            view.set_unit_system(self.properties.unit_system)
+            self.properties.unit_system_changed.connect(view.set_unit_system)
+        self.scene.unit_system = self.properties.unit_system
+        self.properties.unit_system_changed.connect(
+            lambda s: setattr(self.scene, "unit_system", s))
 
         self.pending_label = QLabel("")
         self.statusBar().addPermanentWidget(self.pending_label)

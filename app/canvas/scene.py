@@ -76,6 +76,7 @@ class ModelScene(QGraphicsScene):
         self.document = document
         self.mode = Mode.SELECT
         self.snap = True
+        self.unit_system = "SI"      # display units of the messages (the model stays SI)
         self.mapper = Mapper()
         self.nodes: dict[str, NodeItem] = {}
         self.links: dict[str, LinkItem] = {}
@@ -319,7 +320,11 @@ class ModelScene(QGraphicsScene):
             self.status_message.emit(f"Not placed: {exc}")
             return None
         self.select_ids([new_id])
-        self.status_message.emit(f"Placed {new_id} at x {x:.4g} m, y {y:.4g} m")
+        from app.text.units import show
+
+        self.status_message.emit(f"Placed {self.document.model.element(new_id).label} at"
+                                 f" x {show(x, 'length', self.unit_system)},"
+                                 f" y {show(y, 'length', self.unit_system)}")
         return new_id
 
     def _start_connect(self, node: NodeItem, pos: QPointF) -> None:

@@ -32,6 +32,7 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QHBoxLayout
 
 import pyqtgraph as pg
 
+from app.drawing.plot_axes import true_value_axes
 from app.drawing.sketch import SketchLayout, fit_scale, paint_sketch
 from app.drawing.style import current_style
 
@@ -273,6 +274,7 @@ class MotionPanel(QWidget):
         self._free_fit_due = False
         self._traces_due = False
         self._free_scale = 1.0
+        self.unit_system = "SI"
         self._positions: dict = {}
         self._clock = QElapsedTimer()
         self._timer = QTimer(self)
@@ -340,7 +342,7 @@ class MotionPanel(QWidget):
         self.trace_list.setMaximumWidth(150)
         self.trace_list.setToolTip("Masses whose displacement is traced against time")
         self.trace_list.itemChanged.connect(lambda _i: self._rebuild_traces())
-        self.plot = pg.PlotWidget(self)
+        self.plot = pg.PlotWidget(self, axisItems=true_value_axes())
         self.plot.setMinimumHeight(70)   # small: the dock must not squeeze the bottom row
         self.plot.setLabel("bottom", "time", units="s")
         self.plot.setLabel("left", "displacement")
@@ -434,6 +436,12 @@ class MotionPanel(QWidget):
         self._mode_phase_t = 0.0
         self._set_view_kind(MODE_VIEW)
         self._refresh()
+
+    def set_unit_system(self, system: str) -> None:
+        """"SI" or "US": the unit of the traced displacements (m or in; rad either way)."""
+        if system != self.unit_system:
+            self.unit_system = system
+            self._rebuild_traces()
 
     def show_free_response(self) -> None:
         """Switch to the initial-conditions view (free response)."""
@@ -654,13 +662,17 @@ class MotionPanel(QWidget):
         if table is None:
             return
         st = current_style()
-        unit = "rad" if self._model.kind == "torsion" else "m"
+        from app.text.units import KINDS
+
+        kind = KINDS["angle" if self._model.kind == "torsion" else "length"]
+        unit, factor = kind.label(self.unit_system), kind.factor(self.unit_system)
         self.plot.setLabel("left", "displacement", units=unit)
         for k, dof in enumerate(self.traced_dofs()):
             if dof not in table.dofs:
                 continue
             j = table.dofs.index(dof)
-            curve = self.plot.plot(table.times, table.x[:, j], pen=pg.mkPen(st.trace(k), width=1.5),
+            curve = self.plot.plot(table.times, table.x[:, j] / factor,
+                                   pen=pg.mkPen(st.trace(k), width=1.5),
                                    name=f"{self._model.node(dof[0]).label} {dof[1]}")
             self._curves.append(curve)
 

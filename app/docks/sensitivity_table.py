@@ -20,6 +20,7 @@ from app.text.numbers import hz, signed
 
 SORT_ROLE = Qt.ItemDataRole.UserRole + 1
 DASH = "—"
+_FIELD_WORDS = {"k": "stiffness k", "k_t": "transverse stiffness k_t", "mass": "mass"}
 
 
 def sensitivity_rows(analysis) -> list[tuple[str, str, str, np.ndarray]]:
@@ -79,7 +80,7 @@ class _SensitivityModel(QAbstractTableModel):
             if role in (Qt.ItemDataRole.DisplayRole, SORT_ROLE):
                 return label
             if role == Qt.ItemDataRole.ToolTipRole:
-                return f"{eid} ({field})"
+                return f"{label}: {_FIELD_WORDS.get(field, field)}"
             return None
         v = float(vals[c - 1])
         if role == Qt.ItemDataRole.DisplayRole:

@@ -27,7 +27,9 @@ _MAX_DRAWN_ROTATION = math.radians(55)
 
 
 def _fmt_value(v: float, unit: str) -> str:
-    return f"{v:.6g} {unit}"
+    from app.text.numbers import quantity  # the one number format of panels, report and CLI
+
+    return quantity(v, unit)
 
 
 class SketchLayout:
@@ -279,7 +281,7 @@ def _value_text(model, el, kind: str) -> str:
     if kind == "spring":
         text = _fmt_value(el.k, "N·m/rad" if torsion else "N/m")
         if model.kind == "planar" and el.k_t > 0:
-            text += f", kt {el.k_t:.4g}"
+            text += f", kt {_fmt_value(el.k_t, '').strip()}"
         return text
     if kind == "dashpot":
         return _fmt_value(el.c, "N·m·s/rad" if torsion else "N·s/m")

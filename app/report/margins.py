@@ -16,6 +16,10 @@ from PySide6.QtGui import QColor, QPen
 
 from solver.margins import margin_check
 
+from app.results.names import names
+from app.results.verdicts import all_clear, verdicts
+from app.text.numbers import number
+
 
 def _nice_decades(lo: float, hi: float) -> list[float]:
     """Tick values 1, 2, 5 x 10^n between lo and hi (Hz)."""
@@ -61,11 +65,11 @@ def paint_margin_check(pg, model, analysis) -> None:
         major = abs(math.log10(v) - round(math.log10(v))) < 1e-9
         p.setPen(QPen(st.grid if not major else QColor("#cfcbc2"), 1))
         p.drawLine(QPointF(x, plot.top()), QPointF(x, plot.bottom()))
-        pg.text(QRectF(x - 0.3 * d, plot.bottom() + 0.02 * d, 0.6 * d, 0.15 * d), f"{v:g}", 7,
+        pg.text(QRectF(x - 0.3 * d, plot.bottom() + 0.02 * d, 0.6 * d, 0.15 * d), number(v), 7,
                 False, st.ink_soft, Qt.AlignmentFlag.AlignHCenter)
     pg.text(QRectF(plot.left(), plot.bottom() + 0.16 * d, plot.width(), 0.15 * d),
             "frequency (Hz, log scale)", 7, False, st.ink_soft, Qt.AlignmentFlag.AlignHCenter)
-    labels = {e.id: e.label for e in model.excitations}
+    labels = names(model)
     warn = st.warning
     for i, (sid, order, b_lo, b_hi, lo_w, hi_w) in enumerate(bands):
         y = plot.top() + 0.3 * d + i * row_h
@@ -104,13 +108,13 @@ def paint_margin_check(pg, model, analysis) -> None:
                  f" sources (dark: the source itself; light: widened by the {result.margin_percent:g}"
                  " % margin). A mode in the light or dark shade is too close.", 7.5, st.ink_soft)
     if result.conflicts:
-        for c in result.conflicts:
-            way = "lower it" if c.move_hz < 0 else "raise it"
-            pg.paragraph("✗ " + c.message + f" (the smaller move: {way} by"
-                         f" {abs(c.move_hz):.3g} Hz)", 8.5, st.error, indent=0.1 * d)
+        for v in verdicts(model, result):
+            text = v.sentence[0].upper() + v.sentence[1:]
+            pg.paragraph(f"✗ {text} (the smaller move: {v.smaller_move})", 8.5, st.error,
+                         indent=0.1 * d)
     else:
-        pg.paragraph(f"✓ Every elastic mode clears every source by at least"
-                     f" {result.margin_percent:g} %.", 8.5, st.accent, indent=0.1 * d)
+        text = all_clear(model, result)
+        pg.paragraph(f"✓ {text[0].upper()}{text[1:]}.", 8.5, st.accent, indent=0.1 * d)
 
 
 __all__ = ["paint_margin_check"]

@@ -9,6 +9,7 @@ from app.report.page import _Page
 from app.results.mode_rows import mode_table_cells
 from app.results.mode_rows import mode_table_header
 from app.results.mode_rows import mode_table_rows
+from app.text.numbers import hz, percent
 
 
 def _mode_table(pg: _Page, analysis, n_shown: int, n_total: int):
@@ -70,12 +71,12 @@ def _mode_table(pg: _Page, analysis, n_shown: int, n_total: int):
     pg.y = y + 0.04 * d
     if n_total > n_shown:
         hi = float(analysis.modal.frequencies_hz[-1])
-        pg.paragraph(f"{n_total - n_shown} higher modes are not shown (up to {hi:.5g} Hz); the"
+        pg.paragraph(f"{n_total - n_shown} higher modes are not shown (up to {hz(hi)}); the"
                      " CSV export lists every mode.", 8, st.ink_soft)
     dirs = [k for k in analysis.modal.effective_mass]
     if dirs:
         cum = analysis.modal.cumulative_percent
-        parts = [f"{d}: {cum[d][n_shown - 1]:.1f} %" for d in dirs if len(cum[d])]
+        parts = [f"{d}: {percent(cum[d][n_shown - 1])} %" for d in dirs if len(cum[d])]
         pg.paragraph("Effective modal mass of the modes shown, cumulative: " + ", ".join(parts)
                      + ". Effective mass is the share of the mass free to move in a direction that"
                      " takes part in each mode.", 8, st.ink_soft)

@@ -8,6 +8,7 @@ from PySide6.QtGui import QColor, QFontMetricsF, QPen
 from app.report.page import _Page
 from app.report.page import CAUTIONS
 from app.results.mode_rows import mode_table_rows
+from app.text.numbers import band_text, hz, number
 
 
 def _notes(pg: _Page, model, analysis, n_shown: int):
@@ -18,20 +19,21 @@ def _notes(pg: _Page, model, analysis, n_shown: int):
         items.append((st.warning, f"Mode {z.mode} has zero frequency ({z.kind}): {z.cause}"))
     for g in modal.repeated:
         items.append((st.ink, "Modes " + ", ".join(map(str, g)) + " share one frequency"
-                      f" ({float(modal.frequencies_hz[g[0] - 1]):.5g} Hz): their shapes are one"
+                      f" ({hz(float(modal.frequencies_hz[g[0] - 1]))}): their shapes are one"
                       " choice of basis among many; only their combined effective mass is"
                       " meaningful."))
     for r in mode_table_rows(analysis):
         if r["near_excitation"]:
-            items.append((st.warning, f"Mode {r['mode']} ({r['frequency_hz']:.5g} Hz) lies within"
-                          f" {model.margin_percent:g} % of " + "; ".join(r["near_excitation"])))
+            items.append((st.warning, f"Mode {r['mode']} ({hz(r['frequency_hz'])}) is "
+                          + "; ".join(r["near_excitation"]) + "."))
     if model.excitations:
         ex = []
         for e in model.excitations:
             if e.type == "speed":
-                ex.append(f"{e.label}: {e.rpm:g} rpm, orders " + ", ".join(f"{o:g}" for o in e.orders))
+                ex.append(f"{e.label}: {number(e.rpm)} rpm, orders "
+                          + ", ".join(f"{o:g}" for o in e.orders))
             else:
-                ex.append(f"{e.label}: band {e.f_min_hz:g} to {e.f_max_hz:g} Hz")
+                ex.append(f"{e.label}: band {band_text(e.f_min_hz, e.f_max_hz)}")
         items.append((st.ink, "Excitation sources checked (margin "
                       f"{model.margin_percent:g} %): " + "; ".join(ex) + "."))
     warnings = list(getattr(analysis, "warnings", ()) or ())

@@ -8,10 +8,7 @@ from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QColor, QPainterPath, QPen
 
 from app.results.response_data import decade_ticks
-
-
-def _fmt(v: float, digits: int = 4) -> str:
-    return "—" if not np.isfinite(v) else f"{v:.{digits}g}"
+from app.text.numbers import FREQ_SIG, hz, number
 
 
 def draw_response_section(pg, response) -> None:
@@ -64,7 +61,7 @@ def draw_response_section(pg, response) -> None:
         q = to_px(f[0], 10.0 ** e)
         p.setPen(grid)
         p.drawLine(QPointF(box.left(), q.y()), QPointF(box.right(), q.y()))
-        text = f"{10.0 ** e:g}" if -3 <= e <= 4 else f"1e{e}"
+        text = number(10.0 ** e)
         pg.text(QRectF(box.left() - 0.6 * d, q.y() - 0.08 * d, 0.55 * d, 0.2 * d), text,
                 label_pt, False, st.ink_soft, Qt.AlignmentFlag.AlignRight)
     if response.input.kind == "base":
@@ -94,7 +91,7 @@ def draw_response_section(pg, response) -> None:
     # axis titles and legend
     pg.text(QRectF(box.left(), box.bottom() + 0.2 * d, box.width(), 0.2 * d), "frequency (Hz)",
             7.5, False, st.ink, Qt.AlignmentFlag.AlignHCenter)
-    ylab = f"|{response.quantity}|" + (f" ({response.unit})" if response.unit != "—" else "")
+    ylab = response.axis_label("SI")
     p.save()
     p.translate(pg.left + 0.05 * d, box.center().y())
     p.rotate(-90)
@@ -121,7 +118,7 @@ def _input_sentence(response) -> str:
         parts.append("Shaded: excitation sources.")
     if response.input.kind == "base":
         parts.append("Dotted: |T| = 1.")
-        cross = [f"{k} above {v[-1]:.4g} Hz" for k, v in response.crossovers_hz.items() if v]
+        cross = [f"{k} above {hz(v[-1])}" for k, v in response.crossovers_hz.items() if v]
         if cross:
             parts.append("Isolation (|T| < 1): " + "; ".join(cross) + ".")
     parts.extend(response.notes)
@@ -135,7 +132,9 @@ def _peaks_table(pg, response) -> None:
     if not rows:
         pg.paragraph("No resonance peak inside the plotted range.", 8.5, st.ink_soft)
         return
-    cols = ("output", "peak (Hz)", "amplitude", "half-power width (Hz)", "damping ratio ≈")
+    unit = response.display_unit("SI")[0] or "ratio"
+    cols = ("output", "peak (Hz)", f"amplitude ({unit})", "half-power width (Hz)",
+            "damping ratio ≈")
     widths = np.array([1.6, 1.2, 1.2, 1.7, 1.4]) * d
     x = pg.left
     h = 0.19 * d
@@ -149,8 +148,8 @@ def _peaks_table(pg, response) -> None:
     pg.y += 0.03 * d
     for label, pk in rows:
         x = pg.left
-        vals = (label, _fmt(pk.frequency_hz, 5), _fmt(pk.amplitude), _fmt(pk.bandwidth_hz),
-                _fmt(pk.damping_ratio, 3))
+        vals = (label, number(pk.frequency_hz, FREQ_SIG), number(pk.amplitude),
+                number(pk.bandwidth_hz), number(pk.damping_ratio))
         for j, (text, w) in enumerate(zip(vals, widths)):
             pg.text(QRectF(x, pg.y, w - 0.1 * d, h), text, 7.5, False, st.ink,
                     Qt.AlignmentFlag.AlignRight if j else Qt.AlignmentFlag.AlignLeft)

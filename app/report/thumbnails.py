@@ -12,6 +12,8 @@ from app.drawing.sketch import paint_sketch
 from app.report.sketch import _is_tall
 from app.report.sketch import _sway_curve
 from app.report.sketch import _shape_curve
+from app.results.names import names
+from app.text.numbers import hz, percent
 
 
 def _thumbnails(pg: _Page, model, analysis, n_shown: int, n_total: int):
@@ -65,10 +67,10 @@ def _thumbnails(pg: _Page, model, analysis, n_shown: int, n_total: int):
                      layout=lay)
         f = float(modal.frequencies_hz[i])
         z = modal.zero_mode(n)
-        title = f"Mode {n}: " + (f"0 Hz ({z.kind})" if z is not None else f"{f:.5g} Hz")
+        title = f"Mode {n}: " + (f"0 Hz ({z.kind})" if z is not None else hz(f))
         if modal.repeated_group(n):
             title += ", repeated"
-        eff = "  ".join(f"{dd} {pct[dd][i]:.1f} %" for dd in dirs)
+        eff = "  ".join(f"{dd} {percent(pct[dd][i])} %" for dd in dirs)
         pg.text(QRectF(x, y + th + 0.02 * d, tw, cap_h), title, cap_pt, True,
                 st.warning if z is not None else st.ink)
         pg.text(QRectF(x, y + th + 0.02 * d + cap_h / 3.3, tw, cap_h), "eff. mass " + eff,
@@ -78,7 +80,8 @@ def _thumbnails(pg: _Page, model, analysis, n_shown: int, n_total: int):
             share = analysis.energy.strain[i, analysis.energy.spring_ids.index(dominant)]
             pg.text(QRectF(x, y + th + 0.02 * d + 2 * cap_h / 3.3, tw, cap_h / 3.3),
                     QFontMetricsF(pg.font(cap_pt)).elidedText(
-                        f"most strain ({100 * share:.0f} %): {model.element(dominant).label}",
+                        f"most strain ({percent(100 * share, 0)} %):"
+                        f" {names(model).get(dominant, dominant)}",
                         Qt.TextElideMode.ElideRight, tw),
                     cap_pt, False, st.ink_soft, Qt.AlignmentFlag.AlignLeft)
     pg.y = y + th + cap_h + 0.05 * d

@@ -6,6 +6,7 @@ from PySide6.QtCore import QRectF, Qt
 from PySide6.QtGui import QPen
 
 from app.report.page import _Page
+from app.text.numbers import quantity
 
 
 def _kind_text(model) -> str:
@@ -34,7 +35,7 @@ def _title_block(pg: _Page, model, modal, date: str):
     total = model.total_mass
     unit = "kg m²" if model.kind == "torsion" else "kg"
     lines = [("Date", date), ("Kind", _kind_text(model)), ("Units", _units_text(model)),
-             ("Total " + ("inertia" if model.kind == "torsion" else "mass"), f"{total:.6g} {unit}"),
+             ("Total " + ("inertia" if model.kind == "torsion" else "mass"), quantity(total, unit)),
              ("Modes found", f"{modal.n_modes}" + ("" if modal.complete else " (lowest only)"))]
     heights = [max(pg.text_height(val_w, v, 8), 0.15 * d) + 0.02 * d for _k, v in lines]
     left_w = right_x - full.left() - 2 * pad
