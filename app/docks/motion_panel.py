@@ -35,6 +35,7 @@ import pyqtgraph as pg
 from app.drawing.plot_axes import true_value_axes
 from app.drawing.sketch import SketchLayout, fit_scale, paint_sketch
 from app.drawing.style import current_style
+from app.text.numbers import hz
 
 FPS = 30
 #: Time scales offered (model seconds per wall-clock second).
@@ -707,7 +708,7 @@ class MotionPanel(QWidget):
             view.scale = fit * self.amplitude.value() / 50.0
             f = float(self._modal.frequencies_hz[n - 1])
             z = self._modal.zero_mode(n)
-            cap = f"Mode {n} of {self._modal.n_modes}: {f:.5g} Hz"
+            cap = f"Mode {n} of {self._modal.n_modes}: {hz(f)}"
             if z is not None:
                 cap = f"Mode {n} of {self._modal.n_modes}: 0 Hz ({z.kind}): {z.cause}"
             else:

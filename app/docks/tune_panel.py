@@ -710,8 +710,9 @@ class TunePanel(QWidget):
         pi.addItem(self._proposal_line)
         band_top = max([b[5] for b in bands if b[5] < 3 * top] + [0.0])
         pi.setXRange(math.log10(values[0]), math.log10(values[-1]), padding=0.02)
-        # a decade either way: label 1 and 5 of each decade (1, 2, 5 would overlap here)
-        pi.getAxis("bottom").setTicks(log_ticks(values[0], values[-1], labelled=(1, 5),
+        # a decade either way: label 1 and 3 of each decade (evenly spread on a log axis; a
+        # value like "300e3" is wide, 1, 2, 5 would overlap here)
+        pi.getAxis("bottom").setTicks(log_ticks(values[0], values[-1], labelled=(1, 3),
                                                 fmt=value_text))
         pi.setYRange(0, max(top, band_top) * 1.05, padding=0)
         pi.setTitle(f"every mode against {model.element(eid).label} · {f}", color=st.ink_soft_hex,

@@ -53,19 +53,23 @@ def _mode_table(pg: _Page, analysis, n_shown: int, n_total: int):
     y += head_h
     pg.p.setPen(QPen(st.ink, max(1.0, 0.006 * d)))
     pg.p.drawLine(QPointF(x0, y), QPointF(x0 + total_w, y))
+    wrap = int(Qt.TextFlag.TextWordWrap)
     for i, (r, row) in enumerate(zip(cells, rows)):
+        # a long note (a margin verdict and its way out) wraps onto more lines of its row
+        note_h = fm.boundingRect(QRectF(0, 0, widths[-1] - 2 * pad, 1e5), wrap, r[-1]).height()
+        h = max(row_h, note_h + 1.2 * pad)
         if i % 2 == 1:
-            pg.p.fillRect(QRectF(x0, y, total_w, row_h), QColor("#f4f3ef"))
+            pg.p.fillRect(QRectF(x0, y, total_w, h), QColor("#f4f3ef"))
         x = x0
         for c, s in enumerate(r):
             align = Qt.AlignmentFlag.AlignLeft if c == n_cols - 1 else Qt.AlignmentFlag.AlignRight
             color = st.warning if (c == n_cols - 1 and s) else st.ink
             pg.p.setFont(f)
             pg.p.setPen(QPen(color))
-            pg.p.drawText(QRectF(x + pad, y, widths[c] - 2 * pad, row_h),
-                          int(align | Qt.AlignmentFlag.AlignVCenter), s)
+            pg.p.drawText(QRectF(x + pad, y, widths[c] - 2 * pad, h),
+                          int(align | Qt.AlignmentFlag.AlignVCenter) | wrap, s)
             x += widths[c]
-        y += row_h
+        y += h
     pg.p.setPen(QPen(st.ink_soft, max(1.0, 0.004 * d)))
     pg.p.drawLine(QPointF(x0, y), QPointF(x0 + total_w, y))
     pg.y = y + 0.04 * d

@@ -116,10 +116,17 @@ class ResponseCurves:
         return k.label(system), k.factor(system)
 
     def axis_label(self, system: str = "SI") -> str:
-        """The magnitude axis title with its unit: ``|displacement| (in/lbf)``,
-        ``|transmissibility| (ratio)``."""
+        """The magnitude axis title, short enough for a small plot, with its unit:
+        ``|x/F| (m/N)``, ``|a/T| (rad/s²/(N m))``, ``|X/U| (ratio)``, ``|(X-U)/U| (ratio)``."""
         unit, _f = self.display_unit(system)
-        return f"|{self.quantity}| ({unit or 'ratio'})"
+        torsion = self.unit_kind.startswith("torsional")
+        symbol = {"displacement": "θ" if torsion else "x", "velocity": "ω" if torsion else "v",
+                  "acceleration": "α" if torsion else "a"}
+        if self.quantity in symbol:
+            what = f"{symbol[self.quantity]}/{'T' if torsion else 'F'}"
+        else:
+            what = "(X-U)/U" if self.quantity.startswith("relative") else "X/U"
+        return f"|{what}| ({unit or 'ratio'})"
 
     def write_csv(self, path, system: str = "SI") -> None:
         """One row per frequency: f, then magnitude (in ``system``'s unit) and phase (deg) of

@@ -12,7 +12,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from app.results.names import names
-from app.text.numbers import band_text, hz, number
+from app.text.numbers import FREQ_SIG, band_text, hz, number
 
 
 @dataclass(frozen=True)
@@ -55,7 +55,7 @@ class Verdict:
 
     @property
     def sentence(self) -> str:
-        """``mode 1 at 51.661 Hz is inside Sine test band (20 to 200 Hz): move it below ...``"""
+        """``mode 1 at 51.6613 Hz is inside Sine test band (20 to 200 Hz): move it below ...``"""
         return (f"mode {self.mode} at {hz(self.frequency_hz)} is {self.relation} {self.what}:"
                 f" {self.way_out}")
 
@@ -63,7 +63,7 @@ class Verdict:
     def short(self) -> str:
         """For a table cell: ``inside Sine test band: move below 17 Hz or above 230 Hz``."""
         name = self.source + (f" ×{self.order:g}" if self.order is not None else "")
-        return (f"{self.relation} {name}: move below {number(self.lower_to_hz, 5)} or above"
+        return (f"{self.relation} {name}: move below {number(self.lower_to_hz, FREQ_SIG)} or above"
                 f" {hz(self.raise_to_hz)}")
 
     @property
