@@ -1,0 +1,65 @@
+"""The one number format (app/text/numbers.py) against arithmetic: what it writes reads back to
+the value within half a unit of its last significant digit, engineering exponents are multiples of
+three, and CSV cells keep 12 significant digits with no binary noise."""
+
+import math
+import re
+
+from hypothesis import given
+from hypothesis import strategies as st
+
+from app.text.numbers import csv_number, number, tick_texts
+
+finite = st.floats(min_value=-1e30, max_value=1e30, allow_nan=False, allow_infinity=False).filter(
+    lambda v: v == 0 or abs(v) > 1e-30)
+
+
+@given(finite, st.integers(min_value=2, max_value=8))
+def test_number_reads_back_within_half_its_last_digit(v, sig):
+    """Math: a value rounded to ``sig`` significant digits differs from it by at most half a unit
+    of the last digit, 0.5 x 10^(1 - sig) relative (plus one ulp of float round-off)."""
+    text = number(v, sig)
+    back = float(text)
+    assert abs(back - v) <= 0.5 * 10.0 ** (1 - sig) * abs(v) * (1 + 1e-12) + 1e-300
+    digits = re.sub(r"e.*$", "", text).replace("-", "").replace(".", "").strip("0")
+    assert len(digits) <= sig, text
+
+
+@given(finite)
+def test_engineering_exponent_is_a_multiple_of_three(v):
+    """Common practice (engineering notation): an exponent, where written, is a multiple of 3 and
+    the mantissa lies in [1, 1000), so ``e-6`` reads as micro and ``e3`` as kilo."""
+    text = number(v)
+    if "e" in text:
+        mant, exp = text.split("e")
+        assert int(exp) % 3 == 0
+        assert 1 <= abs(float(mant)) < 1000
+    else:
+        assert v == 0 or 1e-3 * (1 - 5e-4) <= abs(v) < 1e4
+
+
+@given(finite)
+def test_csv_cell_keeps_12_digits_and_drops_noise(v):
+    """Math: 12 significant digits reproduce the value to 5e-12 relative; the cell never holds
+    more (so 0.1 + 0.2 is written 0.3, not 0.30000000000000004)."""
+    cell = csv_number(v)
+    assert abs(float(cell) - v) <= 5e-12 * abs(v)
+    digits = re.sub(r"e.*$", "", cell).replace("-", "").replace(".", "").strip("0")
+    assert len(digits) <= 12, cell
+
+
+def test_csv_noise_examples():
+    """Math: binary sums that print with noise under repr are written as their decimal value."""
+    assert csv_number(0.1 + 0.2) == "0.3"
+    assert csv_number(1.1 * 3) == "3.3"
+    assert csv_number(math.inf) == "inf" and csv_number(math.nan) == "nan"
+
+
+def test_linear_ticks_share_one_exponent_and_read_true():
+    """Math: ticks at 0, 0.5 mm and 1 mm in metres read back as those values; one exponent."""
+    values = [0.0, 0.0005, 0.001, 0.0015]
+    texts = tick_texts(values, 0.0005)
+    assert [float(t) for t in texts] == values
+    texts = tick_texts([0.0, 2e-6, 4e-6], 2e-6)
+    assert texts[1:] == ["2e-6", "4e-6"]
+    assert [float(t) for t in texts] == [0.0, 2e-6, 4e-6]
