@@ -10,7 +10,8 @@ change (synchronously: the direct solve of a few hundred DOFs at ~900 frequencie
 a second; with proportional damping the modal path reuses the solve service's modes and takes
 milliseconds). During a continuous gesture (a Tune slider drag, :meth:`set_live`) the panel holds
 its curves, dimmed and marked, and recomputes once on release, so the drag stays smooth. The
-curves themselves come from :mod:`app.response_data`, which has no Qt.
+curves themselves come from :mod:`app.results.response_data`, which has no Qt; every number shown
+goes through :mod:`app.text.numbers`, and magnitudes follow the display unit system (SI or US).
 """
 
 from __future__ import annotations
