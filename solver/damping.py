@@ -311,10 +311,12 @@ def damped_modes(model_or_system) -> DampedModes:
     """Eigenvalues of the exact state matrix (``state_space``) of a model with its dashpots and
     damping model (dense LAPACK).
 
-    Undamped, unstrained rigid-body motions make the state matrix defective (a Jordan block at
-    zero, whose computed roots scatter by sqrt(rounding)); they are deflated exactly first: each
-    such motion r (K r = 0, C r = 0) spans an invariant subspace {[r, 0], [0, r]} of A, whose
-    orthogonal complement carries every other root.
+    Free rigid-body motions (no spring strained, no dashpot working) make the state matrix
+    defective (a Jordan block at zero, whose computed roots would scatter by the square root of
+    rounding); they are split off exactly first (``rigid_split``) and reported as two zero roots
+    each. With Rayleigh damping, ``beta K`` along a junction direction no dashpot touches would add
+    a root -1/beta that only a force on the junction itself excites; like the condensed model, the
+    state model leaves it out.
     """
     system = model_or_system if isinstance(model_or_system, System) else assemble(model_or_system)
     if not isinstance(system.model, Model):
@@ -324,13 +326,9 @@ def damped_modes(model_or_system) -> DampedModes:
     if A.shape[0] == 0:
         z = np.zeros(0)
         return DampedModes(z.astype(complex), z, z, z, z, z)
-    Z = _rigid_subspace(ss)
-    if Z.shape[1]:
-        Qfull, _r = np.linalg.qr(np.hstack([Z, np.eye(A.shape[0])]))
-        Qp = Qfull[:, Z.shape[1]:A.shape[0]]
-        s = scipy.linalg.eigvals(Qp.T @ A @ Qp)
-    else:
-        s = scipy.linalg.eigvals(A)
+    rigid = rigid_split(ss)
+    P = rigid.rest
+    s = scipy.linalg.eigvals(P.T @ A @ P) if P.shape[1] else np.zeros(0, complex)
     scale = max(np.abs(s).max(initial=0.0), 1e-300)
     zero = np.abs(s) <= ZERO_ROOT_RTOL * scale
     osc = (s.imag > 1e-12 * scale) & ~zero
@@ -340,7 +338,7 @@ def damped_modes(model_or_system) -> DampedModes:
     order = np.argsort(wn, kind="stable")
     keep, wn = keep[order], wn[order]
     roots = np.sort(s[real].real)[::-1]
-    roots = np.concatenate([np.zeros(int(zero.sum()) + Z.shape[1]), roots])
+    roots = np.concatenate([np.zeros(int(zero.sum()) + 2 * rigid.count), roots])
     with np.errstate(divide="ignore"):
         tau = np.where(roots == 0.0, np.inf, -1.0 / np.where(roots == 0.0, 1.0, roots))
     return DampedModes(eigenvalues=keep, natural_frequencies_hz=wn / (2 * np.pi),
@@ -348,12 +346,40 @@ def damped_modes(model_or_system) -> DampedModes:
                        damping_ratios=-keep.real / wn, real_roots=roots, time_constants_s=tau)
 
 
-def _rigid_subspace(ss: StateSpace) -> np.ndarray:
-    """(n_z, 2 k) basis of the defective zero-root subspace: [r_x, 0, r_y] and [0, r_x, 0] for each
-    motion r with K r = 0 and C r = 0 (null space of K/|K| + C/|C|, relative tolerance 1e-11).
-    Returned empty unless A maps it exactly as a Jordan block does (checked)."""
-    K, C = ss.K, ss.C
+@dataclass(frozen=True, eq=False)
+class RigidSplit:
+    """The free rigid-body motions of a state model, split off exactly.
+
+    A motion r with K r = 0 and C r = 0 (no spring strained, no dashpot working) moves as
+    ``a + b t``: its coordinate a = r_x^T M x and momentum b = r_x^T M v obey a' = b, b' = 0
+    exactly, because r^T K = r^T C = 0. In the state this is an invariant subspace where A is a
+    Jordan block at zero, which an eigen-decomposition cannot represent and the exponential only
+    to rounding; the rest of the motion lives in the invariant subspace {a = 0, b = 0}.
+
+    position, velocity : (n_z, k) the states [r_x, 0, r_y] and [0, r_x, 0], r M-orthonormal.
+    functionals : (2 k, n_z) rows giving (a, b) of a state.
+    rest : (n_z, n_z - 2 k) orthonormal basis of {a = 0, b = 0}; ``rest.T @ A @ rest`` is A there.
+    """
+
+    position: np.ndarray
+    velocity: np.ndarray
+    functionals: np.ndarray
+    rest: np.ndarray
+
+    @property
+    def count(self) -> int:
+        return self.position.shape[1]
+
+
+def rigid_split(ss: StateSpace) -> RigidSplit:
+    """Split off the free rigid-body motions (K r = 0 and C r = 0, from the null space of
+    K/|K| + C/|C| with relative tolerance 1e-11; kept only if A maps them as a Jordan block does,
+    checked to 1e-9 of |A|)."""
+    K, C, A = ss.K, ss.C, ss.A
     n, nq, nz = ss.n_mass, ss.K.shape[0], ss.A.shape[0]
+    none = RigidSplit(np.zeros((nz, 0)), np.zeros((nz, 0)), np.zeros((0, nz)), np.eye(nz))
+    if nz == 0:
+        return none
     S = K / max(np.abs(K).max(initial=0.0), 1e-300)
     if np.abs(C).max(initial=0.0) > 0:
         S = S + C / np.abs(C).max()
@@ -361,14 +387,19 @@ def _rigid_subspace(ss: StateSpace) -> np.ndarray:
     R = V[:, lam <= 1e-11 * max(lam.max(initial=0.0), 1e-300)]
     k = R.shape[1]
     if k == 0:
-        return np.zeros((nz, 0))
+        return none
+    # M-orthonormal in the masses' part (the y part carries no mass)
+    G = R[:n].T @ (ss.mass[:, None] * R[:n])
+    R = R @ np.linalg.inv(np.linalg.cholesky(G)).T
     z1 = np.zeros((nz, k))
     z1[:n] = R[:n]
     z1[2 * n:] = R[n:nq]
     z2 = np.zeros((nz, k))
     z2[n:2 * n] = R[:n]
-    A = ss.A
     a_scale = max(np.abs(A).max(), 1e-300)
-    if (np.abs(A @ z1).max() > 1e-9 * a_scale or np.abs(A @ z2 - z1).max() > 1e-9 * a_scale):
-        return np.zeros((nz, 0))
-    return np.hstack([z1, z2])
+    if np.abs(A @ z1).max() > 1e-9 * a_scale or np.abs(A @ z2 - z1).max() > 1e-9 * a_scale:
+        return none
+    F = np.zeros((2 * k, nz))
+    F[:k, :n] = (ss.mass[:, None] * R[:n]).T
+    F[k:, n:2 * n] = F[:k, :n]
+    return RigidSplit(position=z1, velocity=z2, functionals=F, rest=scipy.linalg.null_space(F))

@@ -18,7 +18,7 @@ import numpy as np
 import scipy.linalg
 
 from .assemble import System, assemble
-from .damping import state_space
+from .damping import rigid_split, state_space
 from .errors import ModelError, number, numbers
 from .model import Model
 from .modes import ModalResult, modes
@@ -217,7 +217,16 @@ def free_response(model, times, result: ModalResult | None = None, x0=None, v0=N
     # non-proportional damping: the exact first-order system, junction dashpots included
     ss = state_space(system)
     z0 = ss.initial_state(x, v)
-    Z = _propagate(ss.A, z0, t)
+    rigid = rigid_split(ss)
+    P, k = rigid.rest, rigid.count
+    # free rigid motions in closed form (a + b t); the rest, in the invariant subspace where
+    # a = b = 0, propagated where A has no Jordan block
+    ab = rigid.functionals @ z0
+    rest0 = z0 - rigid.position @ ab[:k] - rigid.velocity @ ab[k:]
+    Z = P @ _propagate(P.T @ ss.A @ P, P.T @ rest0, t)
+    if k:
+        Z += rigid.position @ (ab[:k, None] + ab[k:, None] * t[None, :])
+        Z += (rigid.velocity @ ab[k:])[:, None]
     disp = (ss.displacement @ Z).T
     vel = (ss.velocity @ Z).T
     return FreeResponse(t, system.all_dofs, disp, vel, "state-space", tuple(warnings))
