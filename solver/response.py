@@ -221,10 +221,12 @@ def free_response(model, times, result: ModalResult | None = None, x0=None, v0=N
     P, k = rigid.rest, rigid.count
     # free rigid motions in closed form (a + b t); the rest, in the invariant subspace where
     # a = b = 0, propagated where A has no Jordan block
-    ab = rigid.functionals @ z0
-    rest0 = z0 - rigid.position @ ab[:k] - rigid.velocity @ ab[k:]
-    Z = P @ _propagate(P.T @ ss.A @ P, P.T @ rest0, t)
-    if k:
+    if k == 0:
+        Z = _propagate(ss.A, z0, t)
+    else:
+        ab = rigid.functionals @ z0
+        rest0 = z0 - rigid.position @ ab[:k] - rigid.velocity @ ab[k:]
+        Z = P @ _propagate(P.T @ ss.A @ P, P.T @ rest0, t)
         Z += rigid.position @ (ab[:k, None] + ab[k:, None] * t[None, :])
         Z += (rigid.velocity @ ab[k:])[:, None]
     disp = (ss.displacement @ Z).T

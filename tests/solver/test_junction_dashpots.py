@@ -266,8 +266,8 @@ def test_maxwell_free_response_against_solve_ivp(grid):
     got = {"x": fr.of("m", "x"), "y": fr.of("J", "x"),
            "v": fr.velocity[:, fr.dofs.index(("m", "x"))],
            "yd": fr.velocity[:, fr.dofs.index(("J", "x"))]}
-    for key in ref:
-        err = np.abs(got[key] - ref[key]).max() / np.abs(ref[key]).max()
+    for key, value in ref.items():
+        err = np.abs(got[key] - value).max() / np.abs(value).max()
         assert err < 1e-9, (key, err)
     # the static condensation the solver used before (x_J = x, c on the mass) is far off: the
     # reference can tell
@@ -376,7 +376,7 @@ def test_three_element_isolator_transmissibility(N):
 # planar and two-junction models
 
 
-def planar_junction(damping=Damping()):
+def planar_junction(damping=None):
     """Mass P (2 kg) held by two inclined springs; a junction J joined to P by a spring along
     (0.8, 0.6) with k_t, and a dashpot from J to an anchor along x: J's x is damped, its y is
     held by the spring alone."""
@@ -385,10 +385,10 @@ def planar_junction(damping=Damping()):
                  anchors=(Anchor("A", -1, 0.2), Anchor("B", 0.1, -1), Anchor("C", 1.8, 0.6)),
                  springs=(Spring("sA", "A", "P", 1000.0), Spring("sB", "B", "P", 1500.0),
                           Spring("sJ", "P", "J", 2000.0, k_t=300.0)),
-                 dampers=(Damper("cJ", "J", "C", 15.0),), damping=damping)
+                 dampers=(Damper("cJ", "J", "C", 15.0),), damping=damping or Damping())
 
 
-def two_junctions(damping=Damping()):
+def two_junctions(damping=None):
     """Line: g -k1- m1 -k2- J1 -c1- g; J1 -k3- J2 -c12- m2 (a dashpot from a junction to a
     mass); J1 -c3- J2 (a dashpot between two junctions); m2 -k4- g."""
     nodes = (Mass("m1", 1, 0, 1.5), Mass("J1", 2, 0, 0.0), Mass("J2", 3, 0, 0.0),
@@ -398,7 +398,7 @@ def two_junctions(damping=Damping()):
                           Spring("k3", "J1", "J2", 2500.0), Spring("k4", "m2", "h", 600.0)),
                  dampers=(Damper("c1", "J1", "g", 12.0), Damper("c12", "J2", "m2", 4.0),
                           Damper("c3", "J1", "J2", 7.0)),
-                 damping=damping)
+                 damping=damping or Damping())
 
 
 RAYLEIGH = Damping(model="rayleigh", alpha=0.4, beta=2e-4)
@@ -409,7 +409,7 @@ def _extra_damping(model):
     """The modal-ratio matrix built by hand (None for other damping models)."""
     if model.damping.model != "modal":
         return None
-    dofs, M, K, _C = stamps(model)
+    _dofs, M, K, _C = stamps(model)
     return modal_damping_matrix(M, K, np.diag(M) > 0, model.damping.ratio)
 
 
@@ -433,7 +433,7 @@ def test_junction_dashpot_models_against_independent_references(build, damping):
     """
     model = build(damping)
     extra = _extra_damping(model)
-    dofs, M, K, C = stamps(model)
+    _dofs, M, K, C = stamps(model)
     if extra is not None:
         C = C + extra
     dm = solver.damped_modes(model)
