@@ -187,6 +187,13 @@ def free_response(model, times, result: ModalResult | None = None, x0=None, v0=N
     Returns
     -------
     FreeResponse on every free DOF (massless junctions recovered).
+
+    Notes
+    -----
+    A junction that a dashpot damps does not follow the masses statically: its damped directions
+    are first-order states (``damping.state_space``). It starts where the springs put it for the
+    masses' initial displacements (its dashpots unloaded at t = 0); initial values given for
+    junctions are ignored, as for every massless DOF.
     """
     system = model if isinstance(model, System) else (result.system if result is not None
                                                        else assemble(model))
