@@ -243,9 +243,10 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
         M = sp.diags(masses[retained], format="csr")
         warnings.extend(msg)
         if model.dampers and C_full[slaves][:, :].nnz:
-            warnings.append("a dashpot is attached to a massless junction; its damping is"
-                            " condensed statically, which is approximate (frequency-domain"
-                            " responses solve the full model and are exact)")
+            warnings.append("a dashpot is attached to a massless junction; free response,"
+                            " damped modes and frequency responses solve the junction's creep"
+                            " exactly, but the condensed damping matrix C of assemble() only"
+                            " approximates it")
     if not use_sparse:
         M, K, C = (np.asarray(x.toarray()) for x in (M, K, C))
         recovery = np.asarray(recovery.toarray()) if sp.issparse(recovery) else recovery

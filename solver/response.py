@@ -4,8 +4,10 @@ Without dashpots the response is exact modal superposition. Each modal coordinat
 ``q'' + c q' + lambda q = 0`` with ``c = 0`` (undamped), ``c = 2 zeta w`` (modal damping) or
 ``c = alpha + beta lambda`` (Rayleigh), solved in closed form for every case: oscillating,
 critically damped, overdamped, and the rigid-body modes (``lambda = 0``: ``q = q0 + q0' t`` undamped).
-With dashpots the damping is not proportional, so the first-order state equation
-``z' = A z``, ``A = [[0, I], [-M^-1 K, -M^-1 C]]``, is solved exactly by the matrix exponential.
+With dashpots the damping is not proportional, so the first-order state equation ``z' = A z``
+is solved exactly by the matrix exponential: ``A = [[0, I], [-M^-1 K, -M^-1 C]]``, plus a
+first-order coordinate for each massless junction direction a dashpot damps (a Maxwell element's
+junction creeps; static condensation would not be exact there), see ``damping.state_space``.
 """
 
 from __future__ import annotations
@@ -16,6 +18,7 @@ import numpy as np
 import scipy.linalg
 
 from .assemble import System, assemble
+from .damping import rigid_split, state_space
 from .errors import ModelError, number, numbers
 from .model import Model
 from .modes import ModalResult, modes
@@ -184,6 +187,13 @@ def free_response(model, times, result: ModalResult | None = None, x0=None, v0=N
     Returns
     -------
     FreeResponse on every free DOF (massless junctions recovered).
+
+    Notes
+    -----
+    A junction that a dashpot damps does not follow the masses statically: its damped directions
+    are first-order states (``damping.state_space``). It starts where the springs put it for the
+    masses' initial displacements (its dashpots unloaded at t = 0); initial values given for
+    junctions are ignored, as for every massless DOF.
     """
     system = model if isinstance(model, System) else (result.system if result is not None
                                                        else assemble(model))
@@ -211,39 +221,95 @@ def free_response(model, times, result: ModalResult | None = None, x0=None, v0=N
         disp = (res.all_shapes @ q).T
         vel = (res.all_shapes @ qd).T
         return FreeResponse(t, system.all_dofs, disp, vel, "modal", tuple(warnings))
-    # non-proportional damping: exact state-space solution
-    M = system.dense("M")
-    K = system.dense("K")
-    C = system.dense("C")  # dashpots plus the damping model
-    n = system.n_dof
-    Minv = 1.0 / np.diag(M)
-    A = np.zeros((2 * n, 2 * n))
-    A[:n, n:] = np.eye(n)
-    A[n:, :n] = -Minv[:, None] * K
-    A[n:, n:] = -Minv[:, None] * C
-    z0 = np.concatenate([x, v])
-    Z = _expm_series(A, z0, t)
-    R = system.recovery.toarray() if hasattr(system.recovery, "toarray") else system.recovery
-    disp = (R @ Z[:n]).T
-    vel = (R @ Z[n:]).T
+    # non-proportional damping: the exact first-order system, junction dashpots included
+    ss = state_space(system)
+    z0 = ss.initial_state(x, v)
+    rigid = rigid_split(ss)
+    P, k = rigid.rest, rigid.count
+    # free rigid motions in closed form (a + b t); the rest, in the invariant subspace where
+    # a = b = 0, propagated where A has no Jordan block
+    if k == 0:
+        Z = _propagate(ss.A, z0, t)
+    else:
+        ab = rigid.functionals @ z0
+        rest0 = z0 - rigid.position @ ab[:k] - rigid.velocity @ ab[k:]
+        Z = P @ _propagate(P.T @ ss.A @ P, P.T @ rest0, t)
+        Z += rigid.position @ (ab[:k, None] + ab[k:, None] * t[None, :])
+        Z += (rigid.velocity @ ab[k:])[:, None]
+    disp = (ss.displacement @ Z).T
+    vel = (ss.velocity @ Z).T
     return FreeResponse(t, system.all_dofs, disp, vel, "state-space", tuple(warnings))
 
 
-def _expm_series(A, z0, t):
-    """z(t) = expm(A t) z0 for every t; one exponential per step on a uniform grid."""
+#: Relative tolerance on the time steps for treating a grid as uniform (one exponential).
+_UNIFORM_RTOL = 1e-12
+#: Above this many distinct steps an eigen-decomposition replaces one exponential per step, if it
+#: is well conditioned.
+_EIG_MIN_STEPS = 24
+_EIG_MAX_COND = 1e5
+
+
+def _propagate(A, z0, t):
+    """z(t) = expm(A t) z0 for every t, (n_z, n_t).
+
+    The times are visited in ascending order, each reached from the previous one by
+    expm(A h) for its step h, so a uniform grid needs one exponential and a free drift
+    (a Jordan block at zero, where an eigen-decomposition fails) stays exact. Many distinct steps
+    use A = V diag(s) V^-1 instead when V is well conditioned (error ~ cond(V) * rounding).
+    """
     t = np.asarray(t, float)
-    out = np.empty((len(z0), len(t)))
+    n = len(z0)
+    out = np.empty((n, len(t)))
     if len(t) == 0:
         return out
-    dt = np.diff(t)
-    uniform = len(t) > 2 and np.allclose(dt, dt[0], rtol=1e-9, atol=0) and dt[0] > 0
-    if uniform:
-        z = scipy.linalg.expm(A * t[0]) @ z0
-        step = scipy.linalg.expm(A * dt[0])
-        for i in range(len(t)):
-            out[:, i] = z
-            z = step @ z
-        return out
-    for i, ti in enumerate(t):
-        out[:, i] = scipy.linalg.expm(A * ti) @ z0
+    order = np.argsort(t, kind="stable")
+    ts = t[order]
+    span = max(abs(ts[0]), abs(ts[-1]), 1e-300)
+    if len(ts) > 2 and ts[-1] > ts[0]:
+        h = (ts[-1] - ts[0]) / (len(ts) - 1)
+        if np.abs(ts - (ts[0] + h * np.arange(len(ts)))).max() <= _UNIFORM_RTOL * span:
+            ts = ts[0] + h * np.arange(len(ts))   # the grid as meant; its rounding is below 1e-12
+    gaps = np.diff(ts)
+    steps, which = _group_steps(gaps, _UNIFORM_RTOL * span)
+    if len(steps) > _EIG_MIN_STEPS:
+        Z = _eig_propagate(A, z0, ts)
+        if Z is not None:
+            out[:, order] = Z
+            return out
+    exps = [scipy.linalg.expm(A * s) if s > 0 else None for s in steps]
+    z = scipy.linalg.expm(A * ts[0]) @ z0 if ts[0] != 0 else np.asarray(z0, float).copy()
+    out[:, order[0]] = z
+    for i, g in enumerate(which):
+        if exps[g] is not None:
+            z = exps[g] @ z
+        out[:, order[i + 1]] = z
     return out
+
+
+def _group_steps(gaps, tol):
+    """Distinct steps (within tol) and the group of each gap."""
+    if len(gaps) == 0:
+        return np.zeros(0), np.zeros(0, int)
+    uniq = []
+    which = np.empty(len(gaps), int)
+    srt = np.argsort(gaps)
+    for i in srt:
+        if uniq and gaps[i] - uniq[-1][0] <= tol:
+            uniq[-1][1].append(i)
+        else:
+            uniq.append((gaps[i], [i]))
+    steps = np.empty(len(uniq))
+    for g, (_first, members) in enumerate(uniq):
+        steps[g] = np.mean(gaps[members])
+        which[members] = g
+    return steps, which
+
+
+def _eig_propagate(A, z0, ts):
+    """Z = Re(V exp(s t) V^-1 z0) on the sorted times, or None when V is ill conditioned
+    (a defective or nearly defective A: rigid drift, critical damping)."""
+    s, V = scipy.linalg.eig(A)
+    if not np.all(np.isfinite(s)) or np.linalg.cond(V) > _EIG_MAX_COND:
+        return None
+    c = np.linalg.solve(V, z0.astype(complex))
+    return (V @ (np.exp(np.outer(s, ts)) * c[:, None])).real
