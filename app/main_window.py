@@ -162,6 +162,7 @@ class MainWindow(QMainWindow):
         self.document.path_changed.connect(self._update_title)
         self.document.model_changed.connect(lambda _m: self._update_title())
         self.document.opened.connect(lambda _m: self.view.fit())
+        self.document.opened.connect(self._on_opened)
         self.solver.results_ready.connect(self._on_results)
         self.solver.results_ready.connect(self.response_panel.set_analysis)
         self.solver.live_changed.connect(self.response_panel.set_live)
@@ -263,6 +264,8 @@ class MainWindow(QMainWindow):
                                      "Open a model file", f)
         self.recent_menu = f.addMenu("Open &recent")
         self._update_recent_menu()
+        self.act_revert = self._action("Re&vert to saved", self.revert, None,
+                                       "Drop the edits since the last save and reload the file", f)
         f.addSeparator()
         self.act_save = self._action("&Save", self.save, QKeySequence.Save, "Save the model", f)
         self.act_save_as = self._action("Save &as…", self.save_as, QKeySequence.SaveAs,
@@ -465,6 +468,19 @@ class MainWindow(QMainWindow):
             item.snap = on
 
     # -- results ------------------------------------------------------------------------------
+    def _on_opened(self, _model):
+        """Another model (New, Open, Revert, Restore): until its own results arrive, no view
+        shows results, names or verdicts of the previous one."""
+        self.analysis = None
+        self._selected_mode = 1
+        self._show_warnings([])
+        self.modes_table.set_analysis(None)
+        self.motion_panel.set_analysis(None)
+        if hasattr(self, "tune_panel"):
+            self.sensitivity_table.set_analysis(None)
+            self.tune_panel.set_analysis(None)
+            self.energy_tint.show(None, 1)
+
     def _on_results(self, analysis):
         self.analysis = analysis
         warnings = list(getattr(analysis, "warnings", ()) or ())
@@ -565,6 +581,31 @@ class MainWindow(QMainWindow):
         path, _ = QFileDialog.getOpenFileName(self, "Open model", start, FILE_FILTER)
         if path:
             self.open_path(path, ask=False)
+
+    def _confirm_revert(self) -> bool:
+        """True to drop the unsaved edits (tests replace this to answer without a dialog)."""
+        answer = QMessageBox.question(
+            self, "Revert to saved",
+            f"Drop the unsaved changes of “{self.document.display_name}” and reload the file?",
+            QMessageBox.Discard | QMessageBox.Cancel, QMessageBox.Cancel)
+        return answer == QMessageBox.Discard
+
+    def revert(self) -> bool:
+        """Reload the model's file, dropping the edits since it was saved (after asking)."""
+        path = self.document.path
+        if path is None:
+            self.statusBar().showMessage("Not saved yet: there is no file to revert to", 6000)
+            return False
+        if self.document.dirty and not self._confirm_revert():
+            return False
+        try:
+            self.document.open(path)
+        except ModelError as exc:
+            self.statusBar().showMessage(f"Not reverted: {exc}", 12000)
+            self._notify_error("Cannot revert", str(exc))
+            return False
+        self.statusBar().showMessage(f"Reverted to {path}", 6000)
+        return True
 
     def open_path(self, path, ask: bool = True) -> bool:
         if ask and not self.maybe_save():

@@ -95,6 +95,14 @@ class QuantityField(QWidget):
         self.value_entered.emit(value)
 
 
+def model_counts(model) -> str:
+    """``"3 masses, 1 anchor, 3 springs, 1 dashpot"`` of ``model``."""
+    return ", ".join((units.count(len(model.masses), "mass", "masses"),
+                      units.count(len(model.anchors), "anchor"),
+                      units.count(len(model.springs), "spring"),
+                      units.count(len(model.dampers), "dashpot")))
+
+
 def _mass_kind(model) -> str:
     return "inertia" if model.kind == "torsion" else "mass"
 
@@ -124,6 +132,7 @@ class PropertyPanel(QWidget):
         self._fields: dict[str, tuple[QuantityField, object]] = {}
         self._widgets: dict[str, QWidget] = {}
         self._signature = None
+        self.counts_label: QLabel | None = None
 
         outer = QVBoxLayout(self)
         outer.setContentsMargins(4, 4, 4, 4)
@@ -192,7 +201,17 @@ class PropertyPanel(QWidget):
         if signature != self._signature:
             self._signature = signature
             self._rebuild(model, elements)
+        self._update_title(model, elements)
         self._refresh(model)
+
+    def _update_title(self, model, elements):
+        """Header and counts follow every change of the model (open, rename, add, undo)."""
+        if not elements:
+            self.title.setText(f"Model: {model.name or 'untitled'}")
+            if self.counts_label is not None:
+                self.counts_label.setText(model_counts(model))
+        elif len(elements) > 1:
+            self.title.setText(f"{len(elements)} elements selected")
 
     def _clear(self):
         while self.form.rowCount():
@@ -216,11 +235,10 @@ class PropertyPanel(QWidget):
     def _rebuild(self, model, elements):
         self._clear()
         self._text_getters = {}
+        self.counts_label = None
         if not elements:
-            self.title.setText(f"Model: {model.name or 'untitled'}")
             self._build_model(model)
         elif len(elements) > 1:
-            self.title.setText(f"{len(elements)} elements selected")
             self.form.addRow(QLabel("Select one element to edit its values."))
         else:
             el = elements[0]
@@ -360,10 +378,11 @@ class PropertyPanel(QWidget):
         self.form.addRow("Margin (%)", margin)
         self._widgets["margin_percent"] = margin
         self._text_getters["margin_percent"] = (margin, lambda m: f"{m.margin_percent:g}")
-        info = QLabel(f"{len(model.masses)} masses, {len(model.anchors)} anchors,"
-                      f" {len(model.springs)} springs, {len(model.dampers)} dashpots")
+        info = QLabel(model_counts(model))
+        info.setObjectName("properties_counts")
         info.setWordWrap(True)
         self.form.addRow(info)
+        self.counts_label = info
         self._kind_error = QLabel()
         self._kind_error.setWordWrap(True)
         self._kind_error.setStyleSheet(f"color: {current_style().error.name()};")
