@@ -11,7 +11,7 @@ from pathlib import Path
 from PySide6.QtCore import QSettings, Qt, QTimer, QUrl
 from PySide6.QtGui import QAction, QActionGroup, QKeySequence
 from PySide6.QtWidgets import (QDockWidget, QFileDialog, QFrame, QHBoxLayout, QLabel, QMainWindow,
-                               QMessageBox, QPushButton, QVBoxLayout, QWidget)
+                               QMessageBox, QPushButton, QTextBrowser, QVBoxLayout, QWidget)
 
 from solver.errors import ModelError
 
@@ -93,6 +93,16 @@ tab lists (p/f) df/dp of every mode to every element.</p>
 <h3>Cautions</h3>
 <p>""" + CAUTION_TEXT + """</p>
 """
+
+
+class _GuideWindow(QTextBrowser):
+    """The quick guide: a window of its own (not modal) that Esc closes, as help windows do."""
+
+    def keyPressEvent(self, event):  # noqa: N802
+        if event.key() == Qt.Key.Key_Escape and event.modifiers() == Qt.KeyboardModifier.NoModifier:
+            self.close()
+            return
+        super().keyPressEvent(event)
 
 
 class MainWindow(QMainWindow):
@@ -419,10 +429,8 @@ class MainWindow(QMainWindow):
 
     def show_guide(self):
         """A non-modal window with the tools, their keys, the main loop and the cautions."""
-        from PySide6.QtWidgets import QTextBrowser
-
         if getattr(self, "_guide", None) is None:
-            self._guide = QTextBrowser()
+            self._guide = _GuideWindow()
             self._guide.setObjectName("quick_guide")
             self._guide.setWindowTitle("Springwright quick guide")
             self._guide.setHtml(GUIDE_HTML)
@@ -628,8 +636,7 @@ class MainWindow(QMainWindow):
         return self.save_to(self.document.path)
 
     def save_as(self) -> bool:
-        start = str(self.document.path) if self.document.path else \
-            f"{self.document.display_name}.json"
+        start = str(self.document.path or self.document.suggested_path(".json"))
         path, _ = QFileDialog.getSaveFileName(self, "Save model as", start, FILE_FILTER)
         if not path:
             return False
@@ -676,7 +683,7 @@ class MainWindow(QMainWindow):
         if self.analysis is None:
             self.statusBar().showMessage("No results to report yet", 6000)
             return
-        start = f"{self.document.display_name}-report.png"
+        start = str(self.document.suggested_path("-report.png"))
         path, _ = QFileDialog.getSaveFileName(self, "Export report", start, "PNG image (*.png)")
         if path:
             self.export_report(path)
@@ -686,8 +693,13 @@ class MainWindow(QMainWindow):
         try:
             from app.report import render_report
 
-            render_report(self.document.model, self.solver.last_analysis, path,
-                          response=self.response_panel.response)
+            model = self.document.model
+            # An undamped model's response is bounded only by the frequency grid: the report
+            # leaves it out, from here as from `springwright report`, so both give one page.
+            # A damped model's report shows the response chosen in the panel.
+            damped = bool(model.dampers) or model.damping.model != "none"
+            render_report(model, self.solver.last_analysis, path,
+                          response=self.response_panel.response if damped else None)
         except (ImportError, OSError, ModelError) as exc:
             self.statusBar().showMessage(f"Report not written: {exc}", 12000)
             return False
@@ -697,7 +709,7 @@ class MainWindow(QMainWindow):
     def export_csv_dialog(self):
         if not hasattr(self.modes_table, "to_csv"):
             return
-        start = f"{self.document.display_name}-modes.csv"
+        start = str(self.document.suggested_path("-modes.csv"))
         path, _ = QFileDialog.getSaveFileName(self, "Export modes table", start, "CSV (*.csv)")
         if path:
             try:

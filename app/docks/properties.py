@@ -51,13 +51,19 @@ class QuantityField(QWidget):
         self.edit.setToolTip(self._hint)
         self.edit.setPlaceholderText(units.unit_label(kind, system))
 
-    def set_value(self, value_si: float, system: str | None = None) -> None:
-        """Show ``value_si`` (clears any refusal)."""
+    def set_value(self, value_si: float | None, system: str | None = None) -> None:
+        """Show ``value_si`` (clears any refusal); None: several elements with different
+        values, shown empty with a hint."""
         if system is not None:
             self.system = system
         self.value_si = value_si
         with QSignalBlocker(self.edit):
-            self.edit.setText(units.format_value(value_si, self.kind, self.system))
+            if value_si is None:
+                self.edit.clear()
+                self.edit.setPlaceholderText(f"different values ({units.unit_label(self.kind, self.system)})")
+            else:
+                self.edit.setText(units.format_value(value_si, self.kind, self.system))
+                self.edit.setPlaceholderText(units.unit_label(self.kind, self.system))
         self.clear_error()
 
     def show_error(self, message: str) -> None:
@@ -83,6 +89,8 @@ class QuantityField(QWidget):
 
     def _on_edit_finished(self):
         text = self.edit.text()
+        if self.value_si is None and not text.strip() and not self.error:
+            return  # several values shown as none and nothing typed
         if (self.value_si is not None and not self.error
                 and text == units.format_value(self.value_si, self.kind, self.system)):
             return  # focus left without a change
@@ -211,7 +219,12 @@ class PropertyPanel(QWidget):
             if self.counts_label is not None:
                 self.counts_label.setText(model_counts(model))
         elif len(elements) > 1:
-            self.title.setText(f"{len(elements)} elements selected")
+            kinds = {type(e) for e in elements}
+            noun = {Mass: ("mass", "masses"), Anchor: ("anchor", "anchors"),
+                    Spring: ("spring", "springs"), Damper: ("dashpot", "dashpots")}
+            what = noun.get(kinds.pop(), ("element", "elements")) if len(kinds) == 1 \
+                else ("element", "elements")
+            self.title.setText(f"{units.count(len(elements), *what)} selected")
 
     def _clear(self):
         while self.form.rowCount():
@@ -239,7 +252,7 @@ class PropertyPanel(QWidget):
         if not elements:
             self._build_model(model)
         elif len(elements) > 1:
-            self.form.addRow(QLabel("Select one element to edit its values."))
+            self._build_several(model, elements)
         else:
             el = elements[0]
             if isinstance(el, Mass):
@@ -268,6 +281,39 @@ class PropertyPanel(QWidget):
                                    lambda v, i=el.id: self.document.set_element(i, c=v))
             else:
                 self.title.setText(f"{el.id}")
+
+    def _build_several(self, model, elements):
+        """Fields every selected element has (all springs, all dashpots or all masses): a value
+        typed once is given to each, as one undo step. A field shows the common value, or is
+        empty when the values differ."""
+        kinds = {type(e) for e in elements}
+        ids = [e.id for e in elements]
+        fields = []
+        if kinds == {Spring}:
+            fields.append(("k", _stiffness_kind(model), "Stiffness k"))
+            if model.kind == "planar":
+                fields.append(("k_t", "transverse stiffness", "Transverse k_t"))
+        elif kinds == {Damper}:
+            fields.append(("c", _damping_kind(model), "Damping c"))
+        elif kinds == {Mass}:
+            kind = _mass_kind(model)
+            fields.append(("mass", kind, "Inertia" if kind == "inertia" else "Mass"))
+        if not fields:
+            hint = QLabel("Select springs only, dashpots only or masses only to set a value on"
+                          " all of them at once.")
+            hint.setWordWrap(True)
+            self.form.addRow(hint)
+            return
+
+        def common(m, name, ids=tuple(ids)):
+            values = {getattr(m.element(i), name) for i in ids if i in m.ids()}
+            return values.pop() if len(values) == 1 else None
+
+        for name, kind, label in fields:
+            self._add_quantity(name, kind, f"{label} (all)",
+                               lambda m, n=name: common(m, n),
+                               lambda v, n=name, ids=tuple(ids):
+                                   self.document.set_elements(ids, **{n: v}))
 
     def _build_label(self, el):
         edit = QLineEdit()

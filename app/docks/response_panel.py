@@ -525,7 +525,7 @@ class ResponsePanel(QWidget):
     def _export_dialog(self, what, fn, filt):
         start = "response." + what
         if self.document is not None:
-            start = f"{self.document.display_name}-response.{what}"
+            start = str(self.document.suggested_path(f"-response.{what}"))
         path, _ = QFileDialog.getSaveFileName(self, f"Export response {what.upper()}", start, filt)
         if not path:
             return
