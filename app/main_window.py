@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from PySide6.QtCore import QSettings, Qt, QTimer, QUrl
+from PySide6.QtCore import QSettings, QSignalBlocker, Qt, QTimer, QUrl
 from PySide6.QtGui import QAction, QActionGroup, QKeySequence
 from PySide6.QtWidgets import (QDockWidget, QFileDialog, QFrame, QHBoxLayout, QLabel, QMainWindow,
                                QMessageBox, QPushButton, QTextBrowser, QVBoxLayout, QWidget)
@@ -185,6 +185,10 @@ class MainWindow(QMainWindow):
         if hasattr(self.modes_table, "mode_selected"):
             self.modes_table.mode_selected.connect(self._on_mode_selected)
         self.motion_panel.initial_conditions_requested.connect(self._on_initial_request)
+        from app.canvas.motion_overlay import CanvasMotion
+
+        self.canvas_motion = CanvasMotion(self.scene, self.view)
+        self.motion_panel.canvas_frame.connect(self.canvas_motion.show_frame)
 
         self._make_actions()
         self._add_tune_panels()
@@ -338,6 +342,12 @@ class MainWindow(QMainWindow):
                      "Select and animate the next mode", mo)
         self._action("P&revious mode", lambda: self._step_mode(-1), "[",
                      "Select and animate the previous mode", mo)
+        mo.addSeparator()
+        self.act_canvas_motion = self._action(
+            "Animate on &canvas", self.motion_panel.set_on_canvas, "C",
+            "Play the mode (or the free response) on the main canvas too; only the drawing"
+            " moves", mo, checkable=True)
+        self.motion_panel.canvas_toggled.connect(self._on_canvas_motion_toggled)
 
         t = mb.addMenu("&Tools")
         tb = self.addToolBar("Tools")
@@ -379,6 +389,10 @@ class MainWindow(QMainWindow):
         mp = self.motion_panel
         if hasattr(mp, "is_playing"):
             mp.pause() if mp.is_playing() else mp.play()
+
+    def _on_canvas_motion_toggled(self, on: bool):
+        with QSignalBlocker(self.act_canvas_motion):
+            self.act_canvas_motion.setChecked(on)
 
     def _step_mode(self, delta: int):
         n_modes = getattr(getattr(self.analysis, "modal", None), "n_modes", 0) \
@@ -499,10 +513,12 @@ class MainWindow(QMainWindow):
             self.motion_panel.set_analysis(analysis)
         n_modes = getattr(getattr(analysis, "modal", None), "n_modes", 0)
         if n_modes:
+            # new results keep the motion view as it is (free response playing, say): the
+            # table's selection follows, the motion panel only learns the mode number
             mode = min(self._selected_mode, n_modes)
-            self._select_mode(mode)
+            self._select_mode(mode, show=False)
 
-    def _select_mode(self, mode: int):
+    def _select_mode(self, mode: int, show: bool = True):
         self._selected_mode = mode
         for name in ("select_mode", "set_selected_mode", "select"):
             fn = getattr(self.modes_table, name, None)
@@ -512,8 +528,10 @@ class MainWindow(QMainWindow):
                 except Exception:  # a mismatch of the table's API must not break the window
                     continue
                 break
-        if hasattr(self.motion_panel, "show_mode"):
+        if show:
             self.motion_panel.show_mode(mode)
+        else:
+            self.motion_panel.set_mode(mode)
 
     def _on_mode_selected(self, mode: int):
         self._selected_mode = mode

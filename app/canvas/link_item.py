@@ -54,7 +54,7 @@ class LinkItem(QGraphicsObject):
         raise NotImplementedError
 
     def endpoints(self) -> tuple[QPointF, QPointF]:
-        c1, c2 = self.a_item.pos(), self.b_item.pos()
+        c1, c2 = self.a_item.shown_pos(), self.b_item.shown_pos()
         line = QLineF(c1, c2)
         length = line.length()
         if length == 0:

@@ -25,7 +25,7 @@ import math
 
 import numpy as np
 from PySide6.QtCore import QElapsedTimer, QPointF, QRectF, Qt, QTimer, Signal
-from PySide6.QtGui import QFont, QFontMetrics, QPainter
+from PySide6.QtGui import QFont, QFontMetrics, QIcon, QPainter, QPen, QPixmap
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QHBoxLayout, QLabel,
                                QListWidget, QListWidgetItem, QPushButton, QSizePolicy, QSlider,
                                QSplitter, QVBoxLayout, QWidget)
@@ -255,6 +255,12 @@ class MotionPanel(QWidget):
     """
 
     initial_conditions_requested = Signal(dict)
+    #: ``(displacements, peak, caption)`` of every frame while the canvas animation is on:
+    #: ``{mass_id: {direction: value}}`` (m, rad; unmagnified), the largest value the animation
+    #: reaches (the canvas sizes its magnification on it) and the caption of the frame;
+    #: ``({}, 0.0, "")`` when it is switched off.
+    canvas_frame = Signal(dict, float, str)
+    canvas_toggled = Signal(bool)
 
     def __init__(self, parent=None):
         super().__init__(parent)
@@ -320,6 +326,11 @@ class MotionPanel(QWidget):
         self.speed.setSuffix(" cycles/s")
         self.speed.setToolTip("Visual speed of the mode animation; the true frequency is shown"
                               " in the caption")
+        self.canvas_box = QCheckBox("On canvas", self)
+        self.canvas_box.setObjectName("motion_on_canvas")
+        self.canvas_box.setToolTip("Animate the motion on the main canvas too (the drawing moves;"
+                                   " the model does not) [C]")
+        self.canvas_box.toggled.connect(self._on_canvas_toggled)
 
         self.time_scale_box = QComboBox(self)
         for ts in TIME_SCALES:
@@ -337,14 +348,19 @@ class MotionPanel(QWidget):
         self.fit_button.clicked.connect(self._fit_free_scale)
 
         self.trace_list = QListWidget(self)
+        self.trace_list.setObjectName("motion_traces")
         self.trace_list.setMaximumWidth(150)
-        self.trace_list.setToolTip("Masses whose displacement is traced against time")
+        self.trace_list.setToolTip("Masses whose displacement is traced against time; the"
+                                   " colour of each ticked one is its curve's (the legend)")
         self.trace_list.itemChanged.connect(lambda _i: self._rebuild_traces())
         self.plot = pg.PlotWidget(self)
-        self.plot.setMinimumHeight(70)   # small: the dock must not squeeze the bottom row
+        self.plot.setObjectName("motion_trace_plot")
+        # tall enough to read a decaying trace; the list beside it is the legend, so no legend
+        # box sits on the curves
+        self.plot.setMinimumHeight(150)
         self.plot.setLabel("bottom", "time", units="s")
-        self.plot.setLabel("left", "displacement")
-        self.plot.addLegend(offset=(5, 5))
+        self.plot.setLabel("left", "displacement", units="m")
+        self.plot.setMenuEnabled(False)
         st = current_style()
         self.plot.setBackground(st.background)
         self._cursor = pg.InfiniteLine(angle=90, pen=pg.mkPen(st.accent, width=1.5))
@@ -363,6 +379,7 @@ class MotionPanel(QWidget):
         mrow.addWidget(self.amplitude, 1)
         mrow.addWidget(QLabel("Speed", self))
         mrow.addWidget(self.speed)
+        mrow.addWidget(self.canvas_box)
         self._free_controls = QWidget(self)
         frow = QHBoxLayout(self._free_controls)
         frow.setContentsMargins(0, 0, 0, 0)
@@ -399,8 +416,8 @@ class MotionPanel(QWidget):
         was = self._trace_area.isVisible()
         self._trace_area.setVisible(free)
         if free and not was:
-            total = max(200, sum(self._split.sizes()))
-            self._split.setSizes([int(total * 0.68), int(total * 0.32)])
+            total = max(300, sum(self._split.sizes()))
+            self._split.setSizes([int(total * 0.5), int(total * 0.5)])
         self.loop_box.setEnabled(free)
 
     # -- public API --------------------------------------------------------------------------
@@ -411,9 +428,12 @@ class MotionPanel(QWidget):
         self._modal = getattr(analysis, "modal", analysis) if analysis is not None else None
         self._mode_shapes = {}
         self._table = None
-        self._t = 0.0
         self.view.set_model(self._model)
         self._f_max, self._duration = self._response_window()
+        # an edit neither restarts nor stops what is playing: the time runs on (wrapped into
+        # the new loop), the view kind and the mode stay
+        if self._t > self._duration and self.loop_box.isChecked():
+            self._t = math.fmod(self._t, self._duration)
         if self._modal is None or self._mode is None or self._mode > self._modal.n_modes:
             self._mode = 1 if self._modal is not None and self._modal.n_modes else None
         self._pick_time_scale()
@@ -434,6 +454,21 @@ class MotionPanel(QWidget):
         self._mode_phase_t = 0.0
         self._set_view_kind(MODE_VIEW)
         self._refresh()
+
+    def set_mode(self, n: int) -> None:
+        """Make mode n (from 1) the one the mode view shows, without switching views or
+        restarting its animation (new results of an edit keep what is on screen)."""
+        if self._modal is None or not 1 <= int(n) <= self._modal.n_modes or self._mode == int(n):
+            return
+        self._mode = int(n)
+        self._refresh()
+
+    def set_on_canvas(self, on: bool) -> None:
+        """Animate on the main canvas too (playback starts when switched on)."""
+        self.canvas_box.setChecked(bool(on))
+
+    def on_canvas(self) -> bool:
+        return self.canvas_box.isChecked()
 
     def show_free_response(self) -> None:
         """Switch to the initial-conditions view (free response)."""
@@ -529,6 +564,26 @@ class MotionPanel(QWidget):
             self._timer.start()
         else:
             self._timer.stop()
+
+    def _on_canvas_toggled(self, on: bool):
+        if on:
+            self.play()
+            self._refresh()
+        else:
+            self.canvas_frame.emit({}, 0.0, "")
+        self.canvas_toggled.emit(bool(on))
+
+    def _canvas_peak(self) -> float:
+        """Largest displacement the shown animation reaches (m or rad)."""
+        if self._view_kind == MODE_VIEW:
+            shape = self._mode_shapes.get(self._mode or 1, ({}, 1.0))[0]
+            # the amplitude slider (50 = as fitted) scales the canvas motion too
+            gain = self.amplitude.value() / 50.0
+            vals = [abs(v) / gain for dd in shape.values() for v in dd.values()]
+        else:
+            table = self._table
+            vals = [float(np.abs(table.x).max())] if table is not None and table.x.size else []
+        return max(vals, default=0.0)
 
     def _on_tick(self):
         dt_wall = self._clock.restart() / 1000.0
@@ -654,15 +709,45 @@ class MotionPanel(QWidget):
         if table is None:
             return
         st = current_style()
-        unit = "rad" if self._model.kind == "torsion" else "m"
-        self.plot.setLabel("left", "displacement", units=unit)
+        torsion = self._model.kind == "torsion"
+        self.plot.setLabel("left", "rotation" if torsion else "displacement",
+                           units="rad" if torsion else "m")
+        colours = {}
         for k, dof in enumerate(self.traced_dofs()):
             if dof not in table.dofs:
                 continue
             j = table.dofs.index(dof)
+            colours[dof] = st.trace(k)
             curve = self.plot.plot(table.times, table.x[:, j], pen=pg.mkPen(st.trace(k), width=1.5),
                                    name=f"{self._model.node(dof[0]).label} {dof[1]}")
             self._curves.append(curve)
+        self._show_trace_colours(colours)
+
+    def _show_trace_colours(self, colours: dict):
+        """The trace list is the legend: each ticked entry carries its curve's colour."""
+        self.trace_list.blockSignals(True)
+        try:
+            for i in range(self.trace_list.count()):
+                item = self.trace_list.item(i)
+                c = colours.get(item.data(Qt.ItemDataRole.UserRole))
+                if c is None:
+                    item.setIcon(QIcon())
+                    continue
+                pix = QPixmap(18, 10)
+                pix.fill(Qt.GlobalColor.transparent)
+                p = QPainter(pix)
+                p.setPen(QPen(c, 3))
+                p.drawLine(1, 5, 17, 5)
+                p.end()
+                item.setIcon(QIcon(pix))
+        finally:
+            self.trace_list.blockSignals(False)
+
+    def trace_colours(self) -> dict:
+        """``{(mass_id, direction): QColor}`` of the curves drawn (as the list shows them)."""
+        return {dof: c.opts["pen"].color() for dof, c in zip(
+            [d for d in self.traced_dofs() if self._table is not None and d in self._table.dofs],
+            self._curves)}
 
     def _refresh(self):
         view = self.view
@@ -673,6 +758,8 @@ class MotionPanel(QWidget):
             view.hint = ""
             self._positions = {}
             view.update()
+            if self.canvas_box.isChecked():
+                self.canvas_frame.emit({}, 0.0, "")
             return
         if self._modal.n_modes == 0:
             view.displacements = None
@@ -680,6 +767,8 @@ class MotionPanel(QWidget):
             view.hint = ""
             self._positions = {}
             view.update()
+            if self.canvas_box.isChecked():
+                self.canvas_frame.emit({}, 0.0, "")
             return
         if self._view_kind == MODE_VIEW:
             n = self._mode or 1
@@ -719,6 +808,9 @@ class MotionPanel(QWidget):
             self._cursor.setValue(self._t)
         del st
         view.update()
+        if self.canvas_box.isChecked():
+            self.canvas_frame.emit(self._positions, self._canvas_peak(),
+                                   view.caption.split(" (shown at")[0])
 
     def _on_drag_started(self, _mass_id: str):
         # Initial conditions are set in the free-response drawing, at its magnification, from
