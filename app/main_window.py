@@ -132,7 +132,8 @@ class MainWindow(QMainWindow):
         self.properties.unit_system_changed.connect(
             lambda s: self.settings.setValue("units/system", s))
         self.properties.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
-        self._dock("Properties", self.properties, Qt.RightDockWidgetArea, "dock_properties")
+        props_dock = self._dock("Properties", self.properties, Qt.RightDockWidgetArea,
+                                "dock_properties")
 
         results = QWidget()
         rl = QVBoxLayout(results)
@@ -147,7 +148,11 @@ class MainWindow(QMainWindow):
         rl.addWidget(self.modes_table, 1)
         self._dock("Modes", results, Qt.BottomDockWidgetArea, "dock_modes")
         self.motion_panel = MotionPanel()
-        self._dock("Motion", self.motion_panel, Qt.RightDockWidgetArea, "dock_motion")
+        motion_dock = self._dock("Motion", self.motion_panel, Qt.RightDockWidgetArea,
+                                 "dock_motion")
+        # beside Properties, not under it: both need their height (all the model's fields; a
+        # drawing over its time traces)
+        self.splitDockWidget(props_dock, motion_dock, Qt.Horizontal)
         from app.docks.response_panel import ResponsePanel
 
         self.response_panel = ResponsePanel(self.document)
@@ -210,17 +215,18 @@ class MainWindow(QMainWindow):
 
     # -- layout helpers -----------------------------------------------------------------------
     def _first_layout(self):
-        """Dock sizes on a first start: the modes table wide enough for its effective-mass
-        columns, the canvas and the bottom row sharing the height."""
+        """Dock sizes on a first start. Top row: the canvas, Properties (every model field
+        without scrolling), Motion. Bottom row: the modes table wide enough for all its columns,
+        then the Tune / Sensitivity / Response tabs."""
         docks = {d.objectName(): d for d in self.findChildren(QDockWidget)}
-        row = [docks[n] for n in ("dock_modes", "dock_tune", "dock_response") if n in docks]
+        row = [docks[n] for n in ("dock_modes", "dock_tune") if n in docks]
         w, h = self.width(), self.height()
-        if len(row) == 3:
-            self.resizeDocks(row, [int(w * 0.27), int(w * 0.33), int(w * 0.40)], Qt.Horizontal)
-            self.resizeDocks(row[:1], [int(h * 0.45)], Qt.Vertical)
+        if len(row) == 2:
+            self.resizeDocks(row, [int(w * 0.44), int(w * 0.56)], Qt.Horizontal)
+            self.resizeDocks(row[:1], [int(h * 0.56)], Qt.Vertical)
         side = [docks[n] for n in ("dock_properties", "dock_motion") if n in docks]
         if len(side) == 2:
-            self.resizeDocks(side, [int(h * 0.22), int(h * 0.36)], Qt.Vertical)
+            self.resizeDocks(side, [int(w * 0.235), int(w * 0.30)], Qt.Horizontal)
         QTimer.singleShot(0, self.view.fit)   # the canvas has its final size now
 
     def _dock(self, title, widget, area, name):
@@ -424,6 +430,9 @@ class MainWindow(QMainWindow):
         sens_dock = self._dock("Sensitivity", self.sensitivity_table, Qt.BottomDockWidgetArea,
                                "dock_sensitivity")
         self.tabifyDockWidget(tune_dock, sens_dock)
+        # the Response plots share the Tune tab stack: beside the modes table they get the width
+        # their controls and curves need, which three panels in one row could not give
+        self.tabifyDockWidget(sens_dock, self.response_dock)
         tune_dock.raise_()
         self.energy_tint = EnergyTint(self.scene, self.view)
         view_menu = next(a.menu() for a in self.menuBar().actions() if a.text() == "&View")

@@ -45,6 +45,13 @@ class MassItem(NodeItem):
         return shapes.axis_arrow_path(QPointF(r.left() - 8, r.bottom()), QPointF(0, -1),
                                       length=r.height() * 0.9, head=6)
 
+    def symbol_rect(self) -> QRectF:
+        """Block (or disc) with its axis arrow and lock mark: what labels keep off."""
+        r = self._path.boundingRect()
+        if self.kind == "line" and self.element.mass > 0:
+            r = r.united(self._arrow().boundingRect())
+        return r
+
     def half_size(self) -> float:
         return self._path.boundingRect().width() / 2
 

@@ -89,7 +89,7 @@ class CanvasMotion:
                 # model y is up, the scene's y is down
                 item.set_display_offset(d.get("x", 0.0) * g, -d.get("y", 0.0) * g)
         for link in self.scene.links.values():
-            link.refresh()
+            link.refresh(label=False)      # labels stay where they were placed, at rest
         if caption:
             self.caption.setText(caption)
             self.caption.adjustSize()
@@ -104,7 +104,7 @@ class CanvasMotion:
                 item.set_display_offset(0.0, 0.0)
                 item._display_offset = None
         for link in self.scene.links.values():
-            link.refresh()
+            link.refresh(label=False)
         self.caption.hide()
 
     def drawn_offset(self, node_id: str):

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from PySide6.QtCore import QPointF, Signal
+from PySide6.QtCore import QPointF, QRectF, Signal
 from PySide6.QtGui import QPen, QTransform
 from PySide6.QtWidgets import QGraphicsItem, QGraphicsObject, QGraphicsSimpleTextItem
 
@@ -48,6 +48,11 @@ class NodeItem(QGraphicsObject):
 
     def tooltip_text(self, element, model) -> str:
         return element.label
+
+    def symbol_rect(self) -> QRectF:
+        """The drawn symbol (item coordinates), without the label: what labels keep off."""
+        path = getattr(self, "_path", None)
+        return path.boundingRect() if path is not None else self.boundingRect()
 
     def set_display_offset(self, dx: float, dy: float, turn: float | None = None) -> None:
         """Draw the node shifted by (dx, dy) scene units, or a disc turned by ``turn`` rad

@@ -45,8 +45,9 @@ MAX_TABLE = 4_000_000
 #: Displacement used to size the drawing when the model has no initial conditions (m, rad).
 _DEFAULT_IC = {"x": 0.01, "y": 0.01, "theta": 0.05}
 
-#: Beyond this many masses the motion view leaves the labels off (they would be unreadable).
-LABEL_LIMIT = 40
+#: Beyond this many masses the motion view leaves the labels off; below, labels that find no
+#: clear spot are left off one by one (app.drawing.labels).
+LABEL_LIMIT = 200
 
 MODE_VIEW = "mode"
 FREE_VIEW = "free"
@@ -96,7 +97,7 @@ class MotionView(QWidget):
 
     def __init__(self, parent=None):
         super().__init__(parent)
-        self.setMinimumSize(200, 110)
+        self.setMinimumSize(200, 90)
         self.setSizePolicy(QSizePolicy.Policy.Expanding, QSizePolicy.Policy.Expanding)
         self.setMouseTracking(True)
         self.model = None
@@ -105,6 +106,8 @@ class MotionView(QWidget):
         self.caption = ""
         self.hint = ""
         self.energy = None
+        #: the largest drawn excursion of a mass in the animation shown (px): labels keep off it
+        self.motion_px = 0.0
         self._layout: SketchLayout | None = None
         self._layout_key = None
         self._drag = None        # (mass_id, grab offset from the displayed centre in px)
@@ -151,7 +154,7 @@ class MotionView(QWidget):
                 highlight = {mid}
             paint_sketch(p, self.model, lay.rect, disp, self.scale, st, undeformed=True,
                          energy=self.energy, labels=len(self.model.masses) <= LABEL_LIMIT,
-                         layout=lay, highlight=highlight)
+                         layout=lay, highlight=highlight, motion_px=self.motion_px)
             p.setPen(st.ink)
             f = QFont(p.font())
             f.setPixelSize(13)
@@ -340,7 +343,7 @@ class MotionPanel(QWidget):
         self.magnification.setDecimals(3)
         self.magnification.setRange(1e-3, 1e9)
         self.magnification.setValue(1.0)
-        self.magnification.setPrefix("× ")
+        self.magnification.setPrefix("drawn × ")
         self.magnification.setToolTip("Displacements are drawn this many times true size")
         self.magnification.valueChanged.connect(self._on_magnification_change)
         self.fit_button = QPushButton("Fit", self)
@@ -349,7 +352,7 @@ class MotionPanel(QWidget):
 
         self.trace_list = QListWidget(self)
         self.trace_list.setObjectName("motion_traces")
-        self.trace_list.setMaximumWidth(150)
+        self.trace_list.setMaximumWidth(170)
         self.trace_list.setToolTip("Masses whose displacement is traced against time; the"
                                    " colour of each ticked one is its curve's (the legend)")
         self.trace_list.itemChanged.connect(lambda _i: self._rebuild_traces())
@@ -357,7 +360,7 @@ class MotionPanel(QWidget):
         self.plot.setObjectName("motion_trace_plot")
         # tall enough to read a decaying trace; the list beside it is the legend, so no legend
         # box sits on the curves
-        self.plot.setMinimumHeight(150)
+        self.plot.setMinimumHeight(165)
         self.plot.setLabel("bottom", "time", units="s")
         self.plot.setLabel("left", "displacement", units="m")
         self.plot.setMenuEnabled(False)
@@ -385,7 +388,6 @@ class MotionPanel(QWidget):
         frow.setContentsMargins(0, 0, 0, 0)
         frow.addWidget(QLabel("Time scale", self))
         frow.addWidget(self.time_scale_box)
-        frow.addWidget(QLabel("Magnification", self))
         frow.addWidget(self.magnification)
         frow.addWidget(self.fit_button)
         frow.addStretch(1)
@@ -417,7 +419,7 @@ class MotionPanel(QWidget):
         self._trace_area.setVisible(free)
         if free and not was:
             total = max(300, sum(self._split.sizes()))
-            self._split.setSizes([int(total * 0.5), int(total * 0.5)])
+            self._split.setSizes([int(total * 0.35), int(total * 0.65)])
         self.loop_box.setEnabled(free)
 
     # -- public API --------------------------------------------------------------------------
@@ -782,6 +784,7 @@ class MotionPanel(QWidget):
             self._positions = disp
             view.displacements = disp
             view.scale = fit * self.amplitude.value() / 50.0
+            view.motion_px = self._excursion_px(shape, view.scale)
             f = float(self._modal.frequencies_hz[n - 1])
             z = self._modal.zero_mode(n)
             cap = f"Mode {n} of {self._modal.n_modes}: {f:.5g} Hz"
@@ -799,6 +802,9 @@ class MotionPanel(QWidget):
             self._positions = disp
             view.displacements = disp
             view.scale = self._free_scale
+            table = self._table
+            peak = float(np.abs(table.x).max()) if table is not None and table.x.size else 0.0
+            view.motion_px = self._excursion_px({"": {"x": peak}}, view.scale)
             ts = self.time_scale()
             view.caption = (f"Free response  t = {self._t:.4f} s   time scale {ts:g}×   "
                             f"drawn {self._free_scale:.3g}× true size")
@@ -811,6 +817,17 @@ class MotionPanel(QWidget):
         if self.canvas_box.isChecked():
             self.canvas_frame.emit(self._positions, self._canvas_peak(),
                                    view.caption.split(" (shown at")[0])
+
+    def _excursion_px(self, shape: dict, scale: float) -> float:
+        """Largest drawn translation (px) of ``shape`` at ``scale``; 0 in torsion (discs turn
+        in place)."""
+        lay = self.view.layout_()
+        if lay is None or self._model is None or self._model.kind == "torsion":
+            return 0.0
+        big = max((math.hypot(d.get("x", 0.0), d.get("y", 0.0)) for d in shape.values()),
+                  default=0.0)
+        # quantised so that the labels are re-placed only when the excursion really changes
+        return math.ceil(big * scale * lay.px_per_m / 4.0) * 4.0
 
     def _on_drag_started(self, _mass_id: str):
         # Initial conditions are set in the free-response drawing, at its magnification, from

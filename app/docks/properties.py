@@ -161,6 +161,7 @@ class PropertyPanel(QWidget):
         self.title.setStyleSheet("font-weight: bold;")
         outer.addWidget(self.title)
         scroll = QScrollArea()
+        scroll.setObjectName("properties_scroll")
         scroll.setWidgetResizable(True)
         scroll.setFrameShape(QScrollArea.NoFrame)
         self._body = QWidget()

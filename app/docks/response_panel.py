@@ -20,7 +20,8 @@ import pyqtgraph as pg
 from PySide6.QtCore import QSignalBlocker, Qt, QTimer, Signal
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QFileDialog, QHBoxLayout, QHeaderView, QLabel,
                                QLineEdit, QListWidget, QListWidgetItem, QPushButton, QSplitter,
-                               QTableWidget, QTableWidgetItem, QVBoxLayout, QWidget)
+                               QSizePolicy, QTableWidget, QTableWidgetItem, QVBoxLayout,
+                               QWidget)
 
 from solver.errors import ModelError
 
@@ -153,8 +154,12 @@ class ResponsePanel(QWidget):
         self.plots.setBackground(st.background)
         self.mag_plot = self.plots.addPlot(row=0, col=0)
         self.phase_plot = self.plots.addPlot(row=1, col=0)
-        self.plots.ci.layout.setRowStretchFactor(0, 3)
-        self.plots.ci.layout.setRowStretchFactor(1, 2)
+        # the frequency axis is shared (linked): its numbers once, under the phase plot, so
+        # both plots keep the height their axis titles need
+        self.mag_plot.getAxis("bottom").setStyle(showValues=False)
+        self.mag_plot.getAxis("bottom").setHeight(4)
+        self.plots.ci.layout.setRowStretchFactor(0, 1)
+        self.plots.ci.layout.setRowStretchFactor(1, 1)
         self.mag_plot.setLogMode(x=True, y=True)
         self.phase_plot.setLogMode(x=True, y=False)
         self.phase_plot.setXLink(self.mag_plot)
@@ -167,8 +172,18 @@ class ResponsePanel(QWidget):
         # over labels that are in Hz
         self.phase_plot.setLabel("bottom", "frequency (Hz)")
         self.phase_plot.setLabel("left", "phase (deg)")
-        self.legend = self.mag_plot.addLegend(offset=(10, -10), labelTextSize="8pt", brush=pg.mkBrush(
-            st.background.red(), st.background.green(), st.background.blue(), 150))
+        # the key sits in a column of its own beside the plots, never over a curve and costing
+        # no height; it is in the plots' scene, so the PNG export carries it
+        self.legend = pg.LegendItem(labelTextSize="8pt", frame=False)
+        self.legend.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Maximum)
+        key = self.plots.ci.addLayout(row=0, col=1, rowspan=2)
+        key.addItem(self.legend, row=0, col=0)
+        key.addLabel("", row=1, col=0)
+        key.layout.setRowStretchFactor(1, 100)      # the entries stay together at the top
+        key.setMaximumWidth(170)
+        self.plots.ci.layout.setColumnStretchFactor(0, 1)
+        self.plots.ci.layout.setColumnStretchFactor(1, 0)
+        self.mag_plot.legend = self.legend      # curves plotted with a name join it
         self.curve_items = []
         split.addWidget(self.plots)
         split.setStretchFactor(0, 0)

@@ -257,6 +257,7 @@ class TunePanel(QWidget):
         self.sources_list.setToolTip("Excitation sources of the model; the margin is set with the"
                                      " model's properties (nothing selected on the canvas)")
         self.sources_list.setMaximumHeight(90)
+        self.sources_list.setWordWrap(True)          # a source with many orders wraps, not cut
         self.sources_title = QLabel()
 
         left = QWidget()

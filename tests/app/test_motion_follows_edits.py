@@ -31,7 +31,8 @@ def _type_k(qtbot, window, spring, text):
 def test_edit_keeps_free_response_playing(qtbot, window):
     """common practice: changing a stiffness while the free response plays changes the motion,
     not the view: it stays on the initial-conditions view, keeps playing and its clock runs on.
-    The new motion is solver.free_response of the edited model (atol 1e-9 m)."""
+    The new motion is solver.free_response of the edited model (atol 1e-8 m: the playback
+    interpolates samples, cubic Hermite error ~ (w dt)^4/384)."""
     window.document.new(model=td3s())
     _wait(qtbot, window)
     panel = window.motion_panel
@@ -51,7 +52,7 @@ def test_edit_keeps_free_response_playing(qtbot, window):
     t = panel.current_time()
     ref = solver.free_response(window.document.model, [t]).node_displacement(0)
     shown = panel.displayed_positions()
-    assert shown["m1"]["x"] == pytest.approx(ref["m1"]["x"], abs=1e-9)
+    assert shown["m1"]["x"] == pytest.approx(ref["m1"]["x"], abs=1e-8)
 
 
 def test_edit_keeps_the_animated_mode(qtbot, window):

@@ -9,7 +9,7 @@ import numpy as np
 import pytest
 from PySide6.QtCore import QPoint, Qt, QTimer
 from PySide6.QtGui import QAction, QImage
-from PySide6.QtWidgets import QApplication, QFileDialog
+from PySide6.QtWidgets import QApplication, QFileDialog, QLineEdit
 
 from solver.model import Anchor, Mass, Model, Spring
 
@@ -112,7 +112,8 @@ def _run_save_dialog(qtbot, trigger, answer=None):
         if answer is None:
             dlg.reject()
         else:
-            dlg.selectFile(str(answer))
+            # type the whole path into the file name field, as a user may
+            dlg.findChild(QLineEdit, "fileNameEdit").setText(str(answer))
             dlg.accept()
 
     QTimer.singleShot(50, handle)
@@ -166,7 +167,7 @@ def test_undamped_report_same_from_window_and_command_line(qtbot, window, tmp_pa
     assert window.response_panel.response is not None
     from_window = tmp_path / "window.png"
     _run_save_dialog(qtbot, _action(window, "Export &report (PNG)…").trigger, from_window)
-    assert from_window.exists()
+    assert from_window.exists(), window.statusBar().currentMessage()
     from_cli = tmp_path / "cli.png"
     assert cli.main(["report", str(src), "-o", str(from_cli)]) == 0
     a, b = QImage(str(from_window)), QImage(str(from_cli))
