@@ -42,7 +42,7 @@ from scipy.optimize import brentq
 
 from .assemble import assemble
 from .errors import ModelError, number, numbers
-from .metrics import strain_vectors
+from .metrics import strain_vectors, unheld_junction_directions
 from .model import HUGE, TINY, Mass, Model, Spring
 from .modes import ZERO_RTOL, modes
 
@@ -138,36 +138,45 @@ def _dense(mat) -> np.ndarray:
 def _finite_eigenvalues(K: np.ndarray, m_diag: np.ndarray, constraint=None):
     """Finite eigenvalues of ``K v = lam M v`` (M = diag(m_diag) >= 0) on ``constraint . v = 0``.
 
-    The constraint is imposed by an orthonormal basis T of its complement (K -> T^T K T, M ->
-    T^T M T); the massless part of M is then condensed statically (pseudo-inverse: directions
-    nothing holds carry no energy). Returns (ascending eigenvalues (n_heavy,), stiffness scale in
-    (rad/s)^2 of the uncondensed pencil, against which a zero is judged).
+    The constraint ``c . v = 0`` is imposed by eliminating one DOF p, ``v_p = -(c . v)_rest /
+    c_p`` (K -> T^T K T, M -> T^T M T). p is a massless DOF when c has one, so M stays diagonal;
+    otherwise c touches only DOFs with mass and the massless ones keep exactly zero rows of M.
+    Either way the massless DOFs are known by index and condensed statically (pseudo-inverse:
+    directions nothing holds carry no energy), and the rest is solved with its (SPD) mass
+    block. Returns (ascending eigenvalues, stiffness scale in (rad/s)^2 of the uncondensed
+    pencil, against which a zero is judged).
     """
+    m_diag = np.asarray(m_diag, float)
     c = None if constraint is None else np.asarray(constraint, float)
     if c is not None and np.any(c != 0):
-        T = scipy.linalg.null_space((c / np.linalg.norm(c))[None, :])
+        light_c = np.where(m_diag == 0, np.abs(c), 0.0)
+        p = int(np.argmax(light_c)) if light_c.max() > 0 else int(np.argmax(np.abs(c)))
+        rest = np.setdiff1d(np.arange(len(c)), [p])
+        T = np.zeros((len(c), len(rest)))
+        T[rest, np.arange(len(rest))] = 1.0
+        T[p] = -c[rest] / c[p]
         K = T.T @ K @ T
-        Mt = T.T @ (m_diag[:, None] * T)
-        mu, Q = scipy.linalg.eigh((Mt + Mt.T) * 0.5)
-        K = Q.T @ K @ Q
-        masses = np.where(mu > 1e-12 * max(mu.max(initial=0.0), 1e-300), mu, 0.0)
+        M = T.T @ (m_diag[:, None] * T)
     else:
-        masses = np.asarray(m_diag, float)
+        M = np.diag(m_diag)
     K = (K + K.T) * 0.5
-    heavy = np.flatnonzero(masses > 0)
-    light = np.flatnonzero(masses <= 0)
+    heavy = np.flatnonzero(np.diag(M) > 0)
+    light = np.flatnonzero(np.diag(M) <= 0)
     if heavy.size == 0:
         return np.zeros(0), 0.0
-    s = 1.0 / np.sqrt(masses[heavy])
+    Mhh = M[np.ix_(heavy, heavy)]
+    s = 1.0 / np.sqrt(np.diag(Mhh))
     Kpp = K[np.ix_(heavy, heavy)]
     scale = float((np.abs(Kpp) * s[:, None] * s[None, :]).sum(axis=1).max(initial=0.0))
     if light.size:
         Kzz = K[np.ix_(light, light)]
         Kzp = K[np.ix_(light, heavy)]
-        atol = 1e-11 * max(np.abs(Kzz).max(initial=0.0), 1e-300)
+        atol = 1e-11 * max(np.abs(K).max(initial=0.0), 1e-300)
         Kpp = Kpp - Kzp.T @ scipy.linalg.pinv(Kzz, atol=atol) @ Kzp
+    # scaled by the diagonal of M first, so a wide spread of masses costs no accuracy
     A = Kpp * s[:, None] * s[None, :]
-    lam = scipy.linalg.eigh((A + A.T) * 0.5, eigvals_only=True)
+    B = Mhh * s[:, None] * s[None, :]
+    lam = scipy.linalg.eigh((A + A.T) * 0.5, (B + B.T) * 0.5, eigvals_only=True)
     return np.sort(lam), scale
 
 
@@ -288,8 +297,9 @@ def _limits(model, element_id, f, mode, n_zero=None):
 def eigenvalues_below(model: Model, omega2: float) -> int | None:
     """How many natural frequencies lie below ``sqrt(omega2)`` rad/s, by Sylvester's law of
     inertia: the negative eigenvalues of ``K - omega2 M`` before condensation (an LDL^T
-    factorisation, Bunch-Kaufman pivoting), which equal those of the condensed pencil when no
-    junction direction is unheld (math). None above :data:`COUNT_DENSE_DOF` DOFs.
+    factorisation, Bunch-Kaufman pivoting), which equal those of the condensed pencil (the
+    junction block of K is positive semi-definite; its null directions, which no spring holds,
+    are set aside). None above :data:`COUNT_DENSE_DOF` DOFs.
 
     Being a count on the uncondensed matrices, it is independent of the eigen-solver and of the
     static condensation (a different algorithm on different matrices).
@@ -302,15 +312,17 @@ def eigenvalues_below(model: Model, omega2: float) -> int | None:
         return 0
     K = _dense(system.K_full)
     A = K - omega2 * _dense(system.M_full)
+    # a junction direction nothing holds is an exact null vector of K and of M, so of A: a zero
+    # pivot that round-off could tip either way. Moving it to a positive eigenvalue changes no
+    # other eigenvalue (it is an invariant subspace of the symmetric A).
+    N = unheld_junction_directions(system)
+    if N.shape[1]:
+        A = A + max(np.abs(np.diag(A)).max(initial=0.0), 1.0) * (N @ N.T)
     _lu, D, _perm = scipy.linalg.ldl((A + A.T) * 0.5, lower=True)
     d = np.diag(D).copy()
     off = np.diag(D, -1).copy()
     ev = scipy.linalg.eigvalsh_tridiagonal(d, off) if n_all > 1 else d
-    # a junction direction nothing holds gives an exactly zero pivot in exact arithmetic;
-    # rounding may make it a hair negative, far below any genuine pivot
-    tol = 1e-12 * max(np.abs(np.diag(K)).max(initial=0.0), omega2 * float(
-        _dense(system.M_full).diagonal().max(initial=0.0)), 1e-300)
-    return int(np.sum(ev < -tol))
+    return int(np.sum(ev < 0))
 
 
 # ---------------------------------------------------------------------------------------------
@@ -532,7 +544,7 @@ class SweepResult:
 def sweep(model: Model, element_id: str, values, field: str | None = None,
           count: int | None = None) -> SweepResult:
     """Solve the model at each value of one element's stiffness or mass."""
-    el, f = _field_for(model, element_id, field)
+    _el, f = _field_for(model, element_id, field)
     values = numbers(values, f'sweep of "{element_id}": values')
     if values.ndim != 1 or not np.all(np.isfinite(values)) or np.any(values <= 0):
         raise ModelError(f'sweep of "{element_id}": values must be positive finite numbers')
