@@ -53,8 +53,8 @@ COUNT_RTOL = 1e-6
 #: Two limits closer than this (relative) mean the mode does not depend on the element.
 DEPEND_RTOL = 1e-9
 #: Limits are solved densely up to this many DOFs (junctions included); above, they are
-#: estimated by solving the model at values 10^12 away and said to be approximate.
-LIMIT_DENSE_DOF = 3000
+#: estimated by solving the model at values 10^8 away and said to be approximate.
+LIMIT_DENSE_DOF = 1500
 #: The inertia count runs up to this many DOFs (a dense LDL^T factorisation).
 COUNT_DENSE_DOF = 2000
 
@@ -135,7 +135,8 @@ def _dense(mat) -> np.ndarray:
     return mat.toarray() if hasattr(mat, "toarray") else np.asarray(mat, float)
 
 
-def _finite_eigenvalues(K: np.ndarray, m_diag: np.ndarray, constraint=None):
+def _finite_eigenvalues(K: np.ndarray, m_diag: np.ndarray, constraint=None,
+                        count: int | None = None):
     """Finite eigenvalues of ``K v = lam M v`` (M = diag(m_diag) >= 0) on ``constraint . v = 0``.
 
     The constraint ``c . v = 0`` is imposed by eliminating one DOF p, ``v_p = -(c . v)_rest /
@@ -143,8 +144,8 @@ def _finite_eigenvalues(K: np.ndarray, m_diag: np.ndarray, constraint=None):
     otherwise c touches only DOFs with mass and the massless ones keep exactly zero rows of M.
     Either way the massless DOFs are known by index and condensed statically (pseudo-inverse:
     directions nothing holds carry no energy), and the rest is solved with its (SPD) mass
-    block. Returns (ascending eigenvalues, stiffness scale in (rad/s)^2 of the uncondensed
-    pencil, against which a zero is judged).
+    block. Returns (ascending eigenvalues, the lowest ``count`` of them when given, stiffness
+    scale in (rad/s)^2 of the uncondensed pencil, against which a zero is judged).
     """
     m_diag = np.asarray(m_diag, float)
     c = None if constraint is None else np.asarray(constraint, float)
@@ -176,12 +177,16 @@ def _finite_eigenvalues(K: np.ndarray, m_diag: np.ndarray, constraint=None):
     # scaled by the diagonal of M first, so a wide spread of masses costs no accuracy
     A = Kpp * s[:, None] * s[None, :]
     B = Mhh * s[:, None] * s[None, :]
-    lam = scipy.linalg.eigh((A + A.T) * 0.5, (B + B.T) * 0.5, eigvals_only=True)
+    top = len(heavy) if count is None else min(int(count), len(heavy))
+    if top == 0:
+        return np.zeros(0), scale
+    lam = scipy.linalg.eigh((A + A.T) * 0.5, (B + B.T) * 0.5, eigvals_only=True,
+                            subset_by_index=(0, top - 1))
     return np.sort(lam), scale
 
 
 def limit_spectrum(model: Model, element_id: str, field: str | None, toward: str,
-                   n_zero: int | None = None) -> np.ndarray:
+                   n_zero: int | None = None, count: int | None = None) -> np.ndarray:
     """Every natural frequency's limit, as w^2 in (rad/s)^2, when one value tends to 0 or inf.
 
     Parameters
@@ -190,10 +195,11 @@ def limit_spectrum(model: Model, element_id: str, field: str | None, toward: str
     toward : ``"zero"`` or ``"infinity"``.
     n_zero : how many zero-frequency modes the model has at positive values (found by
         :func:`solver.modes` when not given); an increasing limit keeps exactly these at zero.
+    count : only the lowest ``count`` limits (cheaper on large models).
 
     Returns
     -------
-    (n_dof,) ascending, ``inf`` for modes that rise without bound. The limits are those of the
+    (n_dof,) or (count,) ascending, ``inf`` for modes that rise without bound. The limits are those of the
     model's modes 1..n_dof in ascending order (see the module docstring for each case).
     """
     el, f = _field_for(model, element_id, field)
@@ -214,7 +220,7 @@ def limit_spectrum(model: Model, element_id: str, field: str | None, toward: str
             if other > 0:
                 K0 = K0 + other * np.outer(c_other, c_other)
         c = axial if f == "k" else trans
-        lam, scale = _finite_eigenvalues(K0, m_full, c if toward == "infinity" else None)
+        lam, scale = _finite_eigenvalues(K0, m_full, c if toward == "infinity" else None, count)
         extra_zeros = 0
     else:
         own = [i for i in system.mass_dofs[el.id] if i >= 0]
@@ -222,11 +228,11 @@ def limit_spectrum(model: Model, element_id: str, field: str | None, toward: str
         if toward == "zero":
             m = m_full.copy()
             m[own] = 0.0
-            lam, scale = _finite_eigenvalues(K, m)
+            lam, scale = _finite_eigenvalues(K, m, count=count)
             extra_zeros = 0
         else:
             keep = np.setdiff1d(np.arange(len(m_full)), own)
-            lam, scale = _finite_eigenvalues(K[np.ix_(keep, keep)], m_full[keep])
+            lam, scale = _finite_eigenvalues(K[np.ix_(keep, keep)], m_full[keep], count=count)
             extra_zeros = len(own)
     # a zero is judged against the stiffness of the model itself too: taking a spring out can
     # leave a pencil that is pure round-off (e.g. nothing else joins a free-free pair)
@@ -242,21 +248,25 @@ def limit_spectrum(model: Model, element_id: str, field: str | None, toward: str
         # zero modes stay at zero; the pencil's own zeros are those same modes (or directions
         # that lost all stiffness and mass, which are no modes), so only its positive part counts
         positive = lam[lam > 0]
-        positive = positive[max(0, positive.size - (n - n_zero)):]
+        if count is None:
+            positive = positive[max(0, positive.size - (n - n_zero)):]
         out = np.concatenate([np.zeros(n_zero), positive,
-                              np.full(n - n_zero - positive.size, np.inf)])
+                              np.full(max(n - n_zero - positive.size, 0), np.inf)])
     else:
         out = np.sort(np.concatenate([np.zeros(extra_zeros), lam]))
-    if out.size != n:
-        raise AssertionError(f"limit spectrum has {out.size} entries for {n} modes")
+    want = n if count is None else min(int(count), n)
+    out = out[:want]
+    if out.size != want:
+        raise AssertionError(f"limit spectrum has {out.size} entries for {want} modes")
     return out
 
 
-def _estimated_spectrum(model, element_id, f, toward) -> np.ndarray:
-    """Large models: the spectrum with the value 10^12 times smaller or larger (approximate)."""
-    v = value_of(model, element_id, f) * (1e-12 if toward == "zero" else 1e12)
+def _estimated_spectrum(model, element_id, f, toward, count) -> np.ndarray:
+    """Large models: the spectrum with the value 10^8 times smaller or larger (approximate; a
+    larger factor would bring the round-off of a very stiff spring)."""
+    v = value_of(model, element_id, f) * (1e-8 if toward == "zero" else 1e8)
     v = min(max(v, TINY), HUGE)
-    return modes(with_value(model, element_id, v, f)).eigenvalues
+    return modes(with_value(model, element_id, v, f), count=count).eigenvalues
 
 
 def reachable_range(model: Model, element_id: str, mode: int, field: str | None = None,
@@ -277,17 +287,22 @@ def _limits(model, element_id, f, mode, n_zero=None):
     """(f at value -> 0, f at value -> inf, exact?) of mode ``mode`` in Hz."""
     n_all = len(assemble(model).all_dofs)
     if n_all <= LIMIT_DENSE_DOF:
-        at0 = limit_spectrum(model, element_id, f, "zero", n_zero)
-        atinf = limit_spectrum(model, element_id, f, "infinity", n_zero)
+        at0 = limit_spectrum(model, element_id, f, "zero", n_zero, count=mode)
+        atinf = limit_spectrum(model, element_id, f, "infinity", n_zero, count=mode)
         exact = True
     else:
-        at0 = _estimated_spectrum(model, element_id, f, "zero")
-        atinf = _estimated_spectrum(model, element_id, f, "infinity")
+        at0 = _estimated_spectrum(model, element_id, f, "zero", mode)
+        atinf = _estimated_spectrum(model, element_id, f, "infinity", mode)
         exact = False
     if mode > len(at0) or mode > len(atinf):
         raise ModelError(f"retune: mode {mode} does not exist; the model has"
                          f" {min(len(at0), len(atinf))} modes")
     return _hz(at0[mode - 1]), _hz(atinf[mode - 1]), exact
+
+
+def _solve(model, mode):
+    """Modes 1..mode (and two more, so a repeated group at the edge is not cut)."""
+    return modes(model, count=mode + 2)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -400,7 +415,7 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
     v0 = float(getattr(el, f))
     start = v0 if v0 > 0 else _reference_value(model, el, f)
     work = model if v0 > 0 else with_value(model, element_id, start, f)
-    base = modes(work)
+    base = _solve(work, mode)
     if mode > base.n_modes:
         raise ModelError(f"retune: mode {mode} does not exist; the model has {base.n_modes} modes")
     # the null space of K does not depend on any positive stiffness or mass value, so a mode
@@ -438,8 +453,8 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
 
     def freq(u):
         try:
-            return float(modes(with_value(model, element_id, math.exp(u), f)).frequencies_hz[
-                mode - 1])
+            return float(_solve(with_value(model, element_id, math.exp(u), f), mode)
+                         .frequencies_hz[mode - 1])
         except ModelError:   # values too far apart to solve: treated as the end of the search
             return None
 
@@ -502,7 +517,7 @@ def _verified(model, element_id, f, mode, target, value, start, now, rng, exact,
     """Re-solve the model with ``value``; refuse (with what was reached) unless mode ``mode`` is
     on the target to VERIFY_RTOL and the inertia count agrees that it is mode ``mode``."""
     tuned = with_value(model, element_id, value, f)
-    reached = float(modes(tuned).frequencies_hz[mode - 1])
+    reached = float(_solve(tuned, mode).frequencies_hz[mode - 1])
     if not abs(reached - target) <= VERIFY_RTOL * target:
         raise ModelError(
             f"retune: the search for mode {mode} at {target:.7g} Hz ended at the {name} of"
