@@ -439,6 +439,14 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
     if abs(now - target) <= 1e-12 * target:
         return finish(start, evaluations)
     approx = "" if exact else " (estimated: the model is too large for the exact limits)"
+    if v0 > 0:
+        now_text = f"now {now:.7g} Hz at {v0:.6g} {unit}"
+    else:   # the present value is 0 (k_t not set, a junction): say what the mode is at 0
+        try:
+            at_zero = float(_solve(model, mode).frequencies_hz[mode - 1])
+            now_text = f"now {at_zero:.7g} Hz with no {name}"
+        except (ModelError, IndexError):
+            now_text = f"now no {name}"
     if math.isfinite(hi) and abs(hi - lo) <= DEPEND_RTOL * max(hi, 1e-300):
         raise ModelError(
             f'retune: mode {mode} does not depend on the {name} of "{element_id}": it stays at'
@@ -448,8 +456,8 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
         raise ModelError(
             f"retune: mode {mode} cannot reach {target:.7g} Hz by changing the {name} of"
             f' "{element_id}" alone: over all values from 0 to infinity it stays'
-            f" {_range_text(lo, hi, rising, name)}{approx} (now {now:.7g} Hz at"
-            f" {start:.6g} {unit}); change another element or add one")
+            f" {_range_text(lo, hi, rising, name)}{approx} ({now_text}); change another"
+            " element or add one")
 
     def freq(u):
         try:
@@ -482,7 +490,7 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
         raise ModelError(
             f"retune: mode {mode} would reach {target:.7g} Hz only beyond the {edge} {name} a"
             f' model can hold: at {math.exp(a):.6g} {unit} for "{element_id}" it is at'
-            f" {fa:.7g} Hz (the exact limit is {_limit_text(lo, hi, up, rising)}); change"
+            f" {fa:.7g} Hz (its limit is {_limit_text(lo, hi, up, rising)}{approx}); change"
             " another element or add one")
     count = [0]
 
