@@ -20,10 +20,11 @@ import numpy as np
 import scipy.linalg
 
 from .assemble import System, assemble
-from .errors import ModelError
+from .errors import ModelError, checked_arguments
 from .model import Model
 
 
+@checked_arguments
 def rayleigh_coefficients(f1_hz: float, zeta1: float, f2_hz: float, zeta2: float):
     """``(alpha, beta)`` of Rayleigh damping giving ratio zeta1 at f1 and zeta2 at f2.
 
@@ -64,6 +65,7 @@ class DampedModes:
     damping_ratios: np.ndarray
 
 
+@checked_arguments
 def damped_modes(model_or_system) -> DampedModes:
     """State-space eigenvalues of a model with its dashpots and damping model (dense)."""
     system = model_or_system if isinstance(model_or_system, System) else assemble(model_or_system)

@@ -36,7 +36,7 @@ class ModelFileError(ModelError):
 
 def one_line(text: str) -> str:
     """``text`` with every character that is not printable escaped (``\\n``, ``\\x1b``,
-    ``\\u2028``, ``\\udc80``...), so that it prints as one line and cannot move a terminal's cursor."""
+    ``\\u2028``, ``\\udc80``...): it prints as one line and cannot move a terminal's cursor."""
     text = str(text)
     if text.isprintable():
         return text
@@ -65,7 +65,7 @@ def shown(value, limit: int = SHOWN_MAX) -> str:
         return f"an object of {len(value)} keys"
     try:
         text = repr(value)
-    except Exception:   # a value whose repr itself fails still gets a message
+    except Exception:   # noqa: BLE001  (a value whose repr fails still gets a message)
         text = f"<{type(value).__name__}>"
     text = one_line(text)
     return text if len(text) <= limit else text[: limit - 1] + "…"
@@ -98,3 +98,113 @@ def numbers(values, what: str):
         return np.asarray(arr, float)
     except (TypeError, ValueError, OverflowError):
         raise ModelError(f"{what} must be numbers, got {shown(values, 80)}") from None
+
+
+# ------------------------------------------------------------------ arguments of public functions
+# What each argument name of the public solver functions must be; a bad one is a ModelError
+# naming the function and the argument before the function runs (so that a TypeError deep inside
+# numpy stays a sign of a bug, never of a user's value).
+_WHOLE = {"count", "mode"}
+_SCALARS = {"f1_hz", "f2_hz", "zeta1", "zeta2", "target_hz", "value", "margin_percent",
+            "f_min_hz", "f_max_hz", "prominence", "asd"}
+_REAL_ARRAYS = {"freqs_hz", "times"}
+_COMPLEX_ARRAYS = {"values", "transfer", "transmissibility"}
+_INITIAL = {"x0", "v0"}
+_RESULT_NEEDS = {"result": ("system", "shapes", "eigenvalues"),
+                 "modal": ("frequencies_hz", "is_zero")}
+
+
+def _finite_number(value) -> bool:
+    return _real(value) and math.isfinite(float(value))
+
+
+def _real(value) -> bool:
+    """A real number a double can hold (NaN and inf included: functions say why they refuse)."""
+    if not is_number(value):
+        return False
+    try:
+        float(value)
+    except (OverflowError, TypeError, ValueError):
+        return False
+    return True
+
+
+def _array_problem(value, complex_ok: bool) -> str | None:
+    import numpy as np
+
+    try:
+        arr = np.asarray(value)
+    except (TypeError, ValueError, OverflowError):
+        return "must be numbers"
+    if arr.dtype.kind not in ("iufc" if complex_ok else "iuf"):
+        return "must be numbers" + ("" if complex_ok else " (real)")
+    # responses may be infinite (an undamped resonance); frequencies, times, states may not
+    if not complex_ok and not np.all(np.isfinite(arr)):
+        return "must be finite numbers"
+    return None
+
+
+def _argument_problem(name: str, value) -> str | None:
+    from .assemble import System
+    from .model import Model
+    from .modes import ModalResult
+
+    if name == "model" and not isinstance(value, Model):
+        return "must be a solver.Model"
+    if name == "model_or_system" and not isinstance(value, (Model, System)):
+        return "must be a solver.Model or a System from assemble()"
+    # a result is taken by what it offers (tests and scripts pass light stand-ins)
+    if name in ("result", "modal") and not isinstance(value, ModalResult) and not all(
+            hasattr(value, a) for a in _RESULT_NEEDS[name]):
+        return "must be a ModalResult from modes()"
+    if name in _WHOLE and not (_finite_number(value) and float(value) == int(value)):
+        return "must be a whole number"
+    if name in _SCALARS and not _real(value):
+        return "must be a number"
+    if name in _REAL_ARRAYS or name in _COMPLEX_ARRAYS:
+        problem = _array_problem(value, name in _COMPLEX_ARRAYS)
+        if problem is None and name in ("freqs_hz", "times") and getattr(
+                __import__("numpy").asarray(value), "ndim", 0) > 1:
+            problem = "must be a list of numbers"
+        return problem
+    if name in _INITIAL:
+        from collections.abc import Mapping
+
+        if isinstance(value, Mapping):
+            return None if all(_finite_number(v) for v in value.values()) else \
+                "must map (mass id, direction) to finite numbers"
+        return _array_problem(value, False)
+    return None
+
+
+def checked_arguments(func=None, **rules):
+    """Decorator for public solver functions: arguments are checked by name (``model``,
+    ``count``, ``freqs_hz``...) and a bad one raises :class:`ModelError` naming the function,
+    the argument and what it must be. ``None`` passes where it is the default. ``rules`` checks
+    an argument as another name would be (``model="model_or_system"``)."""
+    import functools
+    import inspect
+
+    if func is None:
+        return functools.partial(checked_arguments, **rules)
+    sig = inspect.signature(func)
+    names = [(n, rules.get(n, n)) for n in sig.parameters if rules.get(n, n) in _CHECKED]
+
+    @functools.wraps(func)
+    def wrapper(*args, **kwargs):
+        bound = sig.bind(*args, **kwargs)   # a wrong call is a TypeError, as for any function
+        for name, rule in names:
+            if name not in bound.arguments:
+                continue
+            value = bound.arguments[name]
+            if value is None and sig.parameters[name].default is None:
+                continue
+            problem = _argument_problem(rule, value)
+            if problem:
+                raise ModelError(f"{func.__name__}: {name} {problem}, got {shown(value)}")
+        return func(*args, **kwargs)
+    return wrapper
+
+
+_CHECKED = ({"model", "model_or_system", "result", "modal"} | _WHOLE | _SCALARS | _REAL_ARRAYS
+            | _COMPLEX_ARRAYS | _INITIAL)

@@ -158,9 +158,7 @@ def _owner(data, path) -> str:
 def _placed(path, message: str) -> str:
     if not path:
         return message
-    if message.startswith("model: "):
-        message = message[len("model: "):]
-    return f"{json_path(path)}: {message}"
+    return f"{json_path(path)}: {message.removeprefix('model: ')}"
 
 
 def _file_name(path) -> str:

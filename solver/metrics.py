@@ -18,6 +18,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .errors import checked_arguments
 from .modes import ModalResult
 
 
@@ -112,6 +113,7 @@ def _mass_motion_squared(result: ModalResult):
     return out
 
 
+@checked_arguments
 def energy_fractions(result: ModalResult) -> EnergyResult:
     """Strain-energy share of every spring and kinetic-energy share of every mass in each mode."""
     model = result.model
@@ -130,6 +132,7 @@ def energy_fractions(result: ModalResult) -> EnergyResult:
                         mass_ids=tuple(m.id for m in model.masses), strain=strain, kinetic=kin)
 
 
+@checked_arguments
 def sensitivities(result: ModalResult) -> Sensitivity:
     """Analytic eigenvalue derivatives with respect to every stiffness and mass."""
     model = result.model

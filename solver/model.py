@@ -355,9 +355,8 @@ class Excitation:
             lo = _nonneg(owner, "f_min_hz", self.f_min_hz, "Hz", ranged="capped")
             hi = _positive(owner, "f_max_hz", self.f_max_hz, "Hz", ranged="capped")
             if hi < lo:
-                raise ModelError(
-                    f"{owner}: f_max_hz must not be below f_min_hz, got {_fmt(lo)} to {_fmt(hi)} Hz",
-                    ("f_max_hz",))
+                raise ModelError(f"{owner}: f_max_hz must not be below f_min_hz, got {_fmt(lo)}"
+                                 f" to {_fmt(hi)} Hz", ("f_max_hz",))
             _set(self, "f_min_hz", lo)
             _set(self, "f_max_hz", hi)
 

@@ -16,7 +16,7 @@ import numpy as np
 import scipy.linalg
 
 from .assemble import System, assemble
-from .errors import ModelError, number, numbers
+from .errors import ModelError, checked_arguments, number, numbers
 from .model import Model
 from .modes import ModalResult, modes
 
@@ -168,6 +168,7 @@ def _modal_coordinate(q0, qd0, c, lam, t):
     return q, qd
 
 
+@checked_arguments(model="model_or_system")
 def free_response(model, times, result: ModalResult | None = None, x0=None, v0=None,
                   damped: bool = True) -> FreeResponse:
     """Free response of a model from initial conditions.

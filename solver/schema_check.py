@@ -18,7 +18,7 @@ newline).
 from __future__ import annotations
 
 import re
-from typing import Callable
+from collections.abc import Callable
 
 from .errors import shown
 
@@ -144,7 +144,7 @@ class Compiler:
             if keyword in schema:
                 checks.append(getattr(self, "_kw_" + keyword.lstrip("$"))(schema[keyword],
                                                                            schema))
-        special, describe = self.special, self.describe
+        special = self.special
 
         def check(value, path):
             problem = special(value)
@@ -187,7 +187,7 @@ class Compiler:
                 raise Invalid(p, f"{describe(v)} is not allowed (allowed: {allowed})")
         return check
 
-    def _bound(op, word):   # noqa: N805  (a factory used in the class body)
+    def _bound(op, word):   # a factory used in the class body, deleted below
         def kw(self, limit, schema) -> Check:
             describe = self.describe
 

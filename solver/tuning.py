@@ -15,7 +15,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 from scipy.optimize import brentq
 
-from .errors import ModelError, number, numbers
+from .errors import ModelError, checked_arguments, number, numbers
 from .model import Mass, Model, Spring
 from .modes import modes
 
@@ -62,6 +62,7 @@ def value_of(model: Model, element_id: str, field: str | None = None) -> float:
     return float(getattr(el, f))
 
 
+@checked_arguments
 def with_value(model: Model, element_id: str, value: float, field: str | None = None) -> Model:
     """A new model with one element's stiffness or mass set to ``value`` (SI)."""
     el, f = _field_for(model, element_id, field)
@@ -75,6 +76,7 @@ def _frequency(model: Model, mode: int) -> float:
     return float(res.frequencies_hz[mode - 1])
 
 
+@checked_arguments
 def retune(model: Model, element_id: str, mode: int, target_hz: float,
            field: str | None = None) -> float:
     """The value of one element's stiffness or mass that puts ``mode`` (from 1) on ``target_hz``.
@@ -198,6 +200,7 @@ class SweepResult:
     frequencies_hz: np.ndarray
 
 
+@checked_arguments
 def sweep(model: Model, element_id: str, values, field: str | None = None,
           count: int | None = None) -> SweepResult:
     """Solve the model at each value of one element's stiffness or mass."""
@@ -215,6 +218,7 @@ def sweep(model: Model, element_id: str, values, field: str | None = None,
     return SweepResult(element_id=element_id, field=f, values=values, frequencies_hz=out)
 
 
+@checked_arguments
 def rank_elements(model: Model, mode: int) -> list[tuple[str, str, float]]:
     """Springs and masses ranked by how strongly they govern a mode's frequency.
 
