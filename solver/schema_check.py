@@ -162,7 +162,9 @@ class Compiler:
         names = [types] if isinstance(types, str) else list(types)
         for n in names:
             _is_type(None, n)   # refuses an unknown type name now
-        words = " or ".join(_TYPE_WORDS[n] for n in names)
+        # the allowed range and the unit (from the description) belong in the same message
+        words = " or ".join(_TYPE_WORDS[n] for n in names) + "".join(
+            f" {op} {self.describe(schema[k])}" for k, op in _BOUNDS if k in schema) + _unit(schema)
         describe = self.describe
 
         def check(v, p):
@@ -189,11 +191,11 @@ class Compiler:
 
     def _bound(op, word):   # a factory used in the class body, deleted below
         def kw(self, limit, schema) -> Check:
-            describe = self.describe
+            describe, unit = self.describe, _unit(schema)
 
             def check(v, p):
                 if _is_type(v, "number") and not op(v, limit):
-                    raise Invalid(p, f"must be {word} {describe(limit)}, got {describe(v)}")
+                    raise Invalid(p, f"must be {word} {describe(limit)}{unit}, got {describe(v)}")
             return check
         return kw
 
@@ -404,6 +406,16 @@ class Compiler:
                 raise Invalid(p + (key,), f"{describe(v[key])} is not allowed (allowed: {allowed})")
             raise min(errors, key=lambda e: -len(e.path))
         return check
+
+
+_BOUNDS = [("minimum", ">="), ("exclusiveMinimum", ">"), ("maximum", "<="),
+           ("exclusiveMaximum", "<")]
+
+
+def _unit(schema) -> str:
+    """`` (kg; 0 makes a massless junction)`` from a value's description, or ""."""
+    text = schema.get("description") if isinstance(schema, dict) else None
+    return f" ({text})" if isinstance(text, str) and len(text) < 80 else ""
 
 
 def _condition_text(cond, describe) -> tuple[str, str]:
