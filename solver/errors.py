@@ -73,8 +73,11 @@ def shown(value, limit: int = SHOWN_MAX) -> str:
 
 def is_number(value) -> bool:
     """True for real numbers (int, float, numpy floats and ints); False for bool, text, None."""
+    t = type(value)
+    if t is float or t is int:
+        return True
     return isinstance(value, _numbers.Real) and not isinstance(value, bool) and \
-        type(value).__name__ != "bool_"
+        t.__name__ != "bool_"
 
 
 def number(value, what: str, kind=float):

@@ -48,6 +48,8 @@ def _finite(owner: str, name: str, value, unit: str = "", field: str | None = No
 
     ``field`` is the value's key in the model file, kept in the error's ``path``.
     """
+    if type(value) is float and -math.inf < value < math.inf:   # the common case, fast
+        return value
     path = (field or name,)
     if not is_number(value):
         raise ModelError(f"{owner}: {name} must be a number, got {shown(value)}", path)
@@ -85,6 +87,8 @@ def _capped(owner: str, name: str, v: float, unit: str, field: str | None = None
 def _nonneg(owner: str, name: str, value, unit: str, ranged: bool | str = False,
             field: str | None = None) -> float:
     """A value >= 0; ``ranged=True`` also keeps it in TINY..HUGE (or 0), "capped" below HUGE."""
+    if type(value) is float and (TINY <= value <= HUGE or value == 0.0):   # fast path
+        return value
     v = _finite(owner, name, value, f" in {unit}", field)
     if v < 0:
         raise ModelError(f"{owner}: {name} must be zero or positive, got {_fmt(v)} {unit}",
@@ -97,6 +101,8 @@ def _nonneg(owner: str, name: str, value, unit: str, ranged: bool | str = False,
 def _positive(owner: str, name: str, value, unit: str, ranged: bool | str = False,
               field: str | None = None) -> float:
     """A value > 0; ``ranged`` as for :func:`_nonneg`."""
+    if type(value) is float and TINY <= value <= HUGE:   # fast path
+        return value
     v = _finite(owner, name, value, f" in {unit}", field)
     if v <= 0:
         raise ModelError(f"{owner}: {name} must be positive, got {_fmt(v)} {unit}",
@@ -109,6 +115,8 @@ def _positive(owner: str, name: str, value, unit: str, ranged: bool | str = Fals
 def _coordinate(owner: str, name: str, value, unit: str = "m") -> float:
     """A position or an initial value: finite and at most HUGE in size (differences and squares
     of positions give lengths and direction cosines, which must stay finite)."""
+    if type(value) is float and -HUGE <= value <= HUGE:   # fast path
+        return value
     v = _finite(owner, name, value, f" in {unit}")
     if abs(v) > HUGE:
         raise ModelError(f"{owner}: {name} = {v:.3g} {unit} is outside the range a model can be"
@@ -156,13 +164,14 @@ def _text(owner: str, name: str, value, default: str) -> str:
 
 def _items(owner: str, name: str, value) -> tuple:
     """A tuple of a list or tuple field; text and other single values are refused."""
+    if type(value) is tuple:
+        return value
     if isinstance(value, (str, bytes)) or not isinstance(value, Iterable):
         raise ModelError(f"{owner}: {name} must be a list, got {shown(value)}", (name,))
     return tuple(value)
 
 
-def _set(obj, name, value):
-    object.__setattr__(obj, name, value)
+_set = object.__setattr__   # frozen dataclasses set their checked fields through this
 
 
 @dataclass(frozen=True)

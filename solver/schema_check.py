@@ -41,6 +41,15 @@ class SchemaUnsupported(Exception):
     """The schema uses a keyword this compiler does not implement."""
 
 
+def _NOOP(v, p):
+    return None
+
+
+_PLAIN = frozenset({int, float, str, bool, type(None), list, dict})
+# exact types that pass a type check at once (subclasses take the slower general test)
+_FAST_TYPES = {"number": (int, float), "integer": (int,), "string": (str,), "object": (dict,),
+               "array": (list,), "boolean": (bool,), "null": (type(None),)}
+
 _TYPE_WORDS = {"number": "a number", "integer": "a whole number", "string": "a text (string)",
                "object": "an object {...}", "array": "a list [...]", "boolean": "true or false",
                "null": "null"}
@@ -124,7 +133,7 @@ class Compiler:
             for part in ref[2:].split("/"):
                 target = target[part.replace("~1", "/").replace("~0", "~")]
             holder: list[Check] = []
-            self._refs[ref] = lambda v, p: holder[0](v, p)
+            self._refs[ref] = lambda v, p: holder[0](v, p)   # while compiling (recursion)
             holder.append(self._compile(target))
             self._refs[ref] = holder[0]
         return self._refs[ref]
@@ -142,21 +151,33 @@ class Compiler:
         checks: list[Check] = []
         for keyword in _ORDER:
             if keyword in schema:
-                checks.append(getattr(self, "_kw_" + keyword.lstrip("$"))(schema[keyword],
-                                                                           schema))
+                c = getattr(self, "_kw_" + keyword.lstrip("$"))(schema[keyword], schema)
+                if c is not _NOOP:
+                    checks.append(c)
         special = self.special
+        # (a model file has ~10^6 values: one call per value and keyword, nothing more)
+        if len(checks) == 1:
+            only = checks[0]
 
-        def check(value, path):
-            problem = special(value)
-            if problem:
-                raise Invalid(path, problem)
-            for c in checks:
-                c(value, path)
+            def check(value, path):
+                if type(value) not in _PLAIN:
+                    problem = special(value)
+                    if problem:
+                        raise Invalid(path, problem)
+                only(value, path)
+        else:
+            def check(value, path):
+                if type(value) not in _PLAIN:
+                    problem = special(value)
+                    if problem:
+                        raise Invalid(path, problem)
+                for c in checks:
+                    c(value, path)
         return check
 
     # ------------------------------------------------------------------ keywords
     def _kw_ref(self, ref, schema) -> Check:
-        return lambda v, p: self._ref(ref)(v, p)
+        return self._ref(ref)
 
     def _kw_type(self, types, schema) -> Check:
         names = [types] if isinstance(types, str) else list(types)
@@ -166,9 +187,10 @@ class Compiler:
         words = " or ".join(_TYPE_WORDS[n] for n in names) + "".join(
             f" {op} {self.describe(schema[k])}" for k, op in _BOUNDS if k in schema) + _unit(schema)
         describe = self.describe
+        fast = frozenset(t for n in names for t in _FAST_TYPES[n])
 
         def check(v, p):
-            if not any(_is_type(v, n) for n in names):
+            if type(v) not in fast and not any(_is_type(v, n) for n in names):
                 raise Invalid(p, f"must be {words}, got {describe(v)}")
         return check
 
@@ -281,7 +303,7 @@ class Compiler:
         describe = self.describe
 
         def check(v, p):
-            if not isinstance(v, dict):
+            if not isinstance(v, dict) or known.issuperset(v):
                 return
             for k in v:
                 if k in known:
@@ -361,7 +383,7 @@ class Compiler:
 
     def _kw_then(self, sub, schema) -> Check:   # compiled with "if"
         self._compile(sub)
-        return lambda v, p: None
+        return _NOOP
 
     _kw_else = _kw_then
 
