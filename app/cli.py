@@ -23,7 +23,9 @@ CAUTION = ("A lumped model is an approximation: confirm results by test or detai
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message):  # one line, exit 2, like every other bad input
-        self.exit(2, f"springwright: {message}\n")
+        from solver.errors import one_line
+
+        self.exit(2, f"springwright: {one_line(message)}\n")
 
 
 def _fail(message: str, code: int = 2) -> int:

@@ -640,3 +640,9 @@ def test_public_functions_raise_only_model_error():
                         raise AssertionError(f"{name}({p}={bad!r}): {type(exc).__name__}:"
                                              f" {exc}") from None
     assert calls > 900
+
+
+def test_cli_argument_with_a_line_break_is_one_line():
+    """DESIGN.md section 5: an unknown option holding a line break is still one line."""
+    rc, out, err = _cli("solve", str(GOOD), "--x\ny")
+    assert rc == 2 and out == "" and err.count("\n") == 1 and "\\n" in err, err
