@@ -140,53 +140,63 @@ def mutate_tree(rng: random.Random, data: dict, big: bool = True) -> str:
                          + ["big_array", "long_text"] * big)
         if not path:
             return dumps(_value(rng))
-        parent, key = _get(data, path[:-1]), path[-1]
-        if how == "value":
-            parent[key] = _value(rng)
-        elif how == "delete":
-            del parent[key]
-        elif how == "unknown" and isinstance(parent, dict):
-            parent[rng.choice(KEYS + ["extra"])] = _value(rng)
-        elif how == "dup_element":
-            lists = [k for k in ("masses", "anchors", "springs", "dampers", "excitations")
-                     if isinstance(data.get(k), list) and data[k]]
-            if lists:
-                k = rng.choice(lists)
-                data[k].append(copy.deepcopy(rng.choice(data[k])))
-        elif how == "collide":
-            ids = [p for p in paths if p and p[-1] in ("id", "a", "b")]
-            if len(ids) >= 2:
-                p, q = rng.sample(ids, 2)
-                _get(data, p[:-1])[p[-1]] = copy.deepcopy(_get(data, q))
-        elif how == "self" and isinstance(data.get("springs"), list) and data["springs"]:
-            s = rng.choice(data["springs"])
-            if isinstance(s, dict):
-                s["b"] = s.get("a")
-        elif how == "kind":
-            data["kind"] = rng.choice(["line", "planar", "torsion", "beam", 1])
-        elif how == "stack" and isinstance(data.get("masses"), list):
-            # every node at one point: zero-length planar springs
-            for el in data["masses"] + list(data.get("anchors") or []):
-                if isinstance(el, dict):
-                    el["x"] = el["y"] = 0.0
-        elif how == "numstr" and isinstance(parent[key], (int, float)):
-            parent[key] = str(parent[key])
-        elif how == "planar_zero":
-            data["kind"] = "planar"
-        elif how == "big_array":
-            n = rng.choice([1000, 1000, 50_000, 250_000])
-            k = rng.choice(["masses", "springs", "orders", "fixed", "anchors"])
-            item = rng.choice([0, {}, {"id": "m", "x": 0, "y": 0, "mass": 1}, "x"])
-            if k in ("orders", "fixed") and isinstance(data.get("excitations"), list) \
-                    and data["excitations"] and isinstance(data["excitations"][0], dict):
-                data["excitations"][0]["orders"] = [1.0] * n
-            else:
-                data[k] = [copy.deepcopy(item) for _ in range(n)]
-            break
-        elif how == "long_text":
-            parent[key] = rng.choice(["x", "\u00e9", "\n"]) * rng.choice([300, 20_000, 2_000_000])
-            break
+        try:
+            if _mutate_once(rng, data, paths, path, how):
+                break
+        except (TypeError, KeyError, IndexError, AttributeError):
+            pass   # the mutation did not fit this (already mutated) tree: the tree stays as it is
     return dumps(data)
+
+
+def _mutate_once(rng: random.Random, data, paths, path, how) -> bool:
+    """One mutation in place; True when it was a large one that ends the series."""
+    parent, key = _get(data, path[:-1]), path[-1]
+    if how == "value":
+        parent[key] = _value(rng)
+    elif how == "delete":
+        del parent[key]
+    elif how == "unknown" and isinstance(parent, dict):
+        parent[rng.choice(KEYS + ["extra"])] = _value(rng)
+    elif how == "dup_element":
+        lists = [k for k in ("masses", "anchors", "springs", "dampers", "excitations")
+                 if isinstance(data.get(k), list) and data[k]]
+        if lists:
+            k = rng.choice(lists)
+            data[k].append(copy.deepcopy(rng.choice(data[k])))
+    elif how == "collide":
+        ids = [p for p in paths if p and p[-1] in ("id", "a", "b")]
+        if len(ids) >= 2:
+            p, q = rng.sample(ids, 2)
+            _get(data, p[:-1])[p[-1]] = copy.deepcopy(_get(data, q))
+    elif how == "self" and isinstance(data.get("springs"), list) and data["springs"]:
+        s = rng.choice(data["springs"])
+        if isinstance(s, dict):
+            s["b"] = s.get("a")
+    elif how == "kind":
+        data["kind"] = rng.choice(["line", "planar", "torsion", "beam", 1])
+    elif how == "stack" and isinstance(data.get("masses"), list):
+        # every node at one point: zero-length planar springs
+        for el in data["masses"] + list(data.get("anchors") or []):
+            if isinstance(el, dict):
+                el["x"] = el["y"] = 0.0
+    elif how == "numstr" and isinstance(parent[key], (int, float)):
+        parent[key] = str(parent[key])
+    elif how == "planar_zero":
+        data["kind"] = "planar"
+    elif how == "big_array":
+        n = rng.choice([1000, 1000, 50_000, 250_000])
+        k = rng.choice(["masses", "springs", "orders", "fixed", "anchors"])
+        item = rng.choice([0, {}, {"id": "m", "x": 0, "y": 0, "mass": 1}, "x"])
+        if k in ("orders", "fixed") and isinstance(data.get("excitations"), list) \
+                and data["excitations"] and isinstance(data["excitations"][0], dict):
+            data["excitations"][0]["orders"] = [1.0] * n
+        else:
+            data[k] = [copy.deepcopy(item) for _ in range(n)]
+        return True
+    elif how == "long_text":
+        parent[key] = rng.choice(["x", "\u00e9", "\n"]) * rng.choice([300, 20_000, 2_000_000])
+        return True
+    return False
 
 
 def mutate_text(rng: random.Random, text: str) -> bytes:
