@@ -19,6 +19,7 @@ import scipy.linalg
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
+from . import factor
 from .assemble import System, assemble
 from .errors import ModelError
 from .model import Model
@@ -40,13 +41,17 @@ class ZeroMode:
     """Why a zero-frequency mode exists.
 
     ``kind`` is ``"rigid"`` (the group moves as a rigid body: the general solution term
-    ``v (a + b t)``) or ``"mechanism"`` (springs allow a motion they cannot resist).
+    ``v (a + b t)``), ``"mechanism"`` (springs allow a motion they cannot resist) or
+    ``"unresolved"`` (an elastic mode whose frequency double precision cannot tell from zero:
+    not a result). ``motion`` gives a mechanism's motion, ``{mass_id: {direction: amplitude}}``
+    scaled so that the largest amplitude is 1 (masses that barely take part left out).
     """
 
     mode: int
     kind: str
     cause: str
     masses: tuple[str, ...] = ()
+    motion: dict = None
 
 
 @dataclass(frozen=True, eq=False)
@@ -79,6 +84,9 @@ class ModalResult:
     message: str = ""
     complete: bool = True
     method: str = "dense"
+    #: (n_modes,) estimated relative error of each frequency (from the eigensolver's error
+    #: bound; 0 for exact zero modes, inf where the solver could not resolve it)
+    frequency_rtol: np.ndarray = None
 
     @property
     def dofs(self):
@@ -233,20 +241,68 @@ def modes(model_or_system, count: int | None = None, method: str | None = None) 
             + (f', stiffest spring "{stiff.id}" {max(stiff.k, stiff.k_t):.3g}' if stiff else "")
             + "); check the units of these values")
     zero_bound = _zero_scale(system, M_diag, bound)
+    rigid = _rigid_body_basis(system, M_diag)
+    eps = np.finfo(float).eps
     if method == "dense" and len(lam):
-        # a dense solver's eigenvalue error is ~ eps x the largest eigenvalue: a very stiff
-        # link next to soft mounts costs the lowest frequencies digits
-        elastic = lam[lam > zero_bound]
-        if len(elastic) >= 2:
-            rel = np.finfo(float).eps * float(elastic.max()) / float(elastic.min())
-            if rel > 1e-8:
-                warnings.append(
-                    f"the eigenvalues span a factor of {elastic.max() / elastic.min():.2g}: the"
-                    f" lowest frequencies are accurate to about {0.5 * rel:.1g} (relative);"
-                    " a link far stiffer than the rest may be better modelled as rigid"
-                    " (merge its nodes)")
+        # a backward-stable symmetric eigensolver's error in each eigenvalue is ~ eps x the
+        # largest one (Wilkinson; Golub and Van Loan, sec. 8.1): in w that is a relative
+        # eps lam_max / (2 lam_i)
+        top = float(lam.max()) if want == n else bound
+        n_zero = _zero_count(system, lam, phi, ZERO_RTOL * max(zero_bound, 1e-300), rigid)
+        err = _relative_error(lam, 4 * eps * max(top, 0.0))
+        if system.K_factor is not None and (
+                n_zero < int(np.sum(lam <= ZERO_RTOL * zero_bound))
+                or np.any(err[n_zero:] > ACCURATE_RTOL)):
+            # eigh on the formed K would lose digits: take the singular values of the
+            # stiffness factor instead (solver/factor.py), which never forms K
+            lam_f, phi_f, err_f = factor.factored_eig(system.K_factor, M_diag)
+            lam, phi, err = lam_f[:want], phi_f[:, :want], err_f[:want]
+            method = "dense (factored SVD)"
+    elif len(lam):
+        err = _sparse_error(system, lam, phi, M_diag, bound)
+    else:
+        err = np.zeros(0)
     return _finish(system, lam, phi, M_diag, zero_bound, warnings,
-                   complete=(want == n), method=method)
+                   complete=(want == n), method=method, rigid=rigid, err=err)
+
+
+#: Estimated relative error in w above which the dense path turns to the factored SVD.
+ACCURATE_RTOL = 1e-9
+#: The relative resolution of a frequency as shown (6 significant digits, as in the command
+#: line's table): an estimated error above it is warned.
+DISPLAY_RTOL = 5e-7
+
+
+def _relative_error(lam, abs_err):
+    """Relative error in w = sqrt(lam) from an absolute error bound on lam."""
+    lam = np.asarray(lam, float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(lam > 0, 0.5 * abs_err / np.where(lam > 0, lam, 1.0), np.inf)
+
+
+def _sparse_error(system, lam, phi, M_diag, bound):
+    """Error bound in w of shift-invert Lanczos: the residual bound |d lam| <= ||M^-1/2 r||
+    for M-normalised vectors (Parlett, The Symmetric Eigenvalue Problem, thm 4.5.1) plus the
+    rounding of the factorised K - sigma M, ~ eps x the spectral bound."""
+    K = system.K
+    r = np.asarray(K @ phi) - (M_diag[:, None] * phi) * lam[None, :]
+    res = np.linalg.norm(r / np.sqrt(M_diag)[:, None], axis=0)
+    return _relative_error(lam, res + 4 * np.finfo(float).eps * bound)
+
+
+def _zero_count(system, lam, phi, zero_tol, rigid) -> int:
+    """How many of the lowest modes are zero modes, judged by structure, not by size:
+    the rigid-body motions (graph components), and in a planar model the combinations of the
+    numerically small modes that strain no spring (geometry alone)."""
+    n_zero_numeric = int(np.sum(lam <= zero_tol))
+    n_rigid = rigid[0].shape[1]
+    if system.model.kind == "planar" and n_zero_numeric > n_rigid:
+        # a very stiff link can push a real soft mode under the numerical threshold:
+        # keep only the candidates that strain no spring, judged by geometry (relative end
+        # motion against the motion itself), which no stiffness contrast disturbs
+        n_zero_numeric = _strain_free_count(system, phi[:, :n_zero_numeric])
+        return min(max(n_zero_numeric, n_rigid), len(lam))
+    return min(n_rigid, len(lam))
 
 
 def _zero_scale(system: System, M_diag: np.ndarray, bound: float) -> float:
@@ -308,23 +364,20 @@ def _sparse_eig(system: System, M_diag: np.ndarray, want: int, bound: float):
     return lam, phi
 
 
-def _finish(system, lam, phi, M_diag, bound, warnings, complete, method):
+def _finish(system, lam, phi, M_diag, bound, warnings, complete, method, rigid=None,
+            err=None):
     lam = np.array(lam, float)
     n_modes = lam.shape[0]
     zero_tol = ZERO_RTOL * max(bound, 1e-300)
-    # count zero modes: structurally for line/torsion (graph components), numerically otherwise
-    rigid, rigid_info = _rigid_body_basis(system, M_diag)
-    n_zero_numeric = int(np.sum(lam <= zero_tol))
-    if system.model.kind == "planar":
-        if n_zero_numeric > rigid.shape[1]:
-            # a very stiff link can push a real soft mode under the numerical threshold:
-            # keep only the candidates that strain no spring, judged by geometry (relative end
-            # motion against the motion itself), which no stiffness contrast disturbs
-            n_zero_numeric = _strain_free_count(system, phi[:, :n_zero_numeric])
-        n_zero = max(n_zero_numeric, rigid.shape[1])
-    else:
-        n_zero = rigid.shape[1]
-    n_zero = min(n_zero, n_modes)
+    rigid, rigid_info = _rigid_body_basis(system, M_diag) if rigid is None else rigid
+    err = np.zeros(n_modes) if err is None else np.asarray(err, float)
+    n_zero = _zero_count(system, lam, phi, zero_tol, (rigid, rigid_info))
+    if np.any(lam < -zero_tol):
+        worst = float(lam.min())
+        warnings.append(
+            f"the stiffness matrix is not positive semi-definite to working precision (an"
+            f" eigenvalue of {worst:.3g} (rad/s)^2): the stiffness values span too wide a range"
+            " for double precision, and the lowest frequencies cannot be trusted")
     zero_modes = []
     if n_zero:
         Z = _zero_basis(phi[:, :n_zero], rigid, M_diag, n_zero)
@@ -337,9 +390,34 @@ def _finish(system, lam, phi, M_diag, bound, warnings, complete, method):
                 cause, masses = rigid_info[i]
                 zero_modes.append(ZeroMode(mode=i + 1, kind="rigid", cause=cause, masses=masses))
             else:
-                cause, masses = _explain_mechanism(system, Z[:, i], M_diag)
+                cause, masses, motion = _explain_mechanism(system, Z[:, i], M_diag)
                 zero_modes.append(ZeroMode(mode=i + 1, kind="mechanism", cause=cause,
-                                           masses=masses))
+                                           masses=masses, motion=motion))
+    # a mode that structure says is elastic but whose computed eigenvalue is not positive is
+    # shown as 0 Hz: say so, and that the number is not a result
+    for i in range(n_zero, n_modes):
+        if lam[i] <= 0.0:
+            masses = tuple(mid for mid, _ in _moving_masses(system, phi[:, i], M_diag))
+            zero_modes.append(ZeroMode(
+                mode=i + 1, kind="unresolved", masses=masses,
+                cause=f"the computed eigenvalue ({lam[i]:.3g} (rad/s)^2) is not positive, though"
+                " this motion strains springs: the stiffness values span too wide a range for"
+                " double precision to resolve this frequency from zero"))
+            err[i] = np.inf
+    unresolved = [z.mode for z in zero_modes if z.kind == "unresolved"]
+    if unresolved:
+        warnings.append(f"mode(s) {', '.join(map(str, unresolved))} shown as 0 Hz could not be"
+                        " resolved from zero in double precision; they are not results")
+    shown = [i for i in range(n_zero, n_modes) if lam[i] > 0.0]
+    if shown and float(err[shown].max()) > DISPLAY_RTOL:
+        bad = [i for i in shown if err[i] > DISPLAY_RTOL]
+        elastic = lam[shown]
+        f_bad = np.sqrt(lam[bad].max()) / (2 * np.pi)
+        warnings.append(
+            f"the eigenvalues span a factor of {elastic.max() / elastic.min():.2g}: frequencies"
+            f" up to {f_bad:.4g} Hz are accurate to about {float(err[bad].max()):.1g} (relative)"
+            " only; a link far stiffer than the rest may be better modelled as rigid (merge its"
+            " nodes)")
     lam = np.maximum(lam, 0.0)
     # deterministic sign: the largest component of each elastic mode is positive
     if n_modes > n_zero:
@@ -369,7 +447,7 @@ def _finish(system, lam, phi, M_diag, bound, warnings, complete, method):
     return ModalResult(system=system, eigenvalues=lam, shapes=phi, all_shapes=all_shapes,
                        effective_mass=effective, participation=participation, total_mass=total,
                        zero_modes=tuple(zero_modes), repeated=repeated, warnings=tuple(warnings),
-                       complete=complete, method=method)
+                       complete=complete, method=method, frequency_rtol=err)
 
 
 def _strain_free_count(system: System, Z: np.ndarray, rtol: float = 1e-6) -> int:
@@ -603,33 +681,72 @@ def _rigid_cause(model, coef, names, whole, ids, gm, held=False):
     return f"{who} can {verb} as a rigid body{why}; no spring is strained)"
 
 
-def _explain_mechanism(system: System, vec, M_diag):
-    """Plain words for a zero mode that is not rigid-body motion."""
-    model = system.model
-    share = M_diag * vec * vec
+def _moving_masses(system: System, vec, M_diag, rtol: float = 1e-6):
+    """Masses that take part in a motion on ``dofs``, largest kinetic-energy share first:
+    ``[(mass_id, {direction: amplitude})]`` with amplitudes scaled so that the largest is 1;
+    masses whose amplitude is below ``rtol`` of the largest are left out."""
+    vec = np.asarray(vec, float)
     by_mass: dict = {}
-    for (mid, d), s, v in zip(system.dofs, share, vec):
+    for (mid, d), m, v in zip(system.dofs, M_diag, vec):
         entry = by_mass.setdefault(mid, [0.0, {}])
-        entry[0] += s
+        entry[0] += m * v * v
         entry[1][d] = v
+    top = max((max(abs(v) for v in e[1].values()) for e in by_mass.values()), default=0.0)
+    if top == 0.0:
+        return []
     ranked = sorted(by_mass.items(), key=lambda kv: -kv[1][0])
-    top = [mid for mid, (s, _) in ranked if s >= 0.1 * ranked[0][1][0]][:4]
-    mid = top[0]
-    motion = ranked[0][1][1]
-    if model.kind == "planar":
-        ux, uy = motion.get("x", 0.0), motion.get("y", 0.0)
-        norm = np.hypot(ux, uy) or 1.0
-        ux, uy = ux / norm, uy / norm
+    # sign: the largest component positive, so that the statement reads the same every time
+    big = max(((mid, d, v) for mid, (_, comp) in ranked for d, v in comp.items()),
+              key=lambda t: abs(t[2]))
+    sign = 1.0 if big[2] > 0 else -1.0
+    out = []
+    for mid, (_, comp) in ranked:
+        amp = {d: sign * v / top for d, v in comp.items()}
+        if max(abs(a) for a in amp.values()) >= rtol:
+            out.append((mid, amp))
+    return out
+
+
+#: A mechanism's statement names at most this many masses (its ``motion`` holds them all).
+_MECHANISM_NAMED = 6
+
+
+def _explain_mechanism(system: System, vec, M_diag):
+    """Plain words for a zero mode that is not rigid-body motion: the motion itself (every mass
+    that takes part, its direction and relative amplitude), then why no spring resists it.
+
+    Returns (cause, masses, motion) with ``motion`` as in :class:`ZeroMode`.
+    """
+    model = system.model
+    moving = _moving_masses(system, vec, M_diag)
+    motion = {mid: amp for mid, amp in moving}
+    # the statement lists the masses that carry visible motion (amplitude >= 1e-3)
+    named = [(mid, amp) for mid, amp in moving if max(abs(a) for a in amp.values()) >= 1e-3]
+    ids = tuple(mid for mid, _ in named)
+    shown = named[:_MECHANISM_NAMED]
+    more = len(named) - len(shown)
+    tail = f" and {more} more" if more else ""
+    if model.kind != "planar":
+        parts = ", ".join(f'"{mid}" by {next(iter(amp.values())):.3g}' for mid, amp in shown)
+        return (f"masses {parts}{tail} can move with no stiffness resisting", ids, motion)
+
+    def along(amp):
+        ux, uy = amp.get("x", 0.0), amp.get("y", 0.0)
+        size = float(np.hypot(ux, uy))
+        return size, (ux / size, uy / size) if size else (0.0, 0.0)
+
+    if len(named) == 1:
+        mid, amp = named[0]
+        _, (ux, uy) = along(amp)
         attached = [s for s in model.springs if mid in (s.a, s.b)]
         node = model.node(mid)
-        perpendicular = True
+        perpendicular = bool(attached)
         for s in attached:
             other = model.node(s.b if s.a == mid else s.a)
             ex, ey = other.x - node.x, other.y - node.y
             length = np.hypot(ex, ey)
             if abs(ux * ex / length + uy * ey / length) > 1e-3 or s.k_t > 0:
                 perpendicular = False
-        direction = f"({ux:.2f}, {uy:.2f})"
         if not attached:
             reason = "no spring is attached to it"
         elif perpendicular and len(attached) == 1:
@@ -638,11 +755,15 @@ def _explain_mechanism(system: System, vec, M_diag):
         elif perpendicular:
             reason = ("its springs are in line, so nothing resists motion at right angles to"
                       " them (add a spring at an angle or a transverse stiffness k_t)")
-            if len(top) > 1:
-                reason = reason.replace("its springs are", f'the springs of "{mid}" are')
         else:
-            reason = "the springs around it form a linkage that can move without stretching"
-        who = f'mass "{mid}"' if len(top) == 1 else "masses " + ", ".join(f'"{t}"' for t in top)
-        return f"{who} can move in direction {direction} with no stiffness: {reason}", tuple(top)
-    who = "masses " + ", ".join(f'"{t}"' for t in top)
-    return f"{who} can move with no stiffness resisting", tuple(top)
+            reason = ("the springs and massless junctions around it give way without"
+                      " stretching")
+        return (f'mass "{mid}" can move in direction ({ux:.3g}, {uy:.3g}) with no stiffness:'
+                f" {reason}", ids, motion)
+    parts = []
+    for mid, amp in shown:
+        size, (ux, uy) = along(amp)
+        parts.append(f'"{mid}" by {size:.3g} in direction ({ux:.3g}, {uy:.3g})')
+    who = "masses " + ", ".join(f'"{mid}"' for mid, _ in shown) + tail
+    return (f"{who} can move together with no stiffness: " + "; ".join(parts) + tail
+            + " (no spring in the linkage they form is stretched)", ids, motion)
