@@ -229,8 +229,10 @@ def modes(model_or_system, count: int | None = None, method: str | None = None) 
         lam, phi = _dense_eig(system, M_diag, want)
         method = "dense"
     else:
-        lam, phi = _sparse_eig(system, M_diag, want, bound)
+        lam, phi, note = _sparse_eig(system, M_diag, want, bound)
         method = "shift-invert Lanczos"
+        if note:
+            warnings.append(note)
     if not np.all(np.isfinite(lam)) or not np.all(np.isfinite(phi)):
         model = system.model
         light = min((m for m in model.masses if m.mass > 0), key=lambda m: m.mass)
@@ -343,6 +345,17 @@ def _dense_eig(system: System, M_diag: np.ndarray, want: int):
 
 
 def _sparse_eig(system: System, M_diag: np.ndarray, want: int, bound: float):
+    """Lowest modes by shift-invert Lanczos, never cutting a repeated group.
+
+    Lanczos finds one copy of a repeated eigenvalue at a time, so a group that straddles the
+    requested count can come back short. A few more modes than requested are sought; the result
+    is cut only at a gap between distinct frequencies, and the count below the cut is checked by
+    Sylvester's law of inertia: the number of eigenvalues of ``K v = lam M v`` below ``s`` is the
+    number of negative pivots of ``K - s M = L D L^T`` (the Sturm sequence check of
+    Bathe, Finite Element Procedures, sec. 11.4.3). While the count disagrees, more are sought.
+    Returns at least ``want`` modes (more when a group continues past it).
+    """
+    n = len(M_diag)
     K = sp.csc_matrix(system.K)
     M = sp.diags(M_diag, format="csc")
     # Rigid-body modes make K singular, so shift a little below zero. The shift must be small next
@@ -351,17 +364,87 @@ def _sparse_eig(system: System, M_diag: np.ndarray, want: int, bound: float):
     sigma = -1e-10 * bound
     lu = spla.splu((K - sigma * M).tocsc())
     op = spla.LinearOperator(K.shape, matvec=lu.solve, dtype=float)
-    ncv = min(len(M_diag), max(2 * want + 1, want + 20))
-    lam, phi = spla.eigsh(K, k=want, M=M, sigma=sigma, which="LM", OPinv=op, ncv=ncv, tol=1e-12)
-    order = np.argsort(lam)
-    lam, phi = lam[order], phi[:, order]
-    # eigsh returns M-orthonormal vectors up to its tolerance; re-normalise exactly, and take
-    # each eigenvalue as the Rayleigh quotient of its vector: the vectors converge well, while
-    # the shift near the rigid-body modes limits the accuracy of the returned eigenvalues
-    norms = np.sqrt(np.einsum("ij,i,ij->j", phi, M_diag, phi))
-    phi = phi / norms
-    lam = np.einsum("ij,ij->j", phi, np.asarray(K @ phi))
-    return lam, phi
+    extra = max(4, want // 4)
+    k = min(n - 1, want + extra)
+    note = None
+    for attempt in range(4):
+        ncv = min(n, max(2 * k + 1, k + 20))
+        lam, phi = spla.eigsh(K, k=k, M=M, sigma=sigma, which="LM", OPinv=op, ncv=ncv,
+                              tol=1e-12)
+        # eigsh returns M-orthonormal vectors up to its tolerance; re-normalise exactly, and take
+        # each eigenvalue as the Rayleigh quotient of its vector: the vectors converge well,
+        # while the shift near the rigid-body modes limits the accuracy of the returned values
+        norms = np.sqrt(np.einsum("ij,i,ij->j", phi, M_diag, phi))
+        phi = phi / norms
+        lam = np.einsum("ij,ij->j", phi, np.asarray(K @ phi))
+        order = np.argsort(lam)
+        lam, phi = lam[order], phi[:, order]
+        cut = _group_cut(lam, want, bound)
+        if cut is None:   # the computed modes end inside a group: seek more
+            if k >= n - 1:
+                return lam, phi, None
+            k = min(n - 1, 2 * k)
+            note = ("the sparse solver could not find where the group of modes at"
+                    f" {np.sqrt(max(lam[-1], 0.0)) / (2 * np.pi):.6g} Hz ends")
+            continue
+        # the check point sits halfway (in w) across the gap after the cut
+        w_lo, w_hi = np.sqrt(max(lam[cut - 1], 0.0)), np.sqrt(max(lam[cut], 0.0))
+        shift = (0.5 * (w_lo + w_hi)) ** 2
+        below = _count_below(K, M, shift)
+        if below == cut:
+            return lam[:cut], phi[:, :cut], None
+        f_check = np.sqrt(shift) / (2 * np.pi)
+        if below is None:
+            note = f"the count of modes below {f_check:.6g} Hz could not be checked"
+            break
+        note = (f"{below} modes lie below {f_check:.6g} Hz by the inertia (Sturm) count, but"
+                f" the sparse solver found {cut}: some frequencies may be missing or spurious")
+        if below < cut or k >= n - 1:
+            break
+        k = min(n - 1, max(2 * k, below + extra))
+    keep = cut if cut is not None else min(want, len(lam))
+    return lam[:keep], phi[:, :keep], note
+
+
+#: Relative gap in w that separates two groups when the sparse path cuts its result (ten times
+#: REPEATED_RTOL, so that a group the mode table calls repeated is never cut).
+_CUT_RTOL = 10 * REPEATED_RTOL
+
+
+def _group_cut(lam, want, bound):
+    """Number of modes to keep: the first ``j >= want`` with a real gap between modes j and j+1
+    (None when the computed modes end inside a group)."""
+    w = np.sqrt(np.maximum(lam, 0.0))
+    floor = np.sqrt(ZERO_RTOL * max(bound, 1e-300))  # zero modes count as one group
+    for j in range(max(want, 1), len(lam)):
+        if w[j] > floor and w[j] - w[j - 1] > _CUT_RTOL * w[j]:
+            return j
+    return None
+
+
+def _count_below(K, M, shift):
+    """Number of eigenvalues of ``K v = lam M v`` below ``shift``: the negative pivots of a
+    symmetric LDL^T of ``K - shift M`` (Sylvester's law of inertia). SuperLU with no row
+    pivoting (diag_pivot_thresh = 0) and a symmetric ordering gives ``P A P^T = L U`` with
+    ``U = D L^T``; a factor that pivoted anyway is not trusted (returns None unless the dense
+    Bunch-Kaufman LDL^T, scipy.linalg.ldl, is affordable)."""
+    A = sp.csc_matrix(K - shift * M)
+    try:
+        lu = spla.splu(A, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
+                       options={"SymmetricMode": True})
+        if np.array_equal(lu.perm_r, lu.perm_c):
+            d = lu.U.diagonal()
+            if np.all(np.isfinite(d)) and np.all(d != 0):
+                return int(np.sum(d < 0))
+    except RuntimeError:   # an exactly singular pivot
+        pass
+    if A.shape[0] <= 4000:
+        _l, D, _p = scipy.linalg.ldl(A.toarray())
+        # D is block diagonal with 1x1 and 2x2 blocks (so tridiagonal): the signs of its
+        # eigenvalues are the inertia
+        ev = scipy.linalg.eigvalsh_tridiagonal(np.diag(D).copy(), np.diag(D, 1).copy())
+        return int(np.sum(ev < 0))
+    return None
 
 
 def _finish(system, lam, phi, M_diag, bound, warnings, complete, method, rigid=None,
@@ -413,8 +496,9 @@ def _finish(system, lam, phi, M_diag, bound, warnings, complete, method, rigid=N
         bad = [i for i in shown if err[i] > DISPLAY_RTOL]
         elastic = lam[shown]
         f_bad = np.sqrt(lam[bad].max()) / (2 * np.pi)
+        span = max(bound, float(elastic.max())) / float(elastic.min())
         warnings.append(
-            f"the eigenvalues span a factor of {elastic.max() / elastic.min():.2g}: frequencies"
+            f"the eigenvalues span a factor of {span:.2g}: frequencies"
             f" up to {f_bad:.4g} Hz are accurate to about {float(err[bad].max()):.1g} (relative)"
             " only; a link far stiffer than the rest may be better modelled as rigid (merge its"
             " nodes)")
