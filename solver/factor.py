@@ -124,6 +124,9 @@ def condense(B, w, retained, slaves) -> Condensed | None:
         return None
     Bm_all = sp.csr_matrix(B[:, retained])
     Bs_all = sp.csr_matrix(B[:, slaves])
+    small = n_rows * (n_m + n_s) <= 200_000   # dense slicing is far cheaper for small models
+    if small:
+        Bm_d, Bs_d = Bm_all.toarray(), Bs_all.toarray()
     # rows touching no junction pass through unchanged
     plain = np.flatnonzero(row_label < 0)
     blocks = [sp.diags(w[plain]) @ Bm_all[plain]]
@@ -133,12 +136,17 @@ def condense(B, w, retained, slaves) -> Condensed | None:
         if len(rows) == 0:   # junction DOFs that no spring touches at all
             null_blocks.append((dofs, np.eye(len(dofs))))
             continue
-        Bs = Bs_all[rows][:, dofs].toarray()
-        Bm_sp = Bm_all[rows]
-        mcols = np.unique(Bm_sp.indices)
-        Bm = Bm_sp[:, mcols].toarray()
+        if small:
+            Bs = Bs_d[np.ix_(rows, dofs)]
+            mcols = np.flatnonzero(np.any(Bm_d[rows] != 0.0, axis=0))
+            Bm = Bm_d[np.ix_(rows, mcols)]
+        else:
+            Bs = Bs_all[rows][:, dofs].toarray()
+            Bm_sp = Bm_all[rows]
+            mcols = np.unique(Bm_sp.indices)
+            Bm = Bm_sp[:, mcols].toarray()
         # loose directions and rank from the geometry alone
-        _u, sv, vt = scipy.linalg.svd(Bs)
+        _u, sv, vt = scipy.linalg.svd(Bs, check_finite=False)
         rank = int(np.sum(sv > GEOMETRY_RTOL * sv.max(initial=0.0))) if sv.size else 0
         if rank < len(dofs):
             null_blocks.append((dofs, vt[rank:].T))
@@ -147,12 +155,12 @@ def condense(B, w, retained, slaves) -> Condensed | None:
         As = wr[order, None] * Bs[order]
         Am = wr[order, None] * Bm[order]
         if rank:
-            Q, R, piv = scipy.linalg.qr(As, pivoting=True)
+            Q, R, piv = scipy.linalg.qr(As, pivoting=True, check_finite=False)
             QtAm = Q.T @ Am
             rest = QtAm[rank:]
             # least-squares junction motion: R11 y = -(Q1^T A_m) on the pivot columns, then
             # the least-motion solution (nothing along the loose directions)
-            y = scipy.linalg.solve_triangular(R[:rank, :rank], -QtAm[:rank])
+            y = _back_substitute(R[:rank, :rank], -QtAm[:rank])
             Gc = np.zeros((len(dofs), len(mcols)))
             Gc[piv[:rank]] = y
             if rank < len(dofs):
@@ -180,8 +188,21 @@ def condense(B, w, retained, slaves) -> Condensed | None:
     for dofs, b in null_blocks:
         null[dofs, col:col + b.shape[1]] = b
         col += b.shape[1]
-    del n_rows
     return Condensed(factor=factor, G=G, null=null)
+
+
+def _back_substitute(R, rhs):
+    """Solve the upper-triangular R y = rhs. Row by row for small R: a threaded BLAS triangular
+    solve costs milliseconds on a busy machine for a 3 x 3 system."""
+    r = R.shape[0]
+    if r > 64:
+        y, info = lapack.dtrtrs(np.asfortranarray(R), np.asfortranarray(rhs))
+        if info == 0:
+            return y
+    y = np.zeros_like(rhs, dtype=float)
+    for i in range(r - 1, -1, -1):
+        y[i] = (rhs[i] - R[i, i + 1:] @ y[i + 1:]) / R[i, i]
+    return y
 
 
 def factored_eig(F, M_diag: np.ndarray):
@@ -216,7 +237,8 @@ def factored_eig(F, M_diag: np.ndarray):
         else:
             jacobi = False
     if sigma is None:
-        _u, sigma, vt = scipy.linalg.svd(Gm, full_matrices=False, lapack_driver="gesdd")
+        _u, sigma, vt = scipy.linalg.svd(Gm, full_matrices=False, lapack_driver="gesdd",
+                                         check_finite=False)
         v = vt.T
     top = float(sigma.max(initial=0.0))
     with np.errstate(divide="ignore"):
@@ -226,7 +248,7 @@ def factored_eig(F, M_diag: np.ndarray):
         X = X / np.linalg.norm(X, axis=1, keepdims=True)
         cn = np.linalg.norm(X, axis=0)
         X = X[:, cn > 0] / cn[cn > 0]
-        sx = scipy.linalg.svd(X, compute_uv=False)
+        sx = scipy.linalg.svd(X, compute_uv=False, check_finite=False)
         rank = int(np.sum(sigma > 4 * eps * top * max(n, 1)))
         if 0 < rank <= len(sx) and sx[rank - 1] > 0:
             scaled = 4 * eps * np.sqrt(n) * sx[0] / sx[rank - 1]

@@ -795,6 +795,11 @@ def _moving_masses(system: System, vec, M_diag, rtol: float = 1e-6):
 _MECHANISM_NAMED = 6
 
 
+def _g3(value: float) -> str:
+    """Three significant digits, with rounding dust (and -0) shown as 0."""
+    return f"{(0.0 if abs(value) < 5e-4 else value) + 0.0:.3g}"
+
+
 def _explain_mechanism(system: System, vec, M_diag):
     """Plain words for a zero mode that is not rigid-body motion: the motion itself (every mass
     that takes part, its direction and relative amplitude), then why no spring resists it.
@@ -811,7 +816,7 @@ def _explain_mechanism(system: System, vec, M_diag):
     more = len(named) - len(shown)
     tail = f" and {more} more" if more else ""
     if model.kind != "planar":
-        parts = ", ".join(f'"{mid}" by {next(iter(amp.values())):.3g}' for mid, amp in shown)
+        parts = ", ".join(f'"{mid}" by {_g3(next(iter(amp.values())))}' for mid, amp in shown)
         return (f"masses {parts}{tail} can move with no stiffness resisting", ids, motion)
 
     def along(amp):
@@ -842,12 +847,12 @@ def _explain_mechanism(system: System, vec, M_diag):
         else:
             reason = ("the springs and massless junctions around it give way without"
                       " stretching")
-        return (f'mass "{mid}" can move in direction ({ux:.3g}, {uy:.3g}) with no stiffness:'
+        return (f'mass "{mid}" can move in direction ({_g3(ux)}, {_g3(uy)}) with no stiffness:'
                 f" {reason}", ids, motion)
     parts = []
     for mid, amp in shown:
         size, (ux, uy) = along(amp)
-        parts.append(f'"{mid}" by {size:.3g} in direction ({ux:.3g}, {uy:.3g})')
+        parts.append(f'"{mid}" by {_g3(size)} in direction ({_g3(ux)}, {_g3(uy)})')
     who = "masses " + ", ".join(f'"{mid}"' for mid, _ in shown) + tail
     return (f"{who} can move together with no stiffness: " + "; ".join(parts) + tail
             + " (no spring in the linkage they form is stretched)", ids, motion)

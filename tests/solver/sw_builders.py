@@ -100,7 +100,8 @@ def mp_reference(model, dps=50):
 
     Returns a dict: ``dofs`` [(mass_id, direction)] that carry mass, ``K`` and ``M`` (mpmath
     matrices on them), ``lam`` (ascending mpf, exact zeros where the eigenvalue is zero to the
-    working precision), ``hz`` (floats) and ``n_zero``.
+    working precision), ``hz`` (floats), ``n_zero`` and ``scale`` (the larger of the largest
+    eigenvalue and the largest diagonal stiffness over the smallest mass, (rad/s)^2).
     """
     import mpmath as mp
 
@@ -160,7 +161,8 @@ def mp_reference(model, dps=50):
             Mr[a, a] = masses[i]
         dofs = [d for d, i in sorted(index.items(), key=lambda kv: kv[1]) if masses[i] > 0]
         if nm == 0:
-            return {"dofs": [], "K": Kr, "M": Mr, "lam": [], "hz": np.zeros(0), "n_zero": 0}
+            return {"dofs": [], "K": Kr, "M": Mr, "lam": [], "hz": np.zeros(0), "n_zero": 0,
+                    "scale": 0.0}
         A = mp.zeros(nm, nm)
         for a in range(nm):
             for b in range(nm):
@@ -170,19 +172,20 @@ def mp_reference(model, dps=50):
         lam = [mp.mpf(0) if abs(x) <= mp.mpf(10) ** (-(dps - 15)) * top else x for x in lam]
         hz = np.array([float(mp.sqrt(max(x, 0)) / (2 * mp.pi)) for x in lam])
         return {"dofs": dofs, "K": Kr, "M": Mr, "lam": lam, "hz": hz,
-                "n_zero": sum(1 for x in lam if x == 0)}
+                "n_zero": sum(1 for x in lam if x == 0), "scale": float(top)}
 
 
 def mp_rayleigh(ref, motion):
     """Rayleigh quotient u^T K u / u^T M u (mpmath) of ``motion`` {mass_id: {direction: value}}
-    on the reference's condensed K and M, and the reference's largest eigenvalue."""
+    on the reference's condensed K and M, and the spectral scale: the largest eigenvalue, or
+    when every mode is a zero mode, the largest stiffness over the smallest mass."""
     import mpmath as mp
 
     with mp.workdps(30):
         u = mp.matrix([motion.get(mid, {}).get(d, 0.0) for mid, d in ref["dofs"]])
         num = (u.T * ref["K"] * u)[0, 0]
         den = (u.T * ref["M"] * u)[0, 0]
-        return float(num / den), float(max(ref["lam"]))
+        return float(num / den), ref["scale"]
 
 
 __all__ = ["chain", "uniform", "mac", "state_matrix", "dense", "solver", "square_lattice",
