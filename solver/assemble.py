@@ -241,7 +241,7 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
     slaves = np.flatnonzero(masses == 0)
     dofs = tuple(all_dofs[i] for i in retained)
     loose = np.zeros((n_all, 0))
-    B, w = factor.spring_rows(model, node_dofs, positions, n_all)
+    B, w = factor.spring_rows(s_dofs, s_axis, k_vals, kt_vals, n_all)
     if len(slaves) == 0:
         recovery = sp.identity(n_all, format="csr")
         M, K, C = M_full, K_full, C_full

@@ -43,39 +43,35 @@ CLUSTER_LIMIT = 1500
 JACOBI_DOF_LIMIT = 400
 
 
-def spring_rows(model, node_dofs: dict, positions: dict, n_all: int):
+def spring_rows(spring_dofs: np.ndarray, axis: np.ndarray, k, k_t, n_all: int):
     """Geometry ``B`` (sparse, (n_rows, n_all)) and weights ``sqrt(stiffness)`` (n_rows,).
 
-    Rows whose ends are both ground or locked are dropped (they strain nothing that moves).
+    ``spring_dofs`` (n_springs, 2 nd): DOF indices of end a then end b (-1: ground or locked);
+    ``axis`` (n_springs, 2): unit vectors from a to b (planar); ``k_t`` None outside planar
+    models. One row per spring along its axis, and one across it where ``k_t > 0``. Rows with
+    no free DOF are dropped (they strain nothing that moves).
     """
-    nd = len(model.directions)
-    rows, cols, vals, weights = [], [], [], []
-    for s in model.springs:
-        da, db = node_dofs[s.a], node_dofs[s.b]
-        if nd == 1:
-            parts = [(s.k, (1.0,))]
-        else:
-            (xa, ya), (xb, yb) = positions[s.a], positions[s.b]
-            dx, dy = xb - xa, yb - ya
-            length = np.hypot(dx, dy)
-            e = (dx / length, dy / length)
-            parts = [(s.k, e)]
-            if s.k_t > 0:
-                parts.append((s.k_t, (-e[1], e[0])))
-        for k, vec in parts:
-            entries = [(i, -c) for i, c in zip(da, vec) if i >= 0 and c != 0.0]
-            entries += [(i, c) for i, c in zip(db, vec) if i >= 0 and c != 0.0]
-            if not entries:
-                continue
-            r = len(weights)
-            for i, c in entries:
-                rows.append(r)
-                cols.append(i)
-                vals.append(c)
-            weights.append(np.sqrt(k))
-    B = sp.csr_matrix((vals, (rows, cols)), shape=(len(weights), n_all))
+    n_s = spring_dofs.shape[0]
+    nd = spring_dofs.shape[1] // 2
+    k = np.asarray(k, float).reshape(n_s)
+    if nd == 1:
+        dirs = np.ones((n_s, 1, 1))            # (spring, row kind, component)
+        weights = k[:, None]
+    else:
+        nvec = np.stack([-axis[:, 1], axis[:, 0]], axis=1)
+        dirs = np.stack([axis, nvec], axis=1)   # (n_s, 2, 2)
+        kt = np.zeros(n_s) if k_t is None else np.asarray(k_t, float).reshape(n_s)
+        weights = np.stack([k, kt], axis=1)
+    n_kind = dirs.shape[1]
+    # row r = (spring, kind); entries -dir on end a's DOFs, +dir on end b's
+    vals = np.concatenate([-dirs, dirs], axis=2)                 # (n_s, n_kind, 2 nd)
+    cols = np.broadcast_to(spring_dofs[:, None, :], vals.shape)
+    rows = np.broadcast_to(np.arange(n_s * n_kind).reshape(n_s, n_kind, 1), vals.shape)
+    keep = (cols >= 0) & (vals != 0.0) & (weights[:, :, None] > 0)
+    B = sp.csr_matrix((vals[keep], (rows[keep], cols[keep])), shape=(n_s * n_kind, n_all))
     B.sum_duplicates()
-    return B, np.asarray(weights, float)
+    used = np.flatnonzero(np.diff(B.indptr) > 0)
+    return B[used], np.sqrt(weights.reshape(-1)[used])
 
 
 @dataclass
@@ -205,13 +201,17 @@ def _back_substitute(R, rhs):
     return y
 
 
-def factored_eig(F, M_diag: np.ndarray):
+def factored_eig(F, M_diag: np.ndarray, rtol: float = 1e-9):
     """Eigenvalues and mass-normalised vectors of ``F^T F v = lam M v`` from the SVD of
     ``F M^(-1/2)``, ascending.
 
-    Returns lam (n,), phi (n, n) and the relative error bound of each ``w = sqrt(lam)`` (n,):
-    ``eps ||F M^-1/2|| / sigma_i`` for divide and conquer; for Jacobi SVD also the bound
-    ``eps cond(X)`` of the row- and column-equilibrated ``X`` (the smaller of the two holds).
+    Divide and conquer (gesdd) first: its error in each singular value is ``eps ||F M^-1/2||``
+    (backward stable), a relative ``eps sigma_max / sigma_i``. Where that exceeds ``rtol`` for a
+    nonzero one and the model is small enough, one-sided Jacobi (dgejsv) instead, whose bound
+    is ``eps cond(X)`` with ``X`` the row- and column-equilibrated matrix (the smaller of the two
+    bounds holds).
+
+    Returns lam (n,), phi (n, n) and the relative error bound of each ``w = sqrt(lam)`` (n,).
     """
     F = F.toarray() if sp.issparse(F) else np.asarray(F, float)
     n = len(M_diag)
@@ -222,9 +222,20 @@ def factored_eig(F, M_diag: np.ndarray):
     if Gm.shape[0] < n:
         Gm = np.vstack([Gm, np.zeros((n - Gm.shape[0], n))])
     eps = np.finfo(float).eps
-    sigma = v = None
-    jacobi = n <= JACOBI_DOF_LIMIT
-    if jacobi:
+    _u, sigma, vt = scipy.linalg.svd(Gm, full_matrices=False, lapack_driver="gesdd",
+                                     check_finite=False)
+    v = vt.T
+
+    def normwise(sig):
+        top_ = float(sig.max(initial=0.0))
+        with np.errstate(divide="ignore"):
+            return np.where(sig > 0, 4 * eps * top_ / np.where(sig > 0, sig, 1.0), np.inf)
+
+    bound = normwise(sigma)
+    top = float(sigma.max(initial=0.0))
+    # singular values that are rounding of a zero one (rigid-body motions, mechanisms)
+    nonzero = sigma > 4 * eps * top * max(n, 1)
+    if n <= JACOBI_DOF_LIMIT and top > 0 and np.any(bound[nonzero] > rtol):
         # rows sorted by decreasing norm help the pivoted QR that dgejsv starts with
         order = np.argsort(-np.linalg.norm(Gm, axis=1), kind="stable")
         # joba='F' (full pivoting: rows and columns graded), jobu='N', jobv='V', jobr='N',
@@ -234,25 +245,16 @@ def factored_eig(F, M_diag: np.ndarray):
         if info == 0 and work[1] != 0:
             sigma = (work[0] / work[1]) * sva[:n]
             v = vv[:, :n]
-        else:
-            jacobi = False
-    if sigma is None:
-        _u, sigma, vt = scipy.linalg.svd(Gm, full_matrices=False, lapack_driver="gesdd",
-                                         check_finite=False)
-        v = vt.T
-    top = float(sigma.max(initial=0.0))
-    with np.errstate(divide="ignore"):
-        bound = np.where(sigma > 0, 4 * eps * top / np.where(sigma > 0, sigma, 1.0), np.inf)
-    if jacobi and top > 0:
-        X = Gm[np.any(Gm != 0.0, axis=1)]
-        X = X / np.linalg.norm(X, axis=1, keepdims=True)
-        cn = np.linalg.norm(X, axis=0)
-        X = X[:, cn > 0] / cn[cn > 0]
-        sx = scipy.linalg.svd(X, compute_uv=False, check_finite=False)
-        rank = int(np.sum(sigma > 4 * eps * top * max(n, 1)))
-        if 0 < rank <= len(sx) and sx[rank - 1] > 0:
-            scaled = 4 * eps * np.sqrt(n) * sx[0] / sx[rank - 1]
-            bound = np.minimum(bound, np.where(sigma > 0, scaled, np.inf))
+            bound = normwise(sigma)
+            X = Gm[np.any(Gm != 0.0, axis=1)]
+            X = X / np.linalg.norm(X, axis=1, keepdims=True)
+            cn = np.linalg.norm(X, axis=0)
+            X = X[:, cn > 0] / cn[cn > 0]
+            sx = scipy.linalg.svd(X, compute_uv=False, check_finite=False)
+            rank = int(np.sum(nonzero))
+            if 0 < rank <= len(sx) and sx[rank - 1] > 0:
+                scaled = 4 * eps * np.sqrt(n) * sx[0] / sx[rank - 1]
+                bound = np.minimum(bound, np.where(sigma > 0, scaled, np.inf))
     order = np.argsort(sigma, kind="stable")
     sigma, v, bound = sigma[order], v[:, order], bound[order]
     return sigma * sigma, v * s[:, None], bound

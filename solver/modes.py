@@ -12,7 +12,7 @@ in plain words. Shapes are mass-normalised: ``Phi^T M Phi = I``.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 import scipy.linalg
@@ -51,7 +51,7 @@ class ZeroMode:
     kind: str
     cause: str
     masses: tuple[str, ...] = ()
-    motion: dict = None
+    motion: dict = field(default=None, compare=False)
 
 
 @dataclass(frozen=True, eq=False)
@@ -257,7 +257,7 @@ def modes(model_or_system, count: int | None = None, method: str | None = None) 
                 or np.any(err[n_zero:] > ACCURATE_RTOL)):
             # eigh on the formed K would lose digits: take the singular values of the
             # stiffness factor instead (solver/factor.py), which never forms K
-            lam_f, phi_f, err_f = factor.factored_eig(system.K_factor, M_diag)
+            lam_f, phi_f, err_f = factor.factored_eig(system.K_factor, M_diag, ACCURATE_RTOL)
             lam, phi, err = lam_f[:want], phi_f[:, :want], err_f[:want]
             method = "dense (factored SVD)"
     elif len(lam):
