@@ -534,21 +534,32 @@ def _finish(system, lam, phi, M_diag, bound, warnings, complete, method, rigid=N
                        complete=complete, method=method, frequency_rtol=err)
 
 
-def _strain_free_count(system: System, Z: np.ndarray, rtol: float = 1e-6) -> int:
-    """Dimension of the combinations of the columns of Z (on dofs) that strain no spring."""
+def _geometric_strain(system: System, V_all: np.ndarray) -> np.ndarray:
+    """Unweighted strain of every spring under each column of V_all (motions on all_dofs):
+    the relative end motion along the spring (and across it where k_t > 0), (n_rows, n_cols).
+    No stiffness enters, so a soft spring beside a stiff one counts as much (geometry only)."""
     model = system.model
-    if not len(model.springs):
-        return Z.shape[1]
-    Z_all = np.asarray(system.recovery @ Z)
-    Z_all = np.vstack([Z_all, np.zeros((1, Z.shape[1]))])  # row -1: ground
+    V = np.vstack([np.asarray(V_all, float), np.zeros((1, V_all.shape[1]))])  # row -1: ground
     idx = system.spring_dofs
-    delta = Z_all[idx[:, 2:]] - Z_all[idx[:, :2]]  # (n_s, 2, n_cand)
+    if len(model.springs) == 0:
+        return np.zeros((0, V_all.shape[1]))
+    if idx.shape[1] == 2:   # line and torsion: one component per node
+        return V[idx[:, 1]] - V[idx[:, 0]]
+    delta = V[idx[:, 2:]] - V[idx[:, :2]]  # (n_s, 2, n_cols)
     e = system.spring_axis
     n = np.stack([-e[:, 1], e[:, 0]], axis=1)
     axial = np.einsum("si,sim->sm", e, delta)
     trans = np.einsum("si,sim->sm", n, delta)
     has_kt = np.array([sp_.k_t > 0 for sp_ in model.springs])
-    S = np.vstack([axial, trans[has_kt]])
+    return np.vstack([axial, trans[has_kt]])
+
+
+def _strain_free_count(system: System, Z: np.ndarray, rtol: float = 1e-6) -> int:
+    """Dimension of the combinations of the columns of Z (on dofs) that strain no spring."""
+    if not len(system.model.springs):
+        return Z.shape[1]
+    Z_all = np.asarray(system.recovery @ Z)
+    S = _geometric_strain(system, Z_all)
     scale = max(np.abs(Z_all).max(), 1e-300)
     sv = np.linalg.svd(S / scale, compute_uv=False)
     rank = int(np.sum(sv > rtol))
@@ -630,7 +641,6 @@ def _rigid_body_basis(system: System, M_diag):
     anchors = {a.id for a in model.anchors}
     masses = {m.id: m for m in model.masses}
     lookup = {d: i for i, d in enumerate(system.all_dofs)}
-    K_full = system.K_full
     vectors, info = [], []
     groups = _components(model)
     moving_groups = [g for g in groups if not (set(g) & anchors)]
@@ -668,10 +678,11 @@ def _rigid_body_basis(system: System, M_diag):
         V = np.zeros((len(system.all_dofs), len(names)))
         for key, row in free_rows:
             V[lookup[key]] = row
-        KV = np.asarray(K_full @ (V @ coeffs))
-        scale = max(abs(K_full).max() if sp.issparse(K_full) else np.abs(K_full).max(), 1e-300)
-        scale *= max(np.abs(V).max(), 1e-300)
-        ok = _null_space(KV, 1e-9, scale) if KV.size else np.eye(coeffs.shape[1])
+        # judged on the geometry (relative end motion of each spring), not on K V: next to a
+        # very stiff spring the force of a soft one is below K's rounding, yet it is strained
+        S = _geometric_strain(system, V @ coeffs)
+        scale = max(np.abs(V @ coeffs).max(), 1e-300)
+        ok = _null_space(S, 1e-9, scale) if S.size else np.eye(coeffs.shape[1])
         if ok.shape[1] == 0:
             continue
         C = coeffs @ ok  # (n_names, n_rigid) combinations of x, y, rot

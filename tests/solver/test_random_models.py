@@ -339,12 +339,13 @@ def test_sparse_path_never_cuts_a_repeated_group(model, data):
     assume(n >= 8)
     K, M = dense(sysm.K), dense(sysm.M)
     lam = scipy.linalg.eigh(K, M, eigvals_only=True)
-    assume(lam.max() > 0)
+    # the scale of the springs before condensation (a condensed K can be pure rounding)
+    top = float(np.abs(dense(sysm.K_full)).max()) / float(np.diag(M).min())
+    assume(lam.max() > 1e-8 * top)
     count = data.draw(st.integers(1, n // 3))
     res = solver.modes(sysm, count=count, method="sparse")
     got = res.n_modes
     assert got >= count
-    top = lam.max()
     np.testing.assert_allclose(res.eigenvalues, np.where(lam[:got] > 1e-10 * top, lam[:got], 0),
                                rtol=1e-8, atol=1e-10 * top)
     if got < n:
