@@ -6,7 +6,10 @@ statically (Guyan condensation, exact for massless DOFs),
 
     K_red = K_mm - K_ms K_ss^+ K_sm,        x_s = -K_ss^+ K_sm x_m,
 
-and their motion is recovered from that of the masses. ``System.M``, ``.K``, ``.C`` and ``.dofs``
+and their motion is recovered from that of the masses. The condensation is done on the
+stiffness factor ``K = A^T A`` by orthogonal projection (solver/factor.py), which gives the same
+K_red and x_s without the cancellation of the formula above when one spring is far stiffer than
+the others; junction clusters too large for it use the sparse Schur complement. ``System.M``, ``.K``, ``.C`` and ``.dofs``
 are the condensed matrices on the DOFs that carry mass; ``.M_full``, ``.K_full``, ``.C_full`` and
 ``.all_dofs`` keep every DOF, junctions included, for direct frequency-domain solves.
 

@@ -5,9 +5,21 @@ symmetric one ``(M^-1/2 K M^-1/2) u = w^2 u`` and solved by ``scipy.linalg.eigh`
 models use shift-invert Lanczos (``scipy.sparse.linalg.eigsh``) for the lowest ``count`` modes, with
 a small negative shift so that rigid-body modes (a singular K) are allowed.
 
+The dense result is checked against the eigensolver's error bound (``eps lam_max / lam_i``)
+and against the zero-mode count that the structure gives (graph components, and for planar
+layouts the motions that strain no spring, judged on geometry alone). Where eigh on the formed K
+would lose digits (a spring far stiffer than the rest), the eigenvalues come instead from the
+singular values of the stiffness factor (solver/factor.py), which never forms K. The sparse path
+never cuts a repeated group and checks its count by inertia (Sturm). Every frequency carries an
+estimate of its relative error (``ModalResult.frequency_rtol``); one beyond the six digits shown
+is warned, and a mode shown as 0 Hz is always flagged (as rigid-body motion, a mechanism, or
+``unresolved`` when double precision cannot tell it from zero).
+
 Zero eigenvalues are results, not errors: the zero-frequency modes are re-expressed in a basis
 that explains them (rigid-body translations and rotations first, then mechanisms), each with a cause
-in plain words. Shapes are mass-normalised: ``Phi^T M Phi = I``.
+in plain words: for a mechanism, the motion of the computed null vector itself (the masses that
+take part, their directions and relative amplitudes). Shapes are mass-normalised:
+``Phi^T M Phi = I``.
 """
 
 from __future__ import annotations
@@ -69,6 +81,8 @@ class ModalResult:
     total_mass : dict direction -> mass free to move in that direction (r^T M r).
     zero_modes : tuple of ZeroMode.     repeated : tuple of tuples of mode numbers.
     complete : True when every mode of the model was found (dense path).
+    method : "dense" (LAPACK eigh on K), "dense (factored SVD)" (singular values of the
+        stiffness factor, taken when eigh would lose digits) or "shift-invert Lanczos".
     """
 
     system: System
@@ -213,7 +227,8 @@ def modes(model_or_system, count: int | None = None, method: str | None = None) 
                            effective_mass={d: np.zeros(0) for d in system.directions},
                            participation={d: np.zeros(0) for d in system.directions},
                            total_mass={d: 0.0 for d in system.directions},
-                           warnings=tuple(warnings), message=msg, complete=True)
+                           warnings=tuple(warnings), message=msg, complete=True,
+                           frequency_rtol=np.zeros(0))
     M_diag = np.asarray(system.M.diagonal()).ravel().astype(float)
     bound = _spectral_bound(M_diag, system.K)
     want = n if count is None and n <= DENSE_DOF_LIMIT else (
