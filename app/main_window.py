@@ -206,6 +206,7 @@ class MainWindow(QMainWindow):
         self._add_tune_panels()
         self.setAcceptDrops(True)
         self.recovery = Recovery(self.document, self.settings, folder=recovery_folder, parent=self)
+        self.recovery.status_message.connect(lambda m: self.statusBar().showMessage(m, 12000))
         geometry = self.settings.value("window/geometry")
         if geometry is not None:
             self.restoreGeometry(geometry)
@@ -682,8 +683,10 @@ class MainWindow(QMainWindow):
     def save_to(self, path) -> bool:
         try:
             written = self.document.save(path)
-        except OSError as exc:
-            msg = f"Not saved to {path}: {exc.strerror or exc}; the previous file is unchanged"
+        except (OSError, ModelError) as exc:
+            # ModelError: a model too large for a model file (it would not load back)
+            why = (exc.strerror if isinstance(exc, OSError) else None) or exc
+            msg = f"Not saved to {path}: {why}; the previous file is unchanged"
             self.statusBar().showMessage(msg, 12000)
             self._notify_error("Cannot save", msg)
             return False

@@ -118,8 +118,9 @@ class Document(QObject):
     def save(self, path=None) -> Path:
         """Write the model (atomically) to ``path`` or the current path; returns the path written.
 
-        Raises ``OSError`` (folder missing, read-only, disk full); the old file is then intact
-        because solver.save_model writes a temporary file and renames it only when complete.
+        Raises ``OSError`` (folder missing, read-only, disk full) or ``ModelError`` (a model too
+        large for a model file); the old file is then intact because solver.save_model writes a
+        temporary file and renames it only when complete.
         """
         target = Path(path) if path is not None else self._path
         if target is None:

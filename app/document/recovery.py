@@ -14,7 +14,7 @@ import os
 import time
 from pathlib import Path
 
-from PySide6.QtCore import QObject, QSettings, QStandardPaths, QTimer
+from PySide6.QtCore import QObject, QSettings, QStandardPaths, QTimer, Signal
 
 from solver.errors import ModelError
 from solver.io import load_model, save_model, write_atomic
@@ -30,6 +30,9 @@ def recovery_folder() -> Path:
 
 
 class Recovery(QObject):
+    #: why an autosave was not written, for the status bar (a model no model file can hold)
+    status_message = Signal(str)
+
     def __init__(self, document, settings: QSettings, folder: Path | None = None,
                  interval_ms: int = AUTOSAVE_MS, after_edit_ms: int = AFTER_EDIT_MS,
                  parent=None):
@@ -45,6 +48,7 @@ class Recovery(QObject):
         self.soon.setSingleShot(True)
         self.soon.setInterval(after_edit_ms)
         self.soon.timeout.connect(self.autosave)
+        self._told = None   # the refusal last reported, so the timer does not repeat it
         document.model_changed.connect(lambda _m: self.soon.start())
         document.dirty_changed.connect(self._on_dirty_change)
 
@@ -68,6 +72,15 @@ class Recovery(QObject):
                                                      "time": time.time()}))
         except OSError:
             return False  # autosave is a comfort; a full disk must not interrupt work
+        except ModelError as exc:
+            # save_model refuses a model too large to load back: autosave cannot protect this
+            # work, which the user must know (said once, not on every timer tick)
+            message = f"Autosave not written: {exc}"
+            if message != self._told:
+                self._told = message
+                self.status_message.emit(message)
+            return False
+        self._told = None
         return True
 
     def clear(self) -> None:

@@ -189,3 +189,74 @@ def test_edit_survives_a_hard_crash(qtbot, tmp_path):
     assert again.document.model.masses[0].mass == 4.321
     again.recovery.mark_clean_exit()
     again.solver.shutdown()
+
+
+def test_save_of_a_model_too_large_for_a_file_is_refused_in_the_window(
+        qtbot, window, tmp_path, two_mass_model, monkeypatch):
+    """DESIGN.md section 3 (errors a user can cause come back as messages, never a traceback):
+    save_model refuses a model whose file would be over the load limit (it could not be loaded
+    back). Save (Ctrl+S, a real key press) says so in the status bar and the error box, leaves
+    the previous file as it was and the model unsaved (dirty)."""
+    import solver.io
+    from PySide6.QtCore import Qt
+
+    path = tmp_path / "fixture.json"
+    save_model(two_mass_model, path)
+    before = path.read_bytes()
+    assert window.open_path(path, ask=False)
+    window.document.set_element("m2", mass=4.0)
+    # the real refusal, reached with a limit below this small model's file
+    monkeypatch.setattr(solver.io, "MAX_FILE_BYTES", 64)
+    window.activateWindow()
+    qtbot.keyClick(window, Qt.Key_S, Qt.ControlModifier)
+    shown = window.statusBar().currentMessage()
+    assert shown.startswith(f"Not saved to {path}") and "over the" in shown, shown
+    assert "model file may have" in shown and "previous file is unchanged" in shown
+    assert window.errors_shown == [shown]
+    assert path.read_bytes() == before
+    assert window.document.dirty and window.isWindowModified()
+
+
+def test_save_refused_with_model_error_keeps_the_model_dirty(window, tmp_path, two_mass_model,
+                                                             monkeypatch):
+    """Common practice: any ModelError from save_model (here a stand-in raising one) is shown
+    with its words, never raised out of the window; the model stays unsaved."""
+    import app.document.document as document_module
+    from solver.errors import ModelError
+
+    def refuse(model, path):
+        raise ModelError("save_model: the model's file would be 40.0 MiB, over the 32.0 MiB a"
+                         " model file may have")
+
+    window.document.new(model=two_mass_model)
+    window.document.set_element("m1", mass=3.0)
+    monkeypatch.setattr(document_module, "save_model", refuse)
+    target = tmp_path / "new.json"
+    assert not window.save_to(target)
+    shown = window.statusBar().currentMessage()
+    assert "40.0 MiB" in shown and "Not saved" in shown, shown
+    assert not target.exists()
+    assert window.document.dirty and window.isWindowModified()
+    assert window.document.path is None
+
+
+def test_autosave_of_a_model_too_large_for_a_file_is_reported_once(qtbot, window, tmp_path,
+                                                                  two_mass_model, monkeypatch):
+    """DESIGN.md section 6 (autosave and recovery): when save_model refuses the model (its file
+    would be over the load limit) the autosave is not written and the status bar says why,
+    once rather than on every timer tick; no exception leaves the timer slot."""
+    import solver.io
+
+    window.document.new(model=two_mass_model)
+    window.document.set_element("m1", mass=7.0)
+    monkeypatch.setattr(solver.io, "MAX_FILE_BYTES", 64)
+    told = []
+    window.recovery.status_message.connect(told.append)
+    assert window.recovery.autosave() is False
+    assert not window.recovery.model_path.exists()
+    assert window.statusBar().currentMessage().startswith("Autosave not written: save_model:")
+    assert window.recovery.autosave() is False
+    assert len(told) == 1 and "model file may have" in told[0]
+    monkeypatch.setattr(solver.io, "MAX_FILE_BYTES", 32 * 1024 * 1024)
+    assert window.recovery.autosave() is True
+    assert window.recovery.model_path.exists()
