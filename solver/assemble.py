@@ -31,6 +31,7 @@ import scipy.sparse.linalg as spla
 from . import factor
 from .errors import ModelError, checked_arguments
 from .model import Model
+from .naming import named, quoted_id
 
 #: Above this many DOFs the matrices are kept sparse (chosen with bench/solver_bench.py).
 SPARSE_DOF_LIMIT = 600
@@ -131,15 +132,15 @@ def _no_dof_message(model: Model, mass_id: str, direction: str) -> str:
     try:
         node = model.node(mass_id)
     except ModelError:
-        return f'"{mass_id}" is not a mass in the model'
+        return f"{quoted_id(model, mass_id)} is not a mass in the model"
     if not hasattr(node, "mass"):
-        return f'"{mass_id}" is an anchor; it has no degrees of freedom'
+        return f"{quoted_id(model, mass_id)} is an anchor; it has no degrees of freedom"
     if direction not in model.directions:
-        return (f'mass "{mass_id}": direction "{direction}" does not exist in this model'
+        return (f'{named(node)}: direction "{direction}" does not exist in this model'
                 f' (allowed: {", ".join(model.directions)})')
     if direction in node.fixed:
-        return f'mass "{mass_id}" is locked in {direction}'
-    return f'mass "{mass_id}" is massless; its {direction} motion is condensed out'
+        return f"{named(node)} is locked in {direction}"
+    return f"{named(node)} is massless; its {direction} motion is condensed out"
 
 
 @checked_arguments
@@ -226,14 +227,14 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
     for m in model.masses:
         extra = [d for d in m.fixed if d not in directions]
         if extra:
-            warnings.append(f'mass "{m.id}": locked direction {", ".join(extra)} does not exist'
+            warnings.append(f'{named(m)}: locked direction {", ".join(extra)} does not exist'
                             f' in this model (it moves in {", ".join(directions)}); ignored')
     for s in springs:
         if s.a in node_dofs and s.b in node_dofs and all(i < 0 for i in node_dofs[s.a]) and all(
                 i < 0 for i in node_dofs[s.b]):
-            warnings.append(f'spring "{s.id}" joins two fixed points; it has no effect')
+            warnings.append(f"{named(s)} joins two fixed points; it has no effect")
         if s.k_t and model.kind != "planar":
-            warnings.append(f'spring "{s.id}": transverse stiffness k_t acts only in planar models;'
+            warnings.append(f"{named(s)}: transverse stiffness k_t acts only in planar models;"
                             " it is ignored here")
     if model.kind == "planar" and not model.anchors and any(s.k_t > 0 for s in springs):
         warnings.append("a transverse stiffness k_t resists the sideways motion of one end"
@@ -252,7 +253,7 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
         K_factor = sp.diags(w) @ B
     else:
         K, C, recovery, msg, loose, K_factor = _condense(K_full, C_full, retained, slaves,
-                                                         all_dofs, B, w)
+                                                         all_dofs, B, w, model)
         M = sp.diags(masses[retained], format="csr")
         warnings.extend(msg)
         if model.dampers and C_full[slaves][:, :].nnz:
@@ -336,7 +337,7 @@ def _sparse_null(Kss, scale: float):
     return q, None
 
 
-def _condense(K_full, C_full, retained, slaves, all_dofs, B, w):
+def _condense(K_full, C_full, retained, slaves, all_dofs, B, w, model):
     """Static condensation of the massless DOFs ``slaves``.
 
     By orthogonal projection of the stiffness factor ``diag(w) B`` (solver/factor.py), which
@@ -344,7 +345,8 @@ def _condense(K_full, C_full, retained, slaves, all_dofs, B, w):
     large for that, by the Schur complement of K.
 
     Returns K, C, recovery, warnings, the loose junction directions (see ``System.loose``) and
-    the condensed stiffness factor (None from the Schur complement).
+    the condensed stiffness factor (None from the Schur complement). ``model`` names the
+    junctions in the warnings.
     """
     warnings = []
     Kmm = K_full[retained][:, retained]
@@ -385,9 +387,12 @@ def _condense(K_full, C_full, retained, slaves, all_dofs, B, w):
         G = sp.csr_matrix(-lu.solve(Ksm.toarray()))
         loose = null.shape[1]
     if loose:
+        # the junctions that take part in an unheld direction (a spring at an angle leaves a
+        # combination of x and y loose, so a zero diagonal of K would miss them)
+        share = np.linalg.norm(np.asarray(null), axis=1)
         names = sorted({all_dofs[i][0] for i in slaves[np.flatnonzero(
-            np.abs(K_full[slaves][:, slaves].diagonal()) <= 0)]})
-        detail = f' (e.g. {", ".join(repr(n) for n in names[:3])})' if names else ""
+            share > 1e-6 * share.max(initial=0.0))]})
+        detail = f' (e.g. {", ".join(quoted_id(model, n) for n in names[:3])})' if names else ""
         warnings.append(f"{loose} direction(s) of massless junctions{detail} are held by no"
                         " spring; their motion is undetermined and shown as zero")
     if K_factor is not None:

@@ -27,6 +27,7 @@ from .assemble import System, assemble
 from .errors import ModelError, checked_arguments, number, numbers
 from .model import Model
 from .modes import modes
+from .naming import quoted_id
 
 OUTPUTS = ("displacement", "velocity", "acceleration")
 _CHUNK_BYTES = 64 * 2 ** 20
@@ -222,7 +223,8 @@ def harmonic_response(model, freqs_hz, forces, output: str = "displacement",
             from .assemble import _no_dof_message
 
             raise ModelError("force: " + _no_dof_message(system.model, *key))
-        F[index[key]] += number(amp, f"force amplitude at {key[0]} in {key[1]}", complex)
+        F[index[key]] += number(
+            amp, f"force amplitude at {quoted_id(system.model, key[0])} in {key[1]}", complex)
     if method == "direct":
         X = _dynamic_solve(system, f, lambda w: F)
     elif method == "modal":

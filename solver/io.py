@@ -30,6 +30,7 @@ from importlib import resources
 from pathlib import Path
 
 from .errors import ModelError, ModelFileError, one_line, shown
+from .naming import quoted
 from .model import (MAX_ELEMENTS, Anchor, Damper, Damping, Excitation, Initial, Mass, Model,
                     Spring)
 from .schema_check import Invalid, compile_schema
@@ -141,17 +142,36 @@ def json_path(parts) -> str:
     return out or "top level"
 
 
+def _labelled(el_id: str, label) -> str:
+    """``"Isolator pad" (s4)`` (see :func:`solver.naming.quoted`) for an element of a file not
+    yet checked: the id as JSON writes it and at most 60 characters of it, a label only where
+    it is text that differs from the id; ``"s4"`` otherwise."""
+    text = json.dumps(el_id)
+    if not (isinstance(label, str) and label and label != el_id):
+        return text[:60]
+    return quoted(text[1:-1] if len(text) <= 60 else text[1:59] + "…", label)
+
+
 def _owner(data, path) -> str:
-    """``spring "s2"`` for a path inside an element, so a message names the element too."""
+    """``spring "s2"`` (``spring "Isolator pad" (s2)`` where it has a label) for a path inside
+    an element, so a message names the element too."""
     if len(path) >= 2 and path[0] in _ELEMENT_LISTS and isinstance(path[1], int):
         try:
-            el_id = data[path[0]][path[1]].get("id")
+            el = data[path[0]][path[1]]
+            el_id, label = el.get("id"), el.get("label")
         except (AttributeError, IndexError, KeyError, TypeError):
-            el_id = None
+            el_id = label = None
+        if path[2:3] == ("label",):   # the label is the problem: name the element by id
+            label = None
         if isinstance(el_id, str) and el_id:
-            return f"{_ELEMENT_LISTS[path[0]]} {json.dumps(el_id)[:60]}: "
+            return f"{_ELEMENT_LISTS[path[0]]} {_labelled(el_id, label)}: "
     if len(path) >= 2 and path[0] == "initial":
-        return f"initial condition of {json.dumps(str(path[1]))[:60]}: "
+        label = None
+        masses = data.get("masses")
+        if isinstance(masses, list):
+            label = next((m.get("label") for m in masses
+                          if isinstance(m, dict) and m.get("id") == path[1]), None)
+        return f"initial condition of {_labelled(str(path[1]), label)}: "
     return ""
 
 

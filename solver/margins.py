@@ -22,6 +22,7 @@ from dataclasses import dataclass
 
 from .errors import checked_arguments, number
 from .model import Model
+from .naming import named_id
 
 #: Relative tolerance on a widened edge: a mode within this of an edge is on it (round-off of the
 #: eigen-solver and of retune is ~1e-13; no margin in practice is set to better than 1e-9).
@@ -117,8 +118,9 @@ def margin_check(model: Model, modal, margin_percent: float | None = None) -> Ma
                 below, above = next(((a, b) for a, b in keep_out if a <= f <= b), (lo_w, hi_w))
                 down, up = below - f, above - f
                 move = down if (below > 0 and abs(down) <= abs(up)) else up
-                what = (f'{sid} order {order:g} ({lo:.4g} Hz)' if order is not None
-                        else f'{sid} ({lo:.4g} to {hi:.4g} Hz)')
+                source = named_id(model, sid)
+                what = (f"{source} order {order:g} ({lo:.4g} Hz)" if order is not None
+                        else f"{source} ({lo:.4g} to {hi:.4g} Hz)")
                 if below > 0:
                     way = f"move it below {below:.4g} Hz or above {above:.4g} Hz"
                 else:

@@ -12,9 +12,11 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, fields, replace
+from functools import cached_property
 from typing import Iterable, Mapping
 
 from .errors import ModelError, is_number, shown
+from .naming import named, quoted
 
 KINDS = ("line", "planar", "torsion")
 AXES = ("x", "y")
@@ -191,12 +193,13 @@ class Mass:
 
     def __post_init__(self):
         _check_id("mass", self.id)
-        owner = f'mass "{self.id}"'
+        # the label is checked under the id alone; every later message names the label too
+        _set(self, "label", _text(f'mass "{self.id}"', "label", self.label, self.id))
+        owner = f"mass {quoted(self.id, self.label)}"
         _set(self, "x", _coordinate(owner, "x", self.x))
         _set(self, "y", _coordinate(owner, "y", self.y))
         _set(self, "mass", _nonneg(owner, "mass", self.mass, "kg (kg m^2 for a disc)",
                                        ranged=True))
-        _set(self, "label", _text(owner, "label", self.label, self.id))
         fixed = _items(owner, "fixed", self.fixed)
         for i, d in enumerate(fixed):
             if not isinstance(d, str) or d not in DIRECTIONS:
@@ -223,10 +226,11 @@ class Anchor:
 
     def __post_init__(self):
         _check_id("anchor", self.id)
-        owner = f'anchor "{self.id}"'
+        # the label is checked under the id alone; every later message names the label too
+        _set(self, "label", _text(f'anchor "{self.id}"', "label", self.label, self.id))
+        owner = f"anchor {quoted(self.id, self.label)}"
         _set(self, "x", _coordinate(owner, "x", self.x))
         _set(self, "y", _coordinate(owner, "y", self.y))
-        _set(self, "label", _text(owner, "label", self.label, self.id))
 
 
 @dataclass(frozen=True)
@@ -246,13 +250,14 @@ class Spring:
 
     def __post_init__(self):
         _check_id("spring", self.id)
-        owner = f'spring "{self.id}"'
+        # the label is checked under the id alone; every later message names the label too
+        _set(self, "label", _text(f'spring "{self.id}"', "label", self.label, self.id))
+        owner = f"spring {quoted(self.id, self.label)}"
         _set(self, "a", _check_id(f"{owner} end a", self.a, "a"))
         _set(self, "b", _check_id(f"{owner} end b", self.b, "b"))
         _set(self, "k", _positive(owner, "stiffness k", self.k, "N/m", ranged=True, field="k"))
         _set(self, "k_t", _nonneg(owner, "transverse stiffness k_t", self.k_t, "N/m",
                                       ranged=True, field="k_t"))
-        _set(self, "label", _text(owner, "label", self.label, self.id))
 
 
 @dataclass(frozen=True)
@@ -267,12 +272,13 @@ class Damper:
 
     def __post_init__(self):
         _check_id("dashpot", self.id)
-        owner = f'dashpot "{self.id}"'
+        # the label is checked under the id alone; every later message names the label too
+        _set(self, "label", _text(f'dashpot "{self.id}"', "label", self.label, self.id))
+        owner = f"dashpot {quoted(self.id, self.label)}"
         _set(self, "a", _check_id(f"{owner} end a", self.a, "a"))
         _set(self, "b", _check_id(f"{owner} end b", self.b, "b"))
         _set(self, "c", _nonneg(owner, "damping coefficient c", self.c, "N s/m",
                                     ranged=True, field="c"))
-        _set(self, "label", _text(owner, "label", self.label, self.id))
 
 
 @dataclass(frozen=True)
@@ -338,11 +344,11 @@ class Excitation:
 
     def __post_init__(self):
         _check_id("excitation", self.id)
-        owner = f'excitation "{self.id}"'
+        _set(self, "label", _text(f'excitation "{self.id}"', "label", self.label, self.id))
+        owner = f"excitation {quoted(self.id, self.label)}"
         if not isinstance(self.type, str) or self.type not in EXCITATION_TYPES:
             raise ModelError(f'{owner}: type must be "speed" or "band", got {shown(self.type)}',
                              ("type",))
-        _set(self, "label", _text(owner, "label", self.label, self.id))
         if self.type == "speed":
             _set(self, "rpm", _positive(owner, "rpm", self.rpm, "rev/min", ranged="capped"))
             raw = _items(owner, "orders", self.orders)
@@ -473,7 +479,7 @@ class Model:
             for i, el in enumerate(items):
                 if el.id in seen:
                     raise ModelError(
-                        f'{what} "{el.id}": id is already used by a {seen[el.id]}; ids must be'
+                        f"{named(el, what)}: id is already used by a {seen[el.id]}; ids must be"
                         " unique", (key, i, "id"))
                 seen[el.id] = what
         allowed = directions_for(self.kind, self.axis)
@@ -489,17 +495,20 @@ class Model:
                     ref = getattr(el, end)
                     if ref not in nodes:
                         raise ModelError(
-                            f'{what} "{el.id}": end {end} names "{ref}", which is not a mass or'
+                            f'{named(el, what)}: end {end} names "{ref}", which is not a mass or'
                             " anchor", (key, i, end))
                 if el.a == el.b:
-                    raise ModelError(f'{what} "{el.id}": both ends are "{el.a}"; a {what} must join'
-                                     ' two different nodes', (key, i, "b"))
+                    node = nodes[el.a]
+                    raise ModelError(f"{named(el, what)}: both ends are"
+                                     f" {quoted(node.id, node.label)}; a {what} must join"
+                                     " two different nodes", (key, i, "b"))
                 if self.kind == "planar":
                     na, nb = nodes[el.a], nodes[el.b]
                     length = math.hypot(nb.x - na.x, nb.y - na.y)
                     if length <= 1e-12 * max(1.0, abs(na.x), abs(na.y)):
                         raise ModelError(
-                            f'{what} "{el.id}": its ends "{el.a}" and "{el.b}" are at the same point;'
+                            f"{named(el, what)}: its ends {quoted(na.id, na.label)} and"
+                            f" {quoted(nb.id, nb.label)} are at the same point;"
                             " in a planar model a spring acts along its drawn line, so it needs a"
                             " length", (key, i))
         masses = {m.id for m in self.masses}
@@ -507,18 +516,22 @@ class Model:
         for ic in self.initial:
             if ic.mass_id not in masses:
                 where = "an anchor" if ic.mass_id in nodes else "not a mass in the model"
-                raise ModelError(f'initial condition: "{ic.mass_id}" is {where};'
+                node = nodes.get(ic.mass_id)
+                who = quoted(ic.mass_id, node.label if node is not None else None)
+                raise ModelError(f"initial condition: {who} is {where};"
                                  " initial conditions are given for masses",
                                  ("initial", ic.mass_id))
             if ic.mass_id in seen_init:
-                raise ModelError(f'initial condition: mass "{ic.mass_id}" is listed twice',
+                who = quoted(ic.mass_id, nodes[ic.mass_id].label)
+                raise ModelError(f"initial condition: mass {who} is listed twice",
                                  ("initial", ic.mass_id))
             seen_init.add(ic.mass_id)
             for name, items in (("displacement", ic.displacement), ("velocity", ic.velocity)):
                 for d, _ in items:
                     if d not in allowed:
+                        who = quoted(ic.mass_id, nodes[ic.mass_id].label)
                         raise ModelError(
-                            f'initial condition of "{ic.mass_id}": direction "{d}" does not exist'
+                            f'initial condition of {who}: direction "{d}" does not exist'
                             f' in a {self._kind_text()} (allowed: {", ".join(allowed)})',
                             ("initial", ic.mass_id, d if name == "displacement" else "v" + d))
 
@@ -532,13 +545,26 @@ class Model:
         """Directions each mass moves in for this model's kind."""
         return directions_for(self.kind, self.axis)
 
+    @cached_property
+    def _by_id(self) -> dict:
+        # built once per Model (a Model never changes), so that messages naming many
+        # elements, and look-ups by id, do not scan every element each time
+        return {el.id: el for items in (self.masses, self.anchors, self.springs, self.dampers,
+                                        self.excitations) for el in items}
+
+    def find(self, element_id: str):
+        """The element (mass, anchor, spring, dashpot or excitation) with this id, or None."""
+        try:
+            return self._by_id.get(element_id)
+        except TypeError:   # an unhashable "id" names no element
+            return None
+
     def element(self, element_id: str):
         """The element (mass, anchor, spring, dashpot or excitation) with this id."""
-        for items in (self.masses, self.anchors, self.springs, self.dampers, self.excitations):
-            for el in items:
-                if el.id == element_id:
-                    return el
-        raise ModelError(f'model: no element has the id "{element_id}"')
+        el = self.find(element_id)
+        if el is None:
+            raise ModelError(f'model: no element has the id "{element_id}"')
+        return el
 
     def node(self, node_id: str):
         for items in (self.masses, self.anchors):

@@ -35,6 +35,7 @@ from . import factor
 from .assemble import System, assemble
 from .errors import ModelError, checked_arguments
 from .model import Model
+from .naming import named, named_id, quoted_id
 
 #: Up to this many DOFs every mode is found by dense LAPACK (chosen with bench/solver_bench.py).
 DENSE_DOF_LIMIT = 2000
@@ -254,9 +255,9 @@ def modes(model_or_system, count: int | None = None, method: str | None = None) 
         light = min((m for m in model.masses if m.mass > 0), key=lambda m: m.mass)
         stiff = max(model.springs, key=lambda s_: max(s_.k, s_.k_t), default=None)
         raise ModelError(
-            "the values span too wide a range to solve in double precision (lightest mass"
-            f' "{light.id}" {light.mass:.3g}'
-            + (f', stiffest spring "{stiff.id}" {max(stiff.k, stiff.k_t):.3g}' if stiff else "")
+            "the values span too wide a range to solve in double precision (lightest"
+            f" {named(light)} {light.mass:.3g}"
+            + (f", stiffest {named(stiff)} {max(stiff.k, stiff.k_t):.3g}" if stiff else "")
             + "); check the units of these values")
     zero_bound = _zero_scale(system, M_diag, bound)
     rigid = _rigid_body_basis(system, M_diag)
@@ -538,7 +539,7 @@ def _finish(system, lam, phi, M_diag, bound, warnings, complete, method, rigid=N
             f"the eigenvalues span a factor of {span:.2g}: frequencies"
             f" up to {f_bad:.4g} Hz are accurate to about {float(err[bad].max()):.1g} (relative)"
             " only; a link far stiffer than the rest may be better modelled as rigid (merge its"
-            " nodes)")
+            " nodes)" + _stiffest_link(system.model))
     lam = np.maximum(lam, 0.0)
     # deterministic sign: the largest component of each elastic mode is positive
     if n_modes > n_zero:
@@ -778,17 +779,40 @@ def _nice_combinations(C, names):
     return np.array(basis[: C.shape[1]]).T
 
 
+#: A spring this many times stiffer than the softest is named as the stiffest link in the
+#: accuracy warning (below it no link stands out, and naming one would mislead).
+_STIFF_LINK_RATIO = 1e4
+
+
+def _stiffest_link(model) -> str:
+    """``"; the stiffest link is spring "Weld" (s3), 1e+12 N/m"`` when one spring is far
+    stiffer than the softest, else ``""``."""
+    ks = [(max(s.k, s.k_t), s) for s in model.springs]
+    if len(ks) < 2:
+        return ""
+    top, stiff = max(ks, key=lambda t: t[0])
+    low = min(s.k for s in model.springs)
+    if not top >= _STIFF_LINK_RATIO * low:
+        return ""
+    unit = "N m/rad" if model.kind == "torsion" else "N/m"
+    return f"; the stiffest link is {named(stiff)}, {top:.3g} {unit}"
+
+
 def _rigid_cause(model, coef, names, whole, ids, gm, held=False):
     torsion = model.kind == "torsion"
+
+    def listed(some):
+        return ", ".join(quoted_id(model, i) for i in some)
+
     if held:
-        who = "the whole layout" if whole else "masses " + ", ".join(f'"{i}"' for i in ids[:4])
+        who = "the whole layout" if whole else "masses " + listed(ids[:4])
         why = " (its locked directions do not prevent it"
     elif whole:
         who = "the whole shaft" if torsion else "the whole layout"
         why = " (nothing holds it to ground"
     else:
-        who = (f'disc "{ids[0]}"' if torsion else f'mass "{ids[0]}"') if len(ids) == 1 else (
-            ("discs " if torsion else "masses ") + ", ".join(f'"{i}"' for i in ids[:4])
+        who = named_id(model, ids[0], "disc" if torsion else "mass") if len(ids) == 1 else (
+            ("discs " if torsion else "masses ") + listed(ids[:4])
             + (" ..." if len(ids) > 4 else ""))
         why = (" (it is joined to nothing" if len(ids) == 1 and len(gm) == 1
                else " (no spring path to an anchor")
@@ -858,13 +882,14 @@ def _explain_mechanism(system: System, vec, M_diag):
     moving = _moving_masses(system, vec, M_diag)
     motion = {mid: amp for mid, amp in moving}
     # the statement lists the masses that carry visible motion (amplitude >= 1e-3)
-    named = [(mid, amp) for mid, amp in moving if max(abs(a) for a in amp.values()) >= 1e-3]
-    ids = tuple(mid for mid, _ in named)
-    shown = named[:_MECHANISM_NAMED]
-    more = len(named) - len(shown)
+    visible = [(mid, amp) for mid, amp in moving if max(abs(a) for a in amp.values()) >= 1e-3]
+    ids = tuple(mid for mid, _ in visible)
+    shown = visible[:_MECHANISM_NAMED]
+    more = len(visible) - len(shown)
     tail = f" and {more} more" if more else ""
     if model.kind != "planar":
-        parts = ", ".join(f'"{mid}" by {_g3(next(iter(amp.values())))}' for mid, amp in shown)
+        parts = ", ".join(f"{quoted_id(model, mid)} by {_g3(next(iter(amp.values())))}"
+                          for mid, amp in shown)
         return (f"masses {parts}{tail} can move with no stiffness resisting", ids, motion)
 
     def along(amp):
@@ -872,8 +897,8 @@ def _explain_mechanism(system: System, vec, M_diag):
         size = float(np.hypot(ux, uy))
         return size, (ux / size, uy / size) if size else (0.0, 0.0)
 
-    if len(named) == 1:
-        mid, amp = named[0]
+    if len(visible) == 1:
+        mid, amp = visible[0]
         _, (ux, uy) = along(amp)
         attached = [s for s in model.springs if mid in (s.a, s.b)]
         node = model.node(mid)
@@ -895,12 +920,12 @@ def _explain_mechanism(system: System, vec, M_diag):
         else:
             reason = ("the springs and massless junctions around it give way without"
                       " stretching")
-        return (f'mass "{mid}" can move in direction ({_g3(ux)}, {_g3(uy)}) with no stiffness:'
+        return (f"{named(node)} can move in direction ({_g3(ux)}, {_g3(uy)}) with no stiffness:"
                 f" {reason}", ids, motion)
     parts = []
     for mid, amp in shown:
         size, (ux, uy) = along(amp)
-        parts.append(f'"{mid}" by {_g3(size)} in direction ({_g3(ux)}, {_g3(uy)})')
-    who = "masses " + ", ".join(f'"{mid}"' for mid, _ in shown) + tail
+        parts.append(f"{quoted_id(model, mid)} by {_g3(size)} in direction ({_g3(ux)}, {_g3(uy)})")
+    who = "masses " + ", ".join(quoted_id(model, mid) for mid, _ in shown) + tail
     return (f"{who} can move together with no stiffness: " + "; ".join(parts) + tail
             + " (no spring in the linkage they form is stretched)", ids, motion)

@@ -22,6 +22,7 @@ from .damping import rigid_split, state_space
 from .errors import ModelError, checked_arguments, number, numbers
 from .model import Model
 from .modes import ModalResult, modes
+from .naming import quoted_id
 
 #: Up to this many DOFs a modal free response uses every mode (a dense solve of a few seconds).
 FULL_MODAL_DOF_LIMIT = 3000
@@ -89,7 +90,7 @@ def initial_vectors(system: System, x0=None, v0=None):
             if not (isinstance(key, tuple) and len(key) == 2):
                 raise ModelError(f"free response: initial {what} keys are (mass_id, direction),"
                                  f" got {key!r}")
-            value = number(value, f"initial {what} of {key[0]} in {key[1]}")
+            value = number(value, f"initial {what} of {quoted_id(model, key[0])} in {key[1]}")
             if key in lookup:
                 vec[lookup[key]] = value
             elif key[0] not in {m.id for m in model.masses} or key[1] not in model.directions:
@@ -98,8 +99,9 @@ def initial_vectors(system: System, x0=None, v0=None):
                 raise ModelError(f"free response: initial {what}: "
                                  + _no_dof_message(model, *key))
             elif value:
-                warnings.append(f'initial {what} of "{key[0]}" in {key[1]} is ignored: that'
-                                " direction is locked or belongs to a massless junction")
+                warnings.append(f"initial {what} of {quoted_id(model, key[0])} in {key[1]} is"
+                                " ignored: that direction is locked or belongs to a massless"
+                                " junction")
         return vec
 
     return build(x0, "displacement"), build(v0, "velocity"), warnings

@@ -45,6 +45,7 @@ from .errors import ModelError, checked_arguments, number, numbers
 from .metrics import strain_vectors, unheld_junction_directions
 from .model import HUGE, TINY, Mass, Model, Spring
 from .modes import ZERO_RTOL, modes
+from .naming import named, quoted, quoted_id
 
 #: A returned value, re-solved, puts the mode on the target to this relative tolerance (Hz).
 VERIFY_RTOL = 1e-8
@@ -75,17 +76,18 @@ def _field_for(model: Model, element_id: str, field: str | None):
     if isinstance(el, Spring):
         f = field or "k"
         if f not in ("k", "k_t"):
-            raise ModelError(f'spring "{element_id}": field must be "k" or "k_t", got "{f}"')
+            raise ModelError(f'{named(el)}: field must be "k" or "k_t", got "{f}"')
         if f == "k_t" and model.kind != "planar":
-            raise ModelError(f'spring "{element_id}": k_t acts only in planar models')
+            raise ModelError(f"{named(el)}: k_t acts only in planar models")
     elif isinstance(el, Mass):
         f = field or "mass"
         if f == "inertia":
             f = "mass"
         if f != "mass":
-            raise ModelError(f'mass "{element_id}": field must be "mass", got "{f}"')
+            raise ModelError(f'{named(el)}: field must be "mass", got "{f}"')
     else:
-        raise ModelError(f'"{element_id}" is not a spring or a mass; only those can be retuned')
+        raise ModelError(f"{quoted(el.id, el.label)} is not a spring or a mass; only those can be"
+                         " retuned")
     return el, f
 
 
@@ -208,7 +210,8 @@ def limit_spectrum(model: Model, element_id: str, field: str | None, toward: str
     if toward not in ("zero", "infinity"):
         raise ModelError(f'limit: toward must be "zero" or "infinity", got "{toward}"')
     if getattr(el, f) <= 0:
-        raise ModelError(f'limit of "{element_id}": give a model in which its {f} is positive')
+        raise ModelError(f"limit of {quoted(el.id, el.label)}: give a model in which its {f} is"
+                         " positive")
     system = assemble(model, sparse=False)
     n = system.n_dof
     m_full = np.asarray(_dense(system.M_full).diagonal(), float)
@@ -418,6 +421,7 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
         raise ModelError(f"retune: mode numbers start at 1, got {mode!r}")
     mode = int(mode)
     name, unit = _name(model, el, f), unit_of(model, element_id, f)
+    who = quoted(el.id, el.label)
     v0 = float(getattr(el, f))
     start = v0 if v0 > 0 else _reference_value(model, el, f)
     work = model if v0 > 0 else with_value(model, element_id, start, f)
@@ -429,7 +433,7 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
     if base.zero_mode(mode) is not None:
         zm = base.zero_mode(mode)
         raise ModelError(f"retune: mode {mode} is a zero-frequency mode ({zm.cause}) for every"
-                         f' positive {name} of "{element_id}"; no value of it gives the mode a'
+                         f" positive {name} of {who}; no value of it gives the mode a"
                          " frequency: add a spring")
     n_zero = int(base.is_zero.sum())
     f_zero, f_inf, exact = _limits(work, element_id, f, mode, n_zero)
@@ -455,13 +459,13 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
             now_text = f"now no {name}"
     if math.isfinite(hi) and abs(hi - lo) <= DEPEND_RTOL * max(hi, 1e-300):
         raise ModelError(
-            f'retune: mode {mode} does not depend on the {name} of "{element_id}": it stays at'
+            f"retune: mode {mode} does not depend on the {name} of {who}: it stays at"
             f" {now:.7g} Hz for every value from 0 to infinity{approx} (the element does not"
             " deform in this mode whatever its value); change another element")
     if not lo * (1 - 1e-12) <= target <= hi * (1 + 1e-12):
         raise ModelError(
             f"retune: mode {mode} cannot reach {target:.7g} Hz by changing the {name} of"
-            f' "{element_id}" alone: over all values from 0 to infinity it stays'
+            f" {who} alone: over all values from 0 to infinity it stays"
             f" {_range_text(lo, hi, rising, name)}{approx} ({now_text}); change another"
             " element or add one")
 
@@ -495,7 +499,7 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
         edge = "largest" if up else "smallest"
         raise ModelError(
             f"retune: mode {mode} would reach {target:.7g} Hz only beyond the {edge} {name} a"
-            f' model can hold: at {math.exp(a):.6g} {unit} for "{element_id}" it is at'
+            f" model can hold: at {math.exp(a):.6g} {unit} for {who} it is at"
             f" {fa:.7g} Hz (its limit is {_limit_text(lo, hi, up, rising)}{approx}); change"
             " another element or add one")
     count = [0]
@@ -531,11 +535,12 @@ def _verified(model, element_id, f, mode, target, value, start, now, rng, exact,
     """Re-solve the model with ``value``; refuse (with what was reached) unless mode ``mode`` is
     on the target to VERIFY_RTOL and the inertia count agrees that it is mode ``mode``."""
     tuned = with_value(model, element_id, value, f)
+    who = quoted_id(model, element_id)
     reached = float(_solve(tuned, mode).frequencies_hz[mode - 1])
     if not abs(reached - target) <= VERIFY_RTOL * target:
         raise ModelError(
             f"retune: the search for mode {mode} at {target:.7g} Hz ended at the {name} of"
-            f' "{element_id}" = {value:.9g} {unit}, but the model re-solved with that value has'
+            f" {who} = {value:.9g} {unit}, but the model re-solved with that value has"
             f" mode {mode} at {reached:.9g} Hz (off by {abs(reached / target - 1):.2g}, more than"
             f" the {VERIFY_RTOL:g} allowed); the frequencies are not accurate enough at that"
             " value, so no value is given")
@@ -545,7 +550,7 @@ def _verified(model, element_id, f, mode, target, value, start, now, rng, exact,
     checked = below_lo is not None
     if checked and not (below_lo <= mode - 1 and below_hi >= mode):
         raise ModelError(
-            f'retune: with the {name} of "{element_id}" = {value:.9g} {unit} the eigen-solver puts'
+            f"retune: with the {name} of {who} = {value:.9g} {unit} the eigen-solver puts"
             f" mode {mode} at {reached:.9g} Hz, but a count of the eigenvalues of the unreduced"
             f" model (inertia of K - w^2 M) finds {below_lo} below {target * (1 - COUNT_RTOL):.9g}"
             f" Hz and {below_hi} below {target * (1 + COUNT_RTOL):.9g} Hz: the frequencies are not"
@@ -574,10 +579,11 @@ class SweepResult:
 def sweep(model: Model, element_id: str, values, field: str | None = None,
           count: int | None = None) -> SweepResult:
     """Solve the model at each value of one element's stiffness or mass."""
-    _el, f = _field_for(model, element_id, field)
-    values = numbers(values, f'sweep of "{element_id}": values')
+    el, f = _field_for(model, element_id, field)
+    who = quoted(el.id, el.label)
+    values = numbers(values, f"sweep of {who}: values")
     if values.ndim != 1 or not np.all(np.isfinite(values)) or np.any(values <= 0):
-        raise ModelError(f'sweep of "{element_id}": values must be positive finite numbers')
+        raise ModelError(f"sweep of {who}: values must be positive finite numbers")
     rows = []
     for v in values:
         rows.append(modes(with_value(model, element_id, v, f), count=count).frequencies_hz)
