@@ -197,8 +197,9 @@ def test_save_of_a_model_too_large_for_a_file_is_refused_in_the_window(
     save_model refuses a model whose file would be over the load limit (it could not be loaded
     back). Save (Ctrl+S, a real key press) says so in the status bar and the error box, leaves
     the previous file as it was and the model unsaved (dirty)."""
-    import solver.io
     from PySide6.QtCore import Qt
+
+    import solver.io
 
     path = tmp_path / "fixture.json"
     save_model(two_mass_model, path)
