@@ -22,25 +22,23 @@ from solver.errors import ModelError
 from solver.interference import interference
 
 from app.drawing.plot_axes import true_value_axes
+from app.report.interference import spread
 from app.drawing.style import current_style
+from app.results.margin_rows import crossing_sentence
 from app.results.names import names
-from app.text.numbers import FREQ_SIG, hz, number
+from app.text.numbers import hz, number
 
 #: Crossings labelled with their speed on the plot (more would pile up; the list has them all).
 MAX_LABELS = 24
+#: Height of an order line's name: at least this share of the plot's height, and this many pixels
+#: (names of lines ending close together are kept this far apart).
+LABEL_HEIGHT, LABEL_PX = 0.05, 18.0
 
 TOOLTIP = ("Interference diagram (the trade also calls it a Campbell diagram): each order of a"
            " shaft speed is a line f = order × rpm / 60; natural frequencies are horizontal lines"
            " (a lumped model's modes do not change with speed), shaded by the margin. Where an"
            " order line crosses a mode inside the operating range (shaded upright band), the"
            " machine runs at a resonance: the crossing is marked with its speed.")
-
-
-def crossing_sentence(model, c, shown=None) -> str:
-    """``mode 1 (26.05 Hz) × Fan order 2 at 781.5 rpm``."""
-    shown = names(model) if shown is None else shown
-    return (f"mode {c.mode} ({hz(c.frequency_hz)}) × {shown.get(c.source_id, c.source_id)}"
-            f" order {c.order:g} at {number(c.rpm, FREQ_SIG)} rpm")
 
 
 class InterferencePanel(QWidget):
@@ -166,7 +164,8 @@ class InterferencePanel(QWidget):
         x_max, y_max = data.rpm_max, data.hz_max
         colours = {}
         for ln in data.lines:
-            colours.setdefault(ln.source_id, st.trace(len(colours)))
+            # trace colour 0 is the accent the modes are drawn in: sources take the others
+            colours.setdefault(ln.source_id, st.trace(len(colours) + 1))
         # operating ranges first, beneath everything
         done = set()
         for ln in data.lines:
@@ -204,13 +203,23 @@ class InterferencePanel(QWidget):
             label.setPos(0.01 * x_max, f)
             pi.addItem(label)
         # order lines from 0 rpm to the right edge or the top, whichever comes first
+        ends = []
+        height = max(1.0, pi.getViewBox().height())
+        gap = max(LABEL_HEIGHT, LABEL_PX / height) * y_max
+        pale = pg.mkColor(st.background_hex)
+        pale.setAlpha(200)
+        backing = pg.mkBrush(pale)
         for ln in data.lines:
             c = colours[ln.source_id]
             x_end = min(x_max, 60.0 * y_max / ln.order)
             pi.plot([0.0, x_end], [0.0, ln.hz_at(x_end)], pen=pg.mkPen(c, width=1.6))
-            name = f"{shown.get(ln.source_id, ln.source_id)} ×{ln.order:g}"
-            text = pg.TextItem(name, color=c, anchor=(1, 1) if x_end >= x_max else (1, 0))
-            text.setPos(x_end, ln.hz_at(x_end))
+            # label bottoms in Hz: above the end on the right edge, under it at the top edge
+            y = ln.hz_at(x_end) if x_end >= x_max else ln.hz_at(x_end) - gap
+            ends.append((y, x_end, f"{shown.get(ln.source_id, ln.source_id)} ×{ln.order:g}", c))
+        # pushed apart where lines end close together (a label is ~18 px high)
+        for y, x, name, c in spread(ends, gap, 0.0, y_max - gap):
+            text = pg.TextItem(name, color=c, anchor=(1, 1), fill=backing)
+            text.setPos(x - 0.01 * x_max, y)
             pi.addItem(text)
         # crossings: filled and labelled inside the range, hollow outside it
         inside = [c for c in data.crossings if c.in_range]
@@ -226,8 +235,10 @@ class InterferencePanel(QWidget):
                                           brush=pg.mkBrush(st.error),
                                           pen=pg.mkPen(st.background, width=1)))
             for c in inside[:MAX_LABELS]:
-                t = pg.TextItem(f"{number(c.rpm)} rpm", color=st.error,
-                                anchor=(0.5 if c.rpm < 0.85 * x_max else 1.0, 1.15))
+                # right of the middle the speed reads to the left of its dot, clear of the
+                # order names at the right edge
+                t = pg.TextItem(f"{number(c.rpm)} rpm", color=st.error, fill=backing,
+                                anchor=(0.5 if c.rpm < 0.5 * x_max else 1.05, 1.1))
                 t.setPos(c.rpm, c.frequency_hz)
                 pi.addItem(t)
         pi.setXRange(0, x_max, padding=0)
@@ -235,4 +246,4 @@ class InterferencePanel(QWidget):
         pi.setTitle(f"margin {data.margin_percent:g} %", color=st.ink_soft_hex, size="8pt")
 
 
-__all__ = ["InterferencePanel", "TOOLTIP", "crossing_sentence"]
+__all__ = ["InterferencePanel", "TOOLTIP"]

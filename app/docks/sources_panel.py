@@ -16,13 +16,13 @@ or fail against the margin and the nearest frequency that clears every source.
 
 from __future__ import annotations
 
-import dataclasses
 import re
 
 from PySide6.QtCore import QSignalBlocker, Qt, Signal
 from PySide6.QtGui import QBrush
 from PySide6.QtWidgets import (QAbstractItemView, QComboBox, QFormLayout, QHBoxLayout,
-                               QHeaderView, QLabel, QLineEdit, QPushButton, QTableWidget,
+                               QHeaderView, QLabel, QLineEdit, QPushButton, QScrollArea,
+                               QSplitter, QTableWidget,
                                QTableWidgetItem, QTabWidget, QVBoxLayout, QWidget)
 
 from solver.errors import ModelError
@@ -33,7 +33,7 @@ from app.docks.properties import QuantityField
 from app.drawing.style import current_style
 from app.results import margin_rows
 from app.results.names import names
-from app.text.numbers import band_text, number
+from app.results.source_text import orders_text, source_summary
 
 #: Values a new source starts with (typed over at once): a four-pole motor's speed, its first
 #: order; a band an octave and more wide.
@@ -61,19 +61,6 @@ def parse_orders(text: str) -> tuple[float, ...]:
                              f" speed), got {p}")
         out.append(v)
     return tuple(out)
-
-
-def orders_text(orders) -> str:
-    return ", ".join(f"{o:g}" for o in orders)
-
-
-def source_summary(e) -> str:
-    """``1450 rpm, orders 1, 2`` / ``600 to 1800 rpm, orders 1, 2`` / ``10 to 50 Hz``."""
-    if e.type == "band":
-        return band_text(e.f_min_hz, e.f_max_hz)
-    lo, hi = e.speed_range_rpm()
-    speed = f"{number(lo)} rpm" if hi <= lo else f"{number(lo)} to {number(hi)} rpm"
-    return f"{speed}, order{'s' if len(e.orders) > 1 else ''} {orders_text(e.orders)}"
 
 
 class CheckedLine(QWidget):
@@ -175,7 +162,9 @@ class SourcesPanel(QWidget):
         self.tabs.setObjectName("sources_tabs")
         outer.addWidget(self.tabs)
 
-        # -- Sources tab ----------------------------------------------------------------------
+        # -- Sources tab (scrolls when the dock is short) ------------------------------------
+        # the list on the left, the selected source's editor on the right (each scrolls when
+        # the dock is small)
         page = QWidget()
         lay = QVBoxLayout(page)
         lay.setContentsMargins(4, 4, 4, 4)
@@ -196,7 +185,7 @@ class SourcesPanel(QWidget):
         self.table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
         self.table.horizontalHeader().setSectionResizeMode(2, QHeaderView.ResizeMode.Stretch)
         self.table.setToolTip("Excitation sources. Insert adds a shaft speed, Delete removes the"
-                              " selected source; edit the selected one below.")
+                              " selected source; edit the selected one beside the list.")
         self.table.itemSelectionChanged.connect(self._on_table_selection)
         self.table.installEventFilter(self)
         self.table.setMinimumHeight(70)
@@ -218,14 +207,32 @@ class SourcesPanel(QWidget):
             row.addWidget(b)
         row.addStretch(1)
         lay.addLayout(row)
+        editor = QWidget()
+        el = QVBoxLayout(editor)
+        el.setContentsMargins(4, 4, 4, 4)
         self.editor_title = QLabel()
         self.editor_title.setObjectName("source_editor_title")
         self.editor_title.setStyleSheet("font-weight: bold;")
-        lay.addWidget(self.editor_title)
+        self.editor_title.setWordWrap(True)
+        el.addWidget(self.editor_title)
         self.form = QFormLayout()
         self.form.setFieldGrowthPolicy(QFormLayout.FieldGrowthPolicy.AllNonFixedFieldsGrow)
-        lay.addLayout(self.form)
-        self.tabs.addTab(page, "Sources")
+        el.addLayout(self.form)
+        el.addStretch(1)
+        split = QSplitter(Qt.Orientation.Horizontal)
+        split.setChildrenCollapsible(False)
+        for w, least in ((page, 240), (editor, 270)):
+            scroll = QScrollArea()
+            scroll.setWidget(w)
+            scroll.setWidgetResizable(True)
+            scroll.setFrameShape(QScrollArea.Shape.NoFrame)
+            scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+            scroll.setMinimumWidth(least)
+            split.addWidget(scroll)
+        split.setStretchFactor(0, 1)
+        split.setStretchFactor(1, 1)
+        split.setSizes([300, 300])
+        self.tabs.addTab(split, "Sources")
 
         # -- Margin table tab -----------------------------------------------------------------
         mpage = QWidget()
@@ -285,11 +292,12 @@ class SourcesPanel(QWidget):
         if self.current_id is None:
             self.status_message.emit("Select a source to delete")
             return False
+        gone = self.current_id
         ids = [e.id for e in self.document.model.excitations]
-        at = ids.index(self.current_id)
-        label = self.document.model.element(self.current_id).label
-        done = self.document.remove([self.current_id])
-        rest = [i for i in ids if i != self.current_id]
+        at = ids.index(gone)
+        label = self.document.model.element(gone).label
+        done = self.document.remove([gone])
+        rest = [i for i in ids if i != gone]     # the next source is ready to edit
         self.select(rest[min(at, len(rest) - 1)] if rest else None)
         if done:
             self.status_message.emit(f"Deleted source {label}")
@@ -324,7 +332,8 @@ class SourcesPanel(QWidget):
             self._fill_margin_table()
 
     def _on_opened(self, model):
-        self.current_id = None
+        # another model: its first source is ready to edit
+        self.current_id = model.excitations[0].id if model.excitations else None
         self._analysis = None
         self._signature = None
         self._fill_margin_table()
@@ -382,6 +391,8 @@ class SourcesPanel(QWidget):
             self._rebuild_editor(e)
         if e is None:
             return
+        self.editor_title.setText(("Shaft speed: " if e.type == "speed" else "Band: ")
+                                  + names(model).get(e.id, e.id))
         for name, w in self._fields.items():
             if name == "label":
                 if not w.hasFocus():
@@ -410,7 +421,6 @@ class SourcesPanel(QWidget):
             self.editor_title.setText("Select a source to edit it" if n else
                                       "No sources yet: add a shaft speed or a band")
             return
-        self.editor_title.setText(("Shaft speed " if e.type == "speed" else "Band ") + e.id)
         label = QLineEdit()
         label.setObjectName("source_label")
         label.setToolTip("Name shown in tables, plots and the report (empty: the id)")
@@ -421,9 +431,10 @@ class SourcesPanel(QWidget):
             kind = QComboBox()
             kind.setObjectName("source_speed_kind")
             kind.addItem("one speed", False)
-            kind.addItem("speed range (variable speed, run-up)", True)
-            kind.setToolTip("A machine at one running speed, or over an operating range: each"
-                            " order then covers a band of frequencies")
+            kind.addItem("a speed range", True)
+            kind.setToolTip("A machine at one running speed, or over an operating range"
+                            " (variable-speed drive, run-up and run-down): each order then covers"
+                            " a band of frequencies")
             kind.currentIndexChanged.connect(self._on_speed_kind)
             self.form.addRow("Runs at", kind)
             self._fields["speed_kind"] = kind
@@ -548,4 +559,4 @@ class SourcesPanel(QWidget):
             self.status_message.emit(f"{e.label} now runs at {what}")
 
 
-__all__ = ["CheckedLine", "SourcesPanel", "orders_text", "parse_orders", "source_summary"]
+__all__ = ["CheckedLine", "SourcesPanel", "parse_orders"]

@@ -13,7 +13,7 @@ from __future__ import annotations
 import math
 
 from PySide6.QtCore import QPointF, QRectF, Qt
-from PySide6.QtGui import QColor, QPen
+from PySide6.QtGui import QColor, QFontMetricsF, QPen
 
 from solver.interference import interference
 
@@ -36,6 +36,33 @@ def nice_ticks(top: float, target: int = 6) -> tuple[list[float], float]:
     return [i * step for i in range(n + 1)], step
 
 
+def _backed(pg, rect: QRectF, text: str, bold: bool, colour, align) -> None:
+    """7 pt text on a pale backing, so a line running under a label does not cross its letters."""
+    fm = QFontMetricsF(pg.font(7, bold))
+    w = fm.horizontalAdvance(text) + 0.03 * pg.dpi
+    if align == Qt.AlignmentFlag.AlignRight:
+        x = rect.right() - w
+    elif align == Qt.AlignmentFlag.AlignHCenter:
+        x = rect.center().x() - w / 2
+    else:
+        x = rect.left()
+    pg.p.fillRect(QRectF(x - 0.015 * pg.dpi, rect.top(), w, fm.height()), QColor(255, 255, 255, 200))
+    pg.text(rect, text, 7, bold, colour, align)
+
+
+def spread(items, gap: float, lo: float, hi: float) -> list:
+    """``items`` (tuples whose first entry is a position) moved apart so neighbours are at least
+    ``gap`` apart, kept in [lo, hi] where there is room; returned sorted by position."""
+    items = sorted(items, key=lambda t: t[0])
+    pos = [min(max(t[0], lo), hi) for t in items]
+    for i in range(1, len(pos)):
+        pos[i] = max(pos[i], pos[i - 1] + gap)
+    over = pos[-1] - hi if pos else 0.0
+    if over > 0:   # pushed past the end: slide the whole run back, never above lo
+        pos = [max(lo + i * gap, p - over) for i, p in enumerate(pos)]
+    return [(p,) + tuple(t[1:]) for p, t in zip(pos, items)]
+
+
 def paint_interference(pg, model, analysis) -> bool:
     """Draw the section at ``pg.y``; False (nothing drawn) when the model has no speed source."""
     data = interference(model, analysis.modal)
@@ -54,7 +81,8 @@ def paint_interference(pg, model, analysis) -> bool:
 
     colours = {}
     for ln in data.lines:
-        colours.setdefault(ln.source_id, QColor(st.trace(len(colours))))
+        # trace colour 0 is the accent the modes are drawn in: sources take the others
+        colours.setdefault(ln.source_id, QColor(st.trace(len(colours) + 1)))
     p.setPen(QPen(st.grid, 1))
     p.setBrush(QColor("#ffffff"))
     p.drawRect(box)
@@ -128,18 +156,22 @@ def paint_interference(pg, model, analysis) -> bool:
         q = at(0, f)
         pg.text(QRectF(q.x() + 0.05 * d, q.y() - 0.17 * d, 1.6 * d, 0.16 * d),
                 f"mode {n} · {hz(f, 4)}", 7, False, st.accent)
+    # order names at the lines' ends, pushed apart where lines end close together
+    ends = []
     for ln in data.lines:
         x_end = min(x_max, 60.0 * y_max / ln.order)
         q = at(x_end, ln.hz_at(x_end))
-        name = f"{shown.get(ln.source_id, ln.source_id)} ×{ln.order:g}"
         top = q.y() + 0.03 * d if x_end < x_max else q.y() - 0.19 * d
-        pg.text(QRectF(q.x() - 1.8 * d - 0.04 * d, top, 1.8 * d, 0.17 * d), name, 7, False,
-                colours[ln.source_id], Qt.AlignmentFlag.AlignRight)
+        ends.append((top, q.x(), f"{shown.get(ln.source_id, ln.source_id)} ×{ln.order:g}",
+                     colours[ln.source_id]))
+    for top, x, name, colour in spread(ends, 0.17 * d, box.top(), box.bottom() - 0.17 * d):
+        _backed(pg, QRectF(x - 1.8 * d - 0.04 * d, top, 1.8 * d, 0.17 * d), name, False, colour,
+                Qt.AlignmentFlag.AlignRight)
     for c in [c for c in data.crossings if c.in_range][:MAX_LABELS]:
         q = at(c.rpm, c.frequency_hz)
         w = 0.9 * d
         left = min(max(q.x() - w / 2, box.left()), box.right() - w)
-        pg.text(QRectF(left, q.y() - 0.2 * d, w, 0.16 * d), f"{number(c.rpm)} rpm", 7, True,
+        _backed(pg, QRectF(left, q.y() - 0.2 * d, w, 0.16 * d), f"{number(c.rpm)} rpm", True,
                 st.error, Qt.AlignmentFlag.AlignHCenter)
 
     pg.y = box.bottom() + 0.42 * d
@@ -165,4 +197,4 @@ def paint_interference(pg, model, analysis) -> bool:
     return True
 
 
-__all__ = ["nice_ticks", "paint_interference"]
+__all__ = ["nice_ticks", "paint_interference", "spread"]

@@ -60,7 +60,7 @@ def clear_text(row) -> str:
     other = row.clear_above_hz if row.clear_hz == row.clear_below_hz else row.clear_below_hz
     text = hz(row.clear_hz)
     if other is not None and other != row.clear_hz:
-        text += f" (or {number(other, FREQ_SIG)})"
+        text += f" (or {hz(other)})"
     return text
 
 
@@ -117,5 +117,67 @@ def json_rows(model, table) -> list[dict]:
              "clear_above_hz": r.clear_above_hz} for r in table.rows]
 
 
-__all__ = ["HEADERS", "MarginCells", "TOOLTIPS", "cells", "clear_text", "json_rows",
-           "order_text", "separation_text", "summary", "text_table"]
+def crossing_sentence(model, c, shown=None) -> str:
+    """``mode 2 (57.43 Hz) × Drive speed order 2 at 1722.82 rpm`` (an interference crossing)."""
+    shown = names(model) if shown is None else shown
+    return (f"mode {c.mode} ({hz(c.frequency_hz)}) × {shown.get(c.source_id, c.source_id)}"
+            f" order {c.order:g} at {number(c.rpm, FREQ_SIG)} rpm")
+
+
+def solve_json_keys(model, modal) -> dict:
+    """The keys ``springwright solve --json`` adds for the margin table and the interference
+    diagram: ``margins`` (``margin_percent``, ``ok``, ``keep_out_hz`` as [lo, hi] pairs, ``rows``
+    as :func:`json_rows`) and ``interference`` (``rpm_max``, ``hz_max``, ``crossings`` with
+    ``mode``, ``frequency_hz``, ``source``, ``label``, ``order``, ``rpm``, ``in_range``,
+    ``margin_rpm_low``, ``margin_rpm_high``, ``text``)."""
+    from solver.interference import interference
+    from solver.margin_table import margin_table
+
+    table = margin_table(model, modal)
+    data = interference(model, modal)
+    shown = names(model)
+    return {
+        "margins": {"margin_percent": table.margin_percent, "ok": table.ok,
+                    "keep_out_hz": [[lo, hi] for lo, hi in table.keep_out],
+                    "rows": json_rows(model, table)},
+        "interference": {
+            "rpm_max": data.rpm_max, "hz_max": data.hz_max,
+            "crossings": [{"mode": c.mode, "frequency_hz": c.frequency_hz,
+                           "source": c.source_id, "label": shown.get(c.source_id, c.source_id),
+                           "order": c.order, "rpm": c.rpm, "in_range": c.in_range,
+                           "margin_rpm_low": c.margin_rpm_low,
+                           "margin_rpm_high": c.margin_rpm_high,
+                           "text": crossing_sentence(model, c, shown)} for c in data.crossings]},
+    }
+
+
+def solve_text_lines(model, modal) -> list[str]:
+    """The margin table and the crossings inside the operating ranges for the text output of
+    ``springwright solve`` (no lines for a model without sources)."""
+    if not model.excitations:
+        return []
+    from solver.interference import interference
+    from solver.margin_table import margin_table
+
+    table = margin_table(model, modal)
+    out = ["", f"Margin table (margin {table.margin_percent:g} %; separation from the nearest"
+               " edge of each source's own frequencies):"]
+    out += text_table(model, table) if table.rows else []
+    out.append(summary(model, table))
+    data = interference(model, modal)
+    if data.lines:
+        inside = data.in_range
+        out.append("")
+        out.append("Interference (order lines against natural frequencies):")
+        if inside:
+            shown = names(model)
+            out += [f"  {crossing_sentence(model, c, shown)}, inside the operating range"
+                    for c in inside]
+        else:
+            out.append("  no order line crosses a natural frequency inside the operating range")
+    return out
+
+
+__all__ = ["HEADERS", "MarginCells", "TOOLTIPS", "cells", "clear_text", "crossing_sentence",
+           "json_rows", "order_text", "separation_text", "solve_json_keys", "solve_text_lines",
+           "summary", "text_table"]
