@@ -8,10 +8,10 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from PySide6.QtCore import QSettings, Qt, QTimer, QUrl
+from PySide6.QtCore import QSettings, QSignalBlocker, Qt, QTimer, QUrl
 from PySide6.QtGui import QAction, QActionGroup, QKeySequence
 from PySide6.QtWidgets import (QDockWidget, QFileDialog, QFrame, QHBoxLayout, QLabel, QMainWindow,
-                               QMessageBox, QPushButton, QVBoxLayout, QWidget)
+                               QMessageBox, QPushButton, QTextBrowser, QVBoxLayout, QWidget)
 
 from solver.errors import ModelError
 
@@ -95,6 +95,16 @@ tab lists (p/f) df/dp of every mode to every element.</p>
 """
 
 
+class _GuideWindow(QTextBrowser):
+    """The quick guide: a window of its own (not modal) that Esc closes, as help windows do."""
+
+    def keyPressEvent(self, event):  # noqa: N802
+        if event.key() == Qt.Key.Key_Escape and event.modifiers() == Qt.KeyboardModifier.NoModifier:
+            self.close()
+            return
+        super().keyPressEvent(event)
+
+
 class MainWindow(QMainWindow):
     def __init__(self, settings: QSettings | None = None, recovery_folder=None):
         super().__init__()
@@ -122,7 +132,8 @@ class MainWindow(QMainWindow):
         self.properties.unit_system_changed.connect(
             lambda s: self.settings.setValue("units/system", s))
         self.properties.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
-        self._dock("Properties", self.properties, Qt.RightDockWidgetArea, "dock_properties")
+        props_dock = self._dock("Properties", self.properties, Qt.RightDockWidgetArea,
+                                "dock_properties")
 
         results = QWidget()
         rl = QVBoxLayout(results)
@@ -137,7 +148,11 @@ class MainWindow(QMainWindow):
         rl.addWidget(self.modes_table, 1)
         self._dock("Modes", results, Qt.BottomDockWidgetArea, "dock_modes")
         self.motion_panel = MotionPanel()
-        self._dock("Motion", self.motion_panel, Qt.RightDockWidgetArea, "dock_motion")
+        motion_dock = self._dock("Motion", self.motion_panel, Qt.RightDockWidgetArea,
+                                 "dock_motion")
+        # beside Properties, not under it: both need their height (all the model's fields; a
+        # drawing over its time traces)
+        self.splitDockWidget(props_dock, motion_dock, Qt.Horizontal)
         from app.docks.response_panel import ResponsePanel
 
         self.response_panel = ResponsePanel(self.document)
@@ -169,6 +184,7 @@ class MainWindow(QMainWindow):
         self.document.path_changed.connect(self._update_title)
         self.document.model_changed.connect(lambda _m: self._update_title())
         self.document.opened.connect(lambda _m: self.view.fit())
+        self.document.opened.connect(self._on_opened)
         self.solver.results_ready.connect(self._on_results)
         self.solver.results_ready.connect(self.response_panel.set_analysis)
         self.solver.live_changed.connect(self.response_panel.set_live)
@@ -181,6 +197,10 @@ class MainWindow(QMainWindow):
         if hasattr(self.modes_table, "mode_selected"):
             self.modes_table.mode_selected.connect(self._on_mode_selected)
         self.motion_panel.initial_conditions_requested.connect(self._on_initial_request)
+        from app.canvas.motion_overlay import CanvasMotion
+
+        self.canvas_motion = CanvasMotion(self.scene, self.view)
+        self.motion_panel.canvas_frame.connect(self.canvas_motion.show_frame)
 
         self._make_actions()
         self._add_tune_panels()
@@ -202,17 +222,18 @@ class MainWindow(QMainWindow):
 
     # -- layout helpers -----------------------------------------------------------------------
     def _first_layout(self):
-        """Dock sizes on a first start: the modes table wide enough for its effective-mass
-        columns, the canvas and the bottom row sharing the height."""
+        """Dock sizes on a first start. Top row: the canvas, Properties (every model field
+        without scrolling), Motion. Bottom row: the modes table wide enough for all its columns,
+        then the Tune / Sensitivity / Response tabs."""
         docks = {d.objectName(): d for d in self.findChildren(QDockWidget)}
-        row = [docks[n] for n in ("dock_modes", "dock_tune", "dock_response") if n in docks]
+        row = [docks[n] for n in ("dock_modes", "dock_tune") if n in docks]
         w, h = self.width(), self.height()
-        if len(row) == 3:
-            self.resizeDocks(row, [int(w * 0.27), int(w * 0.33), int(w * 0.40)], Qt.Horizontal)
-            self.resizeDocks(row[:1], [int(h * 0.45)], Qt.Vertical)
+        if len(row) == 2:
+            self.resizeDocks(row, [int(w * 0.44), int(w * 0.56)], Qt.Horizontal)
+            self.resizeDocks(row[:1], [int(h * 0.56)], Qt.Vertical)
         side = [docks[n] for n in ("dock_properties", "dock_motion") if n in docks]
         if len(side) == 2:
-            self.resizeDocks(side, [int(h * 0.22), int(h * 0.36)], Qt.Vertical)
+            self.resizeDocks(side, [int(w * 0.235), int(w * 0.30)], Qt.Horizontal)
         QTimer.singleShot(0, self.view.fit)   # the canvas has its final size now
 
     def _dock(self, title, widget, area, name):
@@ -270,6 +291,8 @@ class MainWindow(QMainWindow):
                                      "Open a model file", f)
         self.recent_menu = f.addMenu("Open &recent")
         self._update_recent_menu()
+        self.act_revert = self._action("Re&vert to saved", self.revert, None,
+                                       "Drop the edits since the last save and reload the file", f)
         f.addSeparator()
         self.act_save = self._action("&Save", self.save, QKeySequence.Save, "Save the model", f)
         self.act_save_as = self._action("Save &as…", self.save_as, QKeySequence.SaveAs,
@@ -332,6 +355,12 @@ class MainWindow(QMainWindow):
                      "Select and animate the next mode", mo)
         self._action("P&revious mode", lambda: self._step_mode(-1), "[",
                      "Select and animate the previous mode", mo)
+        mo.addSeparator()
+        self.act_canvas_motion = self._action(
+            "Animate on &canvas", self.motion_panel.set_on_canvas, "C",
+            "Play the mode (or the free response) on the main canvas too; only the drawing"
+            " moves", mo, checkable=True)
+        self.motion_panel.canvas_toggled.connect(self._on_canvas_motion_toggled)
 
         t = mb.addMenu("&Tools")
         tb = self.addToolBar("Tools")
@@ -374,6 +403,10 @@ class MainWindow(QMainWindow):
         if hasattr(mp, "is_playing"):
             mp.pause() if mp.is_playing() else mp.play()
 
+    def _on_canvas_motion_toggled(self, on: bool):
+        with QSignalBlocker(self.act_canvas_motion):
+            self.act_canvas_motion.setChecked(on)
+
     def _step_mode(self, delta: int):
         n_modes = getattr(getattr(self.analysis, "modal", None), "n_modes", 0) \
             if getattr(self, "analysis", None) is not None else 0
@@ -404,6 +437,9 @@ class MainWindow(QMainWindow):
         sens_dock = self._dock("Sensitivity", self.sensitivity_table, Qt.BottomDockWidgetArea,
                                "dock_sensitivity")
         self.tabifyDockWidget(tune_dock, sens_dock)
+        # the Response plots share the Tune tab stack: beside the modes table they get the width
+        # their controls and curves need, which three panels in one row could not give
+        self.tabifyDockWidget(sens_dock, self.response_dock)
         tune_dock.raise_()
         self.energy_tint = EnergyTint(self.scene, self.view)
         view_menu = next(a.menu() for a in self.menuBar().actions() if a.text() == "&View")
@@ -423,10 +459,8 @@ class MainWindow(QMainWindow):
 
     def show_guide(self):
         """A non-modal window with the tools, their keys, the main loop and the cautions."""
-        from PySide6.QtWidgets import QTextBrowser
-
         if getattr(self, "_guide", None) is None:
-            self._guide = QTextBrowser()
+            self._guide = _GuideWindow()
             self._guide.setObjectName("quick_guide")
             self._guide.setWindowTitle("Springwright quick guide")
             self._guide.setHtml(GUIDE_HTML)
@@ -472,6 +506,20 @@ class MainWindow(QMainWindow):
             item.snap = on
 
     # -- results ------------------------------------------------------------------------------
+    def _on_opened(self, model):
+        """Another model (New, Open, Revert, Restore): until its own results arrive, no view
+        shows results, names or verdicts of the previous one."""
+        self.analysis = None
+        self.response_panel.reset(model)
+        self._selected_mode = 1
+        self._show_warnings([])
+        self.modes_table.set_analysis(None)
+        self.motion_panel.set_analysis(None)
+        if hasattr(self, "tune_panel"):
+            self.sensitivity_table.set_analysis(None)
+            self.tune_panel.set_analysis(None)
+            self.energy_tint.show(None, 1)
+
     def _on_results(self, analysis):
         self.analysis = analysis
         warnings = list(getattr(analysis, "warnings", ()) or ())
@@ -482,10 +530,12 @@ class MainWindow(QMainWindow):
             self.motion_panel.set_analysis(analysis)
         n_modes = getattr(getattr(analysis, "modal", None), "n_modes", 0)
         if n_modes:
+            # new results keep the motion view as it is (free response playing, say): the
+            # table's selection follows, the motion panel only learns the mode number
             mode = min(self._selected_mode, n_modes)
-            self._select_mode(mode)
+            self._select_mode(mode, show=False)
 
-    def _select_mode(self, mode: int):
+    def _select_mode(self, mode: int, show: bool = True):
         self._selected_mode = mode
         for name in ("select_mode", "set_selected_mode", "select"):
             fn = getattr(self.modes_table, name, None)
@@ -495,8 +545,10 @@ class MainWindow(QMainWindow):
                 except Exception:  # a mismatch of the table's API must not break the window
                     continue
                 break
-        if hasattr(self.motion_panel, "show_mode"):
+        if show:
             self.motion_panel.show_mode(mode)
+        else:
+            self.motion_panel.set_mode(mode)
 
     def _on_mode_selected(self, mode: int):
         self._selected_mode = mode
@@ -573,6 +625,31 @@ class MainWindow(QMainWindow):
         if path:
             self.open_path(path, ask=False)
 
+    def _confirm_revert(self) -> bool:
+        """True to drop the unsaved edits (tests replace this to answer without a dialog)."""
+        answer = QMessageBox.question(
+            self, "Revert to saved",
+            f"Drop the unsaved changes of “{self.document.display_name}” and reload the file?",
+            QMessageBox.Discard | QMessageBox.Cancel, QMessageBox.Cancel)
+        return answer == QMessageBox.Discard
+
+    def revert(self) -> bool:
+        """Reload the model's file, dropping the edits since it was saved (after asking)."""
+        path = self.document.path
+        if path is None:
+            self.statusBar().showMessage("Not saved yet: there is no file to revert to", 6000)
+            return False
+        if self.document.dirty and not self._confirm_revert():
+            return False
+        try:
+            self.document.open(path)
+        except ModelError as exc:
+            self.statusBar().showMessage(f"Not reverted: {exc}", 12000)
+            self._notify_error("Cannot revert", str(exc))
+            return False
+        self.statusBar().showMessage(f"Reverted to {path}", 6000)
+        return True
+
     def open_path(self, path, ask: bool = True) -> bool:
         if ask and not self.maybe_save():
             return False
@@ -594,8 +671,7 @@ class MainWindow(QMainWindow):
         return self.save_to(self.document.path)
 
     def save_as(self) -> bool:
-        start = str(self.document.path) if self.document.path else \
-            f"{self.document.display_name}.json"
+        start = str(self.document.path or self.document.suggested_path(".json"))
         path, _ = QFileDialog.getSaveFileName(self, "Save model as", start, FILE_FILTER)
         if not path:
             return False
@@ -642,7 +718,7 @@ class MainWindow(QMainWindow):
         if self.analysis is None:
             self.statusBar().showMessage("No results to report yet", 6000)
             return
-        start = f"{self.document.display_name}-report.png"
+        start = str(self.document.suggested_path("-report.png"))
         path, _ = QFileDialog.getSaveFileName(self, "Export report", start, "PNG image (*.png)")
         if path:
             self.export_report(path)
@@ -652,8 +728,13 @@ class MainWindow(QMainWindow):
         try:
             from app.report import render_report
 
-            render_report(self.document.model, self.solver.last_analysis, path,
-                          response=self.response_panel.response)
+            model = self.document.model
+            # An undamped model's response is bounded only by the frequency grid: the report
+            # leaves it out, from here as from `springwright report`, so both give one page.
+            # A damped model's report shows the response chosen in the panel.
+            damped = bool(model.dampers) or model.damping.model != "none"
+            render_report(model, self.solver.last_analysis, path,
+                          response=self.response_panel.response if damped else None)
         except (ImportError, OSError, ModelError) as exc:
             self.statusBar().showMessage(f"Report not written: {exc}", 12000)
             return False
@@ -663,7 +744,7 @@ class MainWindow(QMainWindow):
     def export_csv_dialog(self):
         if not hasattr(self.modes_table, "to_csv"):
             return
-        start = f"{self.document.display_name}-modes.csv"
+        start = str(self.document.suggested_path("-modes.csv"))
         path, _ = QFileDialog.getSaveFileName(self, "Export modes table", start, "CSV (*.csv)")
         if path:
             try:

@@ -9,7 +9,7 @@ Pure numpy/scipy; no Qt. The public API (stable, used by scripts and the command
 - :func:`energy_fractions`, :func:`sensitivities`, :func:`analyse`
 - :func:`free_response`
 - :func:`harmonic_response`, :func:`base_transmissibility`, :func:`find_peaks`
-- :func:`retune`, :func:`sweep`, :func:`rank_elements`, :func:`margin_check`
+- :func:`retune` (:func:`retune_result` with the details), :func:`sweep`, :func:`rank_elements`, :func:`margin_check`
 - :class:`ModelError`, :class:`ModelFileError`
 """
 
@@ -26,7 +26,8 @@ from .frequency import (Peak, base_transmissibility, find_peaks, harmonic_respon
                         isolation_efficiency, rms_over_band)
 from .damping import DampedModes, damped_modes, rayleigh_coefficients
 from .margins import Conflict, MarginResult, margin_check, source_bands
-from .tuning import SweepResult, rank_elements, retune, sweep, with_value
+from .tuning import (RetuneResult, SweepResult, limit_spectrum, rank_elements, reachable_range,
+                     retune, retune_result, sweep, with_value)
 
 __all__ = [
     "Analysis", "analyse", "System", "assemble", "ModelError", "ModelFileError", "dumps_model",
@@ -36,5 +37,5 @@ __all__ = [
     "ZeroMode", "modes", "FreeResponse", "free_response", "Peak", "base_transmissibility",
     "find_peaks", "harmonic_response", "isolation_efficiency", "rms_over_band", "Conflict",
     "MarginResult", "margin_check", "source_bands", "SweepResult", "rank_elements", "retune",
-    "sweep", "with_value", "DampedModes", "damped_modes", "rayleigh_coefficients",
+    "sweep", "with_value", "RetuneResult", "retune_result", "limit_spectrum", "reachable_range", "DampedModes", "damped_modes", "rayleigh_coefficients",
 ]

@@ -8,6 +8,12 @@ source). A mode conflicts when its frequency lies strictly inside a widened inte
 on an edge has exactly the margin asked for and passes; "exactly" allows for round-off in the
 computed frequency (:data:`EDGE_RTOL`), so a mode retuned onto an edge is not flagged by a few ulp.
 Zero-frequency modes are not checked.
+
+Advice: widened intervals of different sources (or orders) can overlap, e.g. 600 rpm with orders 1
+and 2 at 40 %: [6, 14] and [12, 28] Hz. Moving a 13 Hz mode to 14 Hz clears order 1 but lands in
+order 2. So a conflict's "move to" frequencies are the edges of the *union* of all widened
+intervals around the mode (here 6 and 28 Hz): the nearest frequencies below and above it that clear
+every source. Intervals that only touch (one ends where the next begins) leave that point clear.
 """
 
 from __future__ import annotations
@@ -26,8 +32,11 @@ EDGE_RTOL = 1e-9
 class Conflict:
     """One mode inside one widened source interval.
 
-    ``lower_to_hz`` / ``raise_to_hz``: the frequencies that clear the interval below and above;
-    ``move_hz``: the smaller signed change that clears it (negative = lower the mode).
+    ``low_hz`` / ``high_hz``: the source interval itself (before widening).
+    ``lower_to_hz`` / ``raise_to_hz``: the nearest frequencies below and above the mode that clear
+    every source (the edges of the union of overlapping widened intervals around it);
+    ``lower_to_hz`` is 0 when no positive frequency below clears them (a band from 0 Hz).
+    ``move_hz``: the smaller signed change that clears every source (negative = lower the mode).
     """
 
     mode: int
@@ -44,9 +53,14 @@ class Conflict:
 
 @dataclass(frozen=True)
 class MarginResult:
+    """``bands``: (source_id, order or None, lo, hi, lo_widened, hi_widened) per source interval;
+    ``keep_out``: the union of the widened intervals as disjoint (lo, hi) in Hz, ascending: a mode
+    strictly inside one is within the margin of some source."""
+
     margin_percent: float
     conflicts: tuple
     bands: tuple  # (source_id, order or None, lo, hi, lo_widened, hi_widened)
+    keep_out: tuple = ()
 
     def for_mode(self, mode: int) -> tuple:
         return tuple(c for c in self.conflicts if c.mode == mode)
@@ -71,11 +85,26 @@ def source_bands(model: Model, margin_percent: float | None = None) -> tuple:
     return tuple(bands)
 
 
+def keep_out_intervals(bands) -> tuple:
+    """Union of the widened intervals ``(lo_w, hi_w)`` of ``bands`` (see :func:`source_bands`) as
+    disjoint (lo, hi) in Hz, ascending. Intervals are open: two that only touch (within
+    :data:`EDGE_RTOL`) stay apart, since their common edge has the margin from both."""
+    spans = sorted((b[4], b[5]) for b in bands if b[5] > b[4])
+    merged: list[list[float]] = []
+    for lo, hi in spans:
+        if merged and lo * (1 + EDGE_RTOL) < merged[-1][1] * (1 - EDGE_RTOL):
+            merged[-1][1] = max(merged[-1][1], hi)
+        else:
+            merged.append([lo, hi])
+    return tuple((lo, hi) for lo, hi in merged)
+
+
 def margin_check(model: Model, modal, margin_percent: float | None = None) -> MarginResult:
     """Check every elastic mode of ``modal`` (a ModalResult) against the model's sources."""
     pct = model.margin_percent if margin_percent is None else number(margin_percent,
                                                                      "margin_percent")
     bands = source_bands(model, pct)
+    keep_out = keep_out_intervals(bands)
     zero = modal.is_zero
     conflicts = []
     for i, f in enumerate(modal.frequencies_hz):
@@ -83,14 +112,24 @@ def margin_check(model: Model, modal, margin_percent: float | None = None) -> Ma
             continue
         for sid, order, lo, hi, lo_w, hi_w in bands:
             if lo_w * (1 + EDGE_RTOL) < f < hi_w * (1 - EDGE_RTOL):
-                down, up = lo_w - f, hi_w - f
-                move = down if abs(down) <= abs(up) else up
+                below, above = next(((a, b) for a, b in keep_out if a <= f <= b), (lo_w, hi_w))
+                down, up = below - f, above - f
+                move = down if (below > 0 and abs(down) <= abs(up)) else up
                 what = (f'{sid} order {order:g} ({lo:.4g} Hz)' if order is not None
                         else f'{sid} ({lo:.4g} to {hi:.4g} Hz)')
-                msg = (f"mode {i + 1} at {f:.4g} Hz is within {pct:g} % of {what}: move it below"
-                       f" {lo_w:.4g} Hz or above {hi_w:.4g} Hz")
+                if below > 0:
+                    way = f"move it below {below:.4g} Hz or above {above:.4g} Hz"
+                else:
+                    way = f"move it above {above:.4g} Hz (no frequency below clears the sources)"
+                if (below, above) != (lo_w, hi_w):
+                    way += " (the nearest frequencies clear of every source)"
+                msg = f"mode {i + 1} at {f:.4g} Hz is within {pct:g} % of {what}: {way}"
                 conflicts.append(Conflict(mode=i + 1, frequency_hz=float(f), source_id=sid,
-                                          order=order, low_hz=lo, high_hz=hi, lower_to_hz=lo_w,
-                                          raise_to_hz=hi_w, move_hz=float(move), message=msg))
-    # one conflict per mode and source (a speed with several orders may flag a mode once each)
-    return MarginResult(margin_percent=pct, conflicts=tuple(conflicts), bands=bands)
+                                          order=order, low_hz=lo, high_hz=hi,
+                                          lower_to_hz=float(max(below, 0.0)),
+                                          raise_to_hz=float(above), move_hz=float(move),
+                                          message=msg))
+    # one conflict per mode and source interval (a speed with several orders may flag a mode
+    # once each; they then share the same advice)
+    return MarginResult(margin_percent=pct, conflicts=tuple(conflicts), bands=bands,
+                        keep_out=keep_out)

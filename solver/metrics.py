@@ -8,8 +8,22 @@ eigenvalue with a stiffness or mass (Fox and Kapoor, AIAA J. 6(12), 1968) is
     d lambda / d k_e   = (e . (phi_b - phi_a))^2,
     d lambda / d m_j   = -lambda |phi_j|^2,
 
-valid for distinct eigenvalues. Shapes of massless junctions come from the recovered motion, which
-makes the junctions' rows exact too (the condensed K is the full K's energy at that motion).
+valid for distinct eigenvalues.
+
+Massless junctions: the eigenproblem is the condensed one, ``K_c = K_mm - K_ms K_ss^+ K_sm``, whose
+energy at a mass motion x_m is the least full energy over the junction motion x_s. By the envelope
+theorem d(x_m^T K_c x_m)/dk_e is the spring's squared strain at that least-energy junction motion,
+which is the recovered motion (``ModalResult.all_shapes``): so the formulas above hold with the
+junctions' recovered motion. Where a junction direction is held by no spring (K_ss singular), the
+least-energy motion is not unique: the derivative is the least squared strain over all of them
+(Danskin's theorem; the value can only rise), which is 0 for a spring with ``k_t = 0`` whose
+transverse strain can be taken up by that unheld direction: a small ``k_t`` then just makes the
+junction follow, and no frequency moves.
+
+Repeated frequencies: within a group of equal eigenvalues the shapes are any basis, and the single
+derivatives depend on it (the group splits into eigenvalues of ``Phi_g^T dK Phi_g``). Only their
+sum over the group is defined (the trace, the same in every basis); ``Sensitivity.valid`` is False
+for such modes and :meth:`Sensitivity.group_sum` gives the sum.
 """
 
 from __future__ import annotations
@@ -17,6 +31,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+import scipy.sparse as sp
+from scipy.sparse.csgraph import connected_components
 
 from .modes import ModalResult
 
@@ -55,7 +71,9 @@ class Sensitivity:
     dlambda_dk : (n_modes, n_springs) per N/m.      dlambda_dkt : transverse stiffness (planar).
     dlambda_dm : (n_modes, n_masses) per kg.
     normalised_k, normalised_m : (k/f)(df/dk) and (m/f)(df/dm), dimensionless (NaN for zero modes).
-    valid : (n_modes,) bool, False for zero and repeated modes, where derivatives are not unique.
+    valid : (n_modes,) bool, False for zero and repeated modes, where derivatives are not unique
+        (sum them over the group: :meth:`group_sum`).
+    groups : tuple of tuples of mode numbers sharing one frequency (zero modes included).
     """
 
     spring_ids: tuple
@@ -67,12 +85,80 @@ class Sensitivity:
     normalised_kt: np.ndarray
     normalised_m: np.ndarray
     valid: np.ndarray
+    groups: tuple = ()
+
+    def group_sum(self, mode: int, which: str = "k") -> np.ndarray:
+        """Sum of d lambda/dp over the repeated group holding ``mode`` (just the mode's row
+        when it is not repeated), per element: the one derivative a repeated group defines.
+
+        which : ``"k"``, ``"k_t"`` or ``"mass"``. Returns (n_springs,) or (n_masses,).
+        """
+        table = {"k": self.dlambda_dk, "k_t": self.dlambda_dkt, "mass": self.dlambda_dm}[which]
+        group = next((g for g in self.groups if mode in g), (mode,))
+        return table[[m - 1 for m in group]].sum(axis=0)
 
     def df_dk_hz(self, lam: np.ndarray) -> np.ndarray:
         """df/dk in Hz per N/m: d lambda/dk / (4 pi w)."""
         w = np.sqrt(lam)[:, None]
         with np.errstate(divide="ignore", invalid="ignore"):
             return np.where(w > 0, self.dlambda_dk / (4 * np.pi * np.where(w > 0, w, 1)), np.nan)
+
+
+def strain_vectors(system, spring_index: int) -> tuple[np.ndarray, np.ndarray]:
+    """(axial, transverse): vectors ``c`` on ``system.all_dofs`` with ``c . u`` the stretch of a
+    spring (end b against end a along its axis ``e``) and its shear (along ``n``, at right angles).
+
+    On a line or a shaft the axial vector is -1 at end a, +1 at end b and the transverse one is
+    zero. Grounded or locked ends contribute nothing. Shape (n_all,) each.
+    """
+    n_all = len(system.all_dofs)
+    axial, trans = np.zeros(n_all), np.zeros(n_all)
+    idx = system.spring_dofs[spring_index]
+    nd = idx.shape[0] // 2
+    if system.model.kind == "planar":
+        e = system.spring_axis[spring_index]
+        ce, cn = (e[0], e[1]), (-e[1], e[0])
+    else:
+        ce, cn = (1.0,) * nd, (0.0,) * nd
+    for d in range(nd):
+        for i, sign in ((idx[d], -1.0), (idx[nd + d], 1.0)):
+            if i >= 0:
+                axial[i] += sign * ce[d]
+                trans[i] += sign * cn[d]
+    return axial, trans
+
+
+def unheld_junction_directions(system, near=None) -> np.ndarray:
+    """(n_all, r) orthonormal directions of massless junctions that no spring holds: the null
+    space of the junction block K_ss of the stiffness before condensation.
+
+    near : optional DOF indices; only the groups of junction DOFs coupled (through K_ss) to one of
+        them are examined, which keeps this cheap on large models.
+    """
+    n_all = len(system.all_dofs)
+    M_full, K_full = system.M_full, system.K_full
+    m = np.asarray(M_full.diagonal()).ravel()
+    slaves = np.flatnonzero(m == 0)
+    if slaves.size == 0:
+        return np.zeros((n_all, 0))
+    Kss = sp.csr_matrix(K_full)[slaves][:, slaves]
+    _n, labels = connected_components(Kss != 0, directed=False)
+    wanted = set(range(_n)) if near is None else {
+        labels[i] for i in np.flatnonzero(np.isin(slaves, np.asarray(list(near), int)))}
+    cols = []
+    for lab in sorted(wanted):
+        members = np.flatnonzero(labels == lab)
+        block = Kss[members][:, members].toarray()
+        scale = np.abs(block).max(initial=0.0)
+        if scale == 0:
+            vals, vecs = np.zeros(len(members)), np.eye(len(members))
+        else:
+            vals, vecs = np.linalg.eigh(block)
+        for v in vecs[:, np.abs(vals) <= 1e-11 * max(scale, 1e-300)].T:
+            col = np.zeros(n_all)
+            col[slaves[members]] = v
+            cols.append(col)
+    return np.array(cols).T if cols else np.zeros((n_all, 0))
 
 
 def _relative_motion(result: ModalResult):
@@ -131,12 +217,19 @@ def energy_fractions(result: ModalResult) -> EnergyResult:
 
 
 def sensitivities(result: ModalResult) -> Sensitivity:
-    """Analytic eigenvalue derivatives with respect to every stiffness and mass."""
+    """Analytic eigenvalue derivatives with respect to every stiffness and mass.
+
+    Shapes and sources in the module docstring: the strain of each spring is taken at the
+    recovered junction motion, and a ``k_t = 0`` spring whose shear an unheld junction direction
+    takes up has d lambda/dk_t = 0.
+    """
     model = result.model
     lam = result.eigenvalues
     axial, trans = _relative_motion(result)
     dk = axial ** 2
     dkt = trans ** 2 if model.kind == "planar" else np.zeros_like(dk)
+    if model.kind == "planar":
+        _free_shear(result.system, dkt)
     dm = -lam[:, None] * _mass_motion_squared(result)
     k = np.array([s.k for s in model.springs])
     kt = np.array([s.k_t for s in model.springs])
@@ -153,4 +246,28 @@ def sensitivities(result: ModalResult) -> Sensitivity:
     return Sensitivity(spring_ids=tuple(s.id for s in model.springs),
                        mass_ids=tuple(m.id for m in model.masses), dlambda_dk=dk,
                        dlambda_dkt=dkt, dlambda_dm=dm, normalised_k=nk, normalised_kt=nkt,
-                       normalised_m=nm, valid=valid)
+                       normalised_m=nm, valid=valid, groups=tuple(result.repeated))
+
+
+def _free_shear(system, dkt: np.ndarray) -> None:
+    """Zero the d lambda/dk_t columns (in place) of springs with ``k_t = 0`` whose shear an
+    unheld junction direction can take up (see the module docstring)."""
+    model = system.model
+    m = np.asarray(system.M_full.diagonal()).ravel()
+    candidates = []
+    for j, s in enumerate(model.springs):
+        if s.k_t > 0:
+            continue   # a spring with k_t > 0 holds its own shear: nothing is unheld along it
+        idx = system.spring_dofs[j]
+        touched = [i for i in idx if i >= 0 and m[i] == 0]
+        if touched:
+            candidates.append((j, touched))
+    if not candidates:
+        return
+    N = unheld_junction_directions(system, near=[i for _, t in candidates for i in t])
+    if N.shape[1] == 0:
+        return
+    for j, _t in candidates:
+        _axial, c = strain_vectors(system, j)
+        if np.linalg.norm(N.T @ c) > 1e-8 * np.linalg.norm(c):
+            dkt[:, j] = 0.0

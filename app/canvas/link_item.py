@@ -54,7 +54,7 @@ class LinkItem(QGraphicsObject):
         raise NotImplementedError
 
     def endpoints(self) -> tuple[QPointF, QPointF]:
-        c1, c2 = self.a_item.pos(), self.b_item.pos()
+        c1, c2 = self.a_item.shown_pos(), self.b_item.shown_pos()
         line = QLineF(c1, c2)
         length = line.length()
         if length == 0:
@@ -68,11 +68,15 @@ class LinkItem(QGraphicsObject):
         return (QPointF(c1.x() + u.x() * i1, c1.y() + u.y() * i1) + off,
                 QPointF(c2.x() - u.x() * i2, c2.y() - u.y() * i2) + off)
 
-    def refresh(self):
-        """Redraw between the nodes' current (possibly dragged) positions."""
+    def refresh(self, label: bool = True):
+        """Redraw between the nodes' current (possibly dragged) positions; ``label=False``
+        keeps the label where it was placed (an animation frame)."""
         self.prepareGeometryChange()
         p1, p2 = self.endpoints()
         self._path = self.build_path(p1, p2)
+        if not label:
+            self.update()
+            return
         mid = QPointF((p1.x() + p2.x()) / 2, (p1.y() + p2.y()) / 2)
         dx, dy = p2.x() - p1.x(), p2.y() - p1.y()
         L = math.hypot(dx, dy) or 1.0
@@ -89,6 +93,10 @@ class LinkItem(QGraphicsObject):
         y = mid.y() + ny * 14 - (h if ny < 0 else (h / 2 if ny == 0 else 0))
         self.label_item.setPos(x, y)
         self.update()
+
+    def symbol_rect(self) -> QRectF:
+        """The drawn coil or piston (scene coordinates: the item sits at the origin)."""
+        return self._path.boundingRect()
 
     def boundingRect(self) -> QRectF:  # noqa: N802
         return self._path.boundingRect().adjusted(-8, -8, 8, 8)

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+
 from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QBrush, QPainterPath
 
@@ -43,6 +45,13 @@ class MassItem(NodeItem):
         return shapes.axis_arrow_path(QPointF(r.left() - 8, r.bottom()), QPointF(0, -1),
                                       length=r.height() * 0.9, head=6)
 
+    def symbol_rect(self) -> QRectF:
+        """Block (or disc) with its axis arrow and lock mark: what labels keep off."""
+        r = self._path.boundingRect()
+        if self.kind == "line" and self.element.mass > 0:
+            r = r.united(self._arrow().boundingRect())
+        return r
+
     def half_size(self) -> float:
         return self._path.boundingRect().width() / 2
 
@@ -63,6 +72,12 @@ class MassItem(NodeItem):
             fill = self.energy_color   # energy tint (app.energy_view): kinetic-energy share
         painter.setBrush(QBrush(st.accent_soft if selected else fill))
         painter.drawPath(self._path)
+        turn = getattr(self, "display_turn", None)
+        if self.kind == "torsion" and turn is not None:
+            # the disc's radius mark turned by the animated angle (counter-clockwise, y up)
+            r = self._path.boundingRect().width() / 2
+            painter.setPen(self.pen(st.accent))
+            painter.drawLine(QPointF(0, 0), QPointF(-r * math.sin(turn), -r * math.cos(turn)))
         if self.kind == "line" and self.element.mass > 0:
             painter.setPen(self.pen(st.ink_soft))
             painter.setBrush(QBrush(st.ink_soft))

@@ -2,8 +2,8 @@
 
 from __future__ import annotations
 
-from PySide6.QtCore import QPointF, Signal
-from PySide6.QtGui import QPen
+from PySide6.QtCore import QPointF, QRectF, Signal
+from PySide6.QtGui import QPen, QTransform
 from PySide6.QtWidgets import QGraphicsItem, QGraphicsObject, QGraphicsSimpleTextItem
 
 from app.drawing.style import current_style
@@ -48,6 +48,25 @@ class NodeItem(QGraphicsObject):
 
     def tooltip_text(self, element, model) -> str:
         return element.label
+
+    def symbol_rect(self) -> QRectF:
+        """The drawn symbol (item coordinates), without the label: what labels keep off."""
+        path = getattr(self, "_path", None)
+        return path.boundingRect() if path is not None else self.boundingRect()
+
+    def set_display_offset(self, dx: float, dy: float, turn: float | None = None) -> None:
+        """Draw the node shifted by (dx, dy) scene units, or a disc turned by ``turn`` rad
+        (a mode animated on the canvas), without moving it: ``pos()`` stays the model's
+        position, so no edit, snap or undo entry follows. ``turn`` None: no turn mark."""
+        self._display_offset = QPointF(dx, dy)
+        self.display_turn = turn
+        self.setTransform(QTransform.fromTranslate(dx, dy))
+        self.update()
+
+    def shown_pos(self) -> QPointF:
+        """Where the node is drawn now: its position plus any display offset."""
+        off = getattr(self, "_display_offset", None)
+        return self.pos() + off if off is not None else self.pos()
 
     def pen(self, color) -> QPen:
         pen = QPen(color, current_style().line_width)

@@ -126,8 +126,63 @@ class ModelScene(QGraphicsScene):
                 item.setSelected(eid in selected)
         finally:
             self._syncing = False
+        self.place_labels()
         self._update_scene_rect()
         self._on_selection_change()
+
+    def place_labels(self) -> None:
+        """Put every label clear of the symbols and of the labels placed before it (masses,
+        then anchors, then springs and dashpots); a label with no clear spot is hidden (the
+        element's tooltip still names it). Scene units, so it holds at every zoom."""
+        from app.drawing.labels import LabelPlacer, around, segment_boxes, shifted
+
+        nodes = list(self.nodes.values())
+        links = list(self.links.values())
+        # a slider step changes a value, not the drawing: nothing to place again (an item
+        # refreshed since has put its label back where it likes it: the key sees that)
+        def state():
+            return tuple((i.element_id, i.pos().x(), i.pos().y(), i.label_item.text(),
+                          i.label_item.pos().x(), i.label_item.pos().y(),
+                          i.symbol_rect().width()) for i in nodes + links)
+
+        if state() == getattr(self, "_labels_key", None):
+            return
+        self._place_labels(nodes, links)
+        self._labels_key = state()
+
+    def _place_labels(self, nodes, links) -> None:
+        from app.drawing.labels import LabelPlacer, around, segment_boxes, shifted
+
+        line = max((it.label_item.boundingRect().height() for it in nodes + links), default=14.0)
+        placer = LabelPlacer(line)
+        for item in nodes:
+            placer.block(item.mapRectToScene(item.symbol_rect()))
+        for link in links:
+            p1, p2 = link.endpoints()
+            for box in segment_boxes(p1, p2, 7.0):
+                placer.block(box)
+        gap = placer.pad + 2
+        for item in [n for n in nodes if isinstance(n, MassItem)] + \
+                [n for n in nodes if not isinstance(n, MassItem)] + links:
+            label = item.label_item
+            if not label.text():
+                label.setVisible(False)
+                continue
+            br = label.boundingRect()
+            w, h = br.width(), br.height()
+            preferred = label.mapRectToScene(br)   # where the item itself put it
+            if isinstance(item, LinkItem):
+                p1, p2 = item.endpoints()
+                mid = QPointF((p1.x() + p2.x()) / 2, (p1.y() + p2.y()) / 2)
+                symbol = QRectF(mid.x() - 7, mid.y() - 7, 14, 14)
+                cands = list(shifted(preferred, h)) + list(around(symbol, w, h, gap))
+            else:
+                symbol = item.mapRectToScene(item.symbol_rect())
+                cands = [preferred] + list(around(symbol, w, h, gap))
+            rect = placer.place(label.text(), cands)
+            label.setVisible(rect is not None)
+            if rect is not None:
+                label.setPos(label.parentItem().mapFromScene(rect.topLeft()))
 
     def _sync(self, model) -> None:
         positive = [m.mass for m in model.masses if m.mass > 0]

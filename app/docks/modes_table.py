@@ -6,13 +6,29 @@ command line); :class:`ModesTable` shows them. Selecting a row emits ``mode_sele
 
 from __future__ import annotations
 
-from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt, Signal
+from PySide6.QtCore import QAbstractTableModel, QEvent, QModelIndex, Qt, Signal
 from PySide6.QtGui import QColor, QGuiApplication
 from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QLabel, QTableView, QVBoxLayout, QWidget
 
 from app.drawing.style import current_style
 from app.results.mode_rows import (_modal, mode_table_cells, mode_table_csv, mode_table_header,
                                    mode_table_rows, write_mode_table_csv)
+
+
+#: The notes column is never narrower than this (px); longer notes wrap.
+MIN_NOTES = 120
+
+
+def _two_lines(text: str) -> str:
+    """A heading on two lines, its unit (and a direction symbol) on the second:
+    ``Frequency\n(Hz)``, ``Eff. mass\nx (%)``."""
+    head, sep, unit = text.partition(" (")
+    if not sep:
+        return text
+    words = head.split(" ")
+    if len(words) > 1 and len(words[-1]) <= 2:      # a direction: x, y, θ
+        return f"{' '.join(words[:-1])}\n{words[-1]} ({unit}"
+    return f"{head}\n({unit}"
 
 
 class _ModesModel(QAbstractTableModel):
@@ -55,7 +71,11 @@ class _ModesModel(QAbstractTableModel):
 
     def headerData(self, section, orientation, role=Qt.ItemDataRole.DisplayRole):
         if role == Qt.ItemDataRole.DisplayRole and orientation == Qt.Orientation.Horizontal:
-            return self._header[section] if section < len(self._header) else None
+            if section >= len(self._header):
+                return None
+            # the unit on a second line: columns as narrow as their numbers, so every column
+            # shows at the window's first size
+            return _two_lines(self._header[section])
         return None
 
     def data(self, index, role=Qt.ItemDataRole.DisplayRole):
@@ -112,6 +132,7 @@ class ModesTable(QWidget):
         self._banner.setVisible(False)
         self._model = _ModesModel(self)
         self.view = QTableView(self)
+        self.view.setObjectName("modes_table")
         self.view.setModel(self._model)
         self.view.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
         self.view.setSelectionMode(QAbstractItemView.SelectionMode.SingleSelection)
@@ -122,6 +143,9 @@ class ModesTable(QWidget):
         # longer, not on every update: measuring every cell each slider step costs a frame
         self.view.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Interactive)
         self._col_chars: list[int] = []
+        self._wrapped = False
+        self.view.setWordWrap(True)
+        self.view.installEventFilter(self)
         self.view.setAlternatingRowColors(True)
         self.view.setToolTip("Select a mode to animate it. Hover the notes for zero-frequency"
                              " causes and repeated modes.")
@@ -218,6 +242,32 @@ class ModesTable(QWidget):
                 any(a > b for a, b in zip(chars, self._col_chars)):
             self.view.resizeColumnsToContents()
             self._col_chars = chars
+            self._share_width()
+
+    def _share_width(self):
+        """The notes take the width the number columns leave (at least :data:`MIN_NOTES` px)
+        and wrap onto more lines rather than being cut, so no column is out of sight."""
+        header = self._model._header
+        if not header:
+            return
+        hdr = self.view.horizontalHeader()
+        notes = len(header) - 1
+        others = sum(hdr.sectionSize(c) for c in range(len(header)) if c != notes)
+        avail = self.view.viewport().width()
+        want = max(self.view.sizeHintForColumn(notes), hdr.sectionSizeHint(notes))
+        width = max(MIN_NOTES, min(want, avail - others)) if avail > others else want
+        if width != hdr.sectionSize(notes):
+            hdr.resizeSection(notes, width)
+        if want > width or self._wrapped:
+            self.view.resizeRowsToContents()
+            self._wrapped = want > width
+        else:
+            self._wrapped = False
+
+    def eventFilter(self, obj, event):  # noqa: N802
+        if obj is self.view and event.type() == QEvent.Type.Resize:
+            self._share_width()
+        return False
 
     def _select_row(self, row: int):
         self.view.selectRow(row)

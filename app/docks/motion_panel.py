@@ -25,7 +25,7 @@ import math
 
 import numpy as np
 from PySide6.QtCore import QElapsedTimer, QPointF, QRectF, Qt, QTimer, Signal
-from PySide6.QtGui import QFont, QFontMetrics, QPainter
+from PySide6.QtGui import QFont, QFontMetrics, QIcon, QPainter, QPen, QPixmap
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QHBoxLayout, QLabel,
                                QListWidget, QListWidgetItem, QPushButton, QSizePolicy, QSlider,
                                QSplitter, QVBoxLayout, QWidget)
@@ -47,8 +47,9 @@ MAX_TABLE = 4_000_000
 #: Displacement used to size the drawing when the model has no initial conditions (m, rad).
 _DEFAULT_IC = {"x": 0.01, "y": 0.01, "theta": 0.05}
 
-#: Beyond this many masses the motion view leaves the labels off (they would be unreadable).
-LABEL_LIMIT = 40
+#: Beyond this many masses the motion view leaves the labels off; below, labels that find no
+#: clear spot are left off one by one (app.drawing.labels).
+LABEL_LIMIT = 200
 
 MODE_VIEW = "mode"
 FREE_VIEW = "free"
@@ -98,7 +99,7 @@ class MotionView(QWidget):
 
     def __init__(self, parent=None):
         super().__init__(parent)
-        self.setMinimumSize(200, 110)
+        self.setMinimumSize(200, 90)
         self.setSizePolicy(QSizePolicy.Policy.Expanding, QSizePolicy.Policy.Expanding)
         self.setMouseTracking(True)
         self.model = None
@@ -107,6 +108,8 @@ class MotionView(QWidget):
         self.caption = ""
         self.hint = ""
         self.energy = None
+        #: the largest drawn excursion of a mass in the animation shown (px): labels keep off it
+        self.motion_px = 0.0
         self._layout: SketchLayout | None = None
         self._layout_key = None
         self._drag = None        # (mass_id, grab offset from the displayed centre in px)
@@ -153,7 +156,7 @@ class MotionView(QWidget):
                 highlight = {mid}
             paint_sketch(p, self.model, lay.rect, disp, self.scale, st, undeformed=True,
                          energy=self.energy, labels=len(self.model.masses) <= LABEL_LIMIT,
-                         layout=lay, highlight=highlight)
+                         layout=lay, highlight=highlight, motion_px=self.motion_px)
             p.setPen(st.ink)
             f = QFont(p.font())
             f.setPixelSize(13)
@@ -257,6 +260,12 @@ class MotionPanel(QWidget):
     """
 
     initial_conditions_requested = Signal(dict)
+    #: ``(displacements, peak, caption)`` of every frame while the canvas animation is on:
+    #: ``{mass_id: {direction: value}}`` (m, rad; unmagnified), the largest value the animation
+    #: reaches (the canvas sizes its magnification on it) and the caption of the frame;
+    #: ``({}, 0.0, "")`` when it is switched off.
+    canvas_frame = Signal(dict, float, str)
+    canvas_toggled = Signal(bool)
 
     def __init__(self, parent=None):
         super().__init__(parent)
@@ -323,6 +332,11 @@ class MotionPanel(QWidget):
         self.speed.setSuffix(" cycles/s")
         self.speed.setToolTip("Visual speed of the mode animation; the true frequency is shown"
                               " in the caption")
+        self.canvas_box = QCheckBox("On canvas", self)
+        self.canvas_box.setObjectName("motion_on_canvas")
+        self.canvas_box.setToolTip("Animate the motion on the main canvas too (the drawing moves;"
+                                   " the model does not) [C]")
+        self.canvas_box.toggled.connect(self._on_canvas_toggled)
 
         self.time_scale_box = QComboBox(self)
         for ts in TIME_SCALES:
@@ -332,7 +346,7 @@ class MotionPanel(QWidget):
         self.magnification.setDecimals(3)
         self.magnification.setRange(1e-3, 1e9)
         self.magnification.setValue(1.0)
-        self.magnification.setPrefix("× ")
+        self.magnification.setPrefix("drawn × ")
         self.magnification.setToolTip("Displacements are drawn this many times true size")
         self.magnification.valueChanged.connect(self._on_magnification_change)
         self.fit_button = QPushButton("Fit", self)
@@ -340,14 +354,19 @@ class MotionPanel(QWidget):
         self.fit_button.clicked.connect(self._fit_free_scale)
 
         self.trace_list = QListWidget(self)
-        self.trace_list.setMaximumWidth(150)
-        self.trace_list.setToolTip("Masses whose displacement is traced against time")
+        self.trace_list.setObjectName("motion_traces")
+        self.trace_list.setMaximumWidth(170)
+        self.trace_list.setToolTip("Masses whose displacement is traced against time; the"
+                                   " colour of each ticked one is its curve's (the legend)")
         self.trace_list.itemChanged.connect(lambda _i: self._rebuild_traces())
         self.plot = pg.PlotWidget(self, axisItems=true_value_axes())
-        self.plot.setMinimumHeight(70)   # small: the dock must not squeeze the bottom row
+        self.plot.setObjectName("motion_trace_plot")
+        # tall enough to read a decaying trace; the list beside it is the legend, so no legend
+        # box sits on the curves
+        self.plot.setMinimumHeight(165)
         self.plot.setLabel("bottom", "time", units="s")
-        self.plot.setLabel("left", "displacement")
-        self.plot.addLegend(offset=(5, 5))
+        self.plot.setLabel("left", "displacement", units="m")
+        self.plot.setMenuEnabled(False)
         st = current_style()
         self.plot.setBackground(st.background)
         self._cursor = pg.InfiniteLine(angle=90, pen=pg.mkPen(st.accent, width=1.5))
@@ -366,12 +385,12 @@ class MotionPanel(QWidget):
         mrow.addWidget(self.amplitude, 1)
         mrow.addWidget(QLabel("Speed", self))
         mrow.addWidget(self.speed)
+        mrow.addWidget(self.canvas_box)
         self._free_controls = QWidget(self)
         frow = QHBoxLayout(self._free_controls)
         frow.setContentsMargins(0, 0, 0, 0)
         frow.addWidget(QLabel("Time scale", self))
         frow.addWidget(self.time_scale_box)
-        frow.addWidget(QLabel("Magnification", self))
         frow.addWidget(self.magnification)
         frow.addWidget(self.fit_button)
         frow.addStretch(1)
@@ -402,8 +421,8 @@ class MotionPanel(QWidget):
         was = self._trace_area.isVisible()
         self._trace_area.setVisible(free)
         if free and not was:
-            total = max(200, sum(self._split.sizes()))
-            self._split.setSizes([int(total * 0.68), int(total * 0.32)])
+            total = max(300, sum(self._split.sizes()))
+            self._split.setSizes([int(total * 0.35), int(total * 0.65)])
         self.loop_box.setEnabled(free)
 
     # -- public API --------------------------------------------------------------------------
@@ -414,9 +433,12 @@ class MotionPanel(QWidget):
         self._modal = getattr(analysis, "modal", analysis) if analysis is not None else None
         self._mode_shapes = {}
         self._table = None
-        self._t = 0.0
         self.view.set_model(self._model)
         self._f_max, self._duration = self._response_window()
+        # an edit neither restarts nor stops what is playing: the time runs on (wrapped into
+        # the new loop), the view kind and the mode stay
+        if self._t > self._duration and self.loop_box.isChecked():
+            self._t = math.fmod(self._t, self._duration)
         if self._modal is None or self._mode is None or self._mode > self._modal.n_modes:
             self._mode = 1 if self._modal is not None and self._modal.n_modes else None
         self._pick_time_scale()
@@ -443,6 +465,21 @@ class MotionPanel(QWidget):
         if system != self.unit_system:
             self.unit_system = system
             self._rebuild_traces()
+
+    def set_mode(self, n: int) -> None:
+        """Make mode n (from 1) the one the mode view shows, without switching views or
+        restarting its animation (new results of an edit keep what is on screen)."""
+        if self._modal is None or not 1 <= int(n) <= self._modal.n_modes or self._mode == int(n):
+            return
+        self._mode = int(n)
+        self._refresh()
+
+    def set_on_canvas(self, on: bool) -> None:
+        """Animate on the main canvas too (playback starts when switched on)."""
+        self.canvas_box.setChecked(bool(on))
+
+    def on_canvas(self) -> bool:
+        return self.canvas_box.isChecked()
 
     def show_free_response(self) -> None:
         """Switch to the initial-conditions view (free response)."""
@@ -538,6 +575,26 @@ class MotionPanel(QWidget):
             self._timer.start()
         else:
             self._timer.stop()
+
+    def _on_canvas_toggled(self, on: bool):
+        if on:
+            self.play()
+            self._refresh()
+        else:
+            self.canvas_frame.emit({}, 0.0, "")
+        self.canvas_toggled.emit(bool(on))
+
+    def _canvas_peak(self) -> float:
+        """Largest displacement the shown animation reaches (m or rad)."""
+        if self._view_kind == MODE_VIEW:
+            shape = self._mode_shapes.get(self._mode or 1, ({}, 1.0))[0]
+            # the amplitude slider (50 = as fitted) scales the canvas motion too
+            gain = self.amplitude.value() / 50.0
+            vals = [abs(v) / gain for dd in shape.values() for v in dd.values()]
+        else:
+            table = self._table
+            vals = [float(np.abs(table.x).max())] if table is not None and table.x.size else []
+        return max(vals, default=0.0)
 
     def _on_tick(self):
         dt_wall = self._clock.restart() / 1000.0
@@ -665,17 +722,47 @@ class MotionPanel(QWidget):
         st = current_style()
         from app.text.units import KINDS
 
-        kind = KINDS["angle" if self._model.kind == "torsion" else "length"]
+        torsion = self._model.kind == "torsion"
+        kind = KINDS["angle" if torsion else "length"]
         unit, factor = kind.label(self.unit_system), kind.factor(self.unit_system)
-        self.plot.setLabel("left", "displacement", units=unit)
+        self.plot.setLabel("left", "rotation" if torsion else "displacement", units=unit)
+        colours = {}
         for k, dof in enumerate(self.traced_dofs()):
             if dof not in table.dofs:
                 continue
             j = table.dofs.index(dof)
+            colours[dof] = st.trace(k)
             curve = self.plot.plot(table.times, table.x[:, j] / factor,
                                    pen=pg.mkPen(st.trace(k), width=1.5),
                                    name=f"{self._model.node(dof[0]).label} {dof[1]}")
             self._curves.append(curve)
+        self._show_trace_colours(colours)
+
+    def _show_trace_colours(self, colours: dict):
+        """The trace list is the legend: each ticked entry carries its curve's colour."""
+        self.trace_list.blockSignals(True)
+        try:
+            for i in range(self.trace_list.count()):
+                item = self.trace_list.item(i)
+                c = colours.get(item.data(Qt.ItemDataRole.UserRole))
+                if c is None:
+                    item.setIcon(QIcon())
+                    continue
+                pix = QPixmap(18, 10)
+                pix.fill(Qt.GlobalColor.transparent)
+                p = QPainter(pix)
+                p.setPen(QPen(c, 3))
+                p.drawLine(1, 5, 17, 5)
+                p.end()
+                item.setIcon(QIcon(pix))
+        finally:
+            self.trace_list.blockSignals(False)
+
+    def trace_colours(self) -> dict:
+        """``{(mass_id, direction): QColor}`` of the curves drawn (as the list shows them)."""
+        return {dof: c.opts["pen"].color() for dof, c in zip(
+            [d for d in self.traced_dofs() if self._table is not None and d in self._table.dofs],
+            self._curves)}
 
     def _refresh(self):
         view = self.view
@@ -686,6 +773,8 @@ class MotionPanel(QWidget):
             view.hint = ""
             self._positions = {}
             view.update()
+            if self.canvas_box.isChecked():
+                self.canvas_frame.emit({}, 0.0, "")
             return
         if self._modal.n_modes == 0:
             view.displacements = None
@@ -693,6 +782,8 @@ class MotionPanel(QWidget):
             view.hint = ""
             self._positions = {}
             view.update()
+            if self.canvas_box.isChecked():
+                self.canvas_frame.emit({}, 0.0, "")
             return
         if self._view_kind == MODE_VIEW:
             n = self._mode or 1
@@ -706,6 +797,7 @@ class MotionPanel(QWidget):
             self._positions = disp
             view.displacements = disp
             view.scale = fit * self.amplitude.value() / 50.0
+            view.motion_px = self._excursion_px(shape, view.scale)
             f = float(self._modal.frequencies_hz[n - 1])
             z = self._modal.zero_mode(n)
             cap = f"Mode {n} of {self._modal.n_modes}: {hz(f)}"
@@ -723,6 +815,9 @@ class MotionPanel(QWidget):
             self._positions = disp
             view.displacements = disp
             view.scale = self._free_scale
+            table = self._table
+            peak = float(np.abs(table.x).max()) if table is not None and table.x.size else 0.0
+            view.motion_px = self._excursion_px({"": {"x": peak}}, view.scale)
             ts = self.time_scale()
             view.caption = (f"Free response  t = {self._t:.4f} s   time scale {ts:g}×   "
                             f"drawn {self._free_scale:.3g}× true size")
@@ -732,6 +827,20 @@ class MotionPanel(QWidget):
             self._cursor.setValue(self._t)
         del st
         view.update()
+        if self.canvas_box.isChecked():
+            self.canvas_frame.emit(self._positions, self._canvas_peak(),
+                                   view.caption.split(" (shown at")[0])
+
+    def _excursion_px(self, shape: dict, scale: float) -> float:
+        """Largest drawn translation (px) of ``shape`` at ``scale``; 0 in torsion (discs turn
+        in place)."""
+        lay = self.view.layout_()
+        if lay is None or self._model is None or self._model.kind == "torsion":
+            return 0.0
+        big = max((math.hypot(d.get("x", 0.0), d.get("y", 0.0)) for d in shape.values()),
+                  default=0.0)
+        # quantised so that the labels are re-placed only when the excursion really changes
+        return math.ceil(big * scale * lay.px_per_m / 4.0) * 4.0
 
     def _on_drag_started(self, _mass_id: str):
         # Initial conditions are set in the free-response drawing, at its magnification, from

@@ -51,13 +51,19 @@ class QuantityField(QWidget):
         self.edit.setToolTip(self._hint)
         self.edit.setPlaceholderText(units.unit_label(kind, system))
 
-    def set_value(self, value_si: float, system: str | None = None) -> None:
-        """Show ``value_si`` (clears any refusal)."""
+    def set_value(self, value_si: float | None, system: str | None = None) -> None:
+        """Show ``value_si`` (clears any refusal); None: several elements with different
+        values, shown empty with a hint."""
         if system is not None:
             self.system = system
         self.value_si = value_si
         with QSignalBlocker(self.edit):
-            self.edit.setText(units.format_value(value_si, self.kind, self.system))
+            if value_si is None:
+                self.edit.clear()
+                self.edit.setPlaceholderText(f"different values ({units.unit_label(self.kind, self.system)})")
+            else:
+                self.edit.setText(units.format_value(value_si, self.kind, self.system))
+                self.edit.setPlaceholderText(units.unit_label(self.kind, self.system))
         self.clear_error()
 
     def show_error(self, message: str) -> None:
@@ -83,6 +89,8 @@ class QuantityField(QWidget):
 
     def _on_edit_finished(self):
         text = self.edit.text()
+        if self.value_si is None and not text.strip() and not self.error:
+            return  # several values shown as none and nothing typed
         if (self.value_si is not None and not self.error
                 and text == units.format_value(self.value_si, self.kind, self.system)):
             return  # focus left without a change
@@ -93,6 +101,14 @@ class QuantityField(QWidget):
             return
         self.clear_error()
         self.value_entered.emit(value)
+
+
+def model_counts(model) -> str:
+    """``"3 masses, 1 anchor, 3 springs, 1 dashpot"`` of ``model``."""
+    return ", ".join((units.count(len(model.masses), "mass", "masses"),
+                      units.count(len(model.anchors), "anchor"),
+                      units.count(len(model.springs), "spring"),
+                      units.count(len(model.dampers), "dashpot")))
 
 
 def _mass_kind(model) -> str:
@@ -124,6 +140,7 @@ class PropertyPanel(QWidget):
         self._fields: dict[str, tuple[QuantityField, object]] = {}
         self._widgets: dict[str, QWidget] = {}
         self._signature = None
+        self.counts_label: QLabel | None = None
 
         outer = QVBoxLayout(self)
         outer.setContentsMargins(4, 4, 4, 4)
@@ -144,6 +161,7 @@ class PropertyPanel(QWidget):
         self.title.setStyleSheet("font-weight: bold;")
         outer.addWidget(self.title)
         scroll = QScrollArea()
+        scroll.setObjectName("properties_scroll")
         scroll.setWidgetResizable(True)
         scroll.setFrameShape(QScrollArea.NoFrame)
         self._body = QWidget()
@@ -192,7 +210,22 @@ class PropertyPanel(QWidget):
         if signature != self._signature:
             self._signature = signature
             self._rebuild(model, elements)
+        self._update_title(model, elements)
         self._refresh(model)
+
+    def _update_title(self, model, elements):
+        """Header and counts follow every change of the model (open, rename, add, undo)."""
+        if not elements:
+            self.title.setText(f"Model: {model.name or 'untitled'}")
+            if self.counts_label is not None:
+                self.counts_label.setText(model_counts(model))
+        elif len(elements) > 1:
+            kinds = {type(e) for e in elements}
+            noun = {Mass: ("mass", "masses"), Anchor: ("anchor", "anchors"),
+                    Spring: ("spring", "springs"), Damper: ("dashpot", "dashpots")}
+            what = noun.get(kinds.pop(), ("element", "elements")) if len(kinds) == 1 \
+                else ("element", "elements")
+            self.title.setText(f"{units.count(len(elements), *what)} selected")
 
     def _clear(self):
         while self.form.rowCount():
@@ -216,12 +249,11 @@ class PropertyPanel(QWidget):
     def _rebuild(self, model, elements):
         self._clear()
         self._text_getters = {}
+        self.counts_label = None
         if not elements:
-            self.title.setText(f"Model: {model.name or 'untitled'}")
             self._build_model(model)
         elif len(elements) > 1:
-            self.title.setText(f"{len(elements)} elements selected")
-            self.form.addRow(QLabel("Select one element to edit its values."))
+            self._build_several(model, elements)
         else:
             el = elements[0]
             if isinstance(el, Mass):
@@ -250,6 +282,39 @@ class PropertyPanel(QWidget):
                                    lambda v, i=el.id: self.document.set_element(i, c=v))
             else:
                 self.title.setText(f"{el.id}")
+
+    def _build_several(self, model, elements):
+        """Fields every selected element has (all springs, all dashpots or all masses): a value
+        typed once is given to each, as one undo step. A field shows the common value, or is
+        empty when the values differ."""
+        kinds = {type(e) for e in elements}
+        ids = [e.id for e in elements]
+        fields = []
+        if kinds == {Spring}:
+            fields.append(("k", _stiffness_kind(model), "Stiffness k"))
+            if model.kind == "planar":
+                fields.append(("k_t", "transverse stiffness", "Transverse k_t"))
+        elif kinds == {Damper}:
+            fields.append(("c", _damping_kind(model), "Damping c"))
+        elif kinds == {Mass}:
+            kind = _mass_kind(model)
+            fields.append(("mass", kind, "Inertia" if kind == "inertia" else "Mass"))
+        if not fields:
+            hint = QLabel("Select springs only, dashpots only or masses only to set a value on"
+                          " all of them at once.")
+            hint.setWordWrap(True)
+            self.form.addRow(hint)
+            return
+
+        def common(m, name, ids=tuple(ids)):
+            values = {getattr(m.element(i), name) for i in ids if i in m.ids()}
+            return values.pop() if len(values) == 1 else None
+
+        for name, kind, label in fields:
+            self._add_quantity(name, kind, f"{label} (all)",
+                               lambda m, n=name: common(m, n),
+                               lambda v, n=name, ids=tuple(ids):
+                                   self.document.set_elements(ids, **{n: v}))
 
     def _build_label(self, el):
         edit = QLineEdit()
@@ -360,10 +425,11 @@ class PropertyPanel(QWidget):
         self.form.addRow("Margin (%)", margin)
         self._widgets["margin_percent"] = margin
         self._text_getters["margin_percent"] = (margin, lambda m: f"{m.margin_percent:g}")
-        info = QLabel(f"{len(model.masses)} masses, {len(model.anchors)} anchors,"
-                      f" {len(model.springs)} springs, {len(model.dampers)} dashpots")
+        info = QLabel(model_counts(model))
+        info.setObjectName("properties_counts")
         info.setWordWrap(True)
         self.form.addRow(info)
+        self.counts_label = info
         self._kind_error = QLabel()
         self._kind_error.setWordWrap(True)
         self._kind_error.setStyleSheet(f"color: {current_style().error.name()};")

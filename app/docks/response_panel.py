@@ -21,7 +21,8 @@ import pyqtgraph as pg
 from PySide6.QtCore import QSignalBlocker, Qt, QTimer, Signal
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QFileDialog, QHBoxLayout, QHeaderView, QLabel,
                                QLineEdit, QListWidget, QListWidgetItem, QPushButton, QSplitter,
-                               QTableWidget, QTableWidgetItem, QVBoxLayout, QWidget)
+                               QSizePolicy, QTableWidget, QTableWidgetItem, QVBoxLayout,
+                               QWidget)
 
 from solver.errors import ModelError
 
@@ -143,6 +144,9 @@ class ResponsePanel(QWidget):
         self.output_list = QListWidget()
         self.output_list.setObjectName("response_outputs")
         self.output_list.setToolTip("Tick the masses whose response is plotted")
+        # labels are long ("Mounting bracket y"): wrap rather than cut them
+        self.output_list.setWordWrap(True)
+        self.output_list.setTextElideMode(Qt.TextElideMode.ElideNone)
         self.output_list.itemChanged.connect(self._on_output_toggled)
         ll.addWidget(self.output_list, 1)
         split.addWidget(left)
@@ -154,8 +158,12 @@ class ResponsePanel(QWidget):
         # true values on every tick, in the unit of the axis title (no hidden x1e6)
         self.mag_plot = self.plots.addPlot(row=0, col=0, axisItems=true_value_axes())
         self.phase_plot = self.plots.addPlot(row=1, col=0, axisItems=true_value_axes())
-        self.plots.ci.layout.setRowStretchFactor(0, 3)
-        self.plots.ci.layout.setRowStretchFactor(1, 2)
+        # the frequency axis is shared (linked): its numbers once, under the phase plot, so
+        # both plots keep the height their axis titles need
+        self.mag_plot.getAxis("bottom").setStyle(showValues=False)
+        self.mag_plot.getAxis("bottom").setHeight(4)
+        self.plots.ci.layout.setRowStretchFactor(0, 1)
+        self.plots.ci.layout.setRowStretchFactor(1, 1)
         self.mag_plot.setLogMode(x=True, y=True)
         self.phase_plot.setLogMode(x=True, y=False)
         self.phase_plot.setXLink(self.mag_plot)
@@ -164,12 +172,20 @@ class ResponsePanel(QWidget):
         for p in (self.mag_plot, self.phase_plot):
             p.showGrid(x=True, y=True, alpha=0.25)
             p.getAxis("left").setWidth(58)
-        # the frequency axis is shared: its values and title are written once, under the phase
-        self.mag_plot.getAxis("bottom").setStyle(showValues=False)
         self.phase_plot.setLabel("bottom", "frequency (Hz)")
         self.phase_plot.setLabel("left", "phase (deg)")
-        self.legend = self.mag_plot.addLegend(offset=(10, -10), labelTextSize="8pt", brush=pg.mkBrush(
-            st.background.red(), st.background.green(), st.background.blue(), 150))
+        # the key sits in a column of its own beside the plots, never over a curve and costing
+        # no height; it is in the plots' scene, so the PNG export carries it
+        self.legend = pg.LegendItem(labelTextSize="8pt", frame=False)
+        self.legend.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Maximum)
+        key = self.plots.ci.addLayout(row=0, col=1, rowspan=2)
+        key.addItem(self.legend, row=0, col=0)
+        key.addLabel("", row=1, col=0)
+        key.layout.setRowStretchFactor(1, 100)      # the entries stay together at the top
+        key.setMaximumWidth(170)
+        self.plots.ci.layout.setColumnStretchFactor(0, 1)
+        self.plots.ci.layout.setColumnStretchFactor(1, 0)
+        self.mag_plot.legend = self.legend      # curves plotted with a name join it
         self.curve_items = []
         split.addWidget(self.plots)
         split.setStretchFactor(0, 0)
@@ -234,6 +250,16 @@ class ResponsePanel(QWidget):
                                     " is released.")
             self.note_label.setStyleSheet(f"color: {current_style().ink_soft_hex};")
 
+    def reset(self, model) -> None:
+        """Another model was opened: drop every curve, peak and note of the previous one at
+        once (they name its elements), then compute the new model's response as usual."""
+        self.model = model
+        self._modal = self._modal_model = None
+        self._sync_choices(model)
+        self.response, self.error = None, ""
+        self._draw(None, "Computing the response of the model just opened…")
+        self._timer.start()
+
     def set_model(self, model) -> None:
         """Show ``model`` now (no debounce)."""
         self.model = model
@@ -292,6 +318,11 @@ class ResponsePanel(QWidget):
                     it.setFlags(it.flags() | Qt.ItemIsUserCheckable)
                     it.setCheckState(Qt.Checked if (m, d) in self._outputs else Qt.Unchecked)
                     self.output_list.addItem(it)
+            # room for the longest label (check box included), within reason
+            fm = self.output_list.fontMetrics()
+            widest = max((fm.horizontalAdvance(self.output_list.item(i).text())
+                          for i in range(self.output_list.count())), default=0)
+            self.output_list.setMinimumWidth(min(200, widest + 40))
         self._sync_input_widgets()
 
     def _sync_input_widgets(self):
@@ -542,7 +573,7 @@ class ResponsePanel(QWidget):
     def _export_dialog(self, what, fn, filt):
         start = "response." + what
         if self.document is not None:
-            start = f"{self.document.display_name}-response.{what}"
+            start = str(self.document.suggested_path(f"-response.{what}"))
         path, _ = QFileDialog.getSaveFileName(self, f"Export response {what.upper()}", start, filt)
         if not path:
             return

@@ -174,6 +174,7 @@ class TunePanel(QWidget):
         self._build_ui()
         self.target_spin.valueChanged.connect(lambda _v: setattr(self, "_target_set", True))
         document.model_changed.connect(self._on_model_change)
+        document.opened.connect(self._on_open)
         if solve_service is not None:
             solve_service.results_ready.connect(self.set_analysis)
         self._on_model_change(document.model)
@@ -247,6 +248,7 @@ class TunePanel(QWidget):
         self.sources_list.setToolTip("Excitation sources of the model; the margin is set with the"
                                      " model's properties (nothing selected on the canvas)")
         self.sources_list.setMaximumHeight(90)
+        self.sources_list.setWordWrap(True)          # a source with many orders wraps, not cut
         self.sources_title = QLabel()
 
         left = QWidget()
@@ -378,7 +380,25 @@ class TunePanel(QWidget):
         return False
 
     # -- model -> panel -----------------------------------------------------------------------
+    def _on_open(self, model):
+        """Another model (New, Open, Revert): nothing picked or typed for the last one stays."""
+        self._key = None
+        self._combo_signature = None
+        self._target_set = False
+        self._on_model_change(model)
+
+    def _clear_messages(self):
+        # a verdict, a ranking or a proposal is true of the model it was made for only
+        self.message.clear()
+        self.message.setStyleSheet("")
+        self.ranking_label.clear()
+        self._proposed = None
+        self.apply_button.setEnabled(False)
+        self._draw_proposal()
+
     def _on_model_change(self, model):
+        if not self._applying:
+            self._clear_messages()
         items = tunable_elements(model)
         signature = tuple(items)
         if signature != self._combo_signature:
@@ -630,15 +650,19 @@ class TunePanel(QWidget):
         if self._proposed is None or self._key is None:
             return False
         value = self._proposed
+        text = self.message.text().replace(" Apply to set it.", " Applied.")
         self._new_gesture()
-        changed = self.set_value(value, merge=False,
-                                 text=f"Retune {self._key[1]} of"
-                                      f" {self.document.model.element(self._key[0]).label}")
+        self._applying = True      # this edit's message is written below, not cleared
+        try:
+            changed = self.set_value(value, merge=False,
+                                     text=f"Retune {self._key[1]} of"
+                                          f" {self.document.model.element(self._key[0]).label}")
+        finally:
+            self._applying = False
         self._proposed = None
         self.apply_button.setEnabled(False)
         self._draw_proposal()
         if changed:
-            text = self.message.text().replace(" Apply to set it.", " Applied.")
             text += " " + margin_summary(self.document.model)
             self.message.setText(text)
             self.status_message.emit(text)
@@ -652,6 +676,7 @@ class TunePanel(QWidget):
         self._cursor = self._cursor_dots = self._proposal_line = None
         if self._sweep is None or self._key is None:
             pi.setTitle("")
+            pi.setLabel("bottom", "")
             return
         eid, f = self._key
         pi.setLabel("bottom", f"{model.element(eid).label} · {f} ({self._unit(model, eid, f)})")

@@ -75,6 +75,13 @@ class Document(QObject):
             return self._path.stem
         return self._model.name or "untitled"
 
+    def suggested_path(self, suffix: str) -> Path:
+        """Where an export of this model is offered: beside the model file, named after it
+        (``rack-report.png`` for ``suffix="-report.png"``); an unsaved model's go to the home
+        folder."""
+        folder = self._path.parent if self._path is not None else Path.home()
+        return folder / f"{self.display_name}{suffix}"
+
     def _set_model(self, model: Model) -> None:
         # Called by commands only (redo/undo), so every change goes through the history.
         self._model = model
@@ -203,6 +210,22 @@ class Document(QObject):
         key = ("set", element_id, tuple(sorted(changes))) if merge else None
         return self.apply(self._model.with_changes(put=[new_el]),
                           f"Change {names} of {el.label}", merge_key=key,
+                          command_class=commands.PropertyCommand)
+
+    def set_elements(self, element_ids, **changes) -> bool:
+        """Give several elements the same field values (``k`` of four isolators) as one undo
+        entry. Raises ModelError, naming the element, when the model refuses any of them; then
+        none is changed."""
+        ids = list(dict.fromkeys(element_ids))
+        put = [dataclasses.replace(self._model.element(i), **changes) for i in ids]
+        if len(put) == 1:
+            what = put[0].label
+        else:
+            kinds = {type(el).__name__.lower() for el in put}
+            noun = kinds.pop().replace("damper", "dashpot") if len(kinds) == 1 else "element"
+            what = f"{len(put)} {noun}{'es' if noun == 'mass' else 's'}"
+        return self.apply(self._model.with_changes(put=put),
+                          f"Change {', '.join(sorted(changes))} of {what}",
                           command_class=commands.PropertyCommand)
 
     def set_initial(self, mass_id: str, direction: str, displacement: float | None = None,

@@ -291,7 +291,8 @@ def _value_text(model, el, kind: str) -> str:
 def paint_sketch(painter: QPainter, model, rect: QRectF, displacements: dict | None = None,
                  scale: float = 1.0, style: Style | None = None, undeformed: bool = True,
                  energy: dict | None = None, labels=True, layout: SketchLayout | None = None,
-                 highlight: set | None = None, base: float | None = None) -> SketchLayout:
+                 highlight: set | None = None, base: float | None = None,
+                 motion_px: float = 0.0) -> SketchLayout:
     """Paint ``model`` fitted into ``rect``; returns the :class:`SketchLayout` used.
 
     Parameters
@@ -306,6 +307,14 @@ def paint_sketch(painter: QPainter, model, rect: QRectF, displacements: dict | N
         Element labels; ``"values"`` adds each element's mass, stiffness or damping.
     layout : reuse a layout (so an animation does not refit every frame).
     highlight : element ids drawn in the accent colour (e.g. a mass being dragged).
+    motion_px : float
+        The largest distance (device units) a mass is drawn away from rest in the animation
+        this frame belongs to: labels keep that far off the moving symbols.
+
+    Labels are placed on the drawing at rest (:mod:`app.drawing.labels`), clear of each other,
+    of the symbols and of the room the symbols sweep, and kept on the layout, so they stay put
+    from frame to frame; a label with no clear spot is left off. ``layout.placed_labels`` lists
+    ``(text, QRectF)`` of the labels drawn.
     """
     st = style or current_style()
     lay = layout or SketchLayout(model, rect, base=base)
@@ -320,6 +329,10 @@ def paint_sketch(painter: QPainter, model, rect: QRectF, displacements: dict | N
         _paint_layer(painter, lay, st, displacements if moving else None, scale, lw, grey=False,
                      energy=energy, labels=labels, highlight=set(highlight or ()),
                      show_rest_radius=moving and undeformed)
+        if labels:
+            _paint_labels(painter, lay, st, labels, energy, motion_px if moving else 0.0)
+        else:
+            lay.placed_labels = []
     finally:
         painter.restore()
     return lay
@@ -331,17 +344,10 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
     base = lay.base
     ink = st.undeformed if grey else st.ink
     lanes = lay.lanes()
-    font = QFont(painter.font())
-    font.setPixelSize(int(max(9, min(28, base * 0.40))))
-    painter.setFont(font)
-    fm = QFontMetricsF(font)
     pen = QPen(ink, lw)
     pen.setCapStyle(Qt.PenCapStyle.RoundCap)
     pen.setJoinStyle(Qt.PenJoinStyle.RoundJoin)
     painter.setBrush(Qt.BrushStyle.NoBrush)
-    label_jobs = []
-    mass_jobs = []      # placed first: a mass's label matters most
-    obstacles = []      # symbol rectangles labels should not cover
 
     # anchors (never move)
     for a in model.anchors:
@@ -349,17 +355,6 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
         c = lay.point(a.id)
         normal = lay.anchor_normal(a.id)
         painter.drawPath(shapes.anchor_path(c, 1.5 * base, normal))
-        obstacles.append(QRectF(c.x() - 0.8 * base, c.y() - 0.8 * base, 1.6 * base, 1.6 * base))
-        if labels and not grey:
-            # label on the hatched side, out of the way of the springs; beside a wall it ends
-            # (or starts) clear of the hatching instead of centring across it
-            off = 0.75 * base + 0.5 * fm.height()
-            pos = QPointF(c.x() - normal.x() * off, c.y() - normal.y() * off)
-            align = None
-            if abs(normal.x()) > 0.5:
-                align = "right" if normal.x() > 0 else "left"
-                pos = QPointF(c.x() - normal.x() * 0.9 * base, c.y())
-            label_jobs.append((pos, a.label, st.ink_soft, align))
 
     # springs
     for s in model.springs:
@@ -377,26 +372,12 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
         else:
             painter.setPen(pen)
         painter.drawPath(shapes.coil_path(p1, p2, lay.turns(s.id), 0.42 * base))
-        if labels and not grey:
-            text = s.label
-            if labels == "values":
-                text += "  " + _value_text(model, s, "spring")
-            if f is not None:
-                text += f"  ({100 * f:.0f} %)"
-            label_jobs.append((_beside(p1, p2, 0.21 * base + 0.35 * fm.height() + 2, fm, text,
-                                       lanes.get(s.id, 0.0)), text, st.label, None))
 
     # dashpots
     for d in model.dampers:
         p1, p2 = lay.link_ends(d.a, d.b, lanes.get(d.id, 0.0), disp, scale)
         painter.setPen(QPen(ink, lw) if grey else pen)
         painter.drawPath(shapes.dashpot_path(p1, p2, 0.42 * base))
-        if labels and not grey:
-            text = d.label
-            if labels == "values":
-                text += "  " + _value_text(model, d, "dashpot")
-            label_jobs.append((_beside(p1, p2, 0.21 * base + 0.35 * fm.height() + 2, fm, text,
-                                       lanes.get(d.id, 0.0)), text, st.label, None))
 
     # masses
     for m in model.masses:
@@ -430,92 +411,191 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
             rect = lay.mass_rect(m, c)
             painter.drawRect(rect)
             below = rect.height() / 2
-        obstacles.append(QRectF(c.x() - below, c.y() - below, 2 * below, 2 * below))
         if m.fixed and not grey:
             painter.setPen(QPen(st.ink_soft, lw))
             _paint_locks(painter, lay, c, below, m.fixed)
         painter.setBrush(Qt.BrushStyle.NoBrush)
-        if labels and not grey:
-            text = m.label
-            if labels == "values":
-                text += "  " + _value_text(model, m, "mass")
-            if f is not None:
-                text += f"  ({100 * f:.0f} %)"
-            side = _free_side(lay, m.id)
-            gap = below + 0.2 * base
-            if side == "below":
-                mass_jobs.append((QPointF(c.x(), c.y() + gap + 0.5 * fm.height()),
-                                   text, st.label, None))
-            elif side == "above":
-                mass_jobs.append((QPointF(c.x(), c.y() - gap - 0.5 * fm.height()),
-                                   text, st.label, None))
-            elif side == "right":
-                mass_jobs.append((QPointF(c.x() + gap, c.y()), text, st.label, "left"))
-            else:
-                mass_jobs.append((QPointF(c.x() - gap, c.y()), text, st.label, "right"))
 
     if labels and not grey and model.kind == "line":
         # a small arrow saying which way the masses move
-        r = lay.rect
-        o = QPointF(r.left() + 0.4 * base, r.bottom() - 0.4 * base)
+        o = _axis_origin(lay)
         direction = QPointF(1, 0) if model.axis == "x" else QPointF(0, -1)
         painter.setPen(QPen(st.ink_soft, lw))
         painter.setBrush(QBrush(st.ink_soft))
         painter.drawPath(shapes.axis_arrow_path(o, direction, 1.2 * base, 0.3 * base))
         painter.setBrush(Qt.BrushStyle.NoBrush)
-        tip = QPointF(o.x() + direction.x() * 1.2 * base, o.y() + direction.y() * 1.2 * base)
-        label_jobs.append((QPointF(tip.x() + 0.35 * base * (1 if model.axis == "x" else 0) + 4,
-                                   tip.y() - (0.35 * base if model.axis == "y" else 0)),
-                           model.axis, st.ink_soft, "left"))
 
-    bounds = lay.rect
-    h = fm.height()
-    taken = _RectIndex(max(h, 8.0))
-    for o in obstacles:
-        taken.add(o)
-    for pos, text, color, align in mass_jobs + label_jobs:
+
+def _axis_origin(lay) -> QPointF:
+    r = lay.rect
+    return QPointF(r.left() + 0.4 * lay.base, r.bottom() - 0.4 * lay.base)
+
+
+def _symbol_half(lay, m) -> float:
+    """Half the size of a mass's symbol (device units)."""
+    if lay.model.kind == "torsion":
+        return lay.disc_radius(m)
+    if m.mass <= 0:
+        return 0.14 * lay.base
+    return lay.mass_rect(m, QPointF(0, 0)).height() / 2
+
+
+def symbol_rects(lay: SketchLayout, displacements: dict | None = None,
+                 scale: float = 1.0) -> list[QRectF]:
+    """Rectangles of the drawn symbols (masses, anchors, springs and dashpots in pieces) of one
+    frame: what a label must not cover."""
+    from app.drawing.labels import segment_boxes
+
+    base = lay.base
+    out = []
+    for a in lay.model.anchors:
+        c = lay.point(a.id)
+        out.append(QRectF(c.x() - 0.8 * base, c.y() - 0.8 * base, 1.6 * base, 1.6 * base))
+    lanes = lay.lanes()
+    for el in list(lay.model.springs) + list(lay.model.dampers):
+        p1, p2 = lay.link_ends(el.a, el.b, lanes.get(el.id, 0.0), displacements, scale)
+        out += segment_boxes(p1, p2, 0.21 * base)
+    for m in lay.model.masses:
+        c = lay.point(m.id, displacements, scale)
+        h = _symbol_half(lay, m)
+        out.append(QRectF(c.x() - h, c.y() - h, 2 * h, 2 * h))
+    return out
+
+
+def _paint_labels(painter, lay: SketchLayout, st: Style, labels, energy, motion_px: float):
+    """Place the labels once per layout (on the drawing at rest) and draw them."""
+    font = QFont(painter.font())
+    font.setPixelSize(int(max(9, min(28, lay.base * 0.40))))
+    texts = _label_texts(lay, labels, energy)
+    key = (labels, tuple(t for _k, _e, t in texts), round(motion_px, 1), font.pixelSize())
+    if getattr(lay, "_labels_key", None) != key:
+        lay._labels_key = key
+        lay._labels = _place_labels(lay, st, texts, QFontMetricsF(font), motion_px)
+        lay.placed_labels = [(t, r) for t, r, _c in lay._labels]
+    painter.setFont(font)
+    fm = QFontMetricsF(font)
+    for text, rect, color in lay._labels:
         painter.setPen(QPen(color))
-        w = fm.horizontalAdvance(text)
-        x = pos.x() if align == "left" else pos.x() - w if align == "right" else pos.x() - w / 2
-        # keep labels inside the sketch's rectangle
-        x = min(max(x, bounds.left() + 2), bounds.right() - w - 2)
-        rect = QRectF(x, pos.y() - h / 2, w, h)
-        rect = _clear_spot(rect, taken, h) or rect
-        taken.add(rect)
         painter.drawText(QPointF(rect.left(), rect.center().y() + fm.ascent() / 2
                                  - fm.descent() / 2), text)
 
 
-class _RectIndex:
-    """Rectangles bucketed on a square grid, so "does this overlap anything?" looks only at the
-    neighbourhood (labels of a 200-mass model are placed in linear time)."""
+def _label_texts(lay, labels, energy) -> list[tuple[str, object, str]]:
+    """``[(kind, element, text)]`` in placing order: masses, anchors, springs, dashpots."""
+    model = lay.model
+    out = []
+    for m in model.masses:
+        text = m.label
+        if labels == "values":
+            text += "  " + _value_text(model, m, "mass")
+        f = energy.get(m.id) if energy else None
+        if f is not None:
+            text += f"  ({100 * f:.0f} %)"
+        out.append(("mass", m, text))
+    for a in model.anchors:
+        out.append(("anchor", a, a.label))
+    for s in model.springs:
+        text = s.label
+        if labels == "values":
+            text += "  " + _value_text(model, s, "spring")
+        f = energy.get(s.id) if energy else None
+        if f is not None:
+            text += f"  ({100 * f:.0f} %)"
+        out.append(("spring", s, text))
+    for d in model.dampers:
+        text = d.label
+        if labels == "values":
+            text += "  " + _value_text(model, d, "dashpot")
+        out.append(("dashpot", d, text))
+    if model.kind == "line":
+        out.append(("axis", None, model.axis))
+    return out
 
-    def __init__(self, cell: float):
-        self.cell = cell
-        self.cells: dict[tuple[int, int], list[QRectF]] = {}
 
-    def _keys(self, r: QRectF):
-        c = self.cell
-        for i in range(math.floor(r.left() / c), math.floor(r.right() / c) + 1):
-            for j in range(math.floor(r.top() / c), math.floor(r.bottom() / c) + 1):
-                yield i, j
+def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
+    from app.drawing.labels import LabelPlacer, around, segment_boxes, shifted
 
-    def add(self, r: QRectF) -> None:
-        for k in self._keys(r):
-            self.cells.setdefault(k, []).append(r)
+    model = lay.model
+    base = lay.base
+    h = fm.height()
+    placer = LabelPlacer(h, lay.rect.adjusted(1, 1, -1, -1))
+    sweep = max(0.0, motion_px)
+    moving = {m.id for m in model.masses}
+    # what labels keep off: every symbol at rest, widened by the room it sweeps when it moves
+    for a in model.anchors:
+        c = lay.point(a.id)
+        placer.block(QRectF(c.x() - 0.8 * base, c.y() - 0.8 * base, 1.6 * base, 1.6 * base))
+    lanes = lay.lanes()
+    for el in list(model.springs) + list(model.dampers):
+        p1, p2 = lay.link_ends(el.a, el.b, lanes.get(el.id, 0.0))
+        grow = sweep if (el.a in moving or el.b in moving) else 0.0
+        for box in segment_boxes(p1, p2, 0.21 * base):
+            placer.block(box.adjusted(-grow, -grow, grow, grow))
+    mass_box = {}
+    for m in model.masses:
+        c = lay.point(m.id)
+        half = _symbol_half(lay, m)
+        box = QRectF(c.x() - half, c.y() - half, 2 * half, 2 * half)
+        if m.fixed:
+            box = box.adjusted(-0.4 * base, 0, 0, 0.4 * base)     # the lock marks
+        mass_box[m.id] = box
+        placer.block(box.adjusted(-sweep, -sweep, sweep, sweep))
+    if model.kind == "line":
+        o = _axis_origin(lay)
+        d = QPointF(1, 0) if model.axis == "x" else QPointF(0, -1)
+        tip = QPointF(o.x() + d.x() * 1.2 * base, o.y() + d.y() * 1.2 * base)
+        placer.block(QRectF(o, tip).normalized().adjusted(-0.3 * base, -0.3 * base,
+                                                          0.3 * base, 0.3 * base))
 
-    def hits(self, r: QRectF) -> bool:
-        return any(r.intersects(o) for k in self._keys(r) for o in self.cells.get(k, ()))
-
-
-def _clear_spot(rect: QRectF, taken: _RectIndex, h: float) -> QRectF | None:
-    """``rect`` or the nearest vertical shift of it (up to three lines either way) that overlaps
-    no label already placed and no symbol; None when every try collides."""
-    for k in (0, -1, 1, -2, 2, -3, 3):
-        r = rect.translated(0, k * 0.9 * h)
-        if not taken.hits(r.adjusted(-2, -1, 2, 1)):
-            return r
-    return None
+    out = []
+    for kind, el, text in texts:
+        w = fm.horizontalAdvance(text)
+        color = st.label
+        if kind == "mass":
+            box = mass_box[el.id].adjusted(-sweep, -sweep, sweep, sweep)
+            gap = 0.2 * base + placer.pad + 1     # the clear space round a label included
+            side = _free_side(lay, el.id)
+            c = box.center()
+            first = {"below": QRectF(c.x() - w / 2, box.bottom() + gap, w, h),
+                     "above": QRectF(c.x() - w / 2, box.top() - gap - h, w, h),
+                     "right": QRectF(box.right() + gap, c.y() - h / 2, w, h),
+                     "left": QRectF(box.left() - gap - w, c.y() - h / 2, w, h)}[side]
+            cands = [first] + list(around(box, w, h, gap))
+        elif kind == "anchor":
+            color = st.ink_soft
+            c = lay.point(el.id)
+            normal = lay.anchor_normal(el.id)
+            box = QRectF(c.x() - 0.8 * base, c.y() - 0.8 * base, 1.6 * base, 1.6 * base)
+            # on the hatched side, out of the way of the springs
+            g = placer.pad + 1
+            if abs(normal.x()) > 0.5:
+                x = box.left() - g - w if normal.x() > 0 else box.right() + g
+                first = QRectF(x, c.y() - h / 2, w, h)
+            else:
+                y = box.bottom() + g if normal.y() < 0 else box.top() - g - h
+                first = QRectF(c.x() - w / 2, y, w, h)
+            cands = [first] + list(around(box, w, h, g))
+        elif kind == "axis":
+            color = st.ink_soft
+            o = _axis_origin(lay)
+            if model.axis == "x":
+                first = QRectF(o.x() + 1.2 * base + 4, o.y() - h / 2, w, h)
+            else:
+                first = QRectF(o.x() + 0.4 * base, o.y() - 1.2 * base - h / 2, w, h)
+            cands = [first]
+        else:
+            p1, p2 = lay.link_ends(el.a, el.b, lanes.get(el.id, 0.0))
+            pos = _beside(p1, p2, 0.21 * base + 0.35 * h + 2 + sweep, fm, text,
+                          lanes.get(el.id, 0.0))
+            first = QRectF(pos.x() - w / 2, pos.y() - h / 2, w, h)
+            mid = QPointF(0.5 * (p1.x() + p2.x()), 0.5 * (p1.y() + p2.y()))
+            r = 0.21 * base + sweep
+            cands = list(shifted(first, h)) + list(around(
+                QRectF(mid.x() - r, mid.y() - r, 2 * r, 2 * r), w, h, placer.pad + 1))
+        rect = placer.place(text, cands)
+        if rect is not None:
+            out.append((text, rect, color))
+    return out
 
 
 def _beside(p1: QPointF, p2: QPointF, off: float, fm: QFontMetricsF, text: str,
@@ -572,4 +652,4 @@ def _paint_locks(painter, lay, c: QPointF, below: float, fixed):
         painter.drawPath(shapes.anchor_path(p, s, QPointF(0, -1), 3))
 
 
-__all__ = ["SketchLayout", "paint_sketch", "fit_scale", "LIGHT"]
+__all__ = ["SketchLayout", "paint_sketch", "fit_scale", "symbol_rects", "LIGHT"]

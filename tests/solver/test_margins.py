@@ -194,3 +194,65 @@ def test_cli_json_lists_conflicting_sources(tmp_path):
     got = {round(m["frequency_hz"], 6): m["conflicts"] for m in data["modes"]}
     assert got == {18.0: ["eng"], 23.0: [], 30.0: ["fan"], 35.0: ["eng", "fan"], 44.0: ["eng"]}
     assert data["margin_percent"] == 15.0
+
+
+def test_overlapping_orders_advice_clears_every_source():
+    """Issue 9 item 9, by hand: 600 rpm, orders 1 and 2 -> lines at 10 and 20 Hz; a 40 % margin
+    widens them to [10 * 0.6, 10 * 1.4] = [6, 14] and [20 * 0.6, 20 * 1.4] = [12, 28] Hz (common
+    practice), which overlap: together (6, 28) Hz. A mode at 13 Hz is inside both. Moving it to
+    14 Hz (order 1's edge) would land inside order 2, to 12 Hz inside order 1; the nearest clear
+    frequencies are 6 Hz below and 28 Hz above, so both conflicts advise those, and the smaller
+    move is down by 7 Hz. Checked: every advised frequency clears every widened interval."""
+    motor = Excitation(id="motor", type="speed", rpm=600.0, orders=(1.0, 2.0))
+    model = oscillators([13.0], excitations=(motor,), margin=40.0)
+    res = margin_check(model, solver.modes(model))
+    assert sorted(c.order for c in res.conflicts) == [1.0, 2.0]
+    for c in res.conflicts:
+        assert c.lower_to_hz == pytest.approx(6.0, rel=1e-12)
+        assert c.raise_to_hz == pytest.approx(28.0, rel=1e-12)
+        assert c.move_hz == pytest.approx(6.0 - 13.0, rel=1e-9)
+        assert "below 6 Hz" in c.message and "above 28 Hz" in c.message
+        for f in (c.lower_to_hz, c.raise_to_hz):
+            assert not margin_check(model, exact([f])).conflicts
+    np.testing.assert_allclose(res.keep_out, [(6.0, 28.0)], rtol=1e-12)
+
+
+@pytest.mark.parametrize("f", [7.0, 13.0, 27.0, 29.0, 40.0, 69.0])
+def test_advice_over_a_chain_of_sources(f):
+    """By hand (common practice rule, 40 %): 600 rpm orders 1, 2 -> [6, 14], [12, 28] Hz; a band
+    35 to 50 Hz -> [21, 70] Hz. Union: (6, 70) Hz, one interval, since [12, 28] and [21, 70]
+    overlap. Every conflicting mode (in one source or in two) is advised 6 Hz below or 70 Hz
+    above, nothing in between."""
+    motor = Excitation(id="motor", type="speed", rpm=600.0, orders=(1.0, 2.0))
+    band = Excitation(id="pump", type="band", f_min_hz=35.0, f_max_hz=50.0)
+    model = oscillators([f], excitations=(motor, band), margin=40.0)
+    res = margin_check(model, exact([f]))
+    np.testing.assert_allclose(res.keep_out, [(6.0, 70.0)], rtol=1e-12)
+    assert res.conflicts
+    for c in res.conflicts:
+        assert (c.lower_to_hz, c.raise_to_hz) == pytest.approx((6.0, 70.0), rel=1e-12)
+
+
+def test_touching_intervals_leave_their_edge_clear():
+    """By hand: 600 rpm order 1 at 25 % -> [7.5, 12.5] Hz; a band 12.5/0.75 = 16.667 to 20 Hz at
+    25 % -> [12.5, 25] Hz. They touch at 12.5 Hz, which has exactly the margin from both (edges
+    pass, common practice), so a mode at 11 Hz is advised 7.5 or 12.5 Hz, not 25."""
+    motor = Excitation(id="motor", type="speed", rpm=600.0, orders=(1.0,))
+    band = Excitation(id="pump", type="band", f_min_hz=12.5 / 0.75, f_max_hz=20.0)
+    model = oscillators([11.0], excitations=(motor, band), margin=25.0)
+    res = margin_check(model, exact([11.0]))
+    (c,) = res.conflicts
+    assert (c.lower_to_hz, c.raise_to_hz) == pytest.approx((7.5, 12.5), rel=1e-12)
+    assert not margin_check(model, exact([12.5])).conflicts
+
+
+def test_band_from_zero_has_no_lower_advice():
+    """A band from 0 to 10 Hz widened by 15 % is [0, 11.5] Hz (common practice): a mode at 5 Hz
+    can only be raised; lower_to_hz is 0 and the message offers the way up only."""
+    band = Excitation(id="low", type="band", f_min_hz=0.0, f_max_hz=10.0)
+    model = oscillators([5.0], excitations=(band,))
+    (c,) = margin_check(model, exact([5.0])).conflicts
+    assert c.lower_to_hz == 0.0 and c.raise_to_hz == pytest.approx(11.5, rel=1e-12)
+    assert c.move_hz == pytest.approx(6.5, rel=1e-12)
+    assert "above 11.5 Hz" in c.message and "below" not in c.message.split(":")[1].replace(
+        "no frequency below", "")

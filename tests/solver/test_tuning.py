@@ -6,16 +6,20 @@ Defaults as in REFERENCES.md: m = 2 kg, k = 800 N/m, w0 = 20 rad/s.
 from __future__ import annotations
 
 import math
+import os
 import re
 
+import mpmath
 import numpy as np
 import pytest
 import scipy.linalg
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, Phase, assume, given, settings
 from hypothesis import strategies as st
 
 import solver
+import sw_mp
 from solver import Anchor, Mass, Model, ModelError, Spring
+from solver.tuning import value_of, with_value
 from sw_builders import chain
 
 TWO_PI = 2 * math.pi
@@ -403,3 +407,194 @@ def test_rank_against_finite_differences(kind):
                 assert s == pytest.approx(fd, abs=1e-6), (seed, mode, eid, field)
                 checked += 1
     assert checked > 10
+
+
+# --------------------------------------------------------------------------------------------
+# retune and limits on random models (hypothesis; mpmath references in sw_mp)
+
+#: examples per property test: 20 in make test, SW_EXAMPLES / 2 in make fuzz
+EXAMPLES = max(1, int(os.environ.get("SW_EXAMPLES", "40")) // 2)
+PROPERTY = settings(max_examples=EXAMPLES, deadline=None,
+                    phases=[Phase.explicit, Phase.reuse, Phase.generate],
+                    suppress_health_check=[HealthCheck.too_slow, HealthCheck.filter_too_much])
+
+
+@st.composite
+def small_models(draw):
+    """1-4 nodes with mass (some massless junctions), 0-2 anchors, 1-6 springs; planar layouts
+    with k_t (often 0: unheld junction directions, mechanisms) and locked directions."""
+    kind = draw(st.sampled_from(["line", "planar", "torsion"]))
+    n_mass = draw(st.integers(1, 4))
+    n_anchor = draw(st.integers(0, 2))
+    cells = draw(st.lists(st.tuples(st.integers(0, 3), st.integers(0, 3)),
+                          min_size=n_mass + n_anchor, max_size=n_mass + n_anchor, unique=True))
+    jit = draw(st.lists(st.floats(-0.3, 0.3), min_size=2 * len(cells), max_size=2 * len(cells)))
+    pos = [(cx + jit[2 * i], cy + jit[2 * i + 1]) for i, (cx, cy) in enumerate(cells)]
+    masses = []
+    for i in range(n_mass):
+        mass = draw(st.one_of(st.just(0.0), st.floats(0.1, 10.0))) if i else draw(st.floats(0.1, 10.0))
+        fixed = (draw(st.sampled_from(["x", "y"])),) if kind == "planar" and draw(
+            st.integers(0, 6)) == 0 else ()
+        masses.append(Mass(id=f"m{i}", x=pos[i][0], y=pos[i][1], mass=mass, fixed=fixed))
+    anchors = [Anchor(id=f"A{j}", x=pos[n_mass + j][0], y=pos[n_mass + j][1]) for j in range(n_anchor)]
+    nodes = [m.id for m in masses] + [a.id for a in anchors]
+    springs = []
+    if len(nodes) > 1:
+        pairs = draw(st.lists(st.tuples(st.integers(0, len(nodes) - 1), st.integers(0, len(nodes) - 1))
+                              .filter(lambda p: p[0] != p[1]), min_size=1, max_size=6))
+        for j, (a, b) in enumerate(pairs):
+            if a >= n_mass and b >= n_mass:
+                continue
+            kt = draw(st.one_of(st.just(0.0), st.floats(1.0, 1e3))) if kind == "planar" else 0.0
+            springs.append(Spring(id=f"s{j}", a=nodes[a], b=nodes[b], k=draw(st.floats(10.0, 1e4)), k_t=kt))
+    return Model(kind=kind, masses=tuple(masses), anchors=tuple(anchors), springs=tuple(springs))
+
+
+def _elements(model):
+    out = [(s.id, "k") for s in model.springs]
+    if model.kind == "planar":
+        out += [(s.id, "k_t") for s in model.springs]
+    out += [(m.id, "mass") for m in model.masses if m.mass > 0]
+    return out
+
+
+def _positive(model, eid, field):
+    """The model with the element's value positive (k_t = 0 is set to the spring's k)."""
+    if value_of(model, eid, field) > 0:
+        return model
+    return with_value(model, eid, model.element(eid).k, field)
+
+
+@PROPERTY
+@given(small_models(), st.data())
+def test_limits_match_mpmath(model, data):
+    """Random models: limit_spectrum of a random element, both ways, against the mpmath reference
+    with the value 1e24 away (sw_mp.check_limits; tolerances there)."""
+    assume(solver.modes(model).n_modes > 0 and _elements(model))
+    eid, field = data.draw(st.sampled_from(_elements(model)))
+    sw_mp.check_limits(_positive(model, eid, field), eid, field)
+
+
+@PROPERTY
+@given(small_models(), st.data())
+def test_retune_inside_and_outside_the_exact_range(model, data):
+    """Random models, element and mode; the range [lo, hi] from the mpmath reference at values 1e24
+    away (sw_mp). A target inside (5 to 95 % of it): retune succeeds and the mpmath frequencies of
+    the model with the returned value put mode N on it (rtol 1e-7). A target outside: ModelError
+    "cannot reach" stating lo and hi (7 digits), or "does not depend" when lo = hi."""
+    res = solver.modes(model)
+    assume(res.n_modes > 0 and _elements(model))
+    eid, field = data.draw(st.sampled_from(_elements(model)))
+    mode = data.draw(st.integers(1, res.n_modes))
+    work = _positive(model, eid, field)
+    assume(not solver.modes(work).is_zero[mode - 1])
+    v = value_of(work, eid, field)
+    ends = [sw_mp.frequencies_hz(with_value(work, eid, v * f, field))[mode - 1] for f in (1 / sw_mp.FAR, sw_mp.FAR)]
+    lo, hi = sorted(ends)
+    top = max(sw_mp.frequencies_hz(work))
+    unbounded = hi > 1e6 * top
+    if hi - lo <= 1e-9 * hi:
+        now = sw_mp.frequencies_hz(model)[mode - 1] if value_of(model, eid, field) > 0 else lo
+        target = now * data.draw(st.sampled_from([0.5, 2.0]))
+        with pytest.raises(ModelError, match="does not depend"):
+            solver.retune(model, eid, mode, target, field=field)
+        return
+    can_go_below = lo > 1e-6 * top
+    if data.draw(st.booleans()) or (unbounded and not can_go_below):
+        t = data.draw(st.floats(0.05, 0.95))
+        target = lo + t * ((10 * max(lo, top)) if unbounded else (hi - lo))
+        assume(target > 0 and (unbounded or hi - lo > 1e-4 * hi))
+        value = solver.retune(model, eid, mode, target, field=field)
+        got = sw_mp.frequencies_hz(with_value(model, eid, value, field))[mode - 1]
+        assert got == pytest.approx(target, rel=1e-7)
+    else:
+        below = can_go_below and (unbounded or data.draw(st.booleans()))
+        target = lo * data.draw(st.floats(0.1, 0.999)) if below else hi * data.draw(st.floats(1.001, 3.0))
+        assume(target > 0 and math.isfinite(target))
+        with pytest.raises(ModelError, match="cannot reach") as err:
+            solver.retune(model, eid, mode, target, field=field)
+        msg = str(err.value)
+        assert sw_mp.stated(msg, lo, atol=1e-9 * top), (msg, lo, hi)
+        if unbounded:
+            assert "without bound" in msg
+        else:
+            assert sw_mp.stated(msg, hi), (msg, lo, hi)
+
+
+def _fd_groups(lam, rtol=1e-6, gap=5e-2):
+    """Groups of equal eigenvalues (within rtol) set apart from their neighbours by more than
+    ``gap`` (relative, or absolute 1e-6 of the largest for zeros): index lists."""
+    top = max(float(lam.max(initial=0.0)), 1e-12)
+    groups, i = [], 0
+    while i < len(lam):
+        j = i
+        while j + 1 < len(lam) and lam[j + 1] - lam[j] <= rtol * lam[j + 1] + 1e-9 * top:
+            j += 1
+        lo_ok = i == 0 or lam[i] - lam[i - 1] > gap * lam[i] + 1e-6 * top
+        hi_ok = j + 1 == len(lam) or lam[j + 1] - lam[j] > gap * lam[j + 1] + 1e-6 * top
+        if lo_ok and hi_ok:
+            groups.append(list(range(i, j + 1)))
+        i = j + 1
+    return groups
+
+
+@PROPERTY
+@given(small_models(), st.data())
+def test_sensitivities_equal_finite_differences_everywhere(model, data):
+    """Issue 9 item 7, every element of random models with junctions and unheld directions:
+    d lambda/dp (solver.sensitivities) against differences of the eigenvalues of re-solved
+    models, the independent check, solved in mpmath at 40 digits (sw_mp: no round-off in the
+    difference): central on log p (step 1e-5, error ~1e-10) for positive k, k_t and masses;
+    forward from 0 (steps 1e-5 and 5e-6 of the softest stiffness, Richardson: error ~1e-10) for
+    k_t = 0; steps far above the 1e-16 by which float positions make "collinear" springs not
+    quite collinear. Separated single
+    modes compare one by one, a group of equal eigenvalues by its sum (the only defined
+    quantity, math), zero groups included. rtol 1e-6, atol 1e-7 per kg of the lightest mass
+    (the analytic values come from double-precision shapes)."""
+    unheld = []
+    if model.kind == "planar" and data.draw(st.booleans()):
+        # a junction J on a ray from a mass, held along the ray only (both springs k_t = 0):
+        # J's sideways direction is unheld, the case of issue 9 item 7
+        heavy = [m for m in model.masses if m.mass > 0]
+        m = data.draw(st.sampled_from(heavy))
+        ang = data.draw(st.floats(0, 2 * math.pi))
+        ux, uy = math.cos(ang), math.sin(ang)
+        model = model.with_changes(put=[
+            Mass(id="J", x=m.x + 0.5 * ux, y=m.y + 0.5 * uy, mass=0.0),
+            Anchor(id="AJ", x=m.x + ux, y=m.y + uy),
+            Spring(id="u1", a=m.id, b="J", k=data.draw(st.floats(10.0, 1e4))),
+            Spring(id="u2", a="J", b="AJ", k=data.draw(st.floats(10.0, 1e4)))])
+        unheld = [("u1", "k_t"), ("u2", "k_t")]
+    assume(model.springs)
+    a = solver.analyse(model)
+    assume(a.modal.n_modes > 0)
+    sens = a.sensitivity
+
+    def lam_at(value):   # mpf: the difference is taken before rounding to double
+        return sw_mp.eigenvalues(with_value(model, eid, value, field), 40)
+
+    elements = _elements(model)
+    eid, field = data.draw(st.sampled_from(unheld or elements))
+    v = value_of(model, eid, field)
+    lam0 = sw_mp.eigenvalues(model, 40)
+    lam = np.array([float(x) for x in lam0])
+    if field == "mass":
+        analytic = sens.dlambda_dm[:, sens.mass_ids.index(eid)]
+    else:
+        j = sens.spring_ids.index(eid)
+        analytic = (sens.dlambda_dk if field == "k" else sens.dlambda_dkt)[:, j]
+    with mpmath.workdps(40):   # differences at the references' precision
+        if v > 0:
+            h = mpmath.mpf("1e-5")
+            up, dn = lam_at(v * mpmath.exp(h)), lam_at(v * mpmath.exp(-h))
+            fd = [float((u - d) / (v * (mpmath.exp(h) - mpmath.exp(-h)))) for u, d in zip(up, dn)]
+        else:
+            step = 1e-5 * min(x for s in model.springs for x in (s.k, s.k_t) if x > 0)
+            full, half = lam_at(step), lam_at(step / 2)
+            fd = [float(2 * (b - a0) / (step / 2) - (f - a0) / step)
+                  for f, b, a0 in zip(full, half, lam0)]
+    fd = np.array(fd)
+    light = min(m.mass for m in model.masses if m.mass > 0)
+    for g in _fd_groups(lam):
+        want, got = fd[g].sum(), analytic[g].sum()
+        assert abs(got - want) <= 1e-6 * abs(want) + 1e-7 * len(g) / light, (eid, field, g, got, want)

@@ -1,0 +1,116 @@
+"""A mode (or the free response) animated on the main canvas itself.
+
+The Motion panel sends each frame (``MotionPanel.canvas_frame``); this moves the drawn masses by
+the frame's displacements, magnified so that the largest displacement of the animation is a third
+of the closest spacing between two nodes on the canvas: big enough to read at a glance, small
+enough that neighbours never swap places. Discs of a torsion model show a radius mark turned by
+the angle (the largest at 55 degrees). Only the drawing moves (``NodeItem.set_display_offset``);
+the model, the items' positions and the undo history are untouched, so editing goes on while it
+plays. A caption in the canvas corner names the mode and its frequency.
+"""
+
+from __future__ import annotations
+
+import math
+
+from PySide6.QtCore import Qt
+from PySide6.QtWidgets import QLabel
+
+from app.drawing.style import current_style
+
+from .mass_item import MassItem
+
+#: The largest drawn displacement, as a fraction of the closest node spacing on the canvas.
+SPACING_FRACTION = 0.33
+#: The largest drawn rotation of a disc (rad).
+MAX_TURN = math.radians(55)
+
+
+class CanvasMotion:
+    """Moves the items of a :class:`app.canvas.ModelScene` by animation frames."""
+
+    def __init__(self, scene, view=None):
+        self.scene = scene
+        self.active = False
+        self.magnification = 1.0
+        self._spacing_key = None
+        self._spacing = 1.0
+        self.caption = QLabel(view.viewport() if view is not None else None)
+        self.caption.setObjectName("canvas_motion_caption")
+        self.caption.setAttribute(Qt.WidgetAttribute.WA_TransparentForMouseEvents)
+        st = current_style()
+        self.caption.setStyleSheet(f"background: {st.panel.name()}; color: {st.ink.name()};"
+                                   f" border: 1px solid {st.ink_soft.name()}; padding: 2px 6px;")
+        self.caption.move(8, 8)
+        self.caption.hide()
+
+    def spacing(self) -> float:
+        """Closest distance between two node items (scene units), cached per layout."""
+        nodes = self.scene.nodes
+        key = tuple((eid, item.pos().x(), item.pos().y()) for eid, item in nodes.items())
+        if key != self._spacing_key:
+            self._spacing_key = key
+            pts = [(item.pos().x(), item.pos().y()) for item in nodes.values()]
+            best = math.inf
+            if len(pts) <= 2000:
+                pts.sort()
+                for i, (x, y) in enumerate(pts):
+                    for x2, y2 in pts[i + 1:]:
+                        if x2 - x >= best:
+                            break
+                        d = math.hypot(x2 - x, y2 - y)
+                        if d > 1e-9:
+                            best = min(best, d)
+            self._spacing = best if math.isfinite(best) else 40.0
+        return self._spacing
+
+    def show_frame(self, displacements: dict, peak: float, caption: str = "") -> None:
+        """Draw the frame ``{mass_id: {direction: value}}`` (m, rad); ``peak`` is the largest
+        value of the whole animation. An empty frame puts every item back."""
+        if not displacements or peak <= 0:
+            self.clear()
+            return
+        self.active = True
+        torsion = self.scene.document.model.kind == "torsion"
+        if torsion:
+            self.magnification = MAX_TURN / peak
+        else:
+            self.magnification = SPACING_FRACTION * self.spacing() / peak
+        g = self.magnification
+        for eid, item in self.scene.nodes.items():
+            d = displacements.get(eid)
+            if not isinstance(item, MassItem) or not d:
+                if getattr(item, "_display_offset", None) is not None:
+                    item.set_display_offset(0.0, 0.0)
+                continue
+            if torsion:
+                item.set_display_offset(0.0, 0.0, d.get("theta", 0.0) * g)
+            else:
+                # model y is up, the scene's y is down
+                item.set_display_offset(d.get("x", 0.0) * g, -d.get("y", 0.0) * g)
+        for link in self.scene.links.values():
+            link.refresh(label=False)      # labels stay where they were placed, at rest
+        if caption:
+            self.caption.setText(caption)
+            self.caption.adjustSize()
+            self.caption.show()
+            self.caption.raise_()
+
+    def clear(self) -> None:
+        """Every item back where the model puts it; the caption hidden."""
+        self.active = False
+        for item in self.scene.nodes.values():
+            if getattr(item, "_display_offset", None) is not None:
+                item.set_display_offset(0.0, 0.0)
+                item._display_offset = None
+        for link in self.scene.links.values():
+            link.refresh(label=False)
+        self.caption.hide()
+
+    def drawn_offset(self, node_id: str):
+        """The display offset of a node now (scene units), for tests and tooltips."""
+        item = self.scene.nodes[node_id]
+        return item.shown_pos() - item.pos()
+
+
+__all__ = ["CanvasMotion", "SPACING_FRACTION", "MAX_TURN"]
