@@ -8,8 +8,8 @@ of an order line with a mode marked: filled and labelled with its speed inside t
 hollow outside it. Under the plot the crossings inside the range are listed in words.
 
 The panel follows the document: new results redraw it (only while it is shown; a hidden panel
-redraws when it is shown again), and opening another model clears it until that model's results
-arrive.
+redraws when it is shown again; during a slider drag it holds, dimmed, and redraws on release),
+and opening another model clears it until that model's results arrive.
 """
 
 from __future__ import annotations
@@ -50,6 +50,7 @@ class InterferencePanel(QWidget):
         self.data = None            # the solver.interference.Interference drawn now
         self._analysis = None
         self._dirty = False
+        self._live = False
         st = current_style()
         pg.setConfigOptions(antialias=True)
         self.plot = pg.PlotWidget(axisItems=true_value_axes())
@@ -90,15 +91,27 @@ class InterferencePanel(QWidget):
 
     # -- public -------------------------------------------------------------------------------
     def set_analysis(self, analysis) -> None:
-        """New results (or None): redraw now when shown, else when next shown."""
+        """New results (or None): redraw now when shown, else when next shown; during a live
+        gesture (a slider drag) the drawn diagram is held, dimmed, and redrawn on release."""
         self._analysis = analysis
         if analysis is None:
             self.clear()
             return
-        if self.isVisible():
+        if self.isVisible() and not self._live:
             self._redraw()
         else:
             self._dirty = True
+            if self._live and self.data is not None:
+                self.plot.getPlotItem().setOpacity(0.45)
+
+    def set_live(self, live: bool) -> None:
+        """A live gesture starts or ends (``SolveService.live_changed``): a redraw costs tens of
+        ms, too much for every slider step, so the diagram waits for the release."""
+        self._live = bool(live)
+        if not self._live:
+            self.plot.getPlotItem().setOpacity(1.0)
+            if self._dirty and self._analysis is not None and self.isVisible():
+                self._redraw()
 
     def clear(self, text: str = "") -> None:
         """No diagram (another model is being opened, or no results yet)."""
@@ -122,12 +135,13 @@ class InterferencePanel(QWidget):
 
     def showEvent(self, event):  # noqa: N802
         super().showEvent(event)
-        if self._dirty and self._analysis is not None:
+        if self._dirty and self._analysis is not None and not self._live:
             self._redraw()
 
     # -- drawing ------------------------------------------------------------------------------
     def _redraw(self) -> None:
         self._dirty = False
+        self.plot.getPlotItem().setOpacity(1.0)
         analysis = self._analysis
         model = analysis.model
         try:
@@ -225,15 +239,13 @@ class InterferencePanel(QWidget):
         inside = [c for c in data.crossings if c.in_range]
         outside = [c for c in data.crossings if not c.in_range]
         if outside:
-            pi.addItem(pg.ScatterPlotItem([c.rpm for c in outside],
-                                          [c.frequency_hz for c in outside], size=8,
-                                          brush=pg.mkBrush(None), pen=pg.mkPen(st.ink_soft,
-                                                                               width=1.2)))
+            pi.plot([c.rpm for c in outside], [c.frequency_hz for c in outside], pen=None,
+                    symbol="o", symbolSize=8, symbolBrush=pg.mkBrush(None),
+                    symbolPen=pg.mkPen(st.ink_soft, width=1.2))
         if inside:
-            pi.addItem(pg.ScatterPlotItem([c.rpm for c in inside],
-                                          [c.frequency_hz for c in inside], size=10,
-                                          brush=pg.mkBrush(st.error),
-                                          pen=pg.mkPen(st.background, width=1)))
+            pi.plot([c.rpm for c in inside], [c.frequency_hz for c in inside], pen=None,
+                    symbol="o", symbolSize=10, symbolBrush=pg.mkBrush(st.error),
+                    symbolPen=pg.mkPen(st.background, width=1))
             for c in inside[:MAX_LABELS]:
                 # right of the middle the speed reads to the left of its dot, clear of the
                 # order names at the right edge

@@ -60,8 +60,8 @@ def test_diagram_of_the_fan_drive(qtbot, window):
     pi = panel.plot.getPlotItem()
     assert pi.getAxis("bottom").labelText == "shaft speed (rpm)"
     assert pi.getAxis("left").labelText == "frequency (Hz)"
-    dots = [it for it in pi.items if isinstance(it, pg.ScatterPlotItem)]
-    xs = np.concatenate([it.getData()[0] for it in dots])
+    dots = [it for it in pi.listDataItems() if it.opts.get("symbol") == "o"]
+    xs = np.concatenate([it.xData for it in dots])
     assert np.any(np.isclose(xs, 60 * f[1] / 2, rtol=1e-9))
     names = [it.toPlainText() for it in pi.items if isinstance(it, pg.TextItem)]
     assert "Drive speed ×2" in names and "Drive speed ×7" in names
@@ -102,8 +102,8 @@ def test_opening_another_file_clears_the_diagram(qtbot, window):
                     and window.analysis.model == window.document.model, timeout=8000)
     assert panel.data is None
     assert "No shaft-speed source" in panel.message.text()
-    assert not [it for it in panel.plot.getPlotItem().items
-                if isinstance(it, (pg.ScatterPlotItem, pg.TextItem))]
+    assert not panel.plot.getPlotItem().listDataItems()
+    assert not [it for it in panel.plot.getPlotItem().items if isinstance(it, pg.TextItem)]
     # the Sources panel shows the new model's band, ready to edit
     assert window.sources_panel.table.item(0, 0).text() == "Sine test band"
 
@@ -162,3 +162,27 @@ def test_clip_check_can_fail(qtbot):
     over.setGeometry(80, 10, 50, 20)
     parent.show()
     assert not _clipped(inside) and _clipped(over)
+
+
+def test_diagram_holds_during_a_live_drag(qtbot):
+    """Common practice for costly views (DEVELOPERS.md, live gestures): while a slider is dragged
+    the diagram keeps its last drawing, dimmed; on release it shows the latest results."""
+    from app.docks.interference_panel import InterferencePanel
+
+    model = solver.load_model(FAN)
+    panel = InterferencePanel()
+    qtbot.addWidget(panel)
+    panel.resize(500, 350)
+    panel.show()
+    qtbot.waitExposed(panel)
+    panel.set_analysis(solver.analyse(model))
+    first = panel.data
+    slower = model.with_changes(put=[solver.Excitation(id="drive", type="speed", label="Drive",
+                                                       rpm_min=600.0, rpm_max=1700.0,
+                                                       orders=(1.0, 2.0, 7.0))])
+    panel.set_live(True)
+    panel.set_analysis(solver.analyse(slower))
+    assert panel.data is first and panel.plot.getPlotItem().opacity() < 1
+    panel.set_live(False)
+    assert panel.data is not first and not panel.data.in_range    # 1722.8 rpm > 1700 rpm
+    assert panel.plot.getPlotItem().opacity() == 1.0
