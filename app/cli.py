@@ -23,22 +23,43 @@ CAUTION = ("A lumped model is an approximation: confirm results by test or detai
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message):  # one line, exit 2, like every other bad input
-        self.exit(2, f"springwright: {message}\n")
+        from solver.errors import one_line
+
+        self.exit(2, f"springwright: {one_line(message)}\n")
 
 
-def _fail(message: str) -> int:
-    print(f"springwright: {message}", file=sys.stderr)
-    return 2
+def _fail(message: str, code: int = 2) -> int:
+    from solver.errors import one_line
+
+    print(f"springwright: {one_line(message)}", file=sys.stderr)
+    return code
 
 
 def _load(path: str):
+    """(model, None), or (None, the one-line message) for any file that is not a valid model."""
     from solver import ModelError, load_model
+    from solver.errors import one_line
 
     try:
         return load_model(path), None
-    except ModelError as exc:
+    except ModelError as exc:   # load_model's message starts with the file's name
         text = str(exc)
-        return None, text if text.startswith(str(path)) else f"{path}: {text}"
+        name = one_line(path)
+        return None, text if text.startswith(name) else f"{name}: {text}"
+
+
+def _output_problem(out: Path) -> str | None:
+    """Why the report cannot be written to ``out`` (checked before the costly rendering)."""
+    folder = out.parent if str(out.parent) else Path(".")
+    if out.is_dir():
+        return "is a folder; give the PNG file to write, e.g. -o report.png"
+    if not folder.is_dir():
+        return f"the folder {folder} does not exist"
+    if out.exists() and not out.is_file():
+        return "is not a regular file; give the PNG file to write"
+    if not os.access(folder, os.W_OK | os.X_OK) or (out.exists() and not os.access(out, os.W_OK)):
+        return "no permission to write there"
+    return None
 
 
 def _num(value: float):
@@ -198,20 +219,23 @@ def cmd_solve(args) -> int:
 
 def cmd_report(args) -> int:
     from solver import ModelError, analyse
+    from solver.errors import one_line
 
     model, err = _load(args.file)
     if err:
         return _fail(err)
+    out = Path(args.output)
+    problem = _output_problem(out) if args.output else "no output file given"
+    if problem:
+        return _fail(f"{args.output}: cannot write the report: {problem}")
     os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
     try:
         from app.report import render_report
 
         analysis = analyse(model)
-        out = Path(args.output)
         if out.suffix.lower() != ".png":
-            print(f"note: {out} gets PNG data (the report is always a PNG)", file=sys.stderr)
-        if out.parent and not out.parent.exists():
-            return _fail(f"{out}: the folder {out.parent} does not exist")
+            print(f"note: {one_line(str(out))} gets PNG data (the report is always a PNG)",
+                  file=sys.stderr)
         render_report(model, analysis, out)
     except ModelError as exc:
         return _fail(f"{args.file}: {exc}")
@@ -238,10 +262,11 @@ def main(argv=None) -> int:
         except Exception as exc:   # a bug, not the user's input: one line, the details on request
             if os.environ.get("SPRINGWRIGHT_DEBUG"):
                 raise
-            print(f"springwright: internal error on {args.file}: {type(exc).__name__}: {exc}"
-                  " (set SPRINGWRIGHT_DEBUG=1 for the traceback; please report it)",
-                  file=sys.stderr)
-            return 1
+            from solver.errors import shown
+
+            return _fail(f"internal error on {args.file}: {type(exc).__name__}:"
+                         f" {shown(str(exc), 200)} (set SPRINGWRIGHT_DEBUG=1 for the traceback;"
+                         " please report it)", code=1)
     parser = _Parser(prog="springwright",
                      description="Open the Springwright desktop program (on a built-in example"
                                  " when no FILE is given). Also: springwright solve FILE [--json],"

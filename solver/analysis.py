@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from .errors import checked_arguments
 from .assemble import System, assemble
 from .metrics import EnergyResult, Sensitivity, energy_fractions, sensitivities
 from .model import Model
@@ -26,6 +27,7 @@ class Analysis:
         return self.modal.n_modes
 
 
+@checked_arguments
 def analyse(model: Model, count: int | None = None) -> Analysis:
     """Assemble, solve and post-process a model (see :func:`solver.modes` for ``count``)."""
     system = assemble(model)

@@ -25,7 +25,7 @@ import scipy.linalg
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
-from .errors import ModelError
+from .errors import ModelError, checked_arguments
 from .model import Model
 
 #: Above this many DOFs the matrices are kept sparse (chosen with bench/solver_bench.py).
@@ -133,6 +133,7 @@ def _no_dof_message(model: Model, mass_id: str, direction: str) -> str:
     return f'mass "{mass_id}" is massless; its {direction} motion is condensed out'
 
 
+@checked_arguments
 def assemble(model: Model, sparse: bool | None = None) -> System:
     """Assemble M, K and C of a model, condensing massless junctions.
 

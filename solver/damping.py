@@ -28,10 +28,11 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from .assemble import System, assemble
-from .errors import ModelError
+from .errors import ModelError, checked_arguments
 from .model import Model
 
 
+@checked_arguments
 def rayleigh_coefficients(f1_hz: float, zeta1: float, f2_hz: float, zeta2: float):
     """``(alpha, beta)`` of Rayleigh damping giving ratio zeta1 at f1 and zeta2 at f2.
 
@@ -123,6 +124,7 @@ def _dense(mat) -> np.ndarray:
     return mat.toarray() if sp.issparse(mat) else np.asarray(mat, float)
 
 
+@checked_arguments
 def state_space(model_or_system, damped: bool = True) -> StateSpace:
     """State matrix of ``M x'' + C x' + K x = f`` with massless junctions, solved exactly.
 
@@ -308,6 +310,7 @@ class DampedModes:
     time_constants_s: np.ndarray = None
 
 
+@checked_arguments
 def damped_modes(model_or_system) -> DampedModes:
     """Eigenvalues of the exact state matrix (``state_space``) of a model with its dashpots and
     damping model (dense LAPACK).

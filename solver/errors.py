@@ -1,25 +1,93 @@
-"""Errors a user can cause. Messages name the element, the field and what is allowed."""
+"""Errors a user can cause. Messages name the element, the field and what is allowed.
+
+Messages are one printable line whatever a file holds: :func:`one_line` escapes line breaks,
+control and format characters and lone surrogates, and :func:`shown` gives a value in a few dozen
+characters (a 10 MB string or an integer of 5,000 digits does not end up in a message whole).
+"""
+
+from __future__ import annotations
+
+import math
+import numbers as _numbers
+
+#: the longest value shown in a message, in characters
+SHOWN_MAX = 60
 
 
 class ModelError(ValueError):
-    """The model is not valid or cannot be analysed as asked (bad value, unknown id, unreachable target)."""
+    """The model is not valid or cannot be analysed as asked (bad value, unknown id, unreachable target).
+
+    ``path`` is where in the model file the bad value sits, as JSON path parts
+    (``("springs", 3, "k")``), when the error comes from a value a file can hold; ``()`` otherwise.
+    """
+
+    def __init__(self, message: str = "", path=()):
+        super().__init__(message)
+        self.path = tuple(path)
 
 
 class ModelFileError(ModelError):
     """A model file cannot be read: not JSON, not a Springwright model, or an invalid model.
 
-    A subclass of :class:`ModelError`, so one ``except ModelError`` catches both.
+    A subclass of :class:`ModelError`, so one ``except ModelError`` catches both. The message is
+    one line: ``<file>: <JSON path>: <problem and what is allowed>``.
     """
+
+
+def one_line(text: str) -> str:
+    """``text`` with every character that is not printable escaped (``\\n``, ``\\x1b``,
+    ``\\u2028``, ``\\udc80``...): it prints as one line and cannot move a terminal's cursor."""
+    text = str(text)
+    if text.isprintable():
+        return text
+    out = []
+    for ch in text:
+        if ch.isprintable():
+            out.append(ch)
+        elif ch in "\n\r\t":
+            out.append({"\n": "\\n", "\r": "\\r", "\t": "\\t"}[ch])
+        else:
+            code = ord(ch)
+            out.append(f"\\x{code:02x}" if code < 0x100 else
+                       f"\\u{code:04x}" if code < 0x10000 else f"\\U{code:08x}")
+    return "".join(out)
+
+
+def shown(value, limit: int = SHOWN_MAX) -> str:
+    """A short, one-line representation of a value for a message (``'abc…'`` past ``limit``)."""
+    if isinstance(value, int) and not isinstance(value, bool) and value.bit_length() > 200:
+        # repr() of an integer past 4,300 digits raises ValueError; its size says enough
+        digits = int(value.bit_length() * math.log10(2)) + 1
+        return f"{'-' if value < 0 else ''}an integer of about {digits} digits"
+    if isinstance(value, (list, tuple)) and len(value) > 10:
+        return f"a list of {len(value)} items"
+    if isinstance(value, dict) and len(value) > 10:
+        return f"an object of {len(value)} keys"
+    try:
+        text = repr(value)
+    except Exception:   # noqa: BLE001  (a value whose repr fails still gets a message)
+        text = f"<{type(value).__name__}>"
+    text = one_line(text)
+    return text if len(text) <= limit else text[: limit - 1] + "…"
+
+
+def is_number(value) -> bool:
+    """True for real numbers (int, float, numpy floats and ints); False for bool, text, None."""
+    t = type(value)
+    if t is float or t is int:
+        return True
+    return isinstance(value, _numbers.Real) and not isinstance(value, bool) and \
+        t.__name__ != "bool_"
 
 
 def number(value, what: str, kind=float):
     """``kind(value)`` (float or complex), or a ModelError naming ``what`` when it is not a number."""
     if isinstance(value, (str, bytes)) or value is None or isinstance(value, bool):
-        raise ModelError(f"{what} must be a number, got {value!r}")
+        raise ModelError(f"{what} must be a number, got {shown(value)}")
     try:
         return kind(value)
-    except (TypeError, ValueError):
-        raise ModelError(f"{what} must be a number, got {value!r}") from None
+    except (TypeError, ValueError, OverflowError):
+        raise ModelError(f"{what} must be a number, got {shown(value)}") from None
 
 
 def numbers(values, what: str):
@@ -31,5 +99,115 @@ def numbers(values, what: str):
         if arr.dtype.kind not in "biuf":
             raise TypeError
         return np.asarray(arr, float)
-    except (TypeError, ValueError):
-        raise ModelError(f"{what} must be numbers, got {values!r:.80}") from None
+    except (TypeError, ValueError, OverflowError):
+        raise ModelError(f"{what} must be numbers, got {shown(values, 80)}") from None
+
+
+# ------------------------------------------------------------------ arguments of public functions
+# What each argument name of the public solver functions must be; a bad one is a ModelError
+# naming the function and the argument before the function runs (so that a TypeError deep inside
+# numpy stays a sign of a bug, never of a user's value).
+_WHOLE = {"count", "mode"}
+_SCALARS = {"f1_hz", "f2_hz", "zeta1", "zeta2", "target_hz", "value", "margin_percent",
+            "f_min_hz", "f_max_hz", "prominence", "asd"}
+_REAL_ARRAYS = {"freqs_hz", "times"}
+_COMPLEX_ARRAYS = {"values", "transfer", "transmissibility"}
+_INITIAL = {"x0", "v0"}
+_RESULT_NEEDS = {"result": ("system", "shapes", "eigenvalues"),
+                 "modal": ("frequencies_hz", "is_zero")}
+
+
+def _finite_number(value) -> bool:
+    return _real(value) and math.isfinite(float(value))
+
+
+def _real(value) -> bool:
+    """A real number a double can hold (NaN and inf included: functions say why they refuse)."""
+    if not is_number(value):
+        return False
+    try:
+        float(value)
+    except (OverflowError, TypeError, ValueError):
+        return False
+    return True
+
+
+def _array_problem(value, complex_ok: bool) -> str | None:
+    import numpy as np
+
+    try:
+        arr = np.asarray(value)
+    except (TypeError, ValueError, OverflowError):
+        return "must be numbers"
+    if arr.dtype.kind not in ("iufc" if complex_ok else "iuf"):
+        return "must be numbers" + ("" if complex_ok else " (real)")
+    # responses may be infinite (an undamped resonance); frequencies, times, states may not
+    if not complex_ok and not np.all(np.isfinite(arr)):
+        return "must be finite numbers"
+    return None
+
+
+def _argument_problem(name: str, value) -> str | None:
+    from .assemble import System
+    from .model import Model
+    from .modes import ModalResult
+
+    if name == "model" and not isinstance(value, Model):
+        return "must be a solver.Model"
+    if name == "model_or_system" and not isinstance(value, (Model, System)):
+        return "must be a solver.Model or a System from assemble()"
+    # a result is taken by what it offers (tests and scripts pass light stand-ins)
+    if name in ("result", "modal") and not isinstance(value, ModalResult) and not all(
+            hasattr(value, a) for a in _RESULT_NEEDS[name]):
+        return "must be a ModalResult from modes()"
+    if name in _WHOLE and not (_finite_number(value) and float(value) == int(value)):
+        return "must be a whole number"
+    if name in _SCALARS and not _real(value):
+        return "must be a number"
+    if name in _REAL_ARRAYS or name in _COMPLEX_ARRAYS:
+        problem = _array_problem(value, name in _COMPLEX_ARRAYS)
+        if problem is None and name in ("freqs_hz", "times") and getattr(
+                __import__("numpy").asarray(value), "ndim", 0) > 1:
+            problem = "must be a list of numbers"
+        return problem
+    if name in _INITIAL:
+        from collections.abc import Mapping
+
+        if isinstance(value, Mapping):
+            return None if all(_finite_number(v) for v in value.values()) else \
+                "must map (mass id, direction) to finite numbers"
+        return _array_problem(value, False)
+    return None
+
+
+def checked_arguments(func=None, **rules):
+    """Decorator for public solver functions: arguments are checked by name (``model``,
+    ``count``, ``freqs_hz``...) and a bad one raises :class:`ModelError` naming the function,
+    the argument and what it must be. ``None`` passes where it is the default. ``rules`` checks
+    an argument as another name would be (``model="model_or_system"``)."""
+    import functools
+    import inspect
+
+    if func is None:
+        return functools.partial(checked_arguments, **rules)
+    sig = inspect.signature(func)
+    names = [(n, rules.get(n, n)) for n in sig.parameters if rules.get(n, n) in _CHECKED]
+
+    @functools.wraps(func)
+    def wrapper(*args, **kwargs):
+        bound = sig.bind(*args, **kwargs)   # a wrong call is a TypeError, as for any function
+        for name, rule in names:
+            if name not in bound.arguments:
+                continue
+            value = bound.arguments[name]
+            if value is None and sig.parameters[name].default is None:
+                continue
+            problem = _argument_problem(rule, value)
+            if problem:
+                raise ModelError(f"{func.__name__}: {name} {problem}, got {shown(value)}")
+        return func(*args, **kwargs)
+    return wrapper
+
+
+_CHECKED = ({"model", "model_or_system", "result", "modal"} | _WHOLE | _SCALARS | _REAL_ARRAYS
+            | _COMPLEX_ARRAYS | _INITIAL)

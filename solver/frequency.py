@@ -24,7 +24,7 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from .assemble import System, assemble
-from .errors import ModelError, number, numbers
+from .errors import ModelError, checked_arguments, number, numbers
 from .model import Model
 from .modes import modes
 
@@ -186,6 +186,7 @@ def _junction_static(system: System, F_all: np.ndarray) -> np.ndarray:
     return out
 
 
+@checked_arguments(model="model_or_system")
 def harmonic_response(model, freqs_hz, forces, output: str = "displacement",
                       method: str = "direct", result=None) -> np.ndarray:
     """Steady-state complex response to harmonic forces.
@@ -231,6 +232,7 @@ def harmonic_response(model, freqs_hz, forces, output: str = "displacement",
     return _convert(_retained(system, X), f, output)
 
 
+@checked_arguments(model="model_or_system")
 def base_transmissibility(model, freqs_hz, direction: str, relative: bool = False,
                           method: str = "direct", result=None) -> np.ndarray:
     """Motion of each DOF per unit harmonic motion of the base (all anchors together).
@@ -275,6 +277,7 @@ def base_transmissibility(model, freqs_hz, direction: str, relative: bool = Fals
     return Y + r_ret[None, :]
 
 
+@checked_arguments
 def isolation_efficiency(transmissibility) -> np.ndarray:
     """Isolation efficiency in % = (1 - |T|) * 100 (negative where the mount amplifies)."""
     return (1.0 - np.abs(np.asarray(transmissibility))) * 100.0
@@ -300,6 +303,7 @@ class Peak:
 PEAK_PROMINENCE = 1.02
 
 
+@checked_arguments
 def find_peaks(freqs_hz, values, prominence: float = PEAK_PROMINENCE) -> list[Peak]:
     """Resonance peaks of ``|values|`` with half-power bandwidths, by linear interpolation.
 
@@ -374,6 +378,7 @@ def find_peaks(freqs_hz, values, prominence: float = PEAK_PROMINENCE) -> list[Pe
     return peaks
 
 
+@checked_arguments
 def rms_over_band(freqs_hz, transfer, asd, f_min_hz: float, f_max_hz: float) -> np.ndarray:
     """RMS response to a flat input acceleration spectral density over a band.
 
@@ -383,6 +388,11 @@ def rms_over_band(freqs_hz, transfer, asd, f_min_hz: float, f_max_hz: float) -> 
     """
     f = np.asarray(freqs_hz, float)
     H = np.abs(np.asarray(transfer))
+    if f.ndim != 1 or H.ndim == 0 or H.shape[0] != f.shape[0]:
+        raise ModelError(f"rms: transfer must hold one value (or row) per frequency point,"
+                         f" {f.size} of them; got shape {H.shape}")
+    if float(asd) < 0:
+        raise ModelError(f"rms: the input spectral density must be zero or positive, got {asd}")
     inside = (f >= f_min_hz) & (f <= f_max_hz)
     if inside.sum() < 2:
         raise ModelError("rms: need at least two frequency points inside the band")

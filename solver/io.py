@@ -1,189 +1,272 @@
 """Reading and writing model files (JSON, UTF-8, SI units).
 
-Loading checks, in order: the file can be read and is JSON; it says it is a Springwright model of a
-version this program knows; it matches the shipped JSON Schema (``schema/model.schema.json``); and
-its meaning is valid (ids, references, values) as :class:`~solver.model.Model` checks it. Every
-failure is a :class:`ModelFileError` naming the file and the problem.
+Loading checks, in order, and stops at the first problem: the path names a regular file (a folder,
+FIFO or device is refused before it is opened, so nothing blocks or reads forever) of at most
+:data:`MAX_FILE_BYTES`; the bytes are UTF-8 (a UTF-8 byte-order mark is allowed) and JSON with no
+NaN or Infinity, no number beyond double precision and no key twice in one object; it says it is a
+Springwright model of a version this program knows; it has at most :data:`MAX_ELEMENTS` elements;
+it matches the shipped JSON Schema (``schema/model.schema.json``, compiled by
+:mod:`solver.schema_check`); and its meaning is valid (ids, references, values) as
+:class:`~solver.model.Model` checks it. Every failure is a :class:`ModelFileError` whose message is
+one line: ``<file>: <JSON path>: <problem and what is allowed>`` (or ``line L, column C`` for text
+that is not JSON).
 
 Saving is atomic: the text goes to a temporary file in the same folder, is flushed to disk, and
-replaces the target by rename, so a crash mid-save never leaves a half-written model.
+replaces the target by rename, so a crash mid-save never leaves a half-written model. A saved model
+always loads back as the same model.
 """
 
 from __future__ import annotations
 
+import codecs
 import json
+import math
 import os
+import re
+import stat
 import tempfile
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
 
-from .errors import ModelError, ModelFileError
-from .model import Anchor, Damper, Damping, Excitation, Initial, Mass, Model, Spring
+from .errors import ModelError, ModelFileError, one_line, shown
+from .model import (MAX_ELEMENTS, Anchor, Damper, Damping, Excitation, Initial, Mass, Model,
+                    Spring)
+from .schema_check import Invalid, compile_schema
 
 FORMAT = "springwright-model"
 VERSION = 1
 
+#: Largest model file read, in bytes (32 MiB). A file at the element limit with plain labels
+#: takes about 20 MB; the cap is checked before reading, so a huge file costs nothing.
+MAX_FILE_BYTES = 32 * 1024 * 1024
+
+#: JSON objects and arrays a valid file can need (each element, its "fixed" list or "orders",
+#: its initial condition): far more means a file built to exhaust memory while parsing.
+MAX_CONTAINERS = 4 * MAX_ELEMENTS + 100
+
 _VELOCITY_KEY = {"x": "vx", "y": "vy", "theta": "vtheta"}
+_ELEMENT_LISTS = {"masses": "mass", "anchors": "anchor", "springs": "spring",
+                  "dampers": "dashpot", "excitations": "excitation"}
 
 
 @lru_cache(maxsize=1)
-def _validator():
-    import jsonschema
-
-    text = resources.files(__package__).joinpath("schema/model.schema.json").read_text("utf-8")
-    schema = json.loads(text)
-    cls = jsonschema.validators.validator_for(schema)
-    cls.check_schema(schema)
-    return cls(schema)
+def _schema_text() -> str:
+    return resources.files(__package__).joinpath("schema/model.schema.json").read_text("utf-8")
 
 
 def schema() -> dict:
-    """The model file's JSON Schema (draft 2020-12) as a dict."""
-    return _validator().schema
+    """The model file's JSON Schema (draft 2020-12) as a dict (a fresh copy)."""
+    return json.loads(_schema_text())
 
 
-def _where(data, path) -> str:
-    """A readable location for a schema error: ``spring "s2" (springs[1])``."""
-    parts = list(path)
-    if len(parts) >= 2 and isinstance(parts[1], int) and parts[0] in (
-            "masses", "anchors", "springs", "dampers", "excitations"):
-        what = {"masses": "mass", "anchors": "anchor", "springs": "spring", "dampers": "dashpot",
-                "excitations": "excitation"}[parts[0]]
+# ------------------------------------------------------------------ JSON values Python cannot hold
+class _BadNumber:
+    """A number in the file that is no double: NaN, Infinity, 1e400, an integer of 400 digits."""
+
+    __slots__ = ("text", "why")
+
+    def __init__(self, text: str, why: str):
+        self.text, self.why = text, why
+
+    def __repr__(self):
+        t = self.text
+        return t if len(t) <= 24 else f"{t[:12]}…({len(t)} characters)"
+
+
+class _Duplicated(dict):
+    """An object in which a key appears more than once (JSON parsers differ on which one wins)."""
+
+    key = None
+
+
+def _parse_float(text: str):
+    v = float(text)
+    return v if math.isfinite(v) else _BadNumber(
+        text, "is beyond the range of double precision (magnitudes up to about 1.8e308)")
+
+
+def _parse_int(text: str):
+    # int() refuses more than 4,300 digits (ValueError), float() would give inf beyond 308
+    return int(text) if len(text) <= 300 else _parse_float(text)
+
+
+def _parse_constant(text: str):
+    return _BadNumber(text, "is not a number a model file can hold (JSON has no NaN or Infinity)")
+
+
+def _pairs(pairs):
+    d = dict(pairs)
+    if len(d) == len(pairs):
+        return d
+    seen = set()
+    dup = _Duplicated(d)
+    for k, _ in pairs:
+        if k in seen:
+            dup.key = k
+            break
+        seen.add(k)
+    return dup
+
+
+def _special(value):
+    if isinstance(value, _BadNumber):
+        return f"{value!r} {value.why}"
+    if isinstance(value, _Duplicated):
+        return f"the key {shown(value.key)} appears more than once in this object"
+    return None
+
+
+@lru_cache(maxsize=1)
+def _check():
+    return compile_schema(json.loads(_schema_text()), special=_special)
+
+
+# ------------------------------------------------------------------ messages
+_NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
+
+
+def json_path(parts) -> str:
+    """``masses[3].mass``, ``initial["m 1"].x``; ``top level`` for the whole file."""
+    out = ""
+    for p in parts:
+        if isinstance(p, int):
+            out += f"[{p}]"
+        elif isinstance(p, str) and _NAME.match(p):
+            out += ("." if out else "") + p
+        else:
+            text = p if isinstance(p, str) else str(p)
+            out += "[" + (json.dumps(text) if len(text) <= 40 else json.dumps(text[:40])[:-1]
+                          + '…"') + "]"
+    return out or "top level"
+
+
+def _owner(data, path) -> str:
+    """``spring "s2"`` for a path inside an element, so a message names the element too."""
+    if len(path) >= 2 and path[0] in _ELEMENT_LISTS and isinstance(path[1], int):
         try:
-            el_id = data[parts[0]][parts[1]].get("id")
+            el_id = data[path[0]][path[1]].get("id")
         except (AttributeError, IndexError, KeyError, TypeError):
             el_id = None
-        name = f'{what} "{el_id}"' if isinstance(el_id, str) else f"{what} {parts[1] + 1}"
-        rest = ".".join(str(p) for p in parts[2:])
-        return f"{name}{' field ' + rest if rest else ''}"
-    if parts and parts[0] == "initial" and len(parts) >= 2:
-        return f'initial condition of "{parts[1]}"' + (f" field {parts[2]}" if len(parts) > 2 else "")
-    return "top level" if not parts else "field " + ".".join(str(p) for p in parts)
+        if isinstance(el_id, str) and el_id:
+            return f"{_ELEMENT_LISTS[path[0]]} {json.dumps(el_id)[:60]}: "
+    if len(path) >= 2 and path[0] == "initial":
+        return f"initial condition of {json.dumps(str(path[1]))[:60]}: "
+    return ""
 
 
-def _schema_message(data, error) -> str:
-    import jsonschema
+def _placed(path, message: str) -> str:
+    if not path:
+        return message
+    return f"{json_path(path)}: {message.removeprefix('model: ')}"
 
-    # oneOf failures hide the useful reason one level down: pick the branch that matched best.
-    # (best_match may itself descend into a oneOf's branches and pick the wrong one, so the
-    # branches are examined on the raw error)
-    best = error if error.validator in ("oneOf", "anyOf") else jsonschema.exceptions.best_match(
-        [error])
-    if best.validator in ("oneOf", "anyOf") and isinstance(best.instance, dict):
-        # a missing discriminator ("model" of damping, "type" of an excitation) says it all
-        branches = best.schema.get(best.validator, [])
-        keys = {k: [] for b in branches for k, v in b.get("properties", {}).items()
-                if "const" in v}
-        for b in branches:
-            for k, v in b.get("properties", {}).items():
-                if "const" in v:
-                    keys[k].append(v["const"])
-        for key, values in keys.items():
-            if key not in best.instance:
-                return (f"{_where(data, best.absolute_path)}: {key!r} is required (one of"
-                        f" {', '.join(map(repr, values))})")
-    if best.validator in ("oneOf", "anyOf") and best.context:
-        # The branches are told apart by a const ("model": "modal", "type": "band"): report the
-        # errors of the branch the file meant, else that the discriminator itself is unknown.
-        by_branch: dict = {}
-        for e in best.context:
-            by_branch.setdefault(e.relative_schema_path[0], []).append(e)
-        meant = [errs for errs in by_branch.values()
-                 if not any(e.validator == "const" for e in errs)]
-        consts = [e for e in best.context if e.validator == "const"]
-        if len(meant) == 1:
-            best = jsonschema.exceptions.best_match(meant[0])
-        elif not meant and len(consts) == len(by_branch):
-            allowed = ", ".join(repr(e.schema["const"]) for e in consts)
-            return (f"{_where(data, consts[0].absolute_path)}: {consts[0].instance!r} is not"
-                    f" allowed (allowed: {allowed})")
-        else:
-            best = jsonschema.exceptions.best_match(best.context)
-    where = _where(data, best.absolute_path)
-    v = best.validator
-    if v == "additionalProperties":
-        allowed = sorted(best.schema.get("properties", {}))
-        extra = sorted(set(best.instance) - set(allowed)) if isinstance(best.instance, dict) else []
-        return (f"{where}: unknown key {', '.join(repr(e) for e in extra)}"
-                f" (allowed: {', '.join(allowed)})")
-    if v == "required":
-        return f"{where}: {best.message}"
-    if v == "not":
-        return (f"{where}: a torsion model gives each disc an 'inertia' in kg m^2, other kinds a"
-                " 'mass' in kg; do not give both")
-    if v in ("const", "enum"):
-        allowed = best.schema.get("enum", [best.schema.get("const")])
-        return f"{where}: {best.instance!r} is not allowed (allowed: {', '.join(map(repr, allowed))})"
-    if v == "type":
-        return f"{where}: must be of type {best.schema['type']}, got {best.instance!r}"
-    if v in ("minimum", "exclusiveMinimum", "maximum", "exclusiveMaximum"):
-        op = {"minimum": ">=", "exclusiveMinimum": ">", "maximum": "<=", "exclusiveMaximum": "<"}[v]
-        return f"{where}: must be {op} {best.schema[v]}, got {best.instance!r}"
-    return f"{where}: {best.message}"
+
+def _file_name(path) -> str:
+    try:
+        return one_line(os.fsdecode(path)) or '""'
+    except (TypeError, ValueError):
+        return shown(path)
 
 
 def model_from_dict(data: dict) -> Model:
     """Build a Model from the parsed JSON of a model file (validated against the schema first).
 
-    Raises :class:`ModelFileError` for anything that is not a valid version-1 model.
+    Raises :class:`ModelFileError` for anything that is not a valid version-1 model; its
+    ``path`` holds the JSON path of the problem.
     """
-    if not isinstance(data, dict):
-        raise ModelFileError("the file does not hold a JSON object; a model file starts with '{'")
-    if data.get("format") != FORMAT:
-        raise ModelFileError(f'this is not a Springwright model: "format" must be "{FORMAT}",'
-                             f" got {data.get('format')!r}")
+    if not isinstance(data, dict) or isinstance(data, _Duplicated):
+        problem = _special(data) or (
+            f"a model file holds one JSON object {{...}}, got {shown(data)}")
+        raise ModelFileError(f"top level: {problem}")
+    fmt = data.get("format")
+    if not (isinstance(fmt, str) and fmt == FORMAT):
+        raise ModelFileError(f'format: this is not a Springwright model: "format" must be'
+                             f' "{FORMAT}", got {shown(fmt)}', ("format",))
     version = data.get("version")
     # JSON Schema counts 2.0 as an integer, so a float version must be refused here too
     if isinstance(version, (int, float)) and not isinstance(version, bool) and version > VERSION:
-        raise ModelFileError(f"the file is format version {version}, newer than this program"
-                             f" knows (up to {VERSION}); open it with a newer Springwright")
-    validator = _validator()
-    error = next(iter(validator.iter_errors(data)), None)
-    if error is not None:
-        raise ModelFileError(_schema_message(data, error))
+        raise ModelFileError(f"version: the file is format version {shown(version)}, newer than"
+                             f" this program knows (up to {VERSION}); open it with a newer"
+                             " Springwright", ("version",))
+    # counted before the schema check, whose time grows with the count
+    count = sum(len(data[k]) for k in _ELEMENT_LISTS if isinstance(data.get(k), list))
+    if count > MAX_ELEMENTS:
+        raise ModelFileError(f"top level: the file has {count:,} elements (masses, anchors,"
+                             f" springs, dashpots and excitations); a model may have at most"
+                             f" {MAX_ELEMENTS:,}")
+    try:
+        _check()(data)
+    except Invalid as exc:
+        raise ModelFileError(f"{json_path(exc.path)}: {_owner(data, exc.path)}{exc.problem}",
+                             exc.path) from None
     try:
         return _build(data)
     except ModelFileError:
         raise
     except ModelError as exc:
-        raise ModelFileError(str(exc)) from None
+        raise ModelFileError(_placed(exc.path, str(exc)), exc.path) from None
+
+
+def _each(data, key: str, make) -> tuple:
+    """Elements of one list, each built by ``make``; a refusal gets the element's JSON path."""
+    out = []
+    for i, el in enumerate(data.get(key, ())):
+        try:
+            out.append(make(el))
+        except ModelError as exc:
+            raise ModelError(str(exc), (key, i) + exc.path) from None
+    return tuple(out)
 
 
 def _build(data: dict) -> Model:
     kind = data["kind"]
     axis = data.get("axis", "x")
     mass_key = "inertia" if kind == "torsion" else "mass"
-    masses = tuple(Mass(id=m["id"], x=m["x"], y=m["y"], mass=m[mass_key],
+
+    def mass(m):
+        try:
+            return Mass(id=m["id"], x=m["x"], y=m["y"], mass=m[mass_key],
                         label=m.get("label", ""), fixed=tuple(m.get("fixed", ())))
-                   for m in data.get("masses", ()))
-    anchors = tuple(Anchor(id=a["id"], x=a["x"], y=a["y"], label=a.get("label", ""))
-                    for a in data.get("anchors", ()))
-    springs = tuple(Spring(id=s["id"], a=s["a"], b=s["b"], k=s["k"], k_t=s.get("k_t", 0.0),
-                           label=s.get("label", "")) for s in data.get("springs", ()))
-    dampers = tuple(Damper(id=d["id"], a=d["a"], b=d["b"], c=d["c"], label=d.get("label", ""))
-                    for d in data.get("dampers", ()))
-    dm = data.get("damping", {"model": "none"})
-    damping = Damping(model=dm["model"], ratio=dm.get("ratio", 0.0), alpha=dm.get("alpha", 0.0),
-                      beta=dm.get("beta", 0.0),
-                      mode_ratios=tuple((int(n), r) for n, r in dm.get("mode_ratios", {}).items()))
-    excitations = []
-    for e in data.get("excitations", ()):
+        except ModelError as exc:   # the Mass calls it "mass" whatever the kind
+            if exc.path == ("mass",):
+                exc.path = (mass_key,)
+            raise
+
+    def excitation(e):
         if e["type"] == "speed":
-            excitations.append(Excitation(id=e["id"], type="speed", label=e.get("label", ""),
-                                          rpm=e["rpm"], orders=tuple(e.get("orders", (1.0,)))))
-        else:
-            excitations.append(Excitation(id=e["id"], type="band", label=e.get("label", ""),
-                                          f_min_hz=e["f_min_hz"], f_max_hz=e["f_max_hz"]))
+            return Excitation(id=e["id"], type="speed", label=e.get("label", ""), rpm=e["rpm"],
+                              orders=tuple(e.get("orders", (1.0,))))
+        return Excitation(id=e["id"], type="band", label=e.get("label", ""),
+                          f_min_hz=e["f_min_hz"], f_max_hz=e["f_max_hz"])
+
+    masses = _each(data, "masses", mass)
+    anchors = _each(data, "anchors", lambda a: Anchor(id=a["id"], x=a["x"], y=a["y"],
+                                                      label=a.get("label", "")))
+    springs = _each(data, "springs", lambda s: Spring(
+        id=s["id"], a=s["a"], b=s["b"], k=s["k"], k_t=s.get("k_t", 0.0), label=s.get("label", "")))
+    dampers = _each(data, "dampers", lambda d: Damper(id=d["id"], a=d["a"], b=d["b"], c=d["c"],
+                                                      label=d.get("label", "")))
+    excitations = _each(data, "excitations", excitation)
+    dm = data.get("damping", {"model": "none"})
+    try:
+        damping = Damping(model=dm["model"], ratio=dm.get("ratio", 0.0),
+                          alpha=dm.get("alpha", 0.0), beta=dm.get("beta", 0.0),
+                          mode_ratios=tuple((int(n), r) for n, r in
+                                            dm.get("mode_ratios", {}).items()))
+    except ModelError as exc:
+        raise ModelError(str(exc), ("damping",) + exc.path) from None
     initial = []
     for mass_id, values in data.get("initial", {}).items():
         disp = tuple((d, values[d]) for d in ("x", "y", "theta") if d in values)
         vel = tuple((d, values[_VELOCITY_KEY[d]]) for d in ("x", "y", "theta")
                     if _VELOCITY_KEY[d] in values)
-        initial.append(Initial(mass_id=mass_id, displacement=disp, velocity=vel))
+        try:
+            initial.append(Initial(mass_id=mass_id, displacement=disp, velocity=vel))
+        except ModelError as exc:
+            raise ModelError(str(exc), ("initial", mass_id) + exc.path) from None
     return Model(kind=kind, name=data.get("name", ""), axis=axis, masses=masses, anchors=anchors,
                  springs=springs, dampers=dampers, damping=damping,
-                 excitations=tuple(excitations),
+                 excitations=excitations,
                  margin_percent=data.get("margin_percent", 15.0), initial=tuple(initial))
 
 
@@ -192,7 +275,7 @@ def model_to_dict(model: Model) -> dict:
     say something (a label equal to the id, an empty ``fixed`` or a zero ``k_t`` are left out)."""
     mass_key = "inertia" if model.kind == "torsion" else "mass"
     out: dict = {"format": FORMAT, "version": VERSION, "name": model.name, "kind": model.kind}
-    if model.kind == "line":
+    if model.kind == "line" or model.axis != "x":   # kept for a switch back to a line model
         out["axis"] = model.axis
 
     def labelled(el, d):
@@ -242,47 +325,183 @@ def model_to_dict(model: Model) -> dict:
     return out
 
 
-def load_model(path) -> Model:
-    """Read a model file. Raises :class:`ModelFileError` naming the file and the problem."""
+def _refuse(name: str, problem: str) -> ModelFileError:
+    return ModelFileError(f"{name}: {problem}")
+
+
+def _kind_of(st: os.stat_result) -> str | None:
+    """What a non-regular file is, in words; None for a regular file."""
+    mode = st.st_mode
+    if stat.S_ISREG(mode):
+        return None
+    if stat.S_ISDIR(mode):
+        return "a folder"
+    if stat.S_ISFIFO(mode):
+        return "a named pipe (FIFO)"
+    if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
+        return "a device"
+    if stat.S_ISSOCK(mode):
+        return "a socket"
+    return "not a regular file"
+
+
+def _mib(n: int) -> str:
+    return f"{n / 1024 ** 2:.1f} MiB" if n < 1024 ** 3 else f"{n / 1024 ** 3:.1f} GiB"
+
+
+def read_file_bytes(path, limit: int = MAX_FILE_BYTES) -> bytes:
+    """The bytes of a regular file of at most ``limit`` bytes, or a ModelFileError.
+
+    A folder, FIFO, device or socket is refused from its ``stat`` before it is opened (opening a
+    FIFO blocks until a writer comes; /dev/zero never ends), and the size before reading. The
+    open is non-blocking and checked again on the open file, in case the path changed in between;
+    reading stops past ``limit`` for files whose size ``stat`` does not tell (/proc).
+    """
+    name = _file_name(path)
+    if isinstance(path, bytes):
+        path = os.fsdecode(path)
     if not isinstance(path, (str, os.PathLike)):
         raise ModelFileError(f"load_model: expected a file path, got {type(path).__name__}")
-    path = Path(path)
+    if not os.fspath(path):
+        raise _refuse(name, "no file name given")
     try:
-        raw = path.read_bytes()
+        st = os.stat(path)
     except OSError as exc:
-        raise ModelFileError(f"{path}: cannot read the file ({exc.strerror or exc})") from None
+        raise _refuse(name, f"cannot read the file ({exc.strerror or exc})") from None
+    except ValueError:   # a NUL character in the name
+        raise _refuse(name, "the file name holds a character no file name can have") from None
+
+    def check(st):
+        what = _kind_of(st)
+        if what:
+            raise _refuse(name, f"is {what}, not a model file")
+        if st.st_size > limit:
+            raise _refuse(name, f"the file is {_mib(st.st_size)}; model files are limited to"
+                                f" {_mib(limit)}")
+
+    check(st)
+    flags = os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_BINARY", 0) | getattr(
+        os, "O_CLOEXEC", 0)
     try:
-        data = json.loads(raw.decode("utf-8"))
-    except UnicodeDecodeError:
-        raise ModelFileError(f"{path}: the file is not UTF-8 text") from None
+        fd = os.open(path, flags)
+    except OSError as exc:
+        raise _refuse(name, f"cannot read the file ({exc.strerror or exc})") from None
+    try:
+        check(os.fstat(fd))
+        chunks, total = [], 0
+        while True:
+            chunk = os.read(fd, min(1 << 20, limit + 1 - total))
+            if not chunk:
+                break
+            chunks.append(chunk)
+            total += len(chunk)
+            if total > limit:
+                raise _refuse(name, f"the file holds more than {_mib(limit)}; model files are"
+                                    " limited to that")
+    except OSError as exc:
+        raise _refuse(name, f"cannot read the file ({exc.strerror or exc})") from None
+    finally:
+        os.close(fd)
+    return b"".join(chunks)
+
+
+_STRING = re.compile(rb'"(?:[^"\\]|\\.)*"', re.S)
+
+
+def parse_json(raw: bytes, name: str):
+    """The JSON value of a model file's bytes; a ModelFileError naming the line and column."""
+    if raw.startswith(codecs.BOM_UTF8):   # Windows editors write one; RFC 8259 allows ignoring it
+        raw = raw[len(codecs.BOM_UTF8):]
+    for bom, enc in ((codecs.BOM_UTF32_LE, "UTF-32"), (codecs.BOM_UTF32_BE, "UTF-32"),
+                     (codecs.BOM_UTF16_LE, "UTF-16"), (codecs.BOM_UTF16_BE, "UTF-16")):
+        if raw.startswith(bom):
+            raise _refuse(name, f"the file is {enc} text; model files are UTF-8 (save it as"
+                                " UTF-8)")
+    if not raw.strip():
+        raise _refuse(name, "the file is empty; a model file is a JSON object {...}")
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        line = raw.count(b"\n", 0, exc.start) + 1
+        col = exc.start - (raw.rfind(b"\n", 0, exc.start) + 1) + 1
+        raise _refuse(name, f"line {line}, column {col}: byte 0x{raw[exc.start]:02x} is not"
+                            " UTF-8 text; model files are UTF-8") from None
+    # Each object costs ~100 bytes of memory for 2 bytes of text: count them before parsing
+    # (braces inside strings are taken out only when the quick count is too high).
+    if raw.count(b"{") + raw.count(b"[") > MAX_CONTAINERS:
+        bare = _STRING.sub(b"", raw)
+        n = bare.count(b"{") + bare.count(b"[")
+        if n > MAX_CONTAINERS:
+            raise _refuse(name, f"the file holds {n:,} JSON objects and lists; a model of at most"
+                                f" {MAX_ELEMENTS:,} elements needs far fewer")
+    try:
+        return json.loads(text, parse_float=_parse_float, parse_int=_parse_int,
+                          parse_constant=_parse_constant, object_pairs_hook=_pairs)
     except json.JSONDecodeError as exc:
-        raise ModelFileError(f"{path}: not valid JSON at line {exc.lineno}, column {exc.colno}:"
-                             f" {exc.msg}") from None
+        raise _refuse(name, f"line {exc.lineno}, column {exc.colno}: not valid JSON:"
+                            f" {exc.msg}") from None
     except RecursionError:
-        raise ModelFileError(f"{path}: the JSON is nested too deeply to be a model") from None
+        raise _refuse(name, "the JSON is nested too deeply to be a model (a model file nests"
+                            " four levels)") from None
+    except ValueError as exc:
+        raise _refuse(name, f"not valid JSON: {shown(str(exc), 120)}") from None
+
+
+def load_model(path) -> Model:
+    """Read a model file.
+
+    Raises :class:`ModelFileError`, and nothing else, for any file that is not a valid model:
+    its message is one printable line, ``<file>: <JSON path>: <problem and what is allowed>``.
+    Files larger than :data:`MAX_FILE_BYTES` and anything but a regular file are refused
+    without reading them.
+    """
+    raw = read_file_bytes(path)
+    name = _file_name(path)
+    data = parse_json(raw, name)
     try:
         return model_from_dict(data)
     except ModelFileError as exc:
-        raise ModelFileError(f"{path}: {exc}") from None
+        raise ModelFileError(one_line(f"{name}: {exc}"), exc.path) from None
 
 
 def dumps_model(model: Model) -> str:
-    """The model file's text (JSON, 2-space indent, trailing newline)."""
-    return json.dumps(model_to_dict(model), indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+    """The model file's text (JSON, 2-space indent, trailing newline).
+
+    A model whose indented text would be over :data:`MAX_FILE_BYTES` is written without
+    indentation, so that what is saved can be loaded.
+    """
+    data = model_to_dict(model)
+    text = json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+    if len(text) > MAX_FILE_BYTES // 4 and len(text.encode("utf-8")) > MAX_FILE_BYTES:
+        text = json.dumps(data, separators=(",", ":"), ensure_ascii=False, allow_nan=False) + "\n"
+    return text
 
 
 def write_atomic(path, text: str) -> None:
-    """Write text to ``path`` atomically: temporary file in the same folder, fsync, rename."""
+    """Write text to ``path`` atomically: temporary file in the same folder, fsync, rename.
+
+    The new file keeps the permissions of the one it replaces (a new file gets the usual ones,
+    0666 less the umask); a symbolic link is followed, so the file it points to is replaced.
+    """
     path = Path(path)
+    if path.is_symlink():
+        path = Path(os.path.realpath(path))
     folder = path.parent if str(path.parent) else Path(".")
     if not folder.is_dir():
         raise FileNotFoundError(2, f"the folder {folder} does not exist", str(path))
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
+    try:
+        mode = stat.S_IMODE(os.stat(path).st_mode)
+    except OSError:
+        umask = os.umask(0)
+        os.umask(umask)
+        mode = 0o666 & ~umask
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name[:100]}.", suffix=".tmp", dir=folder)
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
             fh.write(text)
             fh.flush()
             os.fsync(fh.fileno())
+        os.chmod(tmp, mode)
         os.replace(tmp, path)
     except BaseException:
         try:
@@ -290,12 +509,33 @@ def write_atomic(path, text: str) -> None:
         except OSError:
             pass
         raise
+    try:   # the rename itself is durable once the folder is flushed too
+        dir_fd = os.open(folder, os.O_RDONLY)
+    except OSError:
+        return
+    try:
+        os.fsync(dir_fd)
+    except OSError:
+        pass
+    finally:
+        os.close(dir_fd)
 
 
 def save_model(model: Model, path) -> None:
-    """Write a model file atomically. ``load_model(path) == model`` afterwards."""
+    """Write a model file atomically. ``load_model(path) == model`` afterwards.
+
+    Raises :class:`ModelError` for something that is not a Model or a path, or a model too large
+    for a model file, and OSError when the file cannot be written.
+    """
     if not isinstance(model, Model):
         raise ModelError(f"save_model: expected a Model, got {type(model).__name__}")
     if not isinstance(path, (str, os.PathLike)):
         raise ModelError(f"save_model: expected a file path, got {type(path).__name__}")
-    write_atomic(path, dumps_model(model))
+    if not os.fspath(path) or "\x00" in os.fsdecode(path):
+        raise ModelError(f"save_model: not a usable file name: {shown(os.fspath(path))}")
+    text = dumps_model(model)
+    if len(text) > MAX_FILE_BYTES // 4 and len(text.encode("utf-8")) > MAX_FILE_BYTES:
+        raise ModelError(f"save_model: the model's file would be"
+                         f" {_mib(len(text.encode('utf-8')))}, over the {_mib(MAX_FILE_BYTES)}"
+                         " a model file may have")
+    write_atomic(path, text)

@@ -21,7 +21,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from .errors import number
+from .errors import checked_arguments, number
 from .model import Model
 
 #: Relative tolerance on a widened edge: a mode within this of an edge is on it (round-off of the
@@ -71,6 +71,7 @@ class MarginResult:
         return not self.conflicts
 
 
+@checked_arguments
 def source_bands(model: Model, margin_percent: float | None = None) -> tuple:
     """Every source interval with its widened edges: (id, order, lo, hi, lo_w, hi_w) in Hz."""
     p = (model.margin_percent if margin_percent is None else margin_percent) / 100.0
@@ -98,6 +99,7 @@ def keep_out_intervals(bands) -> tuple:
     return tuple((lo, hi) for lo, hi in merged)
 
 
+@checked_arguments
 def margin_check(model: Model, modal, margin_percent: float | None = None) -> MarginResult:
     """Check every elastic mode of ``modal`` (a ModalResult) against the model's sources."""
     pct = model.margin_percent if margin_percent is None else number(margin_percent,

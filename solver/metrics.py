@@ -34,6 +34,7 @@ import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.csgraph import connected_components
 
+from .errors import checked_arguments
 from .modes import ModalResult
 
 
@@ -198,6 +199,7 @@ def _mass_motion_squared(result: ModalResult):
     return out
 
 
+@checked_arguments
 def energy_fractions(result: ModalResult) -> EnergyResult:
     """Strain-energy share of every spring and kinetic-energy share of every mass in each mode."""
     model = result.model
@@ -216,6 +218,7 @@ def energy_fractions(result: ModalResult) -> EnergyResult:
                         mass_ids=tuple(m.id for m in model.masses), strain=strain, kinetic=kin)
 
 
+@checked_arguments
 def sensitivities(result: ModalResult) -> Sensitivity:
     """Analytic eigenvalue derivatives with respect to every stiffness and mass.
 

@@ -14,13 +14,22 @@ import math
 from dataclasses import dataclass, field, fields, replace
 from typing import Iterable, Mapping
 
-from .errors import ModelError
+from .errors import ModelError, is_number, shown
 
 KINDS = ("line", "planar", "torsion")
 AXES = ("x", "y")
 DIRECTIONS = ("x", "y", "theta")
 DAMPING_MODELS = ("none", "modal", "rayleigh")
 EXCITATION_TYPES = ("speed", "band")
+
+#: Most elements (masses, anchors, springs, dashpots, excitations together) a model may have:
+#: ten times the largest model the sparse solver is benchmarked on, small enough that a model
+#: file stays within the load limit and loads in seconds.
+MAX_ELEMENTS = 200_000
+#: Longest id and longest label or model name, in characters.
+ID_MAX, TEXT_MAX = 200, 1000
+#: Most orders one speed excitation may list.
+ORDERS_MAX = 100
 
 
 def directions_for(kind: str, axis: str = "x") -> tuple[str, ...]:
@@ -34,13 +43,23 @@ def directions_for(kind: str, axis: str = "x") -> tuple[str, ...]:
     raise ModelError(f'model: kind must be one of {", ".join(KINDS)}, got "{kind}"')
 
 
-def _finite(owner: str, name: str, value, unit: str = "") -> float:
+def _finite(owner: str, name: str, value, unit: str = "", field: str | None = None) -> float:
+    """``float(value)``; a ModelError for text, bool, None, NaN, inf or a number beyond a double.
+
+    ``field`` is the value's key in the model file, kept in the error's ``path``.
+    """
+    if type(value) is float and -math.inf < value < math.inf:   # the common case, fast
+        return value
+    path = (field or name,)
+    if not is_number(value):
+        raise ModelError(f"{owner}: {name} must be a number, got {shown(value)}", path)
     try:
         v = float(value)
-    except (TypeError, ValueError):
-        raise ModelError(f"{owner}: {name} must be a number, got {value!r}") from None
-    if isinstance(value, bool) or not math.isfinite(v):
-        raise ModelError(f"{owner}: {name} must be a finite number{unit}, got {value!r}")
+    except (TypeError, ValueError, OverflowError):   # an int past 1.8e308
+        v = math.inf
+    if not math.isfinite(v):
+        raise ModelError(f"{owner}: {name} must be a finite number{unit}, got {shown(value)}",
+                         path)
     return v
 
 
@@ -49,39 +68,110 @@ def _finite(owner: str, name: str, value, unit: str = "") -> float:
 TINY, HUGE = 1e-30, 1e30
 
 
-def _in_range(owner: str, name: str, v: float, unit: str) -> float:
+def _in_range(owner: str, name: str, v: float, unit: str, field: str | None = None) -> float:
     if v != 0 and not (TINY <= abs(v) <= HUGE):
         raise ModelError(f"{owner}: {name} = {v:.3g} {unit} is outside the range a model can be"
-                         f" solved in ({TINY:g} to {HUGE:g} {unit}, or 0)")
+                         f" solved in ({TINY:g} to {HUGE:g} {unit}, or 0)", (field or name,))
     return v
 
 
-def _nonneg(owner: str, name: str, value, unit: str, ranged: bool = False) -> float:
-    v = _finite(owner, name, value, f" in {unit}")
+def _capped(owner: str, name: str, v: float, unit: str, field: str | None = None) -> float:
+    # a rate, ratio or frequency may be as small as it likes, but beyond HUGE its products with
+    # frequencies and masses leave double precision
+    if v > HUGE:
+        raise ModelError(f"{owner}: {name} = {v:.3g} {unit} is above the largest value a model"
+                         f" can be solved with ({HUGE:g} {unit})", (field or name,))
+    return v
+
+
+def _nonneg(owner: str, name: str, value, unit: str, ranged: bool | str = False,
+            field: str | None = None) -> float:
+    """A value >= 0; ``ranged=True`` also keeps it in TINY..HUGE (or 0), "capped" below HUGE."""
+    if type(value) is float and (TINY <= value <= HUGE or value == 0.0):   # fast path
+        return value
+    v = _finite(owner, name, value, f" in {unit}", field)
     if v < 0:
-        raise ModelError(f"{owner}: {name} must be zero or positive, got {_fmt(v)} {unit}")
-    return _in_range(owner, name, v, unit) if ranged else v
+        raise ModelError(f"{owner}: {name} must be zero or positive, got {_fmt(v)} {unit}",
+                         (field or name,))
+    if ranged == "capped":
+        return _capped(owner, name, v, unit, field)
+    return _in_range(owner, name, v, unit, field) if ranged else v
 
 
-def _positive(owner: str, name: str, value, unit: str, ranged: bool = False) -> float:
-    v = _finite(owner, name, value, f" in {unit}")
+def _positive(owner: str, name: str, value, unit: str, ranged: bool | str = False,
+              field: str | None = None) -> float:
+    """A value > 0; ``ranged`` as for :func:`_nonneg`."""
+    if type(value) is float and TINY <= value <= HUGE:   # fast path
+        return value
+    v = _finite(owner, name, value, f" in {unit}", field)
     if v <= 0:
-        raise ModelError(f"{owner}: {name} must be positive, got {_fmt(v)} {unit}")
-    return _in_range(owner, name, v, unit) if ranged else v
+        raise ModelError(f"{owner}: {name} must be positive, got {_fmt(v)} {unit}",
+                         (field or name,))
+    if ranged == "capped":
+        return _capped(owner, name, v, unit, field)
+    return _in_range(owner, name, v, unit, field) if ranged else v
+
+
+def _coordinate(owner: str, name: str, value, unit: str = "m") -> float:
+    """A position or an initial value: finite and at most HUGE in size (differences and squares
+    of positions give lengths and direction cosines, which must stay finite)."""
+    if type(value) is float and -HUGE <= value <= HUGE:   # fast path
+        return value
+    v = _finite(owner, name, value, f" in {unit}")
+    if abs(v) > HUGE:
+        raise ModelError(f"{owner}: {name} = {v:.3g} {unit} is outside the range a model can be"
+                         f" solved in (-{HUGE:g} to {HUGE:g} {unit})", (name,))
+    return v
 
 
 def _fmt(v: float) -> str:
     return f"{v:.6g}"
 
 
-def _check_id(kind: str, value) -> str:
+def _check_id(kind: str, value, field: str = "id") -> str:
+    """An id: non-empty printable text (no line breaks, control characters or lone surrogates,
+    which would break messages, tables and the file) of at most ID_MAX characters."""
+    what = "id" if field == "id" else "the id"
     if not isinstance(value, str) or not value.strip():
-        raise ModelError(f"{kind}: id must be a non-empty text, got {value!r}")
+        raise ModelError(f"{kind}: {what} must be a non-empty text, got {shown(value)}", (field,))
+    if len(value) > ID_MAX:
+        raise ModelError(f"{kind}: {what} has {len(value)} characters; at most {ID_MAX} are"
+                         " allowed", (field,))
+    if not value.isprintable():
+        raise ModelError(f"{kind}: {what} must be printable text (no line breaks or control"
+                         f" characters), got {shown(value)}", (field,))
     return value
 
 
-def _set(obj, name, value):
-    object.__setattr__(obj, name, value)
+def _text(owner: str, name: str, value, default: str) -> str:
+    """A label or model name: text of at most TEXT_MAX characters that UTF-8 can encode (a lone
+    surrogate, which JSON's \\ud800 escape can produce, cannot be saved); "" or None gives
+    ``default``."""
+    if value is None or value == "":
+        return default
+    if not isinstance(value, str):
+        raise ModelError(f"{owner}: {name} must be a text, got {shown(value)}", (name,))
+    if len(value) > TEXT_MAX:
+        raise ModelError(f"{owner}: {name} has {len(value)} characters; at most {TEXT_MAX} are"
+                         " allowed", (name,))
+    try:
+        value.encode("utf-8")
+    except UnicodeEncodeError as exc:
+        raise ModelError(f"{owner}: {name} holds a lone surrogate (U+{ord(value[exc.start]):04X}"
+                         f" at character {exc.start + 1}), which is not text", (name,)) from None
+    return value
+
+
+def _items(owner: str, name: str, value) -> tuple:
+    """A tuple of a list or tuple field; text and other single values are refused."""
+    if type(value) is tuple:
+        return value
+    if isinstance(value, (str, bytes)) or not isinstance(value, Iterable):
+        raise ModelError(f"{owner}: {name} must be a list, got {shown(value)}", (name,))
+    return tuple(value)
+
+
+_set = object.__setattr__   # frozen dataclasses set their checked fields through this
 
 
 @dataclass(frozen=True)
@@ -102,17 +192,18 @@ class Mass:
     def __post_init__(self):
         _check_id("mass", self.id)
         owner = f'mass "{self.id}"'
-        _set(self, "x", _finite(owner, "x", self.x, " in m"))
-        _set(self, "y", _finite(owner, "y", self.y, " in m"))
+        _set(self, "x", _coordinate(owner, "x", self.x))
+        _set(self, "y", _coordinate(owner, "y", self.y))
         _set(self, "mass", _nonneg(owner, "mass", self.mass, "kg (kg m^2 for a disc)",
                                        ranged=True))
-        _set(self, "label", str(self.label) if self.label else self.id)
-        fixed = tuple(self.fixed)
-        for d in fixed:
-            if d not in DIRECTIONS:
-                raise ModelError(f'{owner}: fixed direction must be one of x, y, theta, got "{d}"')
+        _set(self, "label", _text(owner, "label", self.label, self.id))
+        fixed = _items(owner, "fixed", self.fixed)
+        for i, d in enumerate(fixed):
+            if not isinstance(d, str) or d not in DIRECTIONS:
+                raise ModelError(f"{owner}: fixed direction must be one of x, y, theta, got"
+                                 f" {shown(d)}", ("fixed", i))
         if len(set(fixed)) != len(fixed):
-            raise ModelError(f"{owner}: fixed lists a direction twice: {list(fixed)}")
+            raise ModelError(f"{owner}: fixed lists a direction twice: {list(fixed)}", ("fixed",))
         _set(self, "fixed", fixed)
 
     @property
@@ -133,9 +224,9 @@ class Anchor:
     def __post_init__(self):
         _check_id("anchor", self.id)
         owner = f'anchor "{self.id}"'
-        _set(self, "x", _finite(owner, "x", self.x, " in m"))
-        _set(self, "y", _finite(owner, "y", self.y, " in m"))
-        _set(self, "label", str(self.label) if self.label else self.id)
+        _set(self, "x", _coordinate(owner, "x", self.x))
+        _set(self, "y", _coordinate(owner, "y", self.y))
+        _set(self, "label", _text(owner, "label", self.label, self.id))
 
 
 @dataclass(frozen=True)
@@ -156,12 +247,12 @@ class Spring:
     def __post_init__(self):
         _check_id("spring", self.id)
         owner = f'spring "{self.id}"'
-        _set(self, "a", _check_id(f"{owner} end a", self.a))
-        _set(self, "b", _check_id(f"{owner} end b", self.b))
-        _set(self, "k", _positive(owner, "stiffness k", self.k, "N/m", ranged=True))
+        _set(self, "a", _check_id(f"{owner} end a", self.a, "a"))
+        _set(self, "b", _check_id(f"{owner} end b", self.b, "b"))
+        _set(self, "k", _positive(owner, "stiffness k", self.k, "N/m", ranged=True, field="k"))
         _set(self, "k_t", _nonneg(owner, "transverse stiffness k_t", self.k_t, "N/m",
-                                      ranged=True))
-        _set(self, "label", str(self.label) if self.label else self.id)
+                                      ranged=True, field="k_t"))
+        _set(self, "label", _text(owner, "label", self.label, self.id))
 
 
 @dataclass(frozen=True)
@@ -177,11 +268,11 @@ class Damper:
     def __post_init__(self):
         _check_id("dashpot", self.id)
         owner = f'dashpot "{self.id}"'
-        _set(self, "a", _check_id(f"{owner} end a", self.a))
-        _set(self, "b", _check_id(f"{owner} end b", self.b))
+        _set(self, "a", _check_id(f"{owner} end a", self.a, "a"))
+        _set(self, "b", _check_id(f"{owner} end b", self.b, "b"))
         _set(self, "c", _nonneg(owner, "damping coefficient c", self.c, "N s/m",
-                                    ranged=True))
-        _set(self, "label", str(self.label) if self.label else self.id)
+                                    ranged=True, field="c"))
+        _set(self, "label", _text(owner, "label", self.label, self.id))
 
 
 @dataclass(frozen=True)
@@ -200,20 +291,33 @@ class Damping:
     mode_ratios: tuple[tuple[int, float], ...] = ()
 
     def __post_init__(self):
-        if self.model not in DAMPING_MODELS:
-            raise ModelError(
-                f'damping: model must be one of {", ".join(DAMPING_MODELS)}, got "{self.model}"')
-        _set(self, "ratio", _nonneg("damping", "ratio", self.ratio, "(fraction of critical)"))
-        _set(self, "alpha", _nonneg("damping", "alpha", self.alpha, "1/s"))
-        _set(self, "beta", _nonneg("damping", "beta", self.beta, "s"))
-        pairs = []
-        for item in self.mode_ratios:
+        if not isinstance(self.model, str) or self.model not in DAMPING_MODELS:
+            raise ModelError(f'damping: model must be one of {", ".join(DAMPING_MODELS)}, got'
+                             f" {shown(self.model)}", ("model",))
+        _set(self, "ratio", _nonneg("damping", "ratio", self.ratio, "(fraction of critical)",
+                                    ranged="capped"))
+        _set(self, "alpha", _nonneg("damping", "alpha", self.alpha, "1/s", ranged="capped"))
+        _set(self, "beta", _nonneg("damping", "beta", self.beta, "s", ranged="capped"))
+        pairs = {}
+        for item in _items("damping", "mode_ratios", self.mode_ratios):
+            if isinstance(item, (str, bytes)) or not isinstance(item, Iterable) or \
+                    len(tuple(item)) != 2:
+                raise ModelError(f"damping: mode_ratios holds (mode number, ratio) pairs, got"
+                                 f" {shown(item)}", ("mode_ratios",))
             n, r = item
-            if isinstance(n, bool) or int(n) != n or int(n) < 1:
-                raise ModelError(f"damping: mode numbers in mode_ratios start at 1, got {n!r}")
-            pairs.append((int(n), _nonneg("damping", f"ratio of mode {int(n)}", r,
-                                          "(fraction of critical)")))
-        _set(self, "mode_ratios", tuple(sorted(pairs)))
+            if not is_number(n) or not math.isfinite(n) or int(n) != n or not 1 <= n <= 10 ** 6:
+                raise ModelError(f"damping: mode numbers in mode_ratios are whole numbers from 1"
+                                 f" to 1000000, got {shown(n)}", ("mode_ratios",))
+            n = int(n)
+            if n in pairs:
+                raise ModelError(f"damping: mode_ratios gives mode {n} twice",
+                                 ("mode_ratios", str(n)))
+            try:
+                pairs[n] = _nonneg("damping", f"ratio of mode {n}", r, "(fraction of critical)",
+                                   ranged="capped")
+            except ModelError as exc:
+                raise ModelError(str(exc), ("mode_ratios", str(n))) from None
+        _set(self, "mode_ratios", tuple(sorted(pairs.items())))
 
 
 @dataclass(frozen=True)
@@ -235,22 +339,33 @@ class Excitation:
     def __post_init__(self):
         _check_id("excitation", self.id)
         owner = f'excitation "{self.id}"'
-        if self.type not in EXCITATION_TYPES:
-            raise ModelError(f'{owner}: type must be "speed" or "band", got "{self.type}"')
-        _set(self, "label", str(self.label) if self.label else self.id)
+        if not isinstance(self.type, str) or self.type not in EXCITATION_TYPES:
+            raise ModelError(f'{owner}: type must be "speed" or "band", got {shown(self.type)}',
+                             ("type",))
+        _set(self, "label", _text(owner, "label", self.label, self.id))
         if self.type == "speed":
-            _set(self, "rpm", _positive(owner, "rpm", self.rpm, "rev/min"))
-            orders = tuple(_positive(owner, "order", o, "(multiple of the speed)")
-                           for o in self.orders)
+            _set(self, "rpm", _positive(owner, "rpm", self.rpm, "rev/min", ranged="capped"))
+            raw = _items(owner, "orders", self.orders)
+            if len(raw) > ORDERS_MAX:
+                raise ModelError(f"{owner}: orders lists {len(raw)} orders; at most {ORDERS_MAX}"
+                                 " are allowed", ("orders",))
+            orders = []
+            for i, o in enumerate(raw):
+                try:
+                    orders.append(_positive(owner, "order", o, "(multiple of the speed)",
+                                            ranged="capped"))
+                except ModelError as exc:
+                    raise ModelError(str(exc), ("orders", i)) from None
             if not orders:
-                raise ModelError(f"{owner}: orders must list at least one order, e.g. [1, 2]")
-            _set(self, "orders", orders)
+                raise ModelError(f"{owner}: orders must list at least one order, e.g. [1, 2]",
+                                 ("orders",))
+            _set(self, "orders", tuple(orders))
         else:
-            lo = _nonneg(owner, "f_min_hz", self.f_min_hz, "Hz")
-            hi = _positive(owner, "f_max_hz", self.f_max_hz, "Hz")
+            lo = _nonneg(owner, "f_min_hz", self.f_min_hz, "Hz", ranged="capped")
+            hi = _positive(owner, "f_max_hz", self.f_max_hz, "Hz", ranged="capped")
             if hi < lo:
-                raise ModelError(
-                    f"{owner}: f_max_hz must not be below f_min_hz, got {_fmt(lo)} to {_fmt(hi)} Hz")
+                raise ModelError(f"{owner}: f_max_hz must not be below f_min_hz, got {_fmt(lo)}"
+                                 f" to {_fmt(hi)} Hz", ("f_max_hz",))
             _set(self, "f_min_hz", lo)
             _set(self, "f_max_hz", hi)
 
@@ -270,18 +385,29 @@ class Initial:
     velocity: tuple[tuple[str, float], ...] = ()
 
     def __post_init__(self):
-        _check_id("initial condition", self.mass_id)
+        _check_id("initial condition", self.mass_id, "mass_id")
         owner = f'initial condition of "{self.mass_id}"'
         for name, items in (("displacement", self.displacement), ("velocity", self.velocity)):
             if isinstance(items, Mapping):
                 items = tuple(items.items())
-            clean = []
-            for d, v in items:
-                if d not in DIRECTIONS:
-                    raise ModelError(f'{owner}: direction must be x, y or theta, got "{d}"')
-                clean.append((d, _finite(owner, f"{name} {d}", v)))
-            clean.sort(key=lambda p: DIRECTIONS.index(p[0]))
-            _set(self, name, tuple(clean))
+            clean = {}
+            for item in _items(owner, name, items):
+                if isinstance(item, (str, bytes)) or not isinstance(item, Iterable) or \
+                        len(tuple(item)) != 2:
+                    raise ModelError(f"{owner}: {name} holds (direction, value) pairs, got"
+                                     f" {shown(item)}", (name,))
+                d, v = item
+                if not isinstance(d, str) or d not in DIRECTIONS:
+                    raise ModelError(f"{owner}: direction must be x, y or theta, got {shown(d)}",
+                                     (name,))
+                key = d if name == "displacement" else "v" + d
+                if d in clean:
+                    raise ModelError(f"{owner}: {name} gives {d} twice", (key,))
+                try:
+                    clean[d] = _coordinate(owner, f"{name} {d}", v, "SI units")
+                except ModelError as exc:
+                    raise ModelError(str(exc), (key,)) from None
+            _set(self, name, tuple(sorted(clean.items(), key=lambda p: DIRECTIONS.index(p[0]))))
 
     def get(self, what: str, direction: str) -> float:
         items = self.displacement if what == "displacement" else self.velocity
@@ -305,30 +431,50 @@ class Model:
     initial: tuple[Initial, ...] = ()
 
     def __post_init__(self):
-        for name in ("masses", "anchors", "springs", "dampers", "excitations", "initial"):
-            _set(self, name, tuple(getattr(self, name)))
-        _set(self, "name", str(self.name))
-        if self.kind not in KINDS:
-            raise ModelError(f'model: kind must be one of {", ".join(KINDS)}, got "{self.kind}"')
-        if self.axis not in AXES:
-            raise ModelError(f'model: axis must be "x" or "y", got "{self.axis}"')
+        for name, cls in (("masses", Mass), ("anchors", Anchor), ("springs", Spring),
+                          ("dampers", Damper), ("excitations", Excitation),
+                          ("initial", Initial)):
+            items = _items("model", name, getattr(self, name))
+            for i, el in enumerate(items):
+                if type(el) is not cls:
+                    raise ModelError(f"model: {name} holds {cls.__name__} elements, got"
+                                     f" {shown(el)}", (name, i))
+            _set(self, name, items)
+        count = sum(len(getattr(self, n)) for n in ("masses", "anchors", "springs", "dampers",
+                                                    "excitations"))
+        if count > MAX_ELEMENTS:
+            raise ModelError(f"model: {count:,} elements (masses, anchors, springs, dashpots and"
+                             f" excitations); a model may have at most {MAX_ELEMENTS:,}")
+        if not isinstance(self.damping, Damping):
+            raise ModelError(f"model: damping must be a Damping, got {shown(self.damping)}",
+                             ("damping",))
+        _set(self, "name", _text("model", "name", self.name, ""))
+        if not isinstance(self.kind, str) or self.kind not in KINDS:
+            raise ModelError(f'model: kind must be one of {", ".join(KINDS)}, got'
+                             f" {shown(self.kind)}", ("kind",))
+        if not isinstance(self.axis, str) or self.axis not in AXES:
+            raise ModelError(f'model: axis must be "x" or "y", got {shown(self.axis)}', ("axis",))
         _set(self, "margin_percent",
              _nonneg("model", "margin_percent", self.margin_percent, "%"))
         if self.margin_percent >= 100:
             raise ModelError(
-                f"model: margin_percent must be below 100, got {_fmt(self.margin_percent)} %")
+                f"model: margin_percent must be below 100, got {_fmt(self.margin_percent)} %",
+                ("margin_percent",))
         self._validate_references()
 
     # -- validation ---------------------------------------------------------------------------
     def _validate_references(self):
         seen: dict[str, str] = {}
-        for what, items in (("mass", self.masses), ("anchor", self.anchors),
-                            ("spring", self.springs), ("dashpot", self.dampers),
-                            ("excitation", self.excitations)):
-            for el in items:
+        for what, key, items in (("mass", "masses", self.masses),
+                                 ("anchor", "anchors", self.anchors),
+                                 ("spring", "springs", self.springs),
+                                 ("dashpot", "dampers", self.dampers),
+                                 ("excitation", "excitations", self.excitations)):
+            for i, el in enumerate(items):
                 if el.id in seen:
                     raise ModelError(
-                        f'{what} "{el.id}": id is already used by a {seen[el.id]}; ids must be unique')
+                        f'{what} "{el.id}": id is already used by a {seen[el.id]}; ids must be'
+                        " unique", (key, i, "id"))
                 seen[el.id] = what
         allowed = directions_for(self.kind, self.axis)
         # A locked direction the model kind does not have (y in a line model along x) locks
@@ -336,16 +482,18 @@ class Model:
         # switching a model's kind never invalidates it.
         nodes = {m.id: m for m in self.masses}
         nodes.update({a.id: a for a in self.anchors})
-        for what, items in (("spring", self.springs), ("dashpot", self.dampers)):
-            for el in items:
+        for what, key, items in (("spring", "springs", self.springs),
+                                 ("dashpot", "dampers", self.dampers)):
+            for i, el in enumerate(items):
                 for end in ("a", "b"):
                     ref = getattr(el, end)
                     if ref not in nodes:
                         raise ModelError(
-                            f'{what} "{el.id}": end {end} names "{ref}", which is not a mass or anchor')
+                            f'{what} "{el.id}": end {end} names "{ref}", which is not a mass or'
+                            " anchor", (key, i, end))
                 if el.a == el.b:
                     raise ModelError(f'{what} "{el.id}": both ends are "{el.a}"; a {what} must join'
-                                     ' two different nodes')
+                                     ' two different nodes', (key, i, "b"))
                 if self.kind == "planar":
                     na, nb = nodes[el.a], nodes[el.b]
                     length = math.hypot(nb.x - na.x, nb.y - na.y)
@@ -353,22 +501,26 @@ class Model:
                         raise ModelError(
                             f'{what} "{el.id}": its ends "{el.a}" and "{el.b}" are at the same point;'
                             " in a planar model a spring acts along its drawn line, so it needs a"
-                            " length")
+                            " length", (key, i))
         masses = {m.id for m in self.masses}
         seen_init = set()
         for ic in self.initial:
             if ic.mass_id not in masses:
                 where = "an anchor" if ic.mass_id in nodes else "not a mass in the model"
                 raise ModelError(f'initial condition: "{ic.mass_id}" is {where};'
-                                 " initial conditions are given for masses")
+                                 " initial conditions are given for masses",
+                                 ("initial", ic.mass_id))
             if ic.mass_id in seen_init:
-                raise ModelError(f'initial condition: mass "{ic.mass_id}" is listed twice')
+                raise ModelError(f'initial condition: mass "{ic.mass_id}" is listed twice',
+                                 ("initial", ic.mass_id))
             seen_init.add(ic.mass_id)
-            for d, _ in ic.displacement + ic.velocity:
-                if d not in allowed:
-                    raise ModelError(
-                        f'initial condition of "{ic.mass_id}": direction "{d}" does not exist in a'
-                        f' {self._kind_text()} (allowed: {", ".join(allowed)})')
+            for name, items in (("displacement", ic.displacement), ("velocity", ic.velocity)):
+                for d, _ in items:
+                    if d not in allowed:
+                        raise ModelError(
+                            f'initial condition of "{ic.mass_id}": direction "{d}" does not exist'
+                            f' in a {self._kind_text()} (allowed: {", ".join(allowed)})',
+                            ("initial", ic.mass_id, d if name == "displacement" else "v" + d))
 
     def _kind_text(self) -> str:
         return {"line": f"line model along {self.axis}", "planar": "planar model",

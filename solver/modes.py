@@ -20,7 +20,7 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from .assemble import System, assemble
-from .errors import ModelError
+from .errors import ModelError, checked_arguments
 from .model import Model
 
 #: Up to this many DOFs every mode is found by dense LAPACK (chosen with bench/solver_bench.py).
@@ -169,6 +169,7 @@ def _spectral_bound(M_diag: np.ndarray, K) -> float:
     return float(rows.max(initial=0.0))
 
 
+@checked_arguments
 def modes(model_or_system, count: int | None = None, method: str | None = None) -> ModalResult:
     """Natural frequencies and mass-normalised mode shapes.
 

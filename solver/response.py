@@ -19,7 +19,7 @@ import scipy.linalg
 
 from .assemble import System, assemble
 from .damping import rigid_split, state_space
-from .errors import ModelError, number, numbers
+from .errors import ModelError, checked_arguments, number, numbers
 from .model import Model
 from .modes import ModalResult, modes
 
@@ -171,6 +171,7 @@ def _modal_coordinate(q0, qd0, c, lam, t):
     return q, qd
 
 
+@checked_arguments(model="model_or_system")
 def free_response(model, times, result: ModalResult | None = None, x0=None, v0=None,
                   damped: bool = True) -> FreeResponse:
     """Free response of a model from initial conditions.

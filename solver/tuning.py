@@ -41,7 +41,7 @@ import scipy.linalg
 from scipy.optimize import brentq
 
 from .assemble import assemble
-from .errors import ModelError, number, numbers
+from .errors import ModelError, checked_arguments, number, numbers
 from .metrics import strain_vectors, unheld_junction_directions
 from .model import HUGE, TINY, Mass, Model, Spring
 from .modes import ZERO_RTOL, modes
@@ -101,6 +101,7 @@ def value_of(model: Model, element_id: str, field: str | None = None) -> float:
     return float(getattr(el, f))
 
 
+@checked_arguments
 def with_value(model: Model, element_id: str, value: float, field: str | None = None) -> Model:
     """A new model with one element's stiffness or mass set to ``value`` (SI)."""
     el, f = _field_for(model, element_id, field)
@@ -185,6 +186,7 @@ def _finite_eigenvalues(K: np.ndarray, m_diag: np.ndarray, constraint=None,
     return np.sort(lam), scale
 
 
+@checked_arguments
 def limit_spectrum(model: Model, element_id: str, field: str | None, toward: str,
                    n_zero: int | None = None, count: int | None = None) -> np.ndarray:
     """Every natural frequency's limit, as w^2 in (rad/s)^2, when one value tends to 0 or inf.
@@ -269,6 +271,7 @@ def _estimated_spectrum(model, element_id, f, toward, count) -> np.ndarray:
     return modes(with_value(model, element_id, v, f), count=count).eigenvalues
 
 
+@checked_arguments
 def reachable_range(model: Model, element_id: str, mode: int, field: str | None = None,
                     decades: float | None = None) -> tuple[float, float]:
     """The frequencies (Hz) mode ``mode`` tends to as the value goes to 0 and to infinity,
@@ -309,6 +312,7 @@ def _solve(model, mode):
 # verification
 
 
+@checked_arguments
 def eigenvalues_below(model: Model, omega2: float) -> int | None:
     """How many natural frequencies lie below ``sqrt(omega2)`` rad/s, by Sylvester's law of
     inertia: the negative eigenvalues of ``K - omega2 M`` before condensation (an LDL^T
@@ -372,6 +376,7 @@ class RetuneResult:
     count_checked: bool
 
 
+@checked_arguments
 def retune(model: Model, element_id: str, mode: int, target_hz: float,
            field: str | None = None) -> float:
     """The value of one element's stiffness or mass that puts ``mode`` (from 1) on ``target_hz``.
@@ -401,6 +406,7 @@ def retune(model: Model, element_id: str, mode: int, target_hz: float,
     return retune_result(model, element_id, mode, target_hz, field).value
 
 
+@checked_arguments
 def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
                   field: str | None = None) -> RetuneResult:
     """:func:`retune` with the details of the search and its verification."""
@@ -564,6 +570,7 @@ class SweepResult:
     frequencies_hz: np.ndarray
 
 
+@checked_arguments
 def sweep(model: Model, element_id: str, values, field: str | None = None,
           count: int | None = None) -> SweepResult:
     """Solve the model at each value of one element's stiffness or mass."""
@@ -581,6 +588,7 @@ def sweep(model: Model, element_id: str, values, field: str | None = None,
     return SweepResult(element_id=element_id, field=f, values=values, frequencies_hz=out)
 
 
+@checked_arguments
 def rank_elements(model: Model, mode: int) -> list[tuple[str, str, float]]:
     """Springs and masses ranked by how strongly they govern a mode's frequency.
 

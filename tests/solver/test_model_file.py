@@ -11,6 +11,7 @@ import json
 import math
 import os
 import subprocess
+import sys
 from pathlib import Path
 
 import numpy as np
@@ -23,6 +24,8 @@ from solver import Mass, Model, ModelFileError
 ROOT = Path(__file__).resolve().parents[2]
 EXAMPLES = sorted((ROOT / "assets" / "examples").glob("*.json"))
 CLI = ROOT / ".venv" / "bin" / "springwright"
+# the installed command where `make` set it up, else the same entry point from this checkout
+CLI_COMMAND = [str(CLI)] if CLI.exists() else [sys.executable, "-m", "app.cli"]
 
 BASE = {
     "format": "springwright-model", "version": 1, "name": "TD-3S", "kind": "line", "axis": "x",
@@ -255,8 +258,10 @@ def test_rod_chain_example_is_near_the_wave_equation():
 
 # ------------------------------------------------------------------ command line
 def _run(*args, cwd=None):
-    return subprocess.run([str(CLI), *map(str, args)], capture_output=True, text=True, timeout=60,
-                          cwd=cwd, env={**os.environ, "QT_QPA_PLATFORM": "offscreen"})
+    env = {**os.environ, "QT_QPA_PLATFORM": "offscreen",
+           "PYTHONPATH": os.pathsep.join([str(ROOT), os.environ.get("PYTHONPATH", "")])}
+    return subprocess.run([*CLI_COMMAND, *map(str, args)], capture_output=True, text=True,
+                          timeout=60, cwd=cwd, env=env)
 
 
 @pytest.fixture(scope="module")
