@@ -83,6 +83,31 @@ def dense_section():
     return results
 
 
+def stiff_line_model(n: int, seed: int = 1) -> Model:
+    """The random chain of random_line_model with one link 1e12 times stiffer than the rest (a
+    rigid joint modelled as a spring): eigh on the formed K would lose the lowest digits, so
+    solver.modes takes the factored SVD (solver/factor.py)."""
+    base = random_line_model(n, seed)
+    springs = list(base.springs)
+    springs[n // 2] = Spring(springs[n // 2].id, springs[n // 2].a, springs[n // 2].b, 1e15)
+    return base.with_changes(springs=tuple(springs))
+
+
+def accurate_section():
+    print()
+    print("accurate path: stiff link (1e15 N/m among 1e3..1e4), modes() by the factored SVD"
+          " against bare eigh(K, M)")
+    print(f"{'DOF':>6} {'bare eigh ms':>13} {'modes() ms':>11} {'ratio':>7}  method")
+    for n, reps in ((50, 21), (200, 9)):
+        model = stiff_line_model(n)
+        system = solver.assemble(model)
+        K, M = system.dense("K"), system.dense("M")
+        bare = median_time(lambda: scipy.linalg.eigh(K, M), reps)
+        ours = median_time(lambda: solver.modes(system), reps)
+        method = solver.modes(system).method
+        print(f"{n:>6} {bare * 1e3:>13.2f} {ours * 1e3:>11.2f} {ours / bare:>7.2f}  {method}")
+
+
 def switch_section():
     print()
     print("switch point: lowest 20 modes by dense LAPACK against shift-invert Lanczos")
@@ -147,6 +172,7 @@ def main():
     print(f"numpy {np.__version__}, scipy {scipy.__version__}, BLAS: {blas},"
           f" cores: {os.cpu_count()}")
     dense_section()
+    accurate_section()
     switch_section()
     sparse_section()
 

@@ -6,7 +6,10 @@ statically (Guyan condensation, exact for massless DOFs),
 
     K_red = K_mm - K_ms K_ss^+ K_sm,        x_s = -K_ss^+ K_sm x_m,
 
-and their motion is recovered from that of the masses. ``System.M``, ``.K``, ``.C`` and ``.dofs``
+and their motion is recovered from that of the masses. The condensation is done on the
+stiffness factor ``K = A^T A`` by orthogonal projection (solver/factor.py), which gives the same
+K_red and x_s without the cancellation of the formula above when one spring is far stiffer than
+the others; junction clusters too large for it use the sparse Schur complement. ``System.M``, ``.K``, ``.C`` and ``.dofs``
 are the condensed matrices on the DOFs that carry mass; ``.M_full``, ``.K_full``, ``.C_full`` and
 ``.all_dofs`` keep every DOF, junctions included, for direct frequency-domain solves.
 
@@ -25,6 +28,7 @@ import scipy.linalg
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
+from . import factor
 from .errors import ModelError, checked_arguments
 from .model import Model
 
@@ -79,6 +83,11 @@ class System:
     #: (n_all, n_loose) orthonormal directions of massless junctions held by no spring and no
     #: dashpot (K_full, C_full and M_full are all zero along them); empty when there are none.
     loose: np.ndarray = field(default=None, repr=False)
+    #: (n_rows, n) sparse stiffness factor on ``dofs``: ``K = K_factor^T K_factor`` (one row per
+    #: spring, or per condensed combination of springs; see solver/factor.py). It keeps what
+    #: forming K loses to rounding (a soft spring beside a very stiff one); None when the
+    #: junctions were condensed by the Schur complement (very long junction chains).
+    K_factor: object = field(default=None, repr=False)
 
     @property
     def n_dof(self) -> int:
@@ -236,11 +245,14 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
     slaves = np.flatnonzero(masses == 0)
     dofs = tuple(all_dofs[i] for i in retained)
     loose = np.zeros((n_all, 0))
+    B, w = factor.spring_rows(s_dofs, s_axis, k_vals, kt_vals, n_all)
     if len(slaves) == 0:
         recovery = sp.identity(n_all, format="csr")
         M, K, C = M_full, K_full, C_full
+        K_factor = sp.diags(w) @ B
     else:
-        K, C, recovery, msg, loose = _condense(K_full, C_full, retained, slaves, all_dofs)
+        K, C, recovery, msg, loose, K_factor = _condense(K_full, C_full, retained, slaves,
+                                                         all_dofs, B, w)
         M = sp.diags(masses[retained], format="csr")
         warnings.extend(msg)
         if model.dampers and C_full[slaves][:, :].nnz:
@@ -259,7 +271,8 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
                   all_dofs=tuple(all_dofs),
                   recovery=recovery, M_full=M_full, K_full=K_full, C_full=C_full,
                   sparse=use_sparse, warnings=tuple(warnings), spring_dofs=s_dofs,
-                  spring_axis=s_axis, mass_dofs=mass_dofs, loose=loose)
+                  spring_axis=s_axis, mass_dofs=mass_dofs, loose=loose,
+                  K_factor=None if K_factor is None else sp.csr_matrix(K_factor))
 
 
 #: Modal damping needs every mode to build C; above this many DOFs it is left out of C (warned).
@@ -323,10 +336,15 @@ def _sparse_null(Kss, scale: float):
     return q, None
 
 
-def _condense(K_full, C_full, retained, slaves, all_dofs):
+def _condense(K_full, C_full, retained, slaves, all_dofs, B, w):
     """Static condensation of the massless DOFs ``slaves``.
 
-    Returns K, C, recovery, warnings and the loose junction directions (see ``System.loose``).
+    By orthogonal projection of the stiffness factor ``diag(w) B`` (solver/factor.py), which
+    stays accurate and semi-definite whatever the stiffness contrast; for junction clusters too
+    large for that, by the Schur complement of K.
+
+    Returns K, C, recovery, warnings, the loose junction directions (see ``System.loose``) and
+    the condensed stiffness factor (None from the Schur complement).
     """
     warnings = []
     Kmm = K_full[retained][:, retained]
@@ -334,7 +352,14 @@ def _condense(K_full, C_full, retained, slaves, all_dofs):
     Ksm = K_full[slaves][:, retained]
     Kss = K_full[slaves][:, slaves]
     n_s = len(slaves)
-    if n_s <= 2000:
+    cond = factor.condense(B, w, retained, slaves)
+    K_factor = None
+    if cond is not None:
+        K_factor = cond.factor
+        G = cond.G
+        null = cond.null
+        loose = null.shape[1]
+    elif n_s <= 2000:
         Kss_d = Kss.toarray()
         # A massless node with a direction no spring resists has an undetermined position; the
         # pseudo-inverse picks the least motion, which leaves the masses' equations unchanged.
@@ -365,7 +390,10 @@ def _condense(K_full, C_full, retained, slaves, all_dofs):
         detail = f' (e.g. {", ".join(repr(n) for n in names[:3])})' if names else ""
         warnings.append(f"{loose} direction(s) of massless junctions{detail} are held by no"
                         " spring; their motion is undetermined and shown as zero")
-    K = Kmm + Kms @ G
+    if K_factor is not None:
+        K = K_factor.T @ K_factor
+    else:
+        K = Kmm + Kms @ G
     K = (K + K.T) * 0.5
     Cmm = C_full[retained][:, retained]
     Cms = C_full[retained][:, slaves]
@@ -394,4 +422,5 @@ def _condense(K_full, C_full, retained, slaves, all_dofs):
     rec_s = sp.csr_matrix((np.ones(len(slaves)), (slaves, np.arange(len(slaves)))),
                           shape=(n_all, len(slaves)))
     recovery = rec + rec_s @ G
-    return sp.csr_matrix(K), sp.csr_matrix(C), recovery.tocsr(), warnings, loose_full
+    return (sp.csr_matrix(K), sp.csr_matrix(C), recovery.tocsr(), warnings, loose_full,
+            K_factor)

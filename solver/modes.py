@@ -5,20 +5,33 @@ symmetric one ``(M^-1/2 K M^-1/2) u = w^2 u`` and solved by ``scipy.linalg.eigh`
 models use shift-invert Lanczos (``scipy.sparse.linalg.eigsh``) for the lowest ``count`` modes, with
 a small negative shift so that rigid-body modes (a singular K) are allowed.
 
+The dense result is checked against the eigensolver's error bound (``eps lam_max / lam_i``)
+and against the zero-mode count that the structure gives (graph components, and for planar
+layouts the motions that strain no spring, judged on geometry alone). Where eigh on the formed K
+would lose digits (a spring far stiffer than the rest), the eigenvalues come instead from the
+singular values of the stiffness factor (solver/factor.py), which never forms K. The sparse path
+never cuts a repeated group and checks its count by inertia (Sturm). Every frequency carries an
+estimate of its relative error (``ModalResult.frequency_rtol``); one beyond the six digits shown
+is warned, and a mode shown as 0 Hz is always flagged (as rigid-body motion, a mechanism, or
+``unresolved`` when double precision cannot tell it from zero).
+
 Zero eigenvalues are results, not errors: the zero-frequency modes are re-expressed in a basis
 that explains them (rigid-body translations and rotations first, then mechanisms), each with a cause
-in plain words. Shapes are mass-normalised: ``Phi^T M Phi = I``.
+in plain words: for a mechanism, the motion of the computed null vector itself (the masses that
+take part, their directions and relative amplitudes). Shapes are mass-normalised:
+``Phi^T M Phi = I``.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 import scipy.linalg
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
+from . import factor
 from .assemble import System, assemble
 from .errors import ModelError, checked_arguments
 from .model import Model
@@ -40,13 +53,17 @@ class ZeroMode:
     """Why a zero-frequency mode exists.
 
     ``kind`` is ``"rigid"`` (the group moves as a rigid body: the general solution term
-    ``v (a + b t)``) or ``"mechanism"`` (springs allow a motion they cannot resist).
+    ``v (a + b t)``), ``"mechanism"`` (springs allow a motion they cannot resist) or
+    ``"unresolved"`` (an elastic mode whose frequency double precision cannot tell from zero:
+    not a result). ``motion`` gives a mechanism's motion, ``{mass_id: {direction: amplitude}}``
+    scaled so that the largest amplitude is 1 (masses that barely take part left out).
     """
 
     mode: int
     kind: str
     cause: str
     masses: tuple[str, ...] = ()
+    motion: dict = field(default=None, compare=False)
 
 
 @dataclass(frozen=True, eq=False)
@@ -64,6 +81,8 @@ class ModalResult:
     total_mass : dict direction -> mass free to move in that direction (r^T M r).
     zero_modes : tuple of ZeroMode.     repeated : tuple of tuples of mode numbers.
     complete : True when every mode of the model was found (dense path).
+    method : "dense" (LAPACK eigh on K), "dense (factored SVD)" (singular values of the
+        stiffness factor, taken when eigh would lose digits) or "shift-invert Lanczos".
     """
 
     system: System
@@ -79,6 +98,9 @@ class ModalResult:
     message: str = ""
     complete: bool = True
     method: str = "dense"
+    #: (n_modes,) estimated relative error of each frequency (from the eigensolver's error
+    #: bound; 0 for exact zero modes, inf where the solver could not resolve it)
+    frequency_rtol: np.ndarray = None
 
     @property
     def dofs(self):
@@ -206,7 +228,8 @@ def modes(model_or_system, count: int | None = None, method: str | None = None) 
                            effective_mass={d: np.zeros(0) for d in system.directions},
                            participation={d: np.zeros(0) for d in system.directions},
                            total_mass={d: 0.0 for d in system.directions},
-                           warnings=tuple(warnings), message=msg, complete=True)
+                           warnings=tuple(warnings), message=msg, complete=True,
+                           frequency_rtol=np.zeros(0))
     M_diag = np.asarray(system.M.diagonal()).ravel().astype(float)
     bound = _spectral_bound(M_diag, system.K)
     want = n if count is None and n <= DENSE_DOF_LIMIT else (
@@ -222,8 +245,10 @@ def modes(model_or_system, count: int | None = None, method: str | None = None) 
         lam, phi = _dense_eig(system, M_diag, want)
         method = "dense"
     else:
-        lam, phi = _sparse_eig(system, M_diag, want, bound)
+        lam, phi, note = _sparse_eig(system, M_diag, want, bound)
         method = "shift-invert Lanczos"
+        if note:
+            warnings.append(note)
     if not np.all(np.isfinite(lam)) or not np.all(np.isfinite(phi)):
         model = system.model
         light = min((m for m in model.masses if m.mass > 0), key=lambda m: m.mass)
@@ -234,20 +259,89 @@ def modes(model_or_system, count: int | None = None, method: str | None = None) 
             + (f', stiffest spring "{stiff.id}" {max(stiff.k, stiff.k_t):.3g}' if stiff else "")
             + "); check the units of these values")
     zero_bound = _zero_scale(system, M_diag, bound)
+    rigid = _rigid_body_basis(system, M_diag)
+    eps = np.finfo(float).eps
     if method == "dense" and len(lam):
-        # a dense solver's eigenvalue error is ~ eps x the largest eigenvalue: a very stiff
-        # link next to soft mounts costs the lowest frequencies digits
-        elastic = lam[lam > zero_bound]
-        if len(elastic) >= 2:
-            rel = np.finfo(float).eps * float(elastic.max()) / float(elastic.min())
-            if rel > 1e-8:
-                warnings.append(
-                    f"the eigenvalues span a factor of {elastic.max() / elastic.min():.2g}: the"
-                    f" lowest frequencies are accurate to about {0.5 * rel:.1g} (relative);"
-                    " a link far stiffer than the rest may be better modelled as rigid"
-                    " (merge its nodes)")
+        # a backward-stable symmetric eigensolver's error in each eigenvalue is ~ eps x the
+        # largest one (Wilkinson; Golub and Van Loan, sec. 8.1): in w that is a relative
+        # eps lam_max / (2 lam_i)
+        top = float(lam.max()) if want == n else bound
+        n_zero = _zero_count(system, lam, phi, ZERO_RTOL * max(zero_bound, 1e-300), rigid)
+        err = _relative_error(lam, 4 * eps * max(top, 0.0))
+        if system.K_factor is not None and (
+                n_zero < int(np.sum(lam <= ZERO_RTOL * zero_bound))
+                or np.any(err[n_zero:] > ACCURATE_RTOL)):
+            # eigh on the formed K would lose digits: take the singular values of the
+            # stiffness factor instead (solver/factor.py), which never forms K
+            lam_f, phi_f, err_f = factor.factored_eig(system.K_factor, M_diag, ACCURATE_RTOL)
+            lam, phi, err = lam_f[:want], phi_f[:, :want], err_f[:want]
+            method = "dense (factored SVD)"
+    elif len(lam):
+        err = _sparse_error(system, lam, phi, M_diag, bound)
+    else:
+        err = np.zeros(0)
     return _finish(system, lam, phi, M_diag, zero_bound, warnings,
-                   complete=(want == n), method=method)
+                   complete=(want == n), method=method, rigid=rigid, err=err)
+
+
+#: Estimated relative error in w above which the dense path turns to the factored SVD.
+ACCURATE_RTOL = 1e-9
+#: The relative resolution of a frequency as shown (6 significant digits, as in the command
+#: line's table): an estimated error above it is warned.
+DISPLAY_RTOL = 5e-7
+
+
+def _relative_error(lam, abs_err):
+    """Relative error in w = sqrt(lam) from an absolute error bound on lam."""
+    lam = np.asarray(lam, float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(lam > 0, 0.5 * abs_err / np.where(lam > 0, lam, 1.0), np.inf)
+
+
+def _rayleigh(system, K, phi):
+    """Rayleigh quotients phi^T K phi of M-normalised columns. From the stiffness factor where
+    there is one, as ||F phi||^2: each spring's stretch is formed before it is squared, so a
+    low mode of a long chain keeps its digits (phi^T (K phi) loses eps x lam_max to
+    cancellation)."""
+    F = system.K_factor
+    if F is not None:
+        Fphi = np.asarray(F @ phi)
+        return np.einsum("ij,ij->j", Fphi, Fphi)
+    return np.einsum("ij,ij->j", phi, np.asarray(K @ phi))
+
+
+def _sparse_error(system, lam, phi, M_diag, bound):
+    """Error bound in w of the sparse path, a posteriori: for an M-normalised vector with
+    Rayleigh quotient lam there is an eigenvalue within ||M^-1/2 r|| of it, r = K phi - lam M phi
+    (Parlett, The Symmetric Eigenvalue Problem, thm 4.5.1; the inertia count vouches that it is
+    this one). The residual is formed through the stiffness factor, F^T (F phi), where there is
+    one (its own rounding ~ eps sqrt(lam_max lam)); else through K (rounding ~ eps lam_max)."""
+    eps = np.finfo(float).eps
+    F = system.K_factor
+    if F is not None:
+        Kphi = np.asarray(F.T @ np.asarray(F @ phi))
+        rounding = 4 * eps * np.sqrt(bound * np.maximum(lam, 0.0))
+    else:
+        Kphi = np.asarray(system.K @ phi)
+        rounding = 4 * eps * bound
+    r = Kphi - (M_diag[:, None] * phi) * lam[None, :]
+    res = np.linalg.norm(r / np.sqrt(M_diag)[:, None], axis=0)
+    return _relative_error(lam, res + rounding)
+
+
+def _zero_count(system, lam, phi, zero_tol, rigid) -> int:
+    """How many of the lowest modes are zero modes, judged by structure, not by size:
+    the rigid-body motions (graph components), and in a planar model the combinations of the
+    numerically small modes that strain no spring (geometry alone)."""
+    n_zero_numeric = int(np.sum(lam <= zero_tol))
+    n_rigid = rigid[0].shape[1]
+    if system.model.kind == "planar" and n_zero_numeric > n_rigid:
+        # a very stiff link can push a real soft mode under the numerical threshold:
+        # keep only the candidates that strain no spring, judged by geometry (relative end
+        # motion against the motion itself), which no stiffness contrast disturbs
+        n_zero_numeric = _strain_free_count(system, phi[:, :n_zero_numeric])
+        return min(max(n_zero_numeric, n_rigid), len(lam))
+    return min(n_rigid, len(lam))
 
 
 def _zero_scale(system: System, M_diag: np.ndarray, bound: float) -> float:
@@ -288,6 +382,17 @@ def _dense_eig(system: System, M_diag: np.ndarray, want: int):
 
 
 def _sparse_eig(system: System, M_diag: np.ndarray, want: int, bound: float):
+    """Lowest modes by shift-invert Lanczos, never cutting a repeated group.
+
+    Lanczos finds one copy of a repeated eigenvalue at a time, so a group that straddles the
+    requested count can come back short. A few more modes than requested are sought; the result
+    is cut only at a gap between distinct frequencies, and the count below the cut is checked by
+    Sylvester's law of inertia: the number of eigenvalues of ``K v = lam M v`` below ``s`` is the
+    number of negative pivots of ``K - s M = L D L^T`` (the Sturm sequence check of
+    Bathe, Finite Element Procedures, sec. 11.4.3). While the count disagrees, more are sought.
+    Returns at least ``want`` modes (more when a group continues past it).
+    """
+    n = len(M_diag)
     K = sp.csc_matrix(system.K)
     M = sp.diags(M_diag, format="csc")
     # Rigid-body modes make K singular, so shift a little below zero. The shift must be small next
@@ -296,36 +401,103 @@ def _sparse_eig(system: System, M_diag: np.ndarray, want: int, bound: float):
     sigma = -1e-10 * bound
     lu = spla.splu((K - sigma * M).tocsc())
     op = spla.LinearOperator(K.shape, matvec=lu.solve, dtype=float)
-    ncv = min(len(M_diag), max(2 * want + 1, want + 20))
-    lam, phi = spla.eigsh(K, k=want, M=M, sigma=sigma, which="LM", OPinv=op, ncv=ncv, tol=1e-12)
-    order = np.argsort(lam)
-    lam, phi = lam[order], phi[:, order]
-    # eigsh returns M-orthonormal vectors up to its tolerance; re-normalise exactly, and take
-    # each eigenvalue as the Rayleigh quotient of its vector: the vectors converge well, while
-    # the shift near the rigid-body modes limits the accuracy of the returned eigenvalues
-    norms = np.sqrt(np.einsum("ij,i,ij->j", phi, M_diag, phi))
-    phi = phi / norms
-    lam = np.einsum("ij,ij->j", phi, np.asarray(K @ phi))
-    return lam, phi
+    extra = max(3, want // 8)
+    k = min(n - 1, want + extra)
+    note = None
+    for attempt in range(4):
+        ncv = min(n, max(2 * k + 1, k + 20))
+        lam, phi = spla.eigsh(K, k=k, M=M, sigma=sigma, which="LM", OPinv=op, ncv=ncv,
+                              tol=1e-12)
+        # eigsh returns M-orthonormal vectors up to its tolerance; re-normalise exactly, and take
+        # each eigenvalue as the Rayleigh quotient of its vector: the vectors converge well,
+        # while the shift near the rigid-body modes limits the accuracy of the returned values
+        norms = np.sqrt(np.einsum("ij,i,ij->j", phi, M_diag, phi))
+        phi = phi / norms
+        lam = _rayleigh(system, K, phi)
+        order = np.argsort(lam)
+        lam, phi = lam[order], phi[:, order]
+        cut = _group_cut(lam, want, bound)
+        if cut is None:   # the computed modes end inside a group: seek more
+            if k >= n - 1:
+                return lam, phi, None
+            k = min(n - 1, 2 * k)
+            note = ("the sparse solver could not find where the group of modes at"
+                    f" {np.sqrt(max(lam[-1], 0.0)) / (2 * np.pi):.6g} Hz ends")
+            continue
+        # the check point sits halfway (in w) across the gap after the cut
+        w_lo, w_hi = np.sqrt(max(lam[cut - 1], 0.0)), np.sqrt(max(lam[cut], 0.0))
+        shift = (0.5 * (w_lo + w_hi)) ** 2
+        below = _count_below(K, M, shift)
+        if below == cut:
+            return lam[:cut], phi[:, :cut], None
+        f_check = np.sqrt(shift) / (2 * np.pi)
+        if below is None:
+            note = f"the count of modes below {f_check:.6g} Hz could not be checked"
+            break
+        note = (f"{below} modes lie below {f_check:.6g} Hz by the inertia (Sturm) count, but"
+                f" the sparse solver found {cut}: some frequencies may be missing or spurious")
+        if below < cut or k >= n - 1:
+            break
+        k = min(n - 1, max(2 * k, below + extra))
+    keep = cut if cut is not None else min(want, len(lam))
+    return lam[:keep], phi[:, :keep], note
 
 
-def _finish(system, lam, phi, M_diag, bound, warnings, complete, method):
+#: Relative gap in w that separates two groups when the sparse path cuts its result (ten times
+#: REPEATED_RTOL, so that a group the mode table calls repeated is never cut).
+_CUT_RTOL = 10 * REPEATED_RTOL
+
+
+def _group_cut(lam, want, bound):
+    """Number of modes to keep: the first ``j >= want`` with a real gap between modes j and j+1
+    (None when the computed modes end inside a group)."""
+    w = np.sqrt(np.maximum(lam, 0.0))
+    floor = np.sqrt(ZERO_RTOL * max(bound, 1e-300))  # zero modes count as one group
+    for j in range(max(want, 1), len(lam)):
+        if w[j] > floor and w[j] - w[j - 1] > _CUT_RTOL * w[j]:
+            return j
+    return None
+
+
+def _count_below(K, M, shift):
+    """Number of eigenvalues of ``K v = lam M v`` below ``shift``: the negative pivots of a
+    symmetric LDL^T of ``K - shift M`` (Sylvester's law of inertia). SuperLU with no row
+    pivoting (diag_pivot_thresh = 0) and a symmetric ordering gives ``P A P^T = L U`` with
+    ``U = D L^T``; a factor that pivoted anyway is not trusted (returns None unless the dense
+    Bunch-Kaufman LDL^T, scipy.linalg.ldl, is affordable)."""
+    A = sp.csc_matrix(K - shift * M)
+    try:
+        lu = spla.splu(A, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
+                       options={"SymmetricMode": True})
+        if np.array_equal(lu.perm_r, lu.perm_c):
+            d = lu.U.diagonal()
+            if np.all(np.isfinite(d)) and np.all(d != 0):
+                return int(np.sum(d < 0))
+    except RuntimeError:   # an exactly singular pivot
+        pass
+    if A.shape[0] <= 4000:
+        _l, D, _p = scipy.linalg.ldl(A.toarray())
+        # D is block diagonal with 1x1 and 2x2 blocks (so tridiagonal): the signs of its
+        # eigenvalues are the inertia
+        ev = scipy.linalg.eigvalsh_tridiagonal(np.diag(D).copy(), np.diag(D, 1).copy())
+        return int(np.sum(ev < 0))
+    return None
+
+
+def _finish(system, lam, phi, M_diag, bound, warnings, complete, method, rigid=None,
+            err=None):
     lam = np.array(lam, float)
     n_modes = lam.shape[0]
     zero_tol = ZERO_RTOL * max(bound, 1e-300)
-    # count zero modes: structurally for line/torsion (graph components), numerically otherwise
-    rigid, rigid_info = _rigid_body_basis(system, M_diag)
-    n_zero_numeric = int(np.sum(lam <= zero_tol))
-    if system.model.kind == "planar":
-        if n_zero_numeric > rigid.shape[1]:
-            # a very stiff link can push a real soft mode under the numerical threshold:
-            # keep only the candidates that strain no spring, judged by geometry (relative end
-            # motion against the motion itself), which no stiffness contrast disturbs
-            n_zero_numeric = _strain_free_count(system, phi[:, :n_zero_numeric])
-        n_zero = max(n_zero_numeric, rigid.shape[1])
-    else:
-        n_zero = rigid.shape[1]
-    n_zero = min(n_zero, n_modes)
+    rigid, rigid_info = _rigid_body_basis(system, M_diag) if rigid is None else rigid
+    err = np.zeros(n_modes) if err is None else np.asarray(err, float)
+    n_zero = _zero_count(system, lam, phi, zero_tol, (rigid, rigid_info))
+    if np.any(lam < -zero_tol):
+        worst = float(lam.min())
+        warnings.append(
+            f"the stiffness matrix is not positive semi-definite to working precision (an"
+            f" eigenvalue of {worst:.3g} (rad/s)^2): the stiffness values span too wide a range"
+            " for double precision, and the lowest frequencies cannot be trusted")
     zero_modes = []
     if n_zero:
         Z = _zero_basis(phi[:, :n_zero], rigid, M_diag, n_zero)
@@ -338,9 +510,35 @@ def _finish(system, lam, phi, M_diag, bound, warnings, complete, method):
                 cause, masses = rigid_info[i]
                 zero_modes.append(ZeroMode(mode=i + 1, kind="rigid", cause=cause, masses=masses))
             else:
-                cause, masses = _explain_mechanism(system, Z[:, i], M_diag)
+                cause, masses, motion = _explain_mechanism(system, Z[:, i], M_diag)
                 zero_modes.append(ZeroMode(mode=i + 1, kind="mechanism", cause=cause,
-                                           masses=masses))
+                                           masses=masses, motion=motion))
+    # a mode that structure says is elastic but whose computed eigenvalue is not positive is
+    # shown as 0 Hz: say so, and that the number is not a result
+    for i in range(n_zero, n_modes):
+        if lam[i] <= 0.0:
+            masses = tuple(mid for mid, _ in _moving_masses(system, phi[:, i], M_diag))
+            zero_modes.append(ZeroMode(
+                mode=i + 1, kind="unresolved", masses=masses,
+                cause=f"the computed eigenvalue ({lam[i]:.3g} (rad/s)^2) is not positive, though"
+                " this motion strains springs: the stiffness values span too wide a range for"
+                " double precision to resolve this frequency from zero"))
+            err[i] = np.inf
+    unresolved = [z.mode for z in zero_modes if z.kind == "unresolved"]
+    if unresolved:
+        warnings.append(f"mode(s) {', '.join(map(str, unresolved))} shown as 0 Hz could not be"
+                        " resolved from zero in double precision; they are not results")
+    shown = [i for i in range(n_zero, n_modes) if lam[i] > 0.0]
+    if shown and float(err[shown].max()) > DISPLAY_RTOL:
+        bad = [i for i in shown if err[i] > DISPLAY_RTOL]
+        elastic = lam[shown]
+        f_bad = np.sqrt(lam[bad].max()) / (2 * np.pi)
+        span = max(bound, float(elastic.max())) / float(elastic.min())
+        warnings.append(
+            f"the eigenvalues span a factor of {span:.2g}: frequencies"
+            f" up to {f_bad:.4g} Hz are accurate to about {float(err[bad].max()):.1g} (relative)"
+            " only; a link far stiffer than the rest may be better modelled as rigid (merge its"
+            " nodes)")
     lam = np.maximum(lam, 0.0)
     # deterministic sign: the largest component of each elastic mode is positive
     if n_modes > n_zero:
@@ -370,24 +568,35 @@ def _finish(system, lam, phi, M_diag, bound, warnings, complete, method):
     return ModalResult(system=system, eigenvalues=lam, shapes=phi, all_shapes=all_shapes,
                        effective_mass=effective, participation=participation, total_mass=total,
                        zero_modes=tuple(zero_modes), repeated=repeated, warnings=tuple(warnings),
-                       complete=complete, method=method)
+                       complete=complete, method=method, frequency_rtol=err)
 
 
-def _strain_free_count(system: System, Z: np.ndarray, rtol: float = 1e-6) -> int:
-    """Dimension of the combinations of the columns of Z (on dofs) that strain no spring."""
+def _geometric_strain(system: System, V_all: np.ndarray) -> np.ndarray:
+    """Unweighted strain of every spring under each column of V_all (motions on all_dofs):
+    the relative end motion along the spring (and across it where k_t > 0), (n_rows, n_cols).
+    No stiffness enters, so a soft spring beside a stiff one counts as much (geometry only)."""
     model = system.model
-    if not len(model.springs):
-        return Z.shape[1]
-    Z_all = np.asarray(system.recovery @ Z)
-    Z_all = np.vstack([Z_all, np.zeros((1, Z.shape[1]))])  # row -1: ground
+    V = np.vstack([np.asarray(V_all, float), np.zeros((1, V_all.shape[1]))])  # row -1: ground
     idx = system.spring_dofs
-    delta = Z_all[idx[:, 2:]] - Z_all[idx[:, :2]]  # (n_s, 2, n_cand)
+    if len(model.springs) == 0:
+        return np.zeros((0, V_all.shape[1]))
+    if idx.shape[1] == 2:   # line and torsion: one component per node
+        return V[idx[:, 1]] - V[idx[:, 0]]
+    delta = V[idx[:, 2:]] - V[idx[:, :2]]  # (n_s, 2, n_cols)
     e = system.spring_axis
     n = np.stack([-e[:, 1], e[:, 0]], axis=1)
     axial = np.einsum("si,sim->sm", e, delta)
     trans = np.einsum("si,sim->sm", n, delta)
     has_kt = np.array([sp_.k_t > 0 for sp_ in model.springs])
-    S = np.vstack([axial, trans[has_kt]])
+    return np.vstack([axial, trans[has_kt]])
+
+
+def _strain_free_count(system: System, Z: np.ndarray, rtol: float = 1e-6) -> int:
+    """Dimension of the combinations of the columns of Z (on dofs) that strain no spring."""
+    if not len(system.model.springs):
+        return Z.shape[1]
+    Z_all = np.asarray(system.recovery @ Z)
+    S = _geometric_strain(system, Z_all)
     scale = max(np.abs(Z_all).max(), 1e-300)
     sv = np.linalg.svd(S / scale, compute_uv=False)
     rank = int(np.sum(sv > rtol))
@@ -469,7 +678,6 @@ def _rigid_body_basis(system: System, M_diag):
     anchors = {a.id for a in model.anchors}
     masses = {m.id: m for m in model.masses}
     lookup = {d: i for i, d in enumerate(system.all_dofs)}
-    K_full = system.K_full
     vectors, info = [], []
     groups = _components(model)
     moving_groups = [g for g in groups if not (set(g) & anchors)]
@@ -507,10 +715,11 @@ def _rigid_body_basis(system: System, M_diag):
         V = np.zeros((len(system.all_dofs), len(names)))
         for key, row in free_rows:
             V[lookup[key]] = row
-        KV = np.asarray(K_full @ (V @ coeffs))
-        scale = max(abs(K_full).max() if sp.issparse(K_full) else np.abs(K_full).max(), 1e-300)
-        scale *= max(np.abs(V).max(), 1e-300)
-        ok = _null_space(KV, 1e-9, scale) if KV.size else np.eye(coeffs.shape[1])
+        # judged on the geometry (relative end motion of each spring), not on K V: next to a
+        # very stiff spring the force of a soft one is below K's rounding, yet it is strained
+        S = _geometric_strain(system, V @ coeffs)
+        scale = max(np.abs(V @ coeffs).max(), 1e-300)
+        ok = _null_space(S, 1e-9, scale) if S.size else np.eye(coeffs.shape[1])
         if ok.shape[1] == 0:
             continue
         C = coeffs @ ok  # (n_names, n_rigid) combinations of x, y, rot
@@ -604,33 +813,77 @@ def _rigid_cause(model, coef, names, whole, ids, gm, held=False):
     return f"{who} can {verb} as a rigid body{why}; no spring is strained)"
 
 
-def _explain_mechanism(system: System, vec, M_diag):
-    """Plain words for a zero mode that is not rigid-body motion."""
-    model = system.model
-    share = M_diag * vec * vec
+def _moving_masses(system: System, vec, M_diag, rtol: float = 1e-6):
+    """Masses that take part in a motion on ``dofs``, largest kinetic-energy share first:
+    ``[(mass_id, {direction: amplitude})]`` with amplitudes scaled so that the largest is 1;
+    masses whose amplitude is below ``rtol`` of the largest are left out."""
+    vec = np.asarray(vec, float)
     by_mass: dict = {}
-    for (mid, d), s, v in zip(system.dofs, share, vec):
+    for (mid, d), m, v in zip(system.dofs, M_diag, vec):
         entry = by_mass.setdefault(mid, [0.0, {}])
-        entry[0] += s
+        entry[0] += m * v * v
         entry[1][d] = v
+    top = max((max(abs(v) for v in e[1].values()) for e in by_mass.values()), default=0.0)
+    if top == 0.0:
+        return []
     ranked = sorted(by_mass.items(), key=lambda kv: -kv[1][0])
-    top = [mid for mid, (s, _) in ranked if s >= 0.1 * ranked[0][1][0]][:4]
-    mid = top[0]
-    motion = ranked[0][1][1]
-    if model.kind == "planar":
-        ux, uy = motion.get("x", 0.0), motion.get("y", 0.0)
-        norm = np.hypot(ux, uy) or 1.0
-        ux, uy = ux / norm, uy / norm
+    # sign: the largest component positive, so that the statement reads the same every time
+    big = max(((mid, d, v) for mid, (_, comp) in ranked for d, v in comp.items()),
+              key=lambda t: abs(t[2]))
+    sign = 1.0 if big[2] > 0 else -1.0
+    out = []
+    for mid, (_, comp) in ranked:
+        amp = {d: sign * v / top for d, v in comp.items()}
+        if max(abs(a) for a in amp.values()) >= rtol:
+            out.append((mid, amp))
+    return out
+
+
+#: A mechanism's statement names at most this many masses (its ``motion`` holds them all).
+_MECHANISM_NAMED = 6
+
+
+def _g3(value: float) -> str:
+    """Three significant digits, with rounding dust (and -0) shown as 0."""
+    return f"{(0.0 if abs(value) < 5e-4 else value) + 0.0:.3g}"
+
+
+def _explain_mechanism(system: System, vec, M_diag):
+    """Plain words for a zero mode that is not rigid-body motion: the motion itself (every mass
+    that takes part, its direction and relative amplitude), then why no spring resists it.
+
+    Returns (cause, masses, motion) with ``motion`` as in :class:`ZeroMode`.
+    """
+    model = system.model
+    moving = _moving_masses(system, vec, M_diag)
+    motion = {mid: amp for mid, amp in moving}
+    # the statement lists the masses that carry visible motion (amplitude >= 1e-3)
+    named = [(mid, amp) for mid, amp in moving if max(abs(a) for a in amp.values()) >= 1e-3]
+    ids = tuple(mid for mid, _ in named)
+    shown = named[:_MECHANISM_NAMED]
+    more = len(named) - len(shown)
+    tail = f" and {more} more" if more else ""
+    if model.kind != "planar":
+        parts = ", ".join(f'"{mid}" by {_g3(next(iter(amp.values())))}' for mid, amp in shown)
+        return (f"masses {parts}{tail} can move with no stiffness resisting", ids, motion)
+
+    def along(amp):
+        ux, uy = amp.get("x", 0.0), amp.get("y", 0.0)
+        size = float(np.hypot(ux, uy))
+        return size, (ux / size, uy / size) if size else (0.0, 0.0)
+
+    if len(named) == 1:
+        mid, amp = named[0]
+        _, (ux, uy) = along(amp)
         attached = [s for s in model.springs if mid in (s.a, s.b)]
         node = model.node(mid)
-        perpendicular = True
+        perpendicular = bool(attached)
         for s in attached:
             other = model.node(s.b if s.a == mid else s.a)
             ex, ey = other.x - node.x, other.y - node.y
             length = np.hypot(ex, ey)
             if abs(ux * ex / length + uy * ey / length) > 1e-3 or s.k_t > 0:
                 perpendicular = False
-        direction = f"({ux:.2f}, {uy:.2f})"
         if not attached:
             reason = "no spring is attached to it"
         elif perpendicular and len(attached) == 1:
@@ -639,11 +892,15 @@ def _explain_mechanism(system: System, vec, M_diag):
         elif perpendicular:
             reason = ("its springs are in line, so nothing resists motion at right angles to"
                       " them (add a spring at an angle or a transverse stiffness k_t)")
-            if len(top) > 1:
-                reason = reason.replace("its springs are", f'the springs of "{mid}" are')
         else:
-            reason = "the springs around it form a linkage that can move without stretching"
-        who = f'mass "{mid}"' if len(top) == 1 else "masses " + ", ".join(f'"{t}"' for t in top)
-        return f"{who} can move in direction {direction} with no stiffness: {reason}", tuple(top)
-    who = "masses " + ", ".join(f'"{t}"' for t in top)
-    return f"{who} can move with no stiffness resisting", tuple(top)
+            reason = ("the springs and massless junctions around it give way without"
+                      " stretching")
+        return (f'mass "{mid}" can move in direction ({_g3(ux)}, {_g3(uy)}) with no stiffness:'
+                f" {reason}", ids, motion)
+    parts = []
+    for mid, amp in shown:
+        size, (ux, uy) = along(amp)
+        parts.append(f'"{mid}" by {_g3(size)} in direction ({_g3(ux)}, {_g3(uy)})')
+    who = "masses " + ", ".join(f'"{mid}"' for mid, _ in shown) + tail
+    return (f"{who} can move together with no stiffness: " + "; ".join(parts) + tail
+            + " (no spring in the linkage they form is stretched)", ids, motion)

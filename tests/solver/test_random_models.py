@@ -1,7 +1,10 @@
 """Properties that hold for every valid model (hypothesis), each from an identity of the maths.
 
 Random models of all three kinds: random masses (some massless junctions), springs, anchors, planar
-positions with transverse stiffness k_t, locked directions.
+positions with transverse stiffness k_t, locked directions; with ``contrast=True`` also springs up
+to 1e12 times stiffer than the rest and massless junctions on stiff links. High-precision
+references come from mpmath (sw_builders.mp_reference: M and K built in mpmath from the element
+list and condensed exactly).
 """
 
 from __future__ import annotations
@@ -11,12 +14,13 @@ import json
 import os
 
 import numpy as np
+import scipy.linalg
 from hypothesis import HealthCheck, Phase, assume, given, settings
 from hypothesis import strategies as st
 
 import solver
 from solver import (Anchor, Damping, Excitation, Initial, Mass, Model, ModelFileError, Spring)
-from sw_builders import dense
+from sw_builders import dense, mp_rayleigh, mp_reference
 
 #: more examples for a bug hunt: SW_EXAMPLES=2000 pytest tests/solver/test_properties.py
 EXAMPLES = int(os.environ.get("SW_EXAMPLES", "50"))
@@ -26,13 +30,20 @@ FAST = settings(max_examples=EXAMPLES, deadline=None, phases=[Phase.explicit, Ph
 
 
 @st.composite
-def models(draw, kinds=("line", "planar", "torsion"), extras=False):
+def models(draw, kinds=("line", "planar", "torsion"), extras=False, contrast=False,
+           max_mass=6, fixed=True):
+    """A valid random model. ``contrast``: some springs 1e6..1e12 times stiffer than the rest
+    (10..1e4 N/m), and up to two massless junctions each joined to a mass by such a stiff link
+    and held by soft springs. ``fixed=False``: no locked directions (layouts that must not
+    depend on the axes)."""
     kind = draw(st.sampled_from(kinds))
-    n_mass = draw(st.integers(1, 6))
+    n_mass = draw(st.integers(1, max_mass))
     n_anchor = draw(st.integers(0, 2))
+    n_link = draw(st.integers(0, 2)) if contrast else 0
     # distinct grid points with jitter, so no planar spring has zero length
-    cells = draw(st.lists(st.tuples(st.integers(0, 4), st.integers(0, 4)), min_size=n_mass + n_anchor,
-                          max_size=n_mass + n_anchor, unique=True))
+    n_cells = n_mass + n_anchor + n_link
+    cells = draw(st.lists(st.tuples(st.integers(0, 4), st.integers(0, 4)), min_size=n_cells,
+                          max_size=n_cells, unique=True))
     jitter = draw(st.lists(st.floats(-0.3, 0.3), min_size=2 * len(cells), max_size=2 * len(cells)))
     pos = [(cx + jitter[2 * i], cy + jitter[2 * i + 1]) for i, (cx, cy) in enumerate(cells)]
     dirs = solver.directions_for(kind)
@@ -40,11 +51,11 @@ def models(draw, kinds=("line", "planar", "torsion"), extras=False):
     for i in range(n_mass):
         value = draw(st.one_of(st.just(0.0), st.floats(0.1, 10.0))) if i else draw(
             st.floats(0.1, 10.0))
-        fixed = ()
-        if kind == "planar" and draw(st.integers(0, 5)) == 0:
-            fixed = (draw(st.sampled_from(dirs)),)
+        locked = ()
+        if fixed and kind == "planar" and draw(st.integers(0, 5)) == 0:
+            locked = (draw(st.sampled_from(dirs)),)
         label = draw(st.sampled_from(["", "top", "disc Ø"])) if extras else ""
-        masses.append(Mass(f"m{i}", pos[i][0], pos[i][1], value, label=label, fixed=fixed))
+        masses.append(Mass(f"m{i}", pos[i][0], pos[i][1], value, label=label, fixed=locked))
     anchors = [Anchor(f"A{j}", *pos[n_mass + j]) for j in range(n_anchor)]
     nodes = [m.id for m in masses] + [a.id for a in anchors]
     pairs = draw(st.lists(st.tuples(st.integers(0, len(nodes) - 1),
@@ -56,7 +67,20 @@ def models(draw, kinds=("line", "planar", "torsion"), extras=False):
             continue  # anchor to anchor: no effect
         k = draw(st.floats(10.0, 1e4))
         kt = draw(st.one_of(st.just(0.0), st.floats(1.0, 1e3))) if kind == "planar" else 0.0
+        if contrast and draw(st.integers(0, 3)) == 0:
+            stiff = 10.0 ** draw(st.floats(6.0, 12.0))
+            k, kt = k * stiff, kt * (stiff if draw(st.booleans()) else 1.0)
         springs.append(Spring(f"s{s}", nodes[a], nodes[b], k, k_t=kt))
+    for j in range(n_link):
+        jid = f"J{j}"
+        masses.append(Mass(jid, *pos[n_mass + n_anchor + j], 0.0))
+        held = draw(st.sampled_from([m.id for m in masses if m.mass > 0]))
+        stiff = draw(st.floats(10.0, 1e4)) * 10.0 ** draw(st.floats(6.0, 12.0))
+        springs.append(Spring(f"L{j}", jid, held, stiff))
+        for t, other in enumerate(draw(st.lists(st.sampled_from(nodes), min_size=1, max_size=3,
+                                                unique=True))):
+            if other != held:
+                springs.append(Spring(f"L{j}_{t}", other, jid, draw(st.floats(10.0, 1e4))))
     top = {}
     if extras:
         dm = draw(st.sampled_from(["none", "modal", "rayleigh"]))
@@ -194,6 +218,139 @@ def test_save_load_round_trip(tmp_path_factory, model):
     back = solver.load_model(path)
     assert back == model
     assert solver.dumps_model(back) == path.read_text("utf-8")
+
+
+# ------------------------------------------------------------------ hard models, invariances
+#: fewer examples for the tests with an mpmath reference (each solves a small model at 40 digits)
+HARD = settings(FAST, max_examples=max(EXAMPLES * 3 // 5, 1))
+
+
+def _accuracy_warned(res):
+    return any("accurate to about" in w or "not positive" in w or "resolved" in w
+               for w in res.warnings)
+
+
+@HARD
+@given(models(contrast=True, max_mass=4))
+def test_frequencies_match_mpmath_on_stiff_models(model):
+    """mpmath at 40 digits (sw_builders.mp_reference: own assembly in mpmath, exact condensation
+    of junctions, mpmath.eigsy): with stiffness contrasts up to 1e12 and junctions on stiff
+    links, the zero modes are the exact ones in number, no frequency shown as 0 Hz is unflagged,
+    every frequency is within 10x its stated error estimate (and within 1e-6 when no accuracy
+    warning is given), and every mechanism's stated motion is free (Rayleigh quotient ~0)."""
+    res = solver.modes(model)
+    ref = mp_reference(model, dps=40)
+    if res.n_modes == 0:
+        assert ref["hz"].size == 0
+        return
+    assert [z.kind for z in res.zero_modes].count("unresolved") == 0
+    assert len(res.zero_modes) == ref["n_zero"]
+    assert np.all(res.is_zero[res.frequencies_hz == 0.0])
+    nz = ref["n_zero"]
+    f, fr = res.frequencies_hz[nz:], ref["hz"][nz:]
+    err = np.abs(f - fr) / fr
+    assert np.all(err <= np.maximum(10 * res.frequency_rtol[nz:], 1e-11)), (err, res.frequency_rtol)
+    if not _accuracy_warned(res):
+        assert np.all(err <= 1e-6)
+    for z in res.zero_modes:
+        if z.kind == "mechanism":
+            rq, top = mp_rayleigh(ref, z.motion)
+            assert abs(rq) <= 1e-9 * top, z.cause
+
+
+def _compare_spectra(a, b, scale=1.0):
+    """Frequencies of b equal scale x those of a: same zero flags, nonzero ones to rtol 1e-9 or
+    10x the stated error estimates."""
+    assert a.n_modes == b.n_modes
+    assert len(a.zero_modes) == len(b.zero_modes)
+    nz = len(a.zero_modes)
+    fa, fb = scale * a.frequencies_hz[nz:], b.frequencies_hz[nz:]
+    tol = np.maximum(1e-9, 10 * (a.frequency_rtol[nz:] + b.frequency_rtol[nz:]))
+    assert np.all(np.abs(fa - fb) <= tol * np.abs(fa)), (fa, fb)
+
+
+def _moved(model, fn):
+    """The model with every mass and anchor position mapped by fn(x, y) -> (x, y)."""
+    put = [Mass(m.id, *fn(m.x, m.y), m.mass, label=m.label, fixed=m.fixed) for m in model.masses]
+    put += [Anchor(a.id, *fn(a.x, a.y), label=a.label) for a in model.anchors]
+    return model.with_changes(put=put)
+
+
+@FAST
+@given(models(kinds=("planar",), contrast=True, fixed=False), st.floats(-np.pi, np.pi),
+       st.floats(-3, 3), st.floats(-3, 3))
+def test_rotating_a_planar_layout_leaves_frequencies_unchanged(model, angle, dx, dy):
+    """math (objectivity: K and M of a rotated and shifted layout are Q^T K Q and M with Q
+    orthogonal): every natural frequency is unchanged, zero modes included."""
+    c, s = np.cos(angle), np.sin(angle)
+    turned = _moved(model, lambda x, y: (c * x - s * y + dx, s * x + c * y + dy))
+    _compare_spectra(solver.modes(model), solver.modes(turned))
+
+
+@FAST
+@given(models(kinds=("planar",), contrast=True, fixed=False))
+def test_mirror_image_has_the_same_frequencies(model):
+    """math (a reflection is orthogonal, as for rotation): the mirror image x -> -x of a planar
+    layout has the same natural frequencies."""
+    _compare_spectra(solver.modes(model), solver.modes(_moved(model, lambda x, y: (-x, y))))
+
+
+@FAST
+@given(models(contrast=True), st.floats(1e-2, 1e2), st.booleans())
+def test_scaling_masses_or_stiffnesses_scales_frequencies(model, factor, masses):
+    """math (w^2 = eigenvalue of M^-1 K): multiplying every mass by a divides every frequency by
+    sqrt(a); multiplying every stiffness (k and k_t) by b multiplies them by sqrt(b)."""
+    if masses:
+        put = [Mass(m.id, m.x, m.y, m.mass * factor, fixed=m.fixed) for m in model.masses]
+        scale = 1.0 / np.sqrt(factor)
+    else:
+        put = [Spring(sp_.id, sp_.a, sp_.b, sp_.k * factor, k_t=sp_.k_t * factor)
+               for sp_ in model.springs]
+        scale = np.sqrt(factor)
+    _compare_spectra(solver.modes(model), solver.modes(model.with_changes(put=put)), scale)
+
+
+@st.composite
+def replicated_models(draw):
+    """c identical copies (2..4) of a small random model side by side: every frequency of the
+    copy is at least c-fold (math: K and M are block diagonal with equal blocks)."""
+    base = draw(models(max_mass=4))
+    copies = draw(st.integers(2, 4))
+    masses, anchors, springs = [], [], []
+    for c in range(copies):
+        off = 10.0 * c
+        masses += [Mass(f"{m.id}_{c}", m.x + off, m.y, m.mass, fixed=m.fixed) for m in base.masses]
+        anchors += [Anchor(f"{a.id}_{c}", a.x + off, a.y) for a in base.anchors]
+        springs += [Spring(f"{sp_.id}_{c}", f"{sp_.a}_{c}", f"{sp_.b}_{c}", sp_.k, k_t=sp_.k_t)
+                    for sp_ in base.springs]
+    return Model(kind=base.kind, masses=tuple(masses), anchors=tuple(anchors),
+                 springs=tuple(springs))
+
+
+@FAST
+@given(replicated_models(), st.data())
+def test_sparse_path_never_cuts_a_repeated_group(model, data):
+    """scipy.linalg.eigh on the dense matrices (LAPACK, independent of Lanczos): on models made
+    of identical copies (every frequency repeated), the shift-invert path asked for any count
+    returns at least that many modes, equal to the lowest dense ones (rtol 1e-8), and stops at
+    a gap: the next dense frequency is not a copy of its last one."""
+    sysm = solver.assemble(model)
+    n = sysm.n_dof
+    assume(n >= 8)
+    K, M = dense(sysm.K), dense(sysm.M)
+    lam = scipy.linalg.eigh(K, M, eigvals_only=True)
+    # the scale of the springs before condensation (a condensed K can be pure rounding)
+    top = float(np.abs(dense(sysm.K_full)).max()) / float(np.diag(M).min())
+    assume(lam.max() > 1e-8 * top)
+    count = data.draw(st.integers(1, n // 3))
+    res = solver.modes(sysm, count=count, method="sparse")
+    got = res.n_modes
+    assert got >= count
+    np.testing.assert_allclose(res.eigenvalues, np.where(lam[:got] > 1e-10 * top, lam[:got], 0),
+                               rtol=1e-8, atol=1e-10 * top)
+    if got < n:
+        w = np.sqrt(np.maximum(lam, 0))
+        assert w[got] - w[got - 1] > 1e-6 * w[got] or w[got] <= np.sqrt(1e-10 * top)
 
 
 # ------------------------------------------------------------------ invalid files
