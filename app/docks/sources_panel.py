@@ -279,14 +279,15 @@ class SourcesPanel(QWidget):
     def add_speed(self) -> str | None:
         model = self.document.model
         sid = model.new_id("speed")
-        return self._add(Excitation(id=sid, type="speed", rpm=NEW_SPEED_RPM, orders=(1.0,)),
-                         focus="rpm")
+        return self._add(Excitation(id=sid, type="speed", label=f"Shaft speed {sid[5:]}",
+                                    rpm=NEW_SPEED_RPM, orders=(1.0,)), focus="rpm")
 
     def add_band(self) -> str | None:
         model = self.document.model
         sid = model.new_id("band")
-        return self._add(Excitation(id=sid, type="band", f_min_hz=NEW_BAND_HZ[0],
-                                    f_max_hz=NEW_BAND_HZ[1]), focus="f_min_hz")
+        return self._add(Excitation(id=sid, type="band", label=f"Band {sid[4:]}",
+                                    f_min_hz=NEW_BAND_HZ[0], f_max_hz=NEW_BAND_HZ[1]),
+                         focus="f_min_hz")
 
     def delete_current(self) -> bool:
         if self.current_id is None:

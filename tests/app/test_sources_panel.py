@@ -45,6 +45,8 @@ def test_add_a_speed_by_mouse_then_edit_undo_redo(qtbot, panel):
     assert len(doc.model.excitations) == 1
     e = doc.model.excitations[0]
     assert e.type == "speed" and doc.undo_stack.count() == 1
+    assert panel.table.item(0, 0).text() == "Shaft speed 1"      # a name, not the id
+    assert panel.editor_title.text() == "Shaft speed: Shaft speed 1"
     added = doc.model
     _type(qtbot, panel.field("rpm").edit, "1450 rpm")
     assert doc.model.excitations[0].rpm == 1450.0
@@ -146,13 +148,16 @@ def test_band_by_mouse_with_units_and_a_refusal(qtbot, panel):
 
 
 def test_delete_by_key_and_by_button_with_undo(qtbot, panel):
-    """Delete in the list removes the selected source (one step), the button too; undo brings each
-    back in its place."""
+    """A click selects a source; Delete in the list removes it (one step), the button the next;
+    undo brings each back in its place."""
     doc = panel.document
     panel.add_speed()
     panel.add_band()
     full = doc.model
-    panel.select(full.excitations[0].id)
+    rect = panel.table.visualItemRect(panel.table.item(0, 0))    # select the speed by mouse
+    qtbot.mouseClick(panel.table.viewport(), Qt.MouseButton.LeftButton, pos=rect.center())
+    assert panel.current_id == full.excitations[0].id
+    assert panel.editor_title.text().startswith("Shaft speed:")
     panel.table.setFocus()
     qtbot.keyClick(panel.table, Qt.Key.Key_Delete)
     assert [e.type for e in doc.model.excitations] == ["band"]
