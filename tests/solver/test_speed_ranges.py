@@ -149,3 +149,32 @@ def test_margin_widens_a_ranged_order_as_a_band():
     assert modal.frequencies_hz == pytest.approx(sorted(freqs), rel=1e-9)
     flagged = {round(c.frequency_hz, 6) for c in solver.margin_check(model, modal).conflicts}
     assert flagged == {17.1, 40.0, 68.9}
+
+
+def test_compiled_schema_agrees_with_jsonschema_on_every_speed_form():
+    """The fast schema check (solver.schema_check) accepts exactly what the jsonschema package
+    (the reference implementation of JSON Schema 2020-12) accepts, for every combination of rpm,
+    rpm_min and rpm_max being absent, valid, zero, negative, text or a boolean."""
+    import itertools
+
+    jsonschema = pytest.importorskip("jsonschema")
+    from solver import schema_check
+
+    schema = solver.schema()
+    reference = jsonschema.Draft202012Validator(schema)
+    check = schema_check.compile_schema(schema)
+    values = (None, 1500, 2.5, 0, -1, "1500", True)
+    compared = 0
+    for rpm, lo, hi in itertools.product(values, repeat=3):
+        e = {"id": "f", "type": "speed", "orders": [1, 2]}
+        e.update({k: v for k, v in (("rpm", rpm), ("rpm_min", lo), ("rpm_max", hi))
+                  if v is not None})
+        data = _file(e)
+        try:
+            check(data)
+            ours = True
+        except schema_check.Invalid:
+            ours = False
+        assert ours == reference.is_valid(data), e
+        compared += 1
+    assert compared == 7 ** 3
