@@ -50,7 +50,10 @@ class Verdict:
 
     @property
     def way_out(self) -> str:
-        """``move it below 17 Hz or above 230 Hz`` (the edges of the widened interval)."""
+        """``move it below 17 Hz or above 230 Hz`` (the nearest frequencies clear of every
+        source); only ``above`` when nothing below clears them (a band from 0 Hz)."""
+        if self.lower_to_hz <= 0:
+            return f"move it above {hz(self.raise_to_hz)} (no frequency below clears the sources)"
         return f"move it below {hz(self.lower_to_hz)} or above {hz(self.raise_to_hz)}"
 
     @property
@@ -63,6 +66,8 @@ class Verdict:
     def short(self) -> str:
         """For a table cell: ``inside Sine test band: move below 17 Hz or above 230 Hz``."""
         name = self.source + (f" ×{self.order:g}" if self.order is not None else "")
+        if self.lower_to_hz <= 0:
+            return f"{self.relation} {name}: move above {hz(self.raise_to_hz)}"
         return (f"{self.relation} {name}: move below {number(self.lower_to_hz, FREQ_SIG)} or above"
                 f" {hz(self.raise_to_hz)}")
 

@@ -94,7 +94,7 @@ def test_solve_text_prints_the_table_and_the_crossing(model_file):
     assert "vfd" not in text
 
 
-def test_report_has_the_interference_diagram_only_with_a_speed(tmp_path):
+def test_report_has_the_interference_diagram_only_with_a_speed(qapp, tmp_path):
     """The report grows by the diagram section when a speed source exists: the same model with
     its speed sources replaced by a band gives a shorter page (rendered, not assumed)."""
     from app.report import render_report
@@ -115,3 +115,18 @@ def test_report_of_the_fan_example(tmp_path):
     p = _run("report", FAN, "-o", tmp_path / "fan.png")
     assert p.returncode == 0, p.stderr
     assert (tmp_path / "fan.png").stat().st_size > 10_000
+
+
+def test_no_advice_below_zero_hz():
+    """A band from 0 to 10 Hz at 15 % keeps out (0, 11.5) Hz (common practice): a 2 Hz mode is
+    told to go above 11.5 Hz, never 'below 0 Hz' (no positive frequency below clears it)."""
+    from app.results.verdicts import verdicts
+
+    m = Model(masses=(Mass("m", 0.0, 1.0, 2.0, label="Cabinet"),),
+              anchors=(Anchor("g", 0.0, 0.0),),
+              springs=(Spring("s", "g", "m", 2.0 * (2 * math.pi * 2.0) ** 2),),
+              excitations=(Excitation(id="floor", type="band", label="Floor", f_min_hz=0.0,
+                                      f_max_hz=10.0),))
+    (v,) = verdicts(m, solver.margin_check(m, solver.modes(m)))
+    assert "below 0" not in v.sentence and "below 0" not in v.short
+    assert "above 11.5 Hz" in v.sentence and "move above 11.5 Hz" in v.short
