@@ -76,6 +76,7 @@ def solve_json(analysis) -> dict:
     ``margin_conflicts`` with the words of each conflict) and the warnings read by label.
     """
     from solver.margins import margin_check
+    from app.results.margin_rows import solve_json_keys
     from app.results.names import dof_name, labels, names
     from app.results.verdicts import verdicts
 
@@ -127,6 +128,7 @@ def solve_json(analysis) -> dict:
         "margin_percent": model.margin_percent,
         "warnings": list(analysis.warnings) + [v.sentence for v in said],
         "caution": CAUTION,
+        **solve_json_keys(model, modal),    # "margins" (the margin table), "interference"
     }
 
 
@@ -134,6 +136,7 @@ def solve_table(analysis) -> str:
     """The human-readable mode table of ``springwright solve``: elements by label, numbers in the
     window's format (:mod:`app.text.numbers`), margin verdicts in the window's words."""
     from solver.margins import margin_check
+    from app.results.margin_rows import solve_text_lines
     from app.results.names import names
     from app.results.verdicts import all_clear, verdicts
     from app.text.numbers import FREQ_SIG, number, percent, quantity
@@ -192,6 +195,7 @@ def solve_table(analysis) -> str:
         lines.append(f"margin: {v.sentence}")
     if model.excitations and margins.ok:
         lines.append(f"margin: {all_clear(model, margins)}")
+    lines += solve_text_lines(model, modal)
     lines.append("")
     lines.append(CAUTION)
     return "\n".join(lines)

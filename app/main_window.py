@@ -90,6 +90,14 @@ follow; the sweep plot shows every mode against that value with the excitation b
 margin. <i>Propose</i> picks the element that governs the chosen mode, <i>Retune</i> finds the
 value that puts it on a target frequency, <i>Apply</i> sets it (one undo step). The Sensitivity
 tab lists (p/f) df/dp of every mode to every element.</p>
+<h3>Excitation sources</h3>
+<p>The Sources panel lists the shaft speeds and frequency bands the model is checked against:
+<i>Add speed</i> (or Insert in the list), <i>Add band</i>, Delete. A speed takes a unit
+(<i>1450 rpm</i>, <i>24 Hz</i>, <i>150 rad/s</i>), runs at one speed or over a range (a
+variable-speed drive, run-up), and lists its orders (<i>1, 2, 4.5</i>). The Margin table tab
+gives every mode's separation from every source, pass or fail, and the nearest frequency clear
+of all of them. The Interference diagram plots each order line against shaft speed with the
+natural frequencies across it; a dot marks where they meet inside the operating range.</p>
 <h3>Cautions</h3>
 <p>""" + CAUTION_TEXT + """</p>
 """
@@ -204,6 +212,7 @@ class MainWindow(QMainWindow):
 
         self._make_actions()
         self._add_tune_panels()
+        self._add_source_panels()
         self.setAcceptDrops(True)
         self.recovery = Recovery(self.document, self.settings, folder=recovery_folder, parent=self)
         self.recovery.status_message.connect(lambda m: self.statusBar().showMessage(m, 12000))
@@ -457,6 +466,28 @@ class MainWindow(QMainWindow):
         self.solver.results_ready.connect(lambda a: self.energy_tint.show(a, self._selected_mode))
         if hasattr(self.modes_table, "mode_selected"):
             self.modes_table.mode_selected.connect(follow_mode)
+
+    def _add_source_panels(self):
+        """Sources (editor and margin table) tabbed with Tune; the interference diagram tabbed
+        with Response. Both follow the solve service's results; each clears itself when another
+        model is opened."""
+        from app.docks.interference_panel import InterferencePanel
+        from app.docks.sources_panel import SourcesPanel
+
+        self.sources_panel = SourcesPanel(self.document)
+        self.sources_panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+        sources_dock = self._dock("Sources", self.sources_panel, Qt.BottomDockWidgetArea,
+                                  "dock_sources")
+        self.tabifyDockWidget(self.findChild(QDockWidget, "dock_sensitivity"), sources_dock)
+        self.interference_panel = InterferencePanel(self.document)
+        diagram_dock = self._dock("Interference diagram", self.interference_panel,
+                                  Qt.BottomDockWidgetArea, "dock_interference")
+        self.tabifyDockWidget(self.response_dock, diagram_dock)
+        self.findChild(QDockWidget, "dock_tune").raise_()
+        self.response_dock.raise_()
+        self.solver.results_ready.connect(self.sources_panel.set_analysis)
+        self.solver.results_ready.connect(self.interference_panel.set_analysis)
+        self.solver.live_changed.connect(self.interference_panel.set_live)
 
     def show_guide(self):
         """A non-modal window with the tools, their keys, the main loop and the cautions."""

@@ -10,6 +10,8 @@ Pure numpy/scipy; no Qt. The public API (stable, used by scripts and the command
 - :func:`free_response`
 - :func:`harmonic_response`, :func:`base_transmissibility`, :func:`find_peaks`
 - :func:`retune` (:func:`retune_result` with the details), :func:`sweep`, :func:`rank_elements`, :func:`margin_check`
+- :func:`margin_table` (every mode against every source, with separations) and
+  :func:`interference` (order lines against natural frequencies, their crossing speeds)
 - :class:`ModelError`, :class:`ModelFileError`
 """
 
@@ -26,6 +28,8 @@ from .frequency import (Peak, base_transmissibility, find_peaks, harmonic_respon
                         isolation_efficiency, rms_over_band)
 from .damping import DampedModes, damped_modes, rayleigh_coefficients
 from .margins import Conflict, MarginResult, margin_check, source_bands
+from .margin_table import MarginRow, MarginTable, margin_table
+from .interference import Crossing, Interference, OrderLine, interference
 from .tuning import (RetuneResult, SweepResult, limit_spectrum, rank_elements, reachable_range,
                      retune, retune_result, sweep, with_value)
 
@@ -38,4 +42,6 @@ __all__ = [
     "find_peaks", "harmonic_response", "isolation_efficiency", "rms_over_band", "Conflict",
     "MarginResult", "margin_check", "source_bands", "SweepResult", "rank_elements", "retune",
     "sweep", "with_value", "RetuneResult", "retune_result", "limit_spectrum", "reachable_range", "DampedModes", "damped_modes", "rayleigh_coefficients",
+    "MarginRow", "MarginTable", "margin_table", "Crossing", "Interference", "OrderLine",
+    "interference",
 ]

@@ -254,8 +254,9 @@ def _build(data: dict) -> Model:
 
     def excitation(e):
         if e["type"] == "speed":
-            return Excitation(id=e["id"], type="speed", label=e.get("label", ""), rpm=e["rpm"],
-                              orders=tuple(e.get("orders", (1.0,))))
+            return Excitation(id=e["id"], type="speed", label=e.get("label", ""),
+                              rpm=e.get("rpm", 0.0), orders=tuple(e.get("orders", (1.0,))),
+                              rpm_min=e.get("rpm_min"), rpm_max=e.get("rpm_max"))
         return Excitation(id=e["id"], type="band", label=e.get("label", ""),
                           f_min_hz=e["f_min_hz"], f_max_hz=e["f_max_hz"])
 
@@ -331,7 +332,9 @@ def model_to_dict(model: Model) -> dict:
     out["excitations"] = []
     for e in model.excitations:
         d = labelled(e, {"id": e.id, "type": e.type})
-        if e.type == "speed":
+        if e.type == "speed" and e.is_ranged:
+            d.update({"rpm_min": e.rpm_min, "rpm_max": e.rpm_max, "orders": list(e.orders)})
+        elif e.type == "speed":
             d.update({"rpm": e.rpm, "orders": list(e.orders)})
         else:
             d.update({"f_min_hz": e.f_min_hz, "f_max_hz": e.f_max_hz})

@@ -1,7 +1,8 @@
 """Frequency separation check of every mode against the model's excitation sources.
 
 A source is a set of intervals in Hz: a shaft speed gives one line per order (``order * rpm / 60``),
-a band gives ``[f_min_hz, f_max_hz]``. With a margin ``p`` (``margin_percent / 100``) a source's
+over an operating range the interval ``[order * rpm_min / 60, order * rpm_max / 60]``; a band gives
+``[f_min_hz, f_max_hz]``. With a margin ``p`` (``margin_percent / 100``) a source's
 interval ``[lo, hi]`` is widened to ``[lo (1 - p), hi (1 + p)]``: a natural frequency must lie at
 least ``p`` of the excitation frequency away from it (common practice: 10 to 20 %, no single
 source). A mode conflicts when its frequency lies strictly inside a widened interval; a mode exactly
@@ -77,13 +78,11 @@ def source_bands(model: Model, margin_percent: float | None = None) -> tuple:
     p = (model.margin_percent if margin_percent is None else margin_percent) / 100.0
     bands = []
     for e in model.excitations:
-        if e.type == "speed":
-            for o in e.orders:
-                f = o * e.rpm / 60.0
-                bands.append((e.id, o, f, f, f * (1 - p), f * (1 + p)))
-        else:
-            bands.append((e.id, None, e.f_min_hz, e.f_max_hz, e.f_min_hz * (1 - p),
-                          e.f_max_hz * (1 + p)))
+        # a speed order is a line, or over an operating range the band it sweeps; widened as
+        # any band (Excitation.frequencies_hz gives one (lo, hi) per order)
+        orders = e.orders if e.type == "speed" else (None,)
+        for o, (lo, hi) in zip(orders, e.frequencies_hz()):
+            bands.append((e.id, o, lo, hi, lo * (1 - p), hi * (1 + p)))
     return tuple(bands)
 
 
@@ -119,8 +118,9 @@ def margin_check(model: Model, modal, margin_percent: float | None = None) -> Ma
                 down, up = below - f, above - f
                 move = down if (below > 0 and abs(down) <= abs(up)) else up
                 source = named_id(model, sid)
-                what = (f"{source} order {order:g} ({lo:.4g} Hz)" if order is not None
-                        else f"{source} ({lo:.4g} to {hi:.4g} Hz)")
+                span = f"{lo:.4g} Hz" if hi <= lo else f"{lo:.4g} to {hi:.4g} Hz"
+                what = (f"{source} order {order:g} ({span})" if order is not None
+                        else f"{source} ({span})")
                 if below > 0:
                     way = f"move it below {below:.4g} Hz or above {above:.4g} Hz"
                 else:

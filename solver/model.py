@@ -330,7 +330,11 @@ class Damping:
 class Excitation:
     """An excitation source: a shaft speed with orders, or a frequency band.
 
-    ``type == "speed"``: ``rpm`` and ``orders`` (each order n gives a line at n * rpm / 60 Hz).
+    ``type == "speed"``: ``orders`` and either one speed ``rpm`` (each order n gives a line at
+    n * rpm / 60 Hz) or an operating range ``rpm_min`` to ``rpm_max`` (variable-speed drives,
+    run-up and run-down: each order n then covers the band n * rpm_min / 60 to n * rpm_max / 60
+    Hz). All speeds in rev/min. A ranged source keeps ``rpm`` at 0 (not given); giving ``rpm``
+    and a range together, or only one end of a range, is refused as ambiguous.
     ``type == "band"``: ``f_min_hz`` to ``f_max_hz``.
     """
 
@@ -341,6 +345,8 @@ class Excitation:
     orders: tuple[float, ...] = (1.0,)
     f_min_hz: float = 0.0
     f_max_hz: float = 0.0
+    rpm_min: float | None = None
+    rpm_max: float | None = None
 
     def __post_init__(self):
         _check_id("excitation", self.id)
@@ -350,7 +356,7 @@ class Excitation:
             raise ModelError(f'{owner}: type must be "speed" or "band", got {shown(self.type)}',
                              ("type",))
         if self.type == "speed":
-            _set(self, "rpm", _positive(owner, "rpm", self.rpm, "rev/min", ranged="capped"))
+            self._check_speed(owner)
             raw = _items(owner, "orders", self.orders)
             if len(raw) > ORDERS_MAX:
                 raise ModelError(f"{owner}: orders lists {len(raw)} orders; at most {ORDERS_MAX}"
@@ -367,6 +373,10 @@ class Excitation:
                                  ("orders",))
             _set(self, "orders", tuple(orders))
         else:
+            for name in ("rpm_min", "rpm_max"):
+                if getattr(self, name) is not None:
+                    raise ModelError(f"{owner}: {name} belongs to a speed source (type"
+                                     f' "speed"); a band has f_min_hz and f_max_hz', (name,))
             lo = _nonneg(owner, "f_min_hz", self.f_min_hz, "Hz", ranged="capped")
             hi = _positive(owner, "f_max_hz", self.f_max_hz, "Hz", ranged="capped")
             if hi < lo:
@@ -375,10 +385,54 @@ class Excitation:
             _set(self, "f_min_hz", lo)
             _set(self, "f_max_hz", hi)
 
+    def _check_speed(self, owner: str) -> None:
+        ranged = self.rpm_min is not None or self.rpm_max is not None
+        if not ranged:
+            _set(self, "rpm", _positive(owner, "rpm", self.rpm, "rev/min", ranged="capped"))
+            return
+        # rpm 0 (or None) is "not given": the dataclass default, never a valid speed
+        if self.rpm is not None and not (isinstance(self.rpm, (int, float))
+                                         and not isinstance(self.rpm, bool) and self.rpm == 0):
+            raise ModelError(
+                f"{owner}: give either rpm (one speed) or rpm_min and rpm_max (an operating"
+                f" range), not both; got rpm = {shown(self.rpm)} with a range", ("rpm",))
+        missing = [n for n in ("rpm_min", "rpm_max") if getattr(self, n) is None]
+        if missing:
+            raise ModelError(
+                f"{owner}: a speed range needs both rpm_min and rpm_max (positive rev/min,"
+                f" rpm_min below rpm_max); {missing[0]} is missing", (missing[0],))
+        lo = _positive(owner, "rpm_min", self.rpm_min, "rev/min", ranged="capped",
+                       field="rpm_min")
+        hi = _positive(owner, "rpm_max", self.rpm_max, "rev/min", ranged="capped",
+                       field="rpm_max")
+        if not lo < hi:
+            raise ModelError(
+                f"{owner}: rpm_min must be below rpm_max, got {_fmt(lo)} to {_fmt(hi)} rev/min"
+                " (for one speed give rpm instead)", ("rpm_max",))
+        _set(self, "rpm", 0.0)
+        _set(self, "rpm_min", lo)
+        _set(self, "rpm_max", hi)
+
+    @property
+    def is_ranged(self) -> bool:
+        """True for a speed source with an operating range (``rpm_min`` to ``rpm_max``)."""
+        return self.type == "speed" and self.rpm_min is not None
+
+    def speed_range_rpm(self) -> tuple[float, float]:
+        """(lowest, highest) shaft speed in rev/min; ``(rpm, rpm)`` for a single speed.
+        Raises ModelError for a band, which has no shaft speed."""
+        if self.type != "speed":
+            raise ModelError(f'excitation "{self.id}": a band has no shaft speed')
+        if self.is_ranged:
+            return float(self.rpm_min), float(self.rpm_max)
+        return float(self.rpm), float(self.rpm)
+
     def frequencies_hz(self) -> tuple[tuple[float, float], ...]:
-        """The source as (low, high) intervals in Hz; a speed order is a zero-width interval."""
+        """The source as (low, high) intervals in Hz: per order ``order * speed / 60`` at the
+        lowest and highest speed (zero width for a single speed), or the band itself."""
         if self.type == "speed":
-            return tuple((o * self.rpm / 60.0, o * self.rpm / 60.0) for o in self.orders)
+            lo, hi = self.speed_range_rpm()
+            return tuple((o * lo / 60.0, o * hi / 60.0) for o in self.orders)
         return ((self.f_min_hz, self.f_max_hz),)
 
 

@@ -442,6 +442,9 @@ def _unit(schema) -> str:
 
 def _condition_text(cond, describe) -> tuple[str, str]:
     """('because kind is "torsion"', 'because kind is not "torsion"') for an if on one const."""
+    if isinstance(cond, dict) and set(cond) == {"required"} and len(cond["required"]) == 1:
+        k = cond["required"][0]
+        return f"as {k} is given", f"as {k} is not given"
     props = cond.get("properties", {}) if isinstance(cond, dict) else {}
     if len(props) == 1:
         (k, sub), = props.items()

@@ -40,6 +40,7 @@ from app.drawing.plot_axes import log_ticks, true_value_axes
 from app.document.solve_service import dof_count
 from app.drawing.style import current_style
 from app.results.names import names
+from app.results.source_text import order_frequencies, speed_text
 from app.results.verdicts import all_clear, verdicts
 from app.text.numbers import band_text, hz, number, signed
 
@@ -73,8 +74,7 @@ def source_texts(model) -> list[str]:
     out = []
     for e in model.excitations:
         if e.type == "speed":
-            lines = ", ".join(f"{o:g}× = {hz(o * e.rpm / 60)}" for o in e.orders)
-            out.append(f"{e.label}: {number(e.rpm)} rpm, orders {lines}")
+            out.append(f"{e.label}: {speed_text(e)}, orders {order_frequencies(e)}")
         else:
             out.append(f"{e.label}: band {band_text(e.f_min_hz, e.f_max_hz)}")
     return out

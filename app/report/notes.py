@@ -8,7 +8,8 @@ from PySide6.QtGui import QColor, QFontMetricsF, QPen
 from app.report.page import _Page
 from app.report.page import CAUTIONS
 from app.results.mode_rows import mode_table_rows
-from app.text.numbers import band_text, hz, number
+from app.results.source_text import source_summary
+from app.text.numbers import band_text, hz
 
 
 def _notes(pg: _Page, model, analysis, n_shown: int):
@@ -30,8 +31,7 @@ def _notes(pg: _Page, model, analysis, n_shown: int):
         ex = []
         for e in model.excitations:
             if e.type == "speed":
-                ex.append(f"{e.label}: {number(e.rpm)} rpm, orders "
-                          + ", ".join(f"{o:g}" for o in e.orders))
+                ex.append(f"{e.label}: {source_summary(e)}")
             else:
                 ex.append(f"{e.label}: band {band_text(e.f_min_hz, e.f_max_hz)}")
         items.append((st.ink, "Excitation sources checked (margin "

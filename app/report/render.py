@@ -3,8 +3,9 @@
 :func:`render_report` paints onto a QImage (works with ``QT_QPA_PLATFORM=offscreen``): a title
 block, the model sketch, the mode table, a thumbnail of each reported mode shape over the
 undeformed layout in grey, the notes on zero-frequency and repeated modes, the solver's warnings and
-the cautions. The page is A4 portrait (210 x 297 mm); a model with very long notes makes it taller
-rather than cramming the text. Each section is a module of this package.
+the cautions; with excitation sources the margin check and its table, and with a shaft speed the
+interference diagram. The page is A4 portrait (210 x 297 mm); a model with very long notes makes it
+taller rather than cramming the text. Each section is a module of this package.
 """
 
 from __future__ import annotations
@@ -78,6 +79,14 @@ def render_report(model, analysis, path, dpi: int = 200, date: str | None = None
 
             pg.heading("Frequency margin check")
             paint_margin_check(pg, model, analysis)
+            from app.report.margin_table import paint_margin_table
+
+            paint_margin_table(pg, model, analysis, max_modes)
+        if any(e.type == "speed" for e in model.excitations):
+            from app.report.interference import paint_interference
+
+            pg.heading("Interference diagram")
+            paint_interference(pg, model, analysis)
         pg.heading("Notes")
         _notes(pg, model, analysis, n_shown)
         pg.heading("Cautions")

@@ -19,8 +19,8 @@ from app.text.numbers import FREQ_SIG, band_text, hz, number
 class Verdict:
     """One conflict of :func:`solver.margin_check` with the words for it.
 
-    ``inside`` : the mode lies in the source's own interval (a band's [f_min, f_max]), not only in
-    the margin around it.  ``source`` : the source's name as shown (its label).
+    ``inside`` : the mode lies in the source's own interval (a band's [f_min, f_max], or the band
+    an order sweeps over a speed range), not only in the margin around it.  ``source`` : the source's name as shown (its label).
     """
 
     mode: int
@@ -41,7 +41,7 @@ class Verdict:
         """The source and its frequencies: ``Sine test band (20 to 200 Hz)``,
         ``Pump order 2 (49.5 Hz)``."""
         if self.order is not None:
-            return f"{self.source} order {self.order:g} ({hz(self.low_hz)})"
+            return f"{self.source} order {self.order:g} ({band_text(self.low_hz, self.high_hz)})"
         return f"{self.source} ({band_text(self.low_hz, self.high_hz)})"
 
     @property
@@ -50,7 +50,10 @@ class Verdict:
 
     @property
     def way_out(self) -> str:
-        """``move it below 17 Hz or above 230 Hz`` (the edges of the widened interval)."""
+        """``move it below 17 Hz or above 230 Hz`` (the nearest frequencies clear of every
+        source); only ``above`` when nothing below clears them (a band from 0 Hz)."""
+        if self.lower_to_hz <= 0:
+            return f"move it above {hz(self.raise_to_hz)} (no frequency below clears the sources)"
         return f"move it below {hz(self.lower_to_hz)} or above {hz(self.raise_to_hz)}"
 
     @property
@@ -63,6 +66,8 @@ class Verdict:
     def short(self) -> str:
         """For a table cell: ``inside Sine test band: move below 17 Hz or above 230 Hz``."""
         name = self.source + (f" ×{self.order:g}" if self.order is not None else "")
+        if self.lower_to_hz <= 0:
+            return f"{self.relation} {name}: move above {hz(self.raise_to_hz)}"
         return (f"{self.relation} {name}: move below {number(self.lower_to_hz, FREQ_SIG)} or above"
                 f" {hz(self.raise_to_hz)}")
 
@@ -79,7 +84,10 @@ def verdicts(model, margin) -> list[Verdict]:
     table = names(model)
     out = []
     for c in margin.conflicts:
-        inside = c.order is None and c.low_hz <= c.frequency_hz <= c.high_hz
+        # inside the source's own frequencies: a band, or the span an order sweeps over a
+        # speed range (a single speed's line has no inside, only "within the margin")
+        inside = ((c.order is None or c.high_hz > c.low_hz)
+                  and c.low_hz <= c.frequency_hz <= c.high_hz)
         out.append(Verdict(mode=c.mode, frequency_hz=c.frequency_hz, source_id=c.source_id,
                            source=table.get(c.source_id, c.source_id), order=c.order,
                            low_hz=c.low_hz, high_hz=c.high_hz, lower_to_hz=c.lower_to_hz,

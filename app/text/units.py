@@ -41,6 +41,11 @@ class QuantityKind:
     example: str
     nonnegative: bool = False
     positive: bool = False
+    #: For a rate of turning or cycling (shaft speed, frequency): the pint units the value is
+    #: taken in when the typed unit names an angle (``rpm``, ``rad/s``, ``turn/s``) and when it
+    #: does not (``Hz``, ``1/min``). pint counts a radian as 1, so ``Hz`` to ``rpm`` would come out
+    #: 2 pi too small; the trade reads a bare Hz or 1/min of a shaft as revolutions.
+    cyclic: tuple[str, str] | None = None
 
     def factor(self, system: str) -> float:
         return self.display[system][2]
@@ -77,6 +82,12 @@ KINDS: dict[str, QuantityKind] = {
     "angle": _k("angle", "rad", ("rad", "rad", 1.0), ("rad", "rad", 1.0), "0.01 rad or 1 deg"),
     "angular velocity": _k("angular velocity", "rad/s", ("rad/s", "rad/s", 1.0),
                            ("rad/s", "rad/s", 1.0), "1 rad/s"),
+    # the model keeps shaft speeds in rev/min and frequencies in Hz (cycles per second)
+    "shaft speed": _k("shaft speed", "turn/min", ("rpm", "turn/min", 1.0),
+                      ("rpm", "turn/min", 1.0), "1450 rpm, 24.2 Hz or 152 rad/s", positive=True,
+                      cyclic=("turn/min", "1/min")),
+    "frequency": _k("frequency", "turn/s", ("Hz", "turn/s", 1.0), ("Hz", "turn/s", 1.0),
+                    "50 Hz or 3000 rpm", nonnegative=True, cyclic=("turn/s", "1/s")),
     # response per unit force or torque (shown, never typed)
     "receptance": _k("receptance", "m/N", ("m/N", "m/N", 1.0), ("in/lbf", "in/lbf", _IN / _LBF),
                      "1e-6 m/N"),
@@ -143,6 +154,8 @@ def _parse_with_pint(s: str, qk: QuantityKind) -> float:
         raise UnitError(f"cannot read {s!r}: use a decimal point (1.5, not 1,5); try {qk.example}")
     if re.fullmatch(r"[+-]?(nan|inf|infinity)(\s.*)?", s, re.I):
         raise UnitError(f"{qk.name} must be a finite number, got {s!r}")
+    if qk.cyclic:
+        s = re.sub(r"\brev\b", "turn", s)   # "1450 rev/min": pint knows turn, revolution
     try:
         q = ureg.Quantity(s.replace("²", "^2").replace("·", " "))
     except pint.errors.UndefinedUnitError as exc:
@@ -158,6 +171,9 @@ def _parse_with_pint(s: str, qk: QuantityKind) -> float:
         # e.g. "12 percent": a bare ratio is not a physical quantity of this field
         raise UnitError(f"{s!r} has no {qk.name} unit; try {qk.example}")
     try:
+        if qk.cyclic:
+            angle = "radian" in str(ureg.get_root_units(q.units)[1])
+            return float(q.to(qk.cyclic[0] if angle else qk.cyclic[1]).magnitude)
         return float(q.to(qk.si_pint).magnitude)
     except pint.errors.DimensionalityError:
         raise UnitError(f"{s!r} is not a {qk.name} (its units are {q.units:~P}); try"

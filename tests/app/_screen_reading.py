@@ -24,7 +24,7 @@ PREFIX = {"p": 1e-12, "n": 1e-9, "µ": 1e-6, "u": 1e-6, "m": 1e-3, "k": 1e3, "M"
 UNITS = {"Hz", "s", "m", "rad", "deg", "kg", "lb", "in", "N/m", "lbf/in", "N m/rad",
          "lbf in/rad", "m/N", "in/lbf", "m/s/N", "in/s/lbf", "m/s²/N", "in/s²/lbf", "rad/(N m)",
          "rad/(lbf in)", "rad/s/(N m)", "rad/s/(lbf in)", "rad/s²/(N m)", "rad/s²/(lbf in)",
-         "ratio"}
+         "ratio", "rpm"}
 
 
 def read_number(text: str) -> float:
