@@ -11,27 +11,40 @@ Bad input is one line on stderr naming the file and the problem, exit code 2, no
 from __future__ import annotations
 
 import argparse
+import errno
 import json
 import math
 import os
+import stat
 import sys
-from pathlib import Path
 
 CAUTION = ("A lumped model is an approximation: confirm results by test or detailed analysis;"
            " local codes and licensed engineering practice govern.")
 
 
 class _Parser(argparse.ArgumentParser):
-    def error(self, message):  # one line, exit 2, like every other bad input
-        from solver.errors import one_line
+    #: the arguments being parsed (for the hint on file names that start with "-")
+    argv: tuple = ()
 
-        self.exit(2, f"springwright: {one_line(message)}\n")
+    def error(self, message):  # one line, exit 2, like every other bad input
+        from solver.errors import capped, one_line
+
+        dashed = [a for a in self.argv[1:] if a.startswith("-") and a not in _OPTIONS
+                  and (a.lower().endswith(".json") or os.path.exists(a))]
+        if dashed:
+            command = " ".join(["springwright", *self.argv[:1], "--"]).replace("  ", " ")
+            message += (f" (a file name that starts with \"-\", such as {dashed[0]}, needs"
+                        f" \"--\" before it or \"./\" in front: {command} {dashed[0]})")
+        self.exit(2, f"springwright: {capped(one_line(message))}\n")
+
+
+_OPTIONS = {"--json", "-o", "--output", "-h", "--help", "--"}
 
 
 def _fail(message: str, code: int = 2) -> int:
-    from solver.errors import one_line
+    from solver.errors import capped, one_line
 
-    print(f"springwright: {one_line(message)}", file=sys.stderr)
+    print(f"springwright: {capped(one_line(message), 2000)}", file=sys.stderr)
     return code
 
 
@@ -48,16 +61,41 @@ def _load(path: str):
         return None, text if text.startswith(name) else f"{name}: {text}"
 
 
-def _output_problem(out: Path) -> str | None:
+def _output_problem(out: str) -> str | None:
     """Why the report cannot be written to ``out`` (checked before the costly rendering)."""
-    folder = out.parent if str(out.parent) else Path(".")
-    if out.is_dir():
+    try:
+        st = os.stat(out)
+    except FileNotFoundError:
+        st = None
+        if os.path.islink(out):
+            return (f"is a symbolic link to {os.readlink(out)}, which does not exist; give the"
+                    " PNG file to write")
+    except OSError as exc:
+        if exc.errno == errno.ELOOP:
+            return "is a symbolic link that loops back on itself; give the PNG file to write"
+        if exc.errno == errno.ENAMETOOLONG:
+            return "the name is too long for a file (at most 255 bytes in a name)"
+        if exc.errno == errno.ENOTDIR:
+            return "a part of the path before the file name is a file, not a folder"
+        return f"cannot use it ({exc.strerror or exc})"
+    except ValueError:   # a NUL character
+        return "the name holds a character no file name can have"
+    if st is not None and stat.S_ISDIR(st.st_mode):
         return "is a folder; give the PNG file to write, e.g. -o report.png"
-    if not folder.is_dir():
+    if st is not None and not stat.S_ISREG(st.st_mode):
+        return "is not a regular file (a FIFO, device or socket); give the PNG file to write"
+    folder = os.path.dirname(out) or "."
+    if not os.path.isdir(folder):
         return f"the folder {folder} does not exist"
-    if out.exists() and not out.is_file():
-        return "is not a regular file; give the PNG file to write"
-    if not os.access(folder, os.W_OK | os.X_OK) or (out.exists() and not os.access(out, os.W_OK)):
+    try:
+        name_max = os.pathconf(folder, "PC_NAME_MAX")
+    except (OSError, ValueError):
+        name_max = 255
+    if len(os.fsencode(os.path.basename(out))) > name_max:
+        return (f"the file name is {len(os.fsencode(os.path.basename(out)))} bytes long; file"
+                f" names there are limited to {name_max} bytes")
+    if not os.access(folder, os.W_OK | os.X_OK) or (st is not None and
+                                                     not os.access(out, os.W_OK)):
         return "no permission to write there"
     return None
 
@@ -152,7 +190,7 @@ def solve_table(analysis) -> str:
                f" {count(len(model.springs), 'spring')}, {modal.system.n_dof} DOF"]
     if modal.n_modes == 0:
         lines.append(modal.message or "no modes")
-        return "\n".join(lines)
+        return _lines_text(lines)
     dirs = list(modal.effective_mass)
     pct = modal.effective_mass_percent
     cum = modal.cumulative_percent
@@ -198,7 +236,26 @@ def solve_table(analysis) -> str:
     lines += solve_text_lines(model, modal)
     lines.append("")
     lines.append(CAUTION)
-    return "\n".join(lines)
+    return _lines_text(lines)
+
+
+def _lines_text(lines) -> str:
+    """Lines joined for a terminal: names and labels may hold line breaks, ESC, BEL or CR, which
+    would break the table or drive the terminal; each line is escaped to one printable line."""
+    from solver.errors import one_line
+
+    return "\n".join(one_line(line) for line in lines)
+
+
+def _finite_json(value):
+    """``value`` with every non-finite float replaced by None (JSON has no inf or NaN)."""
+    if isinstance(value, float):
+        return value if math.isfinite(value) else None
+    if isinstance(value, dict):
+        return {k: _finite_json(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_finite_json(v) for v in value]
+    return value
 
 
 def cmd_solve(args) -> int:
@@ -211,8 +268,8 @@ def cmd_solve(args) -> int:
         analysis = analyse(model)
     except ModelError as exc:
         return _fail(f"{args.file}: {exc}")
-    text = json.dumps(solve_json(analysis), indent=2, allow_nan=False) if args.json \
-        else solve_table(analysis)
+    text = json.dumps(_finite_json(solve_json(analysis)), indent=2, allow_nan=False) \
+        if args.json else solve_table(analysis)
     try:
         print(text)
         sys.stdout.flush()
@@ -228,24 +285,26 @@ def cmd_report(args) -> int:
     model, err = _load(args.file)
     if err:
         return _fail(err)
-    out = Path(args.output)
-    problem = _output_problem(out) if args.output else "no output file given"
+    out = args.output
+    problem = _output_problem(out) if out else "no output file given"
     if problem:
-        return _fail(f"{args.output}: cannot write the report: {problem}")
+        return _fail(f"{out}: cannot write the report: {problem}")
     os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
     try:
         from app.report import render_report
 
         analysis = analyse(model)
-        if out.suffix.lower() != ".png":
-            print(f"note: {one_line(str(out))} gets PNG data (the report is always a PNG)",
-                  file=sys.stderr)
+        # the name goes to the file system as the bytes it came in (os.fsencode), so a name
+        # that is not UTF-8 is written as given
         render_report(model, analysis, out)
     except ModelError as exc:
         return _fail(f"{args.file}: {exc}")
     except OSError as exc:
-        return _fail(f"{args.output}: cannot write the report ({exc.strerror or exc})")
-    print(f"report written to {args.output}")
+        return _fail(f"{out}: cannot write the report ({exc.strerror or exc})")
+    print(f"report written to {one_line(out)}")
+    if not out.lower().endswith(".png"):
+        print(f"note: {one_line(out)} holds PNG data (the report is always a PNG)",
+              file=sys.stderr)
     return 0
 
 
@@ -260,6 +319,7 @@ def main(argv=None) -> int:
         p = sub.add_parser("report", help="write the PNG report of a model file")
         p.add_argument("file")
         p.add_argument("-o", "--output", required=True, help="PNG file to write")
+        parser.argv = sub.choices[argv[0]].argv = tuple(argv)
         args = parser.parse_args(argv)
         try:
             return cmd_solve(args) if args.command == "solve" else cmd_report(args)
@@ -276,6 +336,7 @@ def main(argv=None) -> int:
                                  " when no FILE is given). Also: springwright solve FILE [--json],"
                                  " springwright report FILE -o OUT.png")
     parser.add_argument("file", nargs="?")
+    parser.argv = ("", *argv)
     args = parser.parse_args(argv)
     if args.file is not None:
         model, err = _load(args.file)

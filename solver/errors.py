@@ -1,17 +1,24 @@
 """Errors a user can cause. Messages name the element, the field and what is allowed.
 
 Messages are one printable line whatever a file holds: :func:`one_line` escapes line breaks,
-control and format characters and lone surrogates, and :func:`shown` gives a value in a few dozen
-characters (a 10 MB string or an integer of 5,000 digits does not end up in a message whole).
+control and format characters and lone surrogates (printable text in any script, emoji
+included, is shown as it is), and :func:`shown` gives a value in JSON notation (``null``,
+``true``, ``"x"``, the notation of the file) in a few dozen characters (a 10 MB string or an
+integer of 5,000 digits does not end up in a message whole). Every :class:`ModelError` message
+is made one line and at most :data:`MESSAGE_MAX` characters when the error is raised.
 """
 
 from __future__ import annotations
 
+import json
 import math
 import numbers as _numbers
 
 #: the longest value shown in a message, in characters
 SHOWN_MAX = 60
+#: the longest message of a ModelError, in characters (a message quotes ids of up to 200
+#: characters and values of up to SHOWN_MAX; anything longer is cut)
+MESSAGE_MAX = 1000
 
 
 class ModelError(ValueError):
@@ -22,7 +29,7 @@ class ModelError(ValueError):
     """
 
     def __init__(self, message: str = "", path=()):
-        super().__init__(message)
+        super().__init__(capped(one_line(message)))
         self.path = tuple(path)
 
 
@@ -53,22 +60,48 @@ def one_line(text: str) -> str:
     return "".join(out)
 
 
+def capped(text: str, limit: int = MESSAGE_MAX) -> str:
+    """``text`` cut to ``limit`` characters (ending in ``…``)."""
+    return text if len(text) <= limit else text[: limit - 1] + "…"
+
+
 def shown(value, limit: int = SHOWN_MAX) -> str:
-    """A short, one-line representation of a value for a message (``'abc…'`` past ``limit``)."""
+    """A short, one-line text of a value for a message, in JSON notation as the file writes it
+    (``null``, ``true``, ``"abc"``, ``{"a": 1}``; ``"abc…`` past ``limit``)."""
     if isinstance(value, int) and not isinstance(value, bool) and value.bit_length() > 200:
         # repr() of an integer past 4,300 digits raises ValueError; its size says enough
         digits = int(value.bit_length() * math.log10(2)) + 1
-        return f"{'-' if value < 0 else ''}an integer of about {digits} digits"
+        return f"{'minus ' if value < 0 else ''}a whole number of about {digits} digits"
     if isinstance(value, (list, tuple)) and len(value) > 10:
         return f"a list of {len(value)} items"
     if isinstance(value, dict) and len(value) > 10:
         return f"an object of {len(value)} keys"
-    try:
-        text = repr(value)
-    except Exception:   # noqa: BLE001  (a value whose repr fails still gets a message)
-        text = f"<{type(value).__name__}>"
-    text = one_line(text)
+    if isinstance(value, str) and len(value) > 2 * limit:
+        # cut before encoding: a 20 MB text costs nothing here
+        return one_line(json.dumps(value[: 2 * limit], ensure_ascii=False))[: limit - 1] + "…"
+    text = one_line(_json_text(value))
     return text if len(text) <= limit else text[: limit - 1] + "…"
+
+
+def _json_text(value) -> str:
+    """JSON notation of a value where it has one (numpy numbers as plain numbers), else repr."""
+    if isinstance(value, _numbers.Integral) and not isinstance(value, bool):
+        return str(int(value))
+    if isinstance(value, _numbers.Real) and not isinstance(value, bool) and \
+            type(value) is not float:
+        try:
+            value = float(value)
+        except (TypeError, ValueError, OverflowError):
+            pass
+    try:
+        if value is None or isinstance(value, (bool, str, int, float, list, tuple, dict)):
+            return json.dumps(value, ensure_ascii=False)
+    except (TypeError, ValueError, RecursionError):
+        pass   # a container holding something JSON has no notation for: repr below
+    try:
+        return repr(value)
+    except Exception:   # noqa: BLE001  (a value whose repr fails still gets a message)
+        return f"<{type(value).__name__}>"
 
 
 def is_number(value) -> bool:

@@ -19,6 +19,7 @@ always loads back as the same model.
 from __future__ import annotations
 
 import codecs
+import errno
 import json
 import math
 import os
@@ -27,6 +28,7 @@ import stat
 import tempfile
 from functools import lru_cache
 from importlib import resources
+from json.encoder import encode_basestring as _string   # C speed; printable text as it is
 from pathlib import Path
 
 from .errors import ModelError, ModelFileError, one_line, shown
@@ -128,28 +130,37 @@ _NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
 
 
 def json_path(parts) -> str:
-    """``masses[3].mass``, ``initial["m 1"].x``; ``top level`` for the whole file."""
+    """``masses[3].mass``, ``initial["m 1"].x``; ``top level`` for the whole file. A key is shown
+    as the file writes it (any printable script as it is, control characters escaped) and cut
+    to 40 characters."""
     out = ""
     for p in parts:
         if isinstance(p, int):
             out += f"[{p}]"
-        elif isinstance(p, str) and _NAME.match(p):
+        elif isinstance(p, str) and len(p) <= 40 and _NAME.match(p):
             out += ("." if out else "") + p
         else:
             text = p if isinstance(p, str) else str(p)
-            out += "[" + (json.dumps(text) if len(text) <= 40 else json.dumps(text[:40])[:-1]
+            out += "[" + (_json_str(text) if len(text) <= 40 else _json_str(text[:40])[:-1]
                           + '…"') + "]"
-    return out or "top level"
+    return one_line(out) or "top level"
+
+
+def _json_str(text: str) -> str:
+    """A text in JSON notation with printable characters of any script left as they are."""
+    return json.dumps(text, ensure_ascii=False)
 
 
 def _labelled(el_id: str, label) -> str:
     """``"Isolator pad" (s4)`` (see :func:`solver.naming.quoted`) for an element of a file not
     yet checked: the id as JSON writes it and at most 60 characters of it, a label only where
     it is text that differs from the id; ``"s4"`` otherwise."""
-    text = json.dumps(el_id)
+    text = one_line(_json_str(el_id[:61]))[1:-1]
+    if len(text) > 60:
+        text = text[:59] + "…"
     if not (isinstance(label, str) and label and label != el_id):
-        return text[:60]
-    return quoted(text[1:-1] if len(text) <= 60 else text[1:59] + "…", label)
+        return f'"{text}"'
+    return quoted(text, label)
 
 
 def _owner(data, path) -> str:
@@ -173,6 +184,17 @@ def _owner(data, path) -> str:
                           if isinstance(m, dict) and m.get("id") == path[1]), None)
         return f"initial condition of {_labelled(str(path[1]), label)}: "
     return ""
+
+
+def _for_kind(data, path, problem: str) -> str:
+    """The schema lists both "mass" and "inertia" among a mass's keys; a message listing the
+    allowed keys names only the one this model's kind uses."""
+    if len(path) == 2 and path[0] == "masses" and " (allowed: " in problem:
+        other = "mass" if data.get("kind") == "torsion" else "inertia"
+        head, _, allowed = problem.partition(" (allowed: ")
+        keys = [k for k in allowed.rstrip(")").split(", ") if k != other]
+        return f"{head} (allowed: {', '.join(keys)})"
+    return problem
 
 
 def _placed(path, message: str) -> str:
@@ -205,8 +227,11 @@ def model_from_dict(data: dict) -> Model:
     version = data.get("version")
     # JSON Schema counts 2.0 as an integer, so a float version must be refused here too
     if isinstance(version, (int, float)) and not isinstance(version, bool) and version > VERSION:
-        raise ModelFileError(f"version: the file is format version {shown(version)}, newer than"
-                             f" this program knows (up to {VERSION}); open it with a newer"
+        which = (f"version {shown(version)}" if abs(version) < 1e6 else
+                 f"a version number of {shown(version)}" if isinstance(version, float) else
+                 f"a version number with {len(str(version))} digits")
+        raise ModelFileError(f"version: the file is of format {which}, newer than this program"
+                             f" knows (it reads versions up to {VERSION}); open it with a newer"
                              " Springwright", ("version",))
     # counted before the schema check, whose time grows with the count
     count = sum(len(data[k]) for k in _ELEMENT_LISTS if isinstance(data.get(k), list))
@@ -217,8 +242,8 @@ def model_from_dict(data: dict) -> Model:
     try:
         _check()(data)
     except Invalid as exc:
-        raise ModelFileError(f"{json_path(exc.path)}: {_owner(data, exc.path)}{exc.problem}",
-                             exc.path) from None
+        raise ModelFileError(f"{json_path(exc.path)}: {_owner(data, exc.path)}"
+                             f"{_for_kind(data, exc.path, exc.problem)}", exc.path) from None
     try:
         return _build(data)
     except ModelFileError:
@@ -284,16 +309,23 @@ def _build(data: dict) -> Model:
         try:
             initial.append(Initial(mass_id=mass_id, displacement=disp, velocity=vel))
         except ModelError as exc:
-            raise ModelError(str(exc), ("initial", mass_id) + exc.path) from None
+            # the file holds the mass id as the key itself, not in a "mass_id" field
+            inner = () if exc.path == ("mass_id",) else exc.path
+            raise ModelError(str(exc), ("initial", mass_id) + inner) from None
     return Model(kind=kind, name=data.get("name", ""), axis=axis, masses=masses, anchors=anchors,
                  springs=springs, dampers=dampers, damping=damping,
                  excitations=excitations,
                  margin_percent=data.get("margin_percent", 15.0), initial=tuple(initial))
 
 
-def model_to_dict(model: Model) -> dict:
+def model_to_dict(model: Model, minimal: bool = False) -> dict:
     """The JSON-ready dict of a model, in the file layout. Defaults are written only where they
-    say something (a label equal to the id, an empty ``fixed`` or a zero ``k_t`` are left out)."""
+    say something (a label equal to the id, an empty ``fixed`` or a zero ``k_t`` are left out).
+
+    ``minimal``: every key that holds its default is left out (an empty name or list, axis
+    ``x``, no damping, a 15 % margin, orders ``[1]``, a zero ratio), so no file that loads as
+    this model is shorter than its compact text (see :func:`dumps_model`).
+    """
     mass_key = "inertia" if model.kind == "torsion" else "mass"
     out: dict = {"format": FORMAT, "version": VERSION, "name": model.name, "kind": model.kind}
     if model.kind == "line" or model.axis != "x":   # kept for a switch back to a line model
@@ -338,6 +370,8 @@ def model_to_dict(model: Model) -> dict:
             d.update({"rpm": e.rpm, "orders": list(e.orders)})
         else:
             d.update({"f_min_hz": e.f_min_hz, "f_max_hz": e.f_max_hz})
+        if minimal and d.get("orders") == [1.0]:
+            del d["orders"]
         out["excitations"].append(d)
     out["margin_percent"] = model.margin_percent
     out["initial"] = {}
@@ -345,7 +379,101 @@ def model_to_dict(model: Model) -> dict:
         values = {d: v for d, v in ic.displacement}
         values.update({_VELOCITY_KEY[d]: v for d, v in ic.velocity})
         out["initial"][ic.mass_id] = values
+    if minimal:
+        defaults = {"name": "", "axis": "x", "damping": {"model": "none"}, "margin_percent": 15.0}
+        for key in list(out):
+            if out[key] in ([], {}) or (key in defaults and out[key] == defaults[key]):
+                del out[key]
+        for key in ("ratio", "alpha", "beta"):
+            if out.get("damping", {}).get(key) == 0:
+                del out["damping"][key]
     return out
+
+
+def number_text(v: float, shortest: bool = True) -> str:
+    """The shortest JSON text that reads back as exactly ``v`` (a finite float).
+
+    Python's repr gives the fewest significant digits that round-trip, but writes
+    ``1000000000000000.0`` for 1e15 and ``1e-05`` for 1e-5. Here the same digits are written
+    in whichever of the plain and the exponent form is shorter (``1e15``, ``1e-5``,
+    ``36000``, ``10000000000000002``), a whole number without ``.0``, and -0.0 keeps its sign.
+    ``shortest=False`` (the indented file a person reads): whole numbers below a million are
+    written out (``120000``, not ``1.2e5``).
+    """
+    if v == 0:
+        return "-0.0" if math.copysign(1.0, v) < 0 else "0"
+    text = repr(v)
+    sign = "-" if v < 0 else ""
+    body = text[len(sign):]
+    if "e" in body:
+        mantissa, _, exp = body.partition("e")
+        digits, e = mantissa.replace(".", ""), int(exp)
+    else:
+        whole, _, frac = body.partition(".")
+        frac = frac.rstrip("0")
+        if whole != "0":
+            digits, e = whole + frac, len(whole) - 1
+        else:
+            digits = frac.lstrip("0")
+            e = -(len(frac) - len(digits)) - 1
+    digits = digits.rstrip("0") or "0"
+    sci = f"{digits[0]}{'.' + digits[1:] if len(digits) > 1 else ''}e{e}"
+    if e >= len(digits) - 1:
+        plain = digits + "0" * (e - len(digits) + 1)
+        if not shortest and e < 6:
+            return sign + plain
+    elif e >= 0:
+        plain = f"{digits[:e + 1]}.{digits[e + 1:]}"
+    else:
+        plain = "0." + "0" * (-e - 1) + digits
+    return sign + (plain if len(plain) <= len(sci) else sci)
+
+
+def _json_text(value, indent: str | None) -> str:
+    """JSON text of a model dict (plain dicts, lists, texts, floats, ints, bools) with numbers
+    in their shortest form (:func:`number_text`); ``indent`` as json.dumps takes it (None:
+    compact, no spaces). Printable text of any script is written as it is."""
+    parts: list[str] = []
+    add = parts.append
+    key_sep = ":" if indent is None else ": "
+    shortest = indent is None
+
+    def emit(v, level):
+        t = type(v)
+        if t is str:
+            add(_string(v))
+        elif t is float:
+            if not math.isfinite(v):
+                raise ValueError(f"{v!r} has no JSON form")
+            add(number_text(v, shortest))
+        elif t is bool:
+            add("true" if v else "false")
+        elif t is int:
+            add(str(v))
+        elif v is None:
+            add("null")
+        elif t is dict or t is list:
+            items = v.items() if t is dict else v
+            if not v:
+                add("{}" if t is dict else "[]")
+                return
+            inner = "," if indent is None else ",\n" + indent * (level + 1)
+            add(("{" if t is dict else "[") + ("" if indent is None else inner[1:]))
+            for i, item in enumerate(items):
+                if i:
+                    add(inner)
+                if t is dict:
+                    add(_string(item[0]))
+                    add(key_sep)
+                    emit(item[1], level + 1)
+                else:
+                    emit(item, level + 1)
+            add(("" if indent is None else "\n" + indent * level) + ("}" if t is dict else "]"))
+        else:
+            raise TypeError(f"{type(v).__name__} has no JSON form")
+
+    emit(value, 0)
+    return "".join(parts)
 
 
 def _refuse(name: str, problem: str) -> ModelFileError:
@@ -370,6 +498,15 @@ def _kind_of(st: os.stat_result) -> str | None:
 
 def _mib(n: int) -> str:
     return f"{n / 1024 ** 2:.1f} MiB" if n < 1024 ** 3 else f"{n / 1024 ** 3:.1f} GiB"
+
+
+def _size_text(n: int, limit: int) -> str:
+    """``the file is 65.0 MiB; model files are limited to 32.0 MiB``, with exact byte counts
+    when the two round to the same MiB (a file one byte over the limit)."""
+    if _mib(n) == _mib(limit) or n < 1.1 * limit:
+        return (f"the file is {n:,} bytes; model files are limited to {limit:,} bytes"
+                f" ({_mib(limit)})")
+    return f"the file is {_mib(n)}; model files are limited to {_mib(limit)}"
 
 
 def read_file_bytes(path, limit: int = MAX_FILE_BYTES) -> bytes:
@@ -399,8 +536,7 @@ def read_file_bytes(path, limit: int = MAX_FILE_BYTES) -> bytes:
         if what:
             raise _refuse(name, f"is {what}, not a model file")
         if st.st_size > limit:
-            raise _refuse(name, f"the file is {_mib(st.st_size)}; model files are limited to"
-                                f" {_mib(limit)}")
+            raise _refuse(name, _size_text(st.st_size, limit))
 
     check(st)
     flags = os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_BINARY", 0) | getattr(
@@ -419,8 +555,8 @@ def read_file_bytes(path, limit: int = MAX_FILE_BYTES) -> bytes:
             chunks.append(chunk)
             total += len(chunk)
             if total > limit:
-                raise _refuse(name, f"the file holds more than {_mib(limit)}; model files are"
-                                    " limited to that")
+                raise _refuse(name, f"the file holds more than {limit:,} bytes; model files"
+                                    f" are limited to that ({_mib(limit)})")
     except OSError as exc:
         raise _refuse(name, f"cannot read the file ({exc.strerror or exc})") from None
     finally:
@@ -429,6 +565,31 @@ def read_file_bytes(path, limit: int = MAX_FILE_BYTES) -> bytes:
 
 
 _STRING = re.compile(rb'"(?:[^"\\]|\\.)*"', re.S)
+
+
+#: the JSON decoder's messages in our words (it ends some with "at", meant for its own suffix)
+_JSON_PROBLEMS = {
+    "Expecting value": "a value (number, text, true, false, null, list or object) is expected"
+                       " here",
+    "Expecting property name enclosed in double quotes": "a key in double quotes is expected"
+                                                         " here (JSON has no comments, single"
+                                                         " quotes or trailing commas)",
+    "Expecting ',' delimiter": "a comma is expected here",
+    "Expecting ':' delimiter": "a colon is expected here",
+    "Unterminated string starting at": "the text (string) that starts here is not closed",
+    "Invalid \\escape": "an escape that JSON does not have (a backslash starts \\n, \\t,"
+                         " \\\\, \\\" or \\u0000 forms)",
+    "Invalid \\uXXXX escape": "a \\u escape needs four hexadecimal digits",
+    "Extra data": "extra text after the end of the JSON value (a model file holds one object)",
+}
+
+
+def _json_problem(exc: json.JSONDecodeError) -> str:
+    if exc.msg == "Invalid control character at":
+        ch = exc.doc[exc.pos] if exc.pos < len(exc.doc) else "\x00"
+        return (f"control character U+{ord(ch):04X} inside a text (JSON writes it as an escape"
+                f" such as \\n or \\u{ord(ch):04x})")
+    return _JSON_PROBLEMS.get(exc.msg, exc.msg.removesuffix(" at"))
 
 
 def parse_json(raw: bytes, name: str):
@@ -457,12 +618,15 @@ def parse_json(raw: bytes, name: str):
         if n > MAX_CONTAINERS:
             raise _refuse(name, f"the file holds {n:,} JSON objects and lists; a model of at most"
                                 f" {MAX_ELEMENTS:,} elements needs far fewer")
+    if text.startswith("\ufeff"):
+        raise _refuse(name, "line 1, column 1: a second byte-order mark (U+FEFF) follows the"
+                            " first; a model file may begin with one at most")
     try:
         return json.loads(text, parse_float=_parse_float, parse_int=_parse_int,
                           parse_constant=_parse_constant, object_pairs_hook=_pairs)
     except json.JSONDecodeError as exc:
         raise _refuse(name, f"line {exc.lineno}, column {exc.colno}: not valid JSON:"
-                            f" {exc.msg}") from None
+                            f" {_json_problem(exc)}") from None
     except RecursionError:
         raise _refuse(name, "the JSON is nested too deeply to be a model (a model file nests"
                             " four levels)") from None
@@ -488,16 +652,30 @@ def load_model(path) -> Model:
 
 
 def dumps_model(model: Model) -> str:
-    """The model file's text (JSON, 2-space indent, trailing newline).
+    """The model file's text (JSON, 2-space indent, trailing newline), numbers in their
+    shortest form (:func:`number_text`).
 
-    A model whose indented text would be over :data:`MAX_FILE_BYTES` is written without
-    indentation, so that what is saved can be loaded.
+    A model whose indented text would be over :data:`MAX_FILE_BYTES` is written compact: no
+    spaces or final line break, and no key that holds its default (``model_to_dict(minimal=True)``). That text is
+    never longer than any file that loads as the same model (its texts are escaped only where
+    JSON requires it, its numbers have the fewest characters that give the same value, and
+    nothing optional is written), so whatever :func:`load_model` accepts, :func:`save_model`
+    can write and :func:`load_model` reads back equal.
     """
-    data = model_to_dict(model)
-    text = json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+    text = _json_text(model_to_dict(model), "  ") + "\n"
     if len(text) > MAX_FILE_BYTES // 4 and len(text.encode("utf-8")) > MAX_FILE_BYTES:
-        text = json.dumps(data, separators=(",", ":"), ensure_ascii=False, allow_nan=False) + "\n"
+        # not even a final line break: a file just at the limit needs every byte
+        text = _json_text(model_to_dict(model, minimal=True), None)
     return text
+
+
+def _not_regular(path) -> str | None:
+    """What ``path`` is when it exists and is not a regular file (after symbolic links)."""
+    try:
+        st = os.stat(path)
+    except (OSError, ValueError):
+        return None   # missing (a new file), or a name the write itself will refuse
+    return _kind_of(st)
 
 
 def write_atomic(path, text: str) -> None:
@@ -509,6 +687,10 @@ def write_atomic(path, text: str) -> None:
     path = Path(path)
     if path.is_symlink():
         path = Path(os.path.realpath(path))
+    what = _not_regular(path)
+    if what:   # the rename would put a regular file in place of a FIFO or device node
+        raise OSError(errno.EISDIR if what == "a folder" else errno.EINVAL,
+                      f"it is {what}; only a regular file is replaced", str(path))
     folder = path.parent if str(path.parent) else Path(".")
     if not folder.is_dir():
         raise FileNotFoundError(2, f"the folder {folder} does not exist", str(path))
@@ -556,9 +738,16 @@ def save_model(model: Model, path) -> None:
         raise ModelError(f"save_model: expected a file path, got {type(path).__name__}")
     if not os.fspath(path) or "\x00" in os.fsdecode(path):
         raise ModelError(f"save_model: not a usable file name: {shown(os.fspath(path))}")
+    what = _not_regular(path)
+    if what:
+        raise ModelFileError(f"{_file_name(path)}: is {what}, not a regular file; save_model"
+                             " writes model files only (it never replaces a folder, FIFO or"
+                             " device)")
     text = dumps_model(model)
     if len(text) > MAX_FILE_BYTES // 4 and len(text.encode("utf-8")) > MAX_FILE_BYTES:
-        raise ModelError(f"save_model: the model's file would be"
-                         f" {_mib(len(text.encode('utf-8')))}, over the {_mib(MAX_FILE_BYTES)}"
-                         " a model file may have")
+        size = len(text.encode("utf-8"))
+        raise ModelError(f"save_model: the model's file would be {size:,} bytes even written as"
+                         f" compactly as JSON allows, over the {MAX_FILE_BYTES:,} bytes"
+                         f" ({_mib(MAX_FILE_BYTES)}) a model file may have; split the model or"
+                         " shorten its labels")
     write_atomic(path, text)

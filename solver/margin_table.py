@@ -102,7 +102,8 @@ def separation(f: float, lo: float, hi: float) -> tuple[str, float]:
     if f < lo:
         return "below", (lo - f) / lo * 100.0
     if f > hi:
-        return "above", (f - hi) / hi * 100.0
+        # a source at 0 Hz (a speed so low its frequency underflows) is infinitely far below
+        return "above", (f - hi) / hi * 100.0 if hi > 0 else math.inf
     depth = (hi - f) / hi if hi > 0 else 0.0
     if lo > 0:
         depth = min(depth, (f - lo) / lo)

@@ -32,6 +32,8 @@ MAX_ELEMENTS = 200_000
 ID_MAX, TEXT_MAX = 200, 1000
 #: Most orders one speed excitation may list.
 ORDERS_MAX = 100
+#: Highest mode number a per-mode damping ratio may name (six digits in the file).
+MODE_MAX = 999_999
 
 
 def directions_for(kind: str, axis: str = "x") -> tuple[str, ...]:
@@ -70,10 +72,13 @@ def _finite(owner: str, name: str, value, unit: str = "", field: str | None = No
 TINY, HUGE = 1e-30, 1e30
 
 
-def _in_range(owner: str, name: str, v: float, unit: str, field: str | None = None) -> float:
+def _in_range(owner: str, name: str, v: float, unit: str, field: str | None = None,
+              zero: bool = True) -> float:
+    """``v`` when 0 (``zero``: allowed) or TINY <= |v| <= HUGE; a ModelError saying the range."""
     if v != 0 and not (TINY <= abs(v) <= HUGE):
-        raise ModelError(f"{owner}: {name} = {v:.3g} {unit} is outside the range a model can be"
-                         f" solved in ({TINY:g} to {HUGE:g} {unit}, or 0)", (field or name,))
+        raise ModelError(f"{owner}: {name} = {v!r} {unit} is outside the range a model can be"
+                         f" solved in ({TINY:g} to {HUGE:g} {unit}{', or 0' if zero else ''})",
+                         (field or name,))
     return v
 
 
@@ -81,7 +86,7 @@ def _capped(owner: str, name: str, v: float, unit: str, field: str | None = None
     # a rate, ratio or frequency may be as small as it likes, but beyond HUGE its products with
     # frequencies and masses leave double precision
     if v > HUGE:
-        raise ModelError(f"{owner}: {name} = {v:.3g} {unit} is above the largest value a model"
+        raise ModelError(f"{owner}: {name} = {v!r} {unit} is above the largest value a model"
                          f" can be solved with ({HUGE:g} {unit})", (field or name,))
     return v
 
@@ -111,7 +116,7 @@ def _positive(owner: str, name: str, value, unit: str, ranged: bool | str = Fals
                          (field or name,))
     if ranged == "capped":
         return _capped(owner, name, v, unit, field)
-    return _in_range(owner, name, v, unit, field) if ranged else v
+    return _in_range(owner, name, v, unit, field, zero=False) if ranged else v
 
 
 def _coordinate(owner: str, name: str, value, unit: str = "m") -> float:
@@ -121,13 +126,18 @@ def _coordinate(owner: str, name: str, value, unit: str = "m") -> float:
         return value
     v = _finite(owner, name, value, f" in {unit}")
     if abs(v) > HUGE:
-        raise ModelError(f"{owner}: {name} = {v:.3g} {unit} is outside the range a model can be"
+        raise ModelError(f"{owner}: {name} = {v!r} {unit} is outside the range a model can be"
                          f" solved in (-{HUGE:g} to {HUGE:g} {unit})", (name,))
     return v
 
 
 def _fmt(v: float) -> str:
     return f"{v:.6g}"
+
+
+def _a(word: str) -> str:
+    """``a mass``, ``an anchor``, ``an excitation``."""
+    return ("an " if word[:1] in "aeiou" else "a ") + word
 
 
 def _check_id(kind: str, value, field: str = "id") -> str:
@@ -311,9 +321,9 @@ class Damping:
                 raise ModelError(f"damping: mode_ratios holds (mode number, ratio) pairs, got"
                                  f" {shown(item)}", ("mode_ratios",))
             n, r = item
-            if not is_number(n) or not math.isfinite(n) or int(n) != n or not 1 <= n <= 10 ** 6:
+            if not is_number(n) or not math.isfinite(n) or int(n) != n or not 1 <= n <= MODE_MAX:
                 raise ModelError(f"damping: mode numbers in mode_ratios are whole numbers from 1"
-                                 f" to 1000000, got {shown(n)}", ("mode_ratios",))
+                                 f" to {MODE_MAX}, got {shown(n)}", ("mode_ratios",))
             n = int(n)
             if n in pairs:
                 raise ModelError(f"damping: mode_ratios gives mode {n} twice",
@@ -533,8 +543,8 @@ class Model:
             for i, el in enumerate(items):
                 if el.id in seen:
                     raise ModelError(
-                        f"{named(el, what)}: id is already used by a {seen[el.id]}; ids must be"
-                        " unique", (key, i, "id"))
+                        f"{named(el, what)}: id is already used by {_a(seen[el.id])}; ids must"
+                        " be unique", (key, i, "id"))
                 seen[el.id] = what
         allowed = directions_for(self.kind, self.axis)
         # A locked direction the model kind does not have (y in a line model along x) locks
@@ -554,7 +564,7 @@ class Model:
                 if el.a == el.b:
                     node = nodes[el.a]
                     raise ModelError(f"{named(el, what)}: both ends are"
-                                     f" {quoted(node.id, node.label)}; a {what} must join"
+                                     f" {quoted(node.id, node.label)}; {_a(what)} must join"
                                      " two different nodes", (key, i, "b"))
                 if self.kind == "planar":
                     na, nb = nodes[el.a], nodes[el.b]

@@ -242,10 +242,13 @@ class Compiler:
 
     def _kw_pattern(self, pattern, schema) -> Check:
         rx, describe = _ecma_pattern(pattern), self.describe
+        # a person reads the schema's description of the value, not the regular expression
+        what = schema.get("description")
+        problem = f"is not {what}" if isinstance(what, str) else "is not in the form allowed here"
 
         def check(v, p):
             if isinstance(v, str) and not rx.search(v):
-                raise Invalid(p, f"{describe(v)} does not have the form {pattern}")
+                raise Invalid(p, f"{describe(v)} {problem}")
         return check
 
     def _kw_minItems(self, n, schema) -> Check:
@@ -289,11 +292,13 @@ class Compiler:
         return check
 
     def _kw_required(self, names, schema) -> Check:
+        describe = self.describe
+
         def check(v, p):
             if isinstance(v, dict):
                 for n in names:
                     if n not in v:
-                        raise Invalid(p, f"{n!r} is required")
+                        raise Invalid(p, f"{describe(n)} is required")
         return check
 
     def _kw_additionalProperties(self, sub, schema) -> Check:
@@ -421,7 +426,7 @@ class Compiler:
             if key is not None and isinstance(v, dict):
                 allowed = ", ".join(describe(c) for c in tags[key].values())
                 if key not in v:
-                    raise Invalid(p, f"{key!r} is required (one of {allowed})")
+                    raise Invalid(p, f"{describe(key)} is required (one of {allowed})")
                 meant = [i for i, c in tags[key].items() if json_equal(v[key], c)]
                 if meant:
                     raise errors[meant[0]]

@@ -30,6 +30,8 @@ def nice_ticks(top: float, target: int = 6) -> tuple[list[float], float]:
     if not top > 0:
         return [0.0], 1.0
     raw = top / target
+    if not raw > 0:   # top so small (subnormal) that a tenth of it underflows to 0
+        return [0.0, top], top
     e = math.floor(math.log10(raw))
     step = min((m * 10.0 ** e for m in (1, 2, 5, 10) if m * 10.0 ** e >= raw), default=raw)
     n = int(math.floor(top / step + 1e-9))

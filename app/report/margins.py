@@ -40,7 +40,9 @@ def paint_margin_check(pg, model, analysis) -> None:
     result = margin_check(model, modal)
     bands = result.bands
     freqs = [float(f) for f, z in zip(modal.frequencies_hz, modal.is_zero) if not z and f > 0]
-    ends = [b[4] for b in bands if b[4] > 0] + [b[5] for b in bands] + freqs
+    # a log axis: only positive ends (a band from 0 Hz, or a speed so slow its frequency
+    # underflows to 0, is drawn from the left edge)
+    ends = [e for b in bands for e in (b[4], b[5]) if e > 0] + freqs
     if not ends:
         pg.paragraph("No elastic modes to check.", 8.5, st.ink_soft)
         return
@@ -52,6 +54,7 @@ def paint_margin_check(pg, model, analysis) -> None:
                   rows * row_h + 0.35 * d)
 
     def x_of(f):
+        f = min(max(f, lo), hi)   # ends outside the axis (0 Hz among them) sit at its edges
         return plot.left() + plot.width() * (math.log10(f) - math.log10(lo)) / \
             (math.log10(hi) - math.log10(lo))
 

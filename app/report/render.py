@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import datetime as _dt
 
-from PySide6.QtCore import QRectF, Qt
+from PySide6.QtCore import QBuffer, QIODevice, QRectF, Qt
 from PySide6.QtGui import QColor, QImage, QPainter
 
 from app.drawing.style import LIGHT
@@ -102,7 +102,15 @@ def render_report(model, analysis, path, dpi: int = 200, date: str | None = None
     page = canvas.copy(0, 0, width, height)
     page.setDotsPerMeterX(dpm)
     page.setDotsPerMeterY(dpm)
-    if not page.save(str(path), "PNG"):
-        raise OSError(f"could not write the report to {path}")
+    # encoded here and written by Python: Qt would turn a file name that is not UTF-8 into
+    # another name (U+FFFD for each odd byte) and its failure gives no reason; open() writes
+    # the name's own bytes and raises OSError with the system's reason
+    buffer = QBuffer()
+    buffer.open(QIODevice.OpenModeFlag.WriteOnly)
+    if not page.save(buffer, "PNG"):
+        raise OSError(f"could not encode the report as PNG ({page.width()} x {page.height()}"
+                      " pixels)")
+    with open(path, "wb") as fh:
+        fh.write(bytes(buffer.data()))
     return {"path": str(path), "width": page.width(), "height": page.height(), "dpi": dpi,
             "modes_shown": n_shown, "modes_total": n_total, "modes_left_out": n_total - n_shown}

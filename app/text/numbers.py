@@ -38,9 +38,15 @@ def _strip(text: str) -> str:
     return text
 
 
-def _exponent(value: float) -> int:
-    """Decimal exponent of a finite nonzero value, exact (from its decimal form, not a log)."""
-    return int(f"{value:e}".split("e")[1])
+def _scaled(value: float, e3: int) -> float:
+    """``value / 10**e3`` without passing through ``10.0**e3``, which is 0 below 1e-323 and inf
+    above 1e308 (a subnormal value such as 5e-324 has e3 = -324): exact decimal arithmetic
+    there."""
+    if -300 <= e3 <= 300:
+        return value / 10.0 ** e3
+    from decimal import Decimal
+
+    return float(Decimal(value).scaleb(-e3))
 
 
 def number(value, sig: int = SIG) -> str:
@@ -55,14 +61,24 @@ def number(value, sig: int = SIG) -> str:
         return "inf" if v > 0 else "-inf"
     if v == 0:
         return "0"
-    # round first: 9999.7 at 4 digits is 1.000e4 and takes the exponent
-    r = float(f"{v:.{sig - 1}e}")
-    e = _exponent(r)
-    if PLAIN_LOW <= abs(r) < PLAIN_HIGH:
-        return _strip(f"{r:.{max(0, sig - 1 - e)}f}")
+    # round first, in decimal text (a float rounded up past 1.8e308 would be inf): 9999.7 at 4
+    # digits is 1.000e4 and takes the exponent
+    mant, exp = f"{abs(v):.{sig - 1}e}".split("e")
+    digits, e = mant.replace(".", ""), int(exp)
+    sign = "-" if v < 0 else ""
+    if math.log10(PLAIN_LOW) <= e < math.log10(PLAIN_HIGH):
+        return sign + _strip(_point(digits, e))
     e3 = 3 * math.floor(e / 3)
-    mantissa = r / 10.0 ** e3
-    return _strip(f"{mantissa:.{max(0, sig - 1 - (e - e3))}f}") + f"e{e3}"
+    return sign + _strip(_point(digits, e - e3)) + f"e{e3}"
+
+
+def _point(digits: str, e: int) -> str:
+    """The significant ``digits`` (``"2695"``) of a value ``d.ddd x 10^e`` written with a decimal
+    point and no exponent: ``26.95`` for e = 1, ``0.002695`` for e = -3."""
+    if e < 0:
+        return "0." + "0" * (-e - 1) + digits
+    whole = digits[: e + 1].ljust(e + 1, "0")
+    return whole + ("." + digits[e + 1:] if len(digits) > e + 1 else "")
 
 
 def signed(value, sig: int = SIG) -> str:
@@ -118,13 +134,13 @@ def tick_texts(values, spacing: float) -> list[str]:
     if big == 0 or PLAIN_LOW <= big < PLAIN_HIGH:
         e3 = 0
     else:
-        e3 = 3 * math.floor(_exponent(float(f"{big:.3e}")) / 3)
-    step = abs(spacing) / 10.0 ** e3 if spacing else 0.0
+        e3 = 3 * math.floor(int(f"{big:.3e}".split("e")[1]) / 3)
+    step = _scaled(abs(spacing), e3) if spacing else 0.0
     places = max(0, math.ceil(-math.log10(step) - 1e-9)) if step > 0 else 0
     places = min(places, 12)
     out = []
     for v in values:
-        m = v / 10.0 ** e3
+        m = _scaled(v, e3) if math.isfinite(v) else math.nan
         if not math.isfinite(m):
             out.append("")
             continue

@@ -45,7 +45,19 @@ def set_(path, value):
     return fn
 
 
-# name: (bytes, expected) with expected "load" or (place, [words])
+def minimal(**extra) -> bytes:
+    """One mass on one spring to an anchor (a valid model), with top-level keys added."""
+    data = {"format": "springwright-model", "version": 1, "kind": "line",
+            "masses": [{"id": "m", "x": 0, "y": 0, "mass": 1}],
+            "anchors": [{"id": "g", "x": 0, "y": 0}],
+            "springs": [{"id": "s", "a": "g", "b": "m", "k": 1}]}
+    data.update(extra)
+    return json.dumps(data, ensure_ascii=False).encode("utf-8")
+
+
+# name: (bytes, expected) with expected "load", "solve" (loads, and `springwright solve`,
+# `solve --json` and `report` all succeed on it) or (place, [words]) or (place, [words],
+# [words that must not appear])
 CASES = {
     # ---- numbers JSON cannot or Python will not hold
     "nan-literal": (with_text('"x": 1.0', '"x": NaN'), ("masses[0].x", ["NaN", "JSON has no NaN"])),
@@ -58,9 +70,9 @@ CASES = {
                               ("masses[0].mass", ["outside the range", "1e+30"])),
     "stiffness-above-range": (with_text('"k": 800.0', '"k": 1e31'), ("springs[0].k", ["1e+30"])),
     "coordinate-above-range": (with_text('"x": 1.0', '"x": -2e30'), ("masses[0].x", ["1e+30"])),
-    "bool-as-number": (with_text('"mass": 2.0', '"mass": true'), ("masses[0].mass", ["number", "True"])),
-    "null-as-number": (with_text('"k": 800.0', '"k": null'), ("springs[0].k", ["number", "None"])),
-    "string-as-number": (with_text('"k": 800.0', '"k": "800"'), ("springs[0].k", ["number", "'800'"])),
+    "bool-as-number": (with_text('"mass": 2.0', '"mass": true'), ("masses[0].mass", ["number", "true"])),
+    "null-as-number": (with_text('"k": 800.0', '"k": null'), ("springs[0].k", ["number", "null"])),
+    "string-as-number": (with_text('"k": 800.0', '"k": "800"'), ("springs[0].k", ["number", '"800"'])),
     "object-as-number": (with_text('"y": 0.0', '"y": {"value": 0}'), ("masses[0].y", ["number"])),
     "float-version": (with_text('"version": 1', '"version": 2.0'), ("version", ["newer", "up to 1"])),
     "huge-version": (with_text('"version": 1', '"version": 1e999'), ("version", ["double"])),
@@ -70,14 +82,14 @@ CASES = {
     "string-for-list": (changed(set_(["masses", 0], "m1")), ("masses[0]", ["object"])),
     "fixed-as-text": (changed(set_(["masses", 0, "fixed"], "x")), ("masses[0].fixed", ["list"])),
     "top-level-array": (b"[" + TEXT.encode() + b"]", ("top level", ["object"])),
-    "top-level-null": (b"null", ("top level", ["object", "None"])),
+    "top-level-null": (b"null", ("top level", ["object", "null"])),
     "top-level-nan": (b"NaN", ("top level", ["NaN"])),
     "orders-too-many": (changed(set_(["excitations"], [{"id": "e", "type": "speed", "rpm": 1500,
                                                         "orders": [1.0] * 101}])),
                         ("excitations[0].orders", ["101", "at most 100"])),
     "mode-ratio-key-newline": (changed(set_(["damping"], {"model": "modal", "ratio": 0.02,
                                                           "mode_ratios": {"1\n": 0.1}})),
-                               ("damping.mode_ratios", ["key", "form"])),
+                               ("damping.mode_ratios", ["key", "a mode number from 1 to 999999"])),
     "mode-ratio-key-huge": (changed(set_(["damping"], {"model": "modal", "ratio": 0.02,
                                                        "mode_ratios": {"9" * 5000: 0.1}})),
                             ("damping.mode_ratios", ["key"])),
@@ -88,15 +100,15 @@ CASES = {
                            ("name", ["text"])),
     # ---- keys
     "duplicate-key": (with_text('"mass": 2.0', '"mass": 2.0, "mass": -1.0'),
-                      ("masses[0]", ["'mass'", "more than once"])),
+                      ("masses[0]", ['"mass"', "more than once"])),
     "duplicate-top-key": (with_text('"kind": "line"', '"kind": "line", "kind": "planar"'),
-                          ("top level", ["'kind'", "more than once"])),
+                          ("top level", ['"kind"', "more than once"])),
     "unknown-key": (with_text('"k": 800.0', '"k": 800.0, "colour": "red"'),
-                    ("springs[0]", ["unknown key 'colour'", "allowed:"])),
+                    ("springs[0]", ['unknown key "colour"', "allowed:"])),
     "mass-and-inertia": (with_text('"mass": 2.0', '"mass": 2.0, "inertia": 1.0'),
-                         ("masses[0]", ["'inertia'", "not allowed", "torsion"])),
+                         ("masses[0]", ['"inertia"', "not allowed", "torsion"])),
     "torsion-with-mass": (with_text('"kind": "line"', '"kind": "torsion"'),
-                          ("masses[0]", ["'inertia' is required", "torsion"])),
+                          ("masses[0]", ['"inertia" is required', "torsion"])),
     # ---- text
     "empty-id": (changed(set_(["masses", 0, "id"], "")), ("masses[0].id", ["empty"])),
     "blank-id": (changed(set_(["masses", 0, "id"], "   ")), ("masses[0].id", ["non-empty"])),
@@ -134,13 +146,61 @@ CASES = {
                           ("line 4, column", ["0xed", "not UTF-8"])),
     "nul-byte": (TEXT.encode().replace(b'"m1"', b'"m\x001"', 1), ("line", ["not valid JSON"])),
     "truncated": (TEXT.encode()[:100], ("line", ["not valid JSON"])),
-    "trailing-garbage": (TEXT.encode() + b"\n}", ("line", ["Extra data"])),
+    "trailing-garbage": (TEXT.encode() + b"\n}", ("line", ["extra text after the end"])),
     "comment": (b"// model\n" + TEXT.encode(), ("line 1, column 1", ["not valid JSON"])),
     "trailing-comma": (with_text('"k": 800.0\n', '"k": 800.0,\n'), ("line", ["not valid JSON"])),
     "single-quotes": (TEXT.encode().replace(b'"', b"'"), ("line 2, column 3", ["not valid JSON"])),
     "crlf-line-ends": (TEXT.encode().replace(b"\n", b"\r\n"), "load"),
     "negative-zero": (with_text('"y": 0.0', '"y": -0.0'), "load"),
     "subnormal-ratio": (changed(set_(["damping"], {"model": "modal", "ratio": 5e-324})), "load"),
+    # ---- found by review: valid files that once crashed the command line or the report
+    # (the smallest double, 5e-324, underflows 10**e and rpm/60 to 0)
+    "band-from-subnormal": (minimal(excitations=[{"id": "e", "type": "band",
+                                                  "f_min_hz": 5e-324, "f_max_hz": 1}]), "solve"),
+    "speed-subnormal-rpm": (minimal(excitations=[{"id": "e", "type": "speed", "rpm": 5e-324}]),
+                            "solve"),
+    "speed-range-subnormal": (minimal(excitations=[{"id": "e", "type": "speed", "rpm_min": 5e-324,
+                                                    "rpm_max": 1e-320, "orders": [1e-30]}]),
+                              "solve"),
+    "control-chars-in-names": (minimal(name="A\x1b[2J\x1b]0;owned\x07\nfake: line") .replace(
+        b'"id": "m",', b'"id": "m", "label": "Mass\\rX",'), "solve"),
+    # ---- found by review: messages
+    "initial-key-long": (minimal(initial={"q" * 100_000: {"x": 1}}),
+                         ('initial["qqqq', ["100000 characters", "at most 200"], ["q" * 100])),
+    "initial-key-newline": (minimal(initial={"a\nb": {"x": 1}}),
+                            ('initial["a\\nb"]: ', ["printable"], ["mass_id"])),
+    "non-ascii-id": (minimal().replace(b'"id": "m"', '"id": "电机"'.encode())
+                     .replace(b'"b": "m"', '"b": "电机"'.encode()).replace(b'"mass": 1', b'"mass": -1'),
+                     ("masses[0].mass", ['"电机"'], ["\\u7535"])),
+    "non-ascii-initial-key": (minimal(initial={"电机": {"x": 1}}),
+                              ('initial["电机"]', ['"电机"', "not a mass"], ["\\u7535"])),
+    "emoji-id": (minimal().replace(b'"id": "s"', '"id": "\U0001F600"'.encode()).replace(
+        b'"k": 1', b'"k": -1'), ("springs[0].k", ["\U0001F600"], ["\\ud83d"])),
+    "stiffness-below-range": (minimal().replace(b'"k": 1', b'"k": 1e-31'),
+                              ("springs[0].k", ["1e-30 to 1e+30 N/m)"], ["or 0"])),
+    "coordinate-just-above-range": (minimal().replace(b'"x": 0, "y": 0, "mass"',
+                                                      b'"x": 1.0000001e30, "y": 0, "mass"'),
+                                    ("masses[0].x", ["1.0000001e+30"], [])),
+    "id-collision-anchor": (minimal().replace(b'"id": "s"', b'"id": "g"'),
+                            ("springs[0].id", ["by an anchor"], ["a anchor"])),
+    "mode-ratio-key-letters": (minimal(damping={"model": "modal", "ratio": 0.02,
+                                                "mode_ratios": {"zzz": 0.1}}),
+                               ("damping.mode_ratios", ['"zzz"', "a mode number from 1 to 999999"],
+                                ["^[", "'"])),
+    "torsion-unknown-key": (minimal(kind="torsion").replace(b'"mass": 1', b'"inertia": 1, "m": 2'),
+                            ("masses[0]", ['unknown key "m"', "inertia"], [", mass,", "label, mass"])),
+    "line-unknown-key": (minimal().replace(b'"mass": 1', b'"mass": 1, "m": 2'),
+                         ("masses[0]", ['unknown key "m"', "mass"], ["inertia"])),
+    "enum-json-notation": (minimal().replace(b'"kind": "line"', b'"kind": "beam"'),
+                           ("kind", ['"beam"', '"line", "planar", "torsion"'], ["'"])),
+    "null-kind": (minimal().replace(b'"kind": "line"', b'"kind": null'),
+                  ("kind", ["null"], ["None"])),
+    "version-300-digits": (minimal().replace(b'"version": 1', b'"version": 1' + b"0" * 299),
+                           ("version", ["300 digits", "newer"], ["an integer of about"])),
+    "double-bom": (b"\xef\xbb\xbf" * 2 + TEXT.encode(),
+                   ("line 1, column 1", ["byte-order mark"], ["utf-8-sig"])),
+    "nul-in-text": (TEXT.encode().replace(b'"m1"', b'"m\x001"', 1),
+                    ("line", ["U+0000", "control character"], ["character at"])),
 }
 
 
@@ -150,8 +210,9 @@ def main():
     expected = {}
     for name, (raw, outcome) in CASES.items():
         (HERE / f"{name}.json").write_bytes(raw)
-        expected[f"{name}.json"] = outcome if outcome == "load" else {
-            "place": outcome[0], "words": outcome[1]}
+        expected[f"{name}.json"] = outcome if outcome in ("load", "solve") else {
+            "place": outcome[0], "words": outcome[1],
+            **({"absent": outcome[2]} if len(outcome) > 2 else {})}
     (HERE / "expected.json").write_text(json.dumps(expected, indent=1, ensure_ascii=True) + "\n")
 
 

@@ -87,6 +87,20 @@ def _cli(*argv):
     return rc, out.getvalue(), err.getvalue()
 
 
+def _assert_cli_works(path, tmp_path):
+    """``solve``, ``solve --json`` and ``report`` of an accepted file: exit 0, nothing on
+    stderr, the table in printable lines (no terminal escapes), the JSON valid."""
+    for extra in ((), ("--json",)):
+        rc, out, err = _cli("solve", path, *extra)
+        assert rc == 0 and err == "", (extra, rc, err)
+        assert all(line.isprintable() for line in out.splitlines()), out
+        if extra:
+            json.loads(out)
+    png = tmp_path / "report.png"
+    rc, out, err = _cli("report", path, "-o", png)
+    assert rc == 0 and err == "" and png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n", (rc, err)
+
+
 def _assert_cli_refuses(path, *extra):
     rc, out, err = _cli("solve", path, *extra)
     assert rc == 2, (rc, err)
@@ -104,13 +118,15 @@ def test_corpus_file(name, tmp_path):
     column) and the problem; the command line gives the same one line with exit code 2."""
     path = CORPUS / name
     want = EXPECTED[name]
-    if want == "load":
+    if want in ("load", "solve"):
         with fuzz_files.time_cap(CAP):
             model = solver.load_model(path)
             out = tmp_path / "again.json"
             solver.save_model(model, out)
             assert solver.load_model(out) == model
             assert solver.dumps_model(solver.load_model(out)) == out.read_text("utf-8")
+        if want == "solve":
+            _assert_cli_works(path, tmp_path)
         return
     msg = _refusal(path)
     assert msg.startswith(f"{path}: "), msg
@@ -118,6 +134,8 @@ def test_corpus_file(name, tmp_path):
         assert msg[len(f"{path}: "):].startswith(want["place"]), (want["place"], msg)
     for word in want["words"]:
         assert word in msg, (word, msg)
+    for word in want.get("absent", ()):
+        assert word not in msg, (word, msg)
     assert len(msg) < 600, msg
     err = _assert_cli_refuses(path, "--json")
     assert err == f"springwright: {msg}\n"
@@ -173,7 +191,8 @@ def test_size_limit_checked_before_reading(tmp_path, monkeypatch):
     big = tmp_path / "big.json"
     with open(big, "wb") as fh:
         fh.truncate(solver.io.MAX_FILE_BYTES + 1)
-    assert "limited to 32.0 MiB" in _refusal(big)
+    # one byte over: the exact counts, not "32.0 MiB ... limited to 32.0 MiB"
+    assert "33,554,433 bytes; model files are limited to 33,554,432 bytes" in _refusal(big)
     sparse = tmp_path / "sparse.json"
     with open(sparse, "wb") as fh:
         fh.truncate(8 * 1024 ** 3)
@@ -216,7 +235,7 @@ def specials(tmp_path_factory):
     ("symlink loop", ["cannot read"]),
     ("8 GB sparse file", ["GiB", "limited"]),
     ("65 MB of spaces", ["65.0 MiB", "limited"]),
-    ("name 'new\\nline.json'", ["new\\nline.json", "unknown key 'bad'"]),
+    ("name 'new\\nline.json'", ["new\\nline.json", 'unknown key "bad"']),
     ("name 'tab\\tand\\x1b[31mesc.json'", ["tab\\tand\\x1b[31mesc.json"]),
     ("name 'sep\\u2028.json'", ["sep\\u2028.json"]),
     ("name 'bidi\\u202e.json'", ["bidi\\u202e.json"]),
@@ -391,21 +410,96 @@ def test_save_keeps_permissions_and_follows_links(tmp_path):
 
 def test_oversized_model_saved_compact_or_refused(tmp_path, monkeypatch):
     """Round trip (DESIGN.md section 4): what save_model writes, load_model reads: a model over
-    the size limit when indented is written without indentation, and one over it even then is
-    refused with a ModelError instead of writing a file that cannot be loaded."""
+    the size limit when indented is written compact (no spaces, no key at its default), and one
+    over it even then is refused with a ModelError instead of writing a file that cannot be
+    loaded."""
     model = solver.load_model(GOOD)
     indented = solver.dumps_model(model)
-    compact = json.dumps(solver.model_to_dict(model), separators=(",", ":"), ensure_ascii=False)
+    compact = solver.io._json_text(solver.model_to_dict(model, minimal=True), None)
+    assert json.loads(compact) == solver.model_to_dict(model, minimal=True)
     monkeypatch.setattr(solver.io, "MAX_FILE_BYTES", len(compact) + 10)
     assert len(indented) > solver.io.MAX_FILE_BYTES
     path = tmp_path / "m.json"
     solver.save_model(model, path)
-    assert path.read_text("utf-8") == compact + "\n"
+    assert path.read_text("utf-8") == compact
     assert solver.load_model(path) == model
     monkeypatch.setattr(solver.io, "MAX_FILE_BYTES", len(compact) - 10)
-    with pytest.raises(ModelError, match="over the"):
+    with pytest.raises(ModelError, match="compactly"):
         solver.save_model(model, tmp_path / "n.json")
     assert not (tmp_path / "n.json").exists()
+
+
+def test_file_at_the_limit_saves_and_loads_back(tmp_path, monkeypatch):
+    """Round trip at the size limit (found by review: a 30.1 MiB file of 200,000 masses with
+    values written 1e15 loaded, and saving it gave 38.1 MiB, because 1e15 was written
+    1000000000000000.0). The same construction with the limit scaled down: a compact file just
+    under the limit, numbers in short forms, every optional key left out, loads; save_model
+    writes it within the limit and it loads back equal (math: the shortest decimal form of a
+    double, RFC 8259 number grammar)."""
+    # every number already in its shortest form and nothing optional: the tightest case
+    parts = [f'{{"id":"m{i:05d}","label":"{"L" * 100}","x":1e15,"y":-1e-7,"mass":2}}'
+             for i in range(800)]
+    raw = ('{"format":"springwright-model","version":1,"kind":"line","masses":['
+           + ",".join(parts) + "]}").encode()
+    monkeypatch.setattr(solver.io, "MAX_FILE_BYTES", len(raw))
+    src = tmp_path / "at-limit.json"
+    src.write_bytes(raw)
+    model = solver.load_model(src)
+    out = tmp_path / "saved.json"
+    solver.save_model(model, out)
+    assert out.read_bytes() == raw   # the same text: the file was already in shortest form
+    assert solver.load_model(out) == model
+    assert '"x":1e15' in out.read_text("utf-8")
+
+
+@pytest.mark.parametrize("v, text", [
+    (1e15, "1e15"), (1e-5, "1e-5"), (0.0001, "1e-4"), (36000.0, "36000"), (-0.0, "-0.0"),
+    (0.0, "0"), (5e-324, "5e-324"), (1.7976931348623157e308, "1.7976931348623157e308"),
+    (0.1, "0.1"), (123456789012345.0, "123456789012345"), (-2.5e-7, "-2.5e-7")])
+def test_numbers_written_in_their_shortest_form(v, text):
+    """math (IEEE 754 and the shortest round-trip decimal, as Python's repr finds it): each
+    value is written in the fewest characters that read back as exactly that double."""
+    assert solver.io.number_text(v) == text
+    assert float(text) == v and math.copysign(1, float(text)) == math.copysign(1, v)
+
+
+@settings(max_examples=int(os.environ.get("SW_EXAMPLES", "60")) * 5, deadline=None)
+@given(st.floats(allow_nan=False, allow_infinity=False))
+def test_number_text_is_never_longer_than_any_json_form(v):
+    """math: number_text(v) reads back as v, and no JSON number that the model file's parser
+    reads as v (Python's json: "-0" is the integer 0) is shorter: checked against repr (the
+    shortest digits), and every %.Ng / %.Ne form that round-trips."""
+    def same(text):
+        back = float(json.loads(text))
+        return back == v and math.copysign(1, back) == math.copysign(1, v)
+
+    text = solver.io.number_text(v)
+    assert same(text)
+    forms = [repr(v)] + [f"{v:.{n}g}" for n in range(1, 18)] + [f"{v:.{n}e}" for n in range(17)]
+    for form in forms:
+        if same(form):
+            # JSON has no "1." or "+" in exponents; "e+05" and "e05" have a shorter form "e5"
+            short = form.replace("e+", "e").replace("e-0", "e-").replace("e0", "e")
+            assert len(text) <= len(short), (v, text, form)
+
+
+def test_save_refuses_a_target_that_is_not_a_regular_file(tmp_path):
+    """POSIX (found by review: the atomic rename put a regular file in place of a FIFO, and of
+    /dev/full when run as root): save_model refuses a FIFO, a folder or a link to a device with
+    a one-line ModelFileError and leaves it as it is."""
+    model = solver.load_model(GOOD)
+    fifo = tmp_path / "pipe.json"
+    os.mkfifo(fifo)
+    link = tmp_path / "null.json"
+    link.symlink_to("/dev/null")
+    folder = tmp_path / "dir.json"
+    folder.mkdir()
+    for target, words in ((fifo, "named pipe"), (link, "device"), (folder, "folder")):
+        with pytest.raises(ModelFileError, match=words) as info:
+            solver.save_model(model, target)
+        assert _one_line(str(info.value)) and str(target) in str(info.value)
+    assert stat.S_ISFIFO(os.stat(fifo).st_mode) and stat.S_ISCHR(os.stat(link).st_mode)
+    assert folder.is_dir() and [p.name for p in tmp_path.iterdir() if p.name.startswith(".")] == []
 
 
 # ------------------------------------------------------------------ round trip, property test
