@@ -18,7 +18,7 @@ import numbers as _numbers
 SHOWN_MAX = 60
 #: the longest message of a ModelError, in characters (a message quotes ids of up to 200
 #: characters and values of up to SHOWN_MAX; anything longer is cut)
-MESSAGE_MAX = 1000
+MESSAGE_MAX = 1200
 
 
 class ModelError(ValueError):
@@ -136,6 +136,17 @@ def numbers(values, what: str):
         raise ModelError(f"{what} must be numbers, got {shown(values, 80)}") from None
 
 
+def mode_number(mode, n_modes: int, who: str) -> int:
+    """``mode`` as an int from 1 to ``n_modes``, or a ModelError naming ``who`` and the range
+    (a mode number 0 or -1 would otherwise pick the last mode by Python's negative indexing)."""
+    if not (_finite_number(mode) and float(mode) == int(mode)) or not 1 <= int(mode) <= n_modes:
+        have = f"the model has {n_modes} mode{'s' if n_modes != 1 else ''}" if n_modes else \
+            "the model has no modes"
+        raise ModelError(f"{who}: mode must be a whole number from 1 to {max(n_modes, 1)}"
+                         f" ({have}), got {shown(mode)}")
+    return int(mode)
+
+
 # ------------------------------------------------------------------ arguments of public functions
 # What each argument name of the public solver functions must be; a bad one is a ModelError
 # naming the function and the argument before the function runs (so that a TypeError deep inside
@@ -195,6 +206,8 @@ def _argument_problem(name: str, value) -> str | None:
         return "must be a ModalResult from modes()"
     if name in _WHOLE and not (_finite_number(value) and float(value) == int(value)):
         return "must be a whole number"
+    if name == "mode" and value < 1:
+        return "must be a whole number from 1 (mode 1 is the lowest)"
     if name in _SCALARS and not _real(value):
         return "must be a number"
     if name in _REAL_ARRAYS or name in _COMPLEX_ARRAYS:
@@ -225,6 +238,10 @@ def checked_arguments(func=None, **rules):
         return functools.partial(checked_arguments, **rules)
     sig = inspect.signature(func)
     names = [(n, rules.get(n, n)) for n in sig.parameters if rules.get(n, n) in _CHECKED]
+    # (model argument, result argument) pairs whose result must be of that model
+    models = [n for n, r in names if r in ("model", "model_or_system")]
+    results = [n for n, r in names if r in ("result", "modal")]
+    pairs = [(m, r) for m in models[:1] for r in results]
 
     @functools.wraps(func)
     def wrapper(*args, **kwargs):
@@ -238,8 +255,32 @@ def checked_arguments(func=None, **rules):
             problem = _argument_problem(rule, value)
             if problem:
                 raise ModelError(f"{func.__name__}: {name} {problem}, got {shown(value)}")
+        if pairs:
+            _check_same_model(func.__name__, bound.arguments, pairs)
         return func(*args, **kwargs)
     return wrapper
+
+
+def _check_same_model(func_name: str, arguments: dict, pairs) -> None:
+    """A result (``result=``, ``modal=``) passed beside a model must be that model's: its modes
+    would otherwise be used for another model's matrices (a shape error deep in numpy, or,
+    worse, wrong numbers with no error at all). The same Model object, or an equal one (a copy
+    that came back from a worker process), is accepted. A stand-in without ``system`` (tests
+    pass bare frequencies) cannot be checked and is taken as it is."""
+    from .assemble import System
+
+    for model_name, result_name in pairs:
+        given, result = arguments.get(model_name), arguments.get(result_name)
+        system = getattr(result, "system", None)
+        if given is None or result is None or not isinstance(system, System):
+            continue
+        if given is system or given is system.model:
+            continue
+        model = given.model if isinstance(given, System) else given
+        if model is system.model or model == system.model:
+            continue
+        raise ModelError(f"{func_name}: {result_name} holds the modes of another model, not of"
+                         f" {model_name}; solve this model (solver.modes) and pass that result")
 
 
 _CHECKED = ({"model", "model_or_system", "result", "modal"} | _WHOLE | _SCALARS | _REAL_ARRAYS

@@ -21,6 +21,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from .errors import checked_arguments
 from .margin_table import margin_of
 from .margins import EDGE_RTOL
 from .model import Model
@@ -127,6 +128,7 @@ def order_lines(model: Model) -> tuple:
     return tuple(out)
 
 
+@checked_arguments
 def interference(model: Model, modal, margin_percent: float | None = None) -> Interference:
     """The order lines, elastic modes and their crossings for ``model``'s speed sources.
 

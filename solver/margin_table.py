@@ -32,7 +32,7 @@ from dataclasses import dataclass
 
 import math
 
-from .errors import ModelError, number
+from .errors import ModelError, checked_arguments, number
 from .margins import EDGE_RTOL, keep_out_intervals, source_bands
 from .model import Model
 
@@ -124,6 +124,7 @@ def nearest_clear(f: float, keep_out) -> tuple[float, float | None, float | None
     return f, f, f
 
 
+@checked_arguments
 def margin_table(model: Model, modal, margin_percent: float | None = None) -> MarginTable:
     """The margin table of ``model``'s elastic modes (from ``modal``, a ModalResult: its
     ``frequencies_hz`` and ``is_zero`` are read) against its excitation sources.

@@ -34,7 +34,7 @@ import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.csgraph import connected_components
 
-from .errors import checked_arguments
+from .errors import ModelError, checked_arguments, mode_number, shown
 from .modes import ModalResult
 
 
@@ -52,14 +52,18 @@ class EnergyResult:
     strain: np.ndarray
     kinetic: np.ndarray
 
+    def _row(self, mode) -> int:
+        # a checked index: mode 0 would be row -1, the last mode, with no error
+        return mode_number(mode, self.strain.shape[0], "energy fractions") - 1
+
     def strain_energy_fraction(self, mode: int) -> dict:
-        return dict(zip(self.spring_ids, map(float, self.strain[mode - 1])))
+        return dict(zip(self.spring_ids, map(float, self.strain[self._row(mode)])))
 
     def kinetic_energy_fraction(self, mode: int) -> dict:
-        return dict(zip(self.mass_ids, map(float, self.kinetic[mode - 1])))
+        return dict(zip(self.mass_ids, map(float, self.kinetic[self._row(mode)])))
 
     def dominant_spring(self, mode: int) -> str | None:
-        row = self.strain[mode - 1]
+        row = self.strain[self._row(mode)]
         if row.size == 0 or not np.any(row > 0):
             return None
         return self.spring_ids[int(np.argmax(row))]
@@ -94,7 +98,12 @@ class Sensitivity:
 
         which : ``"k"``, ``"k_t"`` or ``"mass"``. Returns (n_springs,) or (n_masses,).
         """
-        table = {"k": self.dlambda_dk, "k_t": self.dlambda_dkt, "mass": self.dlambda_dm}[which]
+        tables = {"k": self.dlambda_dk, "k_t": self.dlambda_dkt, "mass": self.dlambda_dm}
+        if which not in tables:
+            raise ModelError(f'sensitivity: which must be "k", "k_t" or "mass", got'
+                             f" {shown(which)}")
+        table = tables[which]
+        mode = mode_number(mode, table.shape[0], "sensitivity")
         group = next((g for g in self.groups if mode in g), (mode,))
         return table[[m - 1 for m in group]].sum(axis=0)
 

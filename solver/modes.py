@@ -33,7 +33,7 @@ import scipy.sparse.linalg as spla
 
 from . import factor
 from .assemble import System, assemble
-from .errors import ModelError, checked_arguments
+from .errors import ModelError, checked_arguments, mode_number
 from .model import Model
 from .naming import named, named_id, quoted_id
 
@@ -175,9 +175,7 @@ class ModalResult:
         return self.system.node_motion(self.all_shapes[:, self._col(mode)])
 
     def _col(self, mode: int) -> int:
-        if isinstance(mode, bool) or not 1 <= int(mode) <= self.n_modes:
-            raise ModelError(f"mode must be a number from 1 to {self.n_modes}, got {mode!r}")
-        return int(mode) - 1
+        return mode_number(mode, self.n_modes, "modes") - 1
 
 
 def _spectral_bound(M_diag: np.ndarray, K) -> float:

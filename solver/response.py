@@ -107,6 +107,7 @@ def initial_vectors(system: System, x0=None, v0=None):
     return build(x0, "displacement"), build(v0, "velocity"), warnings
 
 
+@checked_arguments
 def modal_damping_coefficients(model: Model, result: ModalResult) -> np.ndarray:
     """Modal damping coefficient c_i (1/s) of each mode from the model's damping model.
 

@@ -41,7 +41,7 @@ import scipy.linalg
 from scipy.optimize import brentq
 
 from .assemble import assemble
-from .errors import ModelError, checked_arguments, number, numbers
+from .errors import ModelError, checked_arguments, mode_number, number, numbers, shown
 from .metrics import strain_vectors, unheld_junction_directions
 from .model import HUGE, TINY, Mass, Model, Spring
 from .modes import ZERO_RTOL, modes
@@ -285,13 +285,15 @@ def reachable_range(model: Model, element_id: str, mode: int, field: str | None 
     el, f = _field_for(model, element_id, field)
     if getattr(el, f) <= 0:
         model = with_value(model, element_id, _reference_value(model, el, f), f)
-    lo, hi = _limits(model, element_id, f, int(mode))[:2]
+    lo, hi = _limits(model, element_id, f, int(mode), who="reachable_range")[:2]
     return tuple(sorted((lo, hi)))
 
 
-def _limits(model, element_id, f, mode, n_zero=None):
+def _limits(model, element_id, f, mode, n_zero=None, who="retune"):
     """(f at value -> 0, f at value -> inf, exact?) of mode ``mode`` in Hz."""
-    n_all = len(assemble(model).all_dofs)
+    system = assemble(model)
+    mode_number(mode, system.n_dof, who)   # before any count is handed to an eigensolver
+    n_all = len(system.all_dofs)
     if n_all <= LIMIT_DENSE_DOF:
         at0 = limit_spectrum(model, element_id, f, "zero", n_zero, count=mode)
         atinf = limit_spectrum(model, element_id, f, "infinity", n_zero, count=mode)
@@ -301,7 +303,7 @@ def _limits(model, element_id, f, mode, n_zero=None):
         atinf = _estimated_spectrum(model, element_id, f, "infinity", mode)
         exact = False
     if mode > len(at0) or mode > len(atinf):
-        raise ModelError(f"retune: mode {mode} does not exist; the model has"
+        raise ModelError(f"{who}: mode {mode} does not exist; the model has"
                          f" {min(len(at0), len(atinf))} modes")
     return _hz(at0[mode - 1]), _hz(atinf[mode - 1]), exact
 
@@ -416,9 +418,10 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
     el, f = _field_for(model, element_id, field)
     target = number(target_hz, "retune: target frequency (Hz)")
     if not math.isfinite(target) or target <= 0:
-        raise ModelError(f"retune: target frequency must be a positive number of Hz, got {target_hz!r}")
+        raise ModelError(f"retune: target frequency must be a positive number of Hz, got"
+                         f" {shown(target_hz)}")
     if isinstance(mode, bool) or int(mode) != mode or mode < 1:
-        raise ModelError(f"retune: mode numbers start at 1, got {mode!r}")
+        raise ModelError(f"retune: mode numbers start at 1, got {shown(mode)}")
     mode = int(mode)
     name, unit = _name(model, el, f), unit_of(model, element_id, f)
     who = quoted(el.id, el.label)
@@ -605,9 +608,7 @@ def rank_elements(model: Model, mode: int) -> list[tuple[str, str, float]]:
     from .metrics import sensitivities
 
     res = modes(model)
-    if not 1 <= mode <= res.n_modes:
-        raise ModelError(f"mode {mode} does not exist: the model has {res.n_modes} modes")
-    return ranked(model, sensitivities(res), mode)
+    return ranked(model, sensitivities(res), mode_number(mode, res.n_modes, "rank_elements"))
 
 
 def ranked(model: Model, sens, mode: int) -> list[tuple[str, str, float]]:

@@ -740,3 +740,83 @@ def test_cli_argument_with_a_line_break_is_one_line():
     """DESIGN.md section 5: an unknown option holding a line break is still one line."""
     rc, out, err = _cli("solve", str(GOOD), "--x\ny")
     assert rc == 2 and out == "" and err.count("\n") == 1 and "\\n" in err, err
+
+
+# ------------------------------------------------------------------ results of another model
+def _two_models():
+    a = solver.load_model(GOOD)
+    b = solver.load_model(ROOT / "assets" / "examples" / "camera_bracket.json")
+    return a, b
+
+
+@pytest.mark.parametrize("call", [
+    lambda a, b, rb: solver.harmonic_response(a, [1.0, 2.0], {("shelf", "y"): 1.0},
+                                              method="modal", result=rb),
+    lambda a, b, rb: solver.base_transmissibility(a, [1.0, 2.0], "y", method="modal",
+                                                  result=rb),
+    lambda a, b, rb: solver.free_response(a, [0.0, 1.0], result=rb),
+    lambda a, b, rb: solver.margin_check(a, rb),
+    lambda a, b, rb: solver.margin_table(a, rb),
+    lambda a, b, rb: solver.interference(a, rb),
+    lambda a, b, rb: solver.harmonic_response(solver.assemble(a), [1.0], {("shelf", "y"): 1.0},
+                                              method="modal", result=rb),
+], ids=["harmonic", "base", "free", "margin_check", "margin_table", "interference", "system"])
+def test_result_of_another_model_is_refused(call):
+    """DESIGN.md section 3 (found by review: a numpy matmul ValueError, or, for free_response
+    and margin_check, the other model's modes used with no error and wrong numbers): a
+    precomputed result must belong to the model it is passed with; otherwise a one-line
+    ModelError naming the function and the argument."""
+    a, b = _two_models()
+    with pytest.raises(ModelError, match="another model") as info:
+        call(a, b, solver.modes(b))
+    assert type(info.value) is ModelError and _one_line(str(info.value))
+
+
+def test_result_of_an_equal_model_is_used():
+    """An equal copy of the model (what comes back from a worker process) is the same model:
+    its result is accepted, and the modal response with it equals the direct solve (an
+    independent algorithm: dynamic stiffness per frequency) to rtol 1e-9."""
+    import copy
+
+    a, _ = _two_models()
+    twin = copy.deepcopy(a)
+    assert twin == a and twin is not a
+    freqs = [0.5, 3.0, 40.0]
+    modal = solver.harmonic_response(a, freqs, {("shelf", "y"): 1.0}, method="modal",
+                                     result=solver.modes(twin))
+    direct = solver.harmonic_response(a, freqs, {("shelf", "y"): 1.0}, method="direct")
+    assert modal == pytest.approx(direct, rel=1e-9, abs=0)
+
+
+@pytest.mark.parametrize("call", [
+    lambda m: solver.reachable_range(m, "mounts", 0),
+    lambda m: solver.reachable_range(m, "mounts", -1),
+    lambda m: solver.reachable_range(m, "mounts", 3),
+    lambda m: solver.retune(m, "mounts", -1, 5.0),
+    lambda m: solver.retune(m, "mounts", 3, 5.0),
+    lambda m: solver.rank_elements(m, 0),
+    lambda m: solver.rank_elements(m, 3),
+    lambda m: solver.modes(m).shape(0),
+    lambda m: solver.modes(m).shape(1.5),
+    lambda m: solver.energy_fractions(solver.modes(m)).strain_energy_fraction(0),
+    lambda m: solver.energy_fractions(solver.modes(m)).dominant_spring(-1),
+    lambda m: solver.sensitivities(solver.modes(m)).group_sum(3),
+])
+def test_mode_numbers_checked_by_range(call):
+    """Mode numbers run from 1 to the number of modes (the instrument shelf has 2); found by
+    review: mode 0 gave an IndexError in the limits, -1 a scipy ValueError, and Python's
+    negative indexing would silently pick the last mode. Each is a ModelError naming the
+    function, not a number of the wrong mode."""
+    model = solver.load_model(GOOD)
+    with pytest.raises(ModelError, match="mode") as info:
+        call(model)
+    assert type(info.value) is ModelError and _one_line(str(info.value))
+
+
+def test_reachable_range_speaks_in_its_own_name():
+    """A message starts with the function the user called (found by review: reachable_range's
+    said "retune:")."""
+    model = solver.load_model(GOOD)
+    for mode in (0, 3):
+        with pytest.raises(ModelError, match=r"^reachable_range: "):
+            solver.reachable_range(model, "mounts", mode)
