@@ -22,6 +22,11 @@ from app.text.numbers import FREQ_SIG, hz, number, tick_texts
 
 #: Crossings labelled on the chart (the list under it has them all).
 MAX_LABELS = 24
+#: Natural frequencies and order lines drawn at most, and crossings written out under the chart
+#: (a model with hundreds of modes and sources would bury the page; the rest are counted).
+MAX_MODES_DRAWN = 40
+MAX_LINES_DRAWN = 30
+MAX_CROSSING_LINES = 12
 
 
 def nice_ticks(top: float, target: int = 6) -> tuple[list[float], float]:
@@ -70,6 +75,19 @@ def paint_interference(pg, model, analysis) -> bool:
     data = interference(model, analysis.modal)
     if not data.lines:
         return False
+    from dataclasses import replace
+
+    full = data   # every crossing inside the operating range is written out below
+    modes_cut = max(0, len(data.modes) - MAX_MODES_DRAWN)
+    lines_cut = max(0, len(data.lines) - MAX_LINES_DRAWN)
+    if modes_cut or lines_cut:
+        modes = data.modes[:MAX_MODES_DRAWN]
+        lines = data.lines[:MAX_LINES_DRAWN]
+        kept = {n for n, _ in modes}
+        keys = {(ln.source_id, ln.order) for ln in lines}
+        crossings = tuple(c for c in data.crossings
+                          if c.mode in kept and (c.source_id, c.order) in keys)
+        data = replace(data, modes=modes, lines=lines, crossings=crossings)
     st = pg.st
     d = pg.dpi
     p = pg.p
@@ -183,13 +201,21 @@ def paint_interference(pg, model, analysis) -> bool:
         f" {data.margin_percent:g} % margin. Filled dots: crossings inside the operating range"
         f" (the machine runs at a resonance there); hollow dots: crossings outside it.",
         7.5, st.ink_soft)
-    inside = data.in_range
+    if modes_cut or lines_cut:
+        pg.paragraph(f"Drawn: the lowest {len(data.modes)} natural frequencies and the first"
+                     f" {len(data.lines)} order lines ({modes_cut} frequencies and {lines_cut}"
+                     " lines more are not drawn; springwright solve --json lists every"
+                     " crossing).", 7.5, st.ink_soft)
+    inside = full.in_range
     if inside:
-        for c in inside:
+        for c in inside[:MAX_CROSSING_LINES]:
             pg.paragraph(f"✗ Mode {c.mode} ({hz(c.frequency_hz)}) meets"
                          f" {shown.get(c.source_id, c.source_id)} order {c.order:g} at"
                          f" {number(c.rpm, FREQ_SIG)} rpm, inside the operating range.", 8.5,
                          st.error, indent=0.1 * d)
+        if len(inside) > MAX_CROSSING_LINES:
+            pg.paragraph(f"✗ {len(inside) - MAX_CROSSING_LINES} more crossings inside the"
+                         " operating range.", 8.5, st.error, indent=0.1 * d)
     else:
         pg.paragraph("✓ No order line crosses a natural frequency inside the operating range.",
                      8.5, st.accent, indent=0.1 * d)

@@ -32,6 +32,11 @@ def _nice_decades(lo: float, hi: float) -> list[float]:
     return out
 
 
+#: Source intervals drawn as rows, and conflicts written out, at most (the rest are counted).
+MAX_BAND_ROWS = 20
+MAX_CONFLICT_LINES = 12
+
+
 def paint_margin_check(pg, model, analysis) -> None:
     """Draw the section on ``pg`` (the report's page helper) below its current ``y``."""
     st = pg.st
@@ -48,6 +53,8 @@ def paint_margin_check(pg, model, analysis) -> None:
         return
     lo, hi = min(ends) / 1.5, max(ends) * 1.5
     lab_w = 1.35 * d
+    bands_left_out = max(0, len(bands) - MAX_BAND_ROWS)
+    bands = bands[:MAX_BAND_ROWS]
     rows = len(bands)
     row_h = 0.17 * d
     plot = QRectF(pg.left + lab_w, pg.y + 0.05 * d, pg.right - pg.left - lab_w,
@@ -110,11 +117,19 @@ def paint_margin_check(pg, model, analysis) -> None:
     pg.paragraph(f"Vertical lines: natural frequencies (mode numbers above). Shaded: excitation"
                  f" sources (dark: the source itself; light: widened by the {result.margin_percent:g}"
                  " % margin). A mode in the light or dark shade is too close.", 7.5, st.ink_soft)
+    if bands_left_out:
+        pg.paragraph(f"The first {MAX_BAND_ROWS} source intervals are drawn; {bands_left_out}"
+                     " more are checked but not drawn (springwright solve lists every"
+                     " conflict).", 7.5, st.ink_soft)
     if result.conflicts:
-        for v in verdicts(model, result):
+        said = verdicts(model, result)
+        for v in said[:MAX_CONFLICT_LINES]:
             text = v.sentence[0].upper() + v.sentence[1:]
             pg.paragraph(f"✗ {text} (the smaller move: {v.smaller_move})", 8.5, st.error,
                          indent=0.1 * d)
+        if len(said) > MAX_CONFLICT_LINES:
+            pg.paragraph(f"✗ {len(said) - MAX_CONFLICT_LINES} more conflicts (springwright"
+                         " solve lists every one).", 8.5, st.error, indent=0.1 * d)
     else:
         text = all_clear(model, result)
         pg.paragraph(f"✓ {text[0].upper()}{text[1:]}.", 8.5, st.accent, indent=0.1 * d)

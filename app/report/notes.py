@@ -12,6 +12,11 @@ from app.results.source_text import source_summary
 from app.text.numbers import band_text, hz
 
 
+#: Notes written at most, and sources named in the note on them (the rest are counted).
+MAX_NOTES = 30
+MAX_SOURCES_NAMED = 10
+
+
 def _notes(pg: _Page, model, analysis, n_shown: int):
     st = pg.st
     modal = analysis.modal
@@ -29,13 +34,15 @@ def _notes(pg: _Page, model, analysis, n_shown: int):
                           + "; ".join(r["near_excitation"]) + "."))
     if model.excitations:
         ex = []
-        for e in model.excitations:
+        for e in model.excitations[:MAX_SOURCES_NAMED]:
             if e.type == "speed":
                 ex.append(f"{e.label}: {source_summary(e)}")
             else:
                 ex.append(f"{e.label}: band {band_text(e.f_min_hz, e.f_max_hz)}")
+        more = len(model.excitations) - len(ex)
         items.append((st.ink, "Excitation sources checked (margin "
-                      f"{model.margin_percent:g} %): " + "; ".join(ex) + "."))
+                      f"{model.margin_percent:g} %): " + "; ".join(ex)
+                      + (f"; and {more} more" if more > 0 else "") + "."))
     warnings = list(getattr(analysis, "warnings", ()) or ())
     for w in warnings:
         items.append((st.warning, "Solver: " + str(w)))
@@ -44,6 +51,10 @@ def _notes(pg: _Page, model, analysis, n_shown: int):
                       " model; damping affects the responses, not this table."))
     if not items:
         items.append((st.ink_soft, "No zero-frequency or repeated modes, and no solver warnings."))
+    if len(items) > MAX_NOTES:
+        more = len(items) - MAX_NOTES + 1
+        items = items[:MAX_NOTES - 1] + [(st.ink_soft, f"{more} more notes are not shown"
+                                          " (springwright solve prints every one).")]
     indent = 0.18 * pg.dpi
     for color, s in items:
         pg.p.setPen(QPen(color))

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import numpy as np
 from PySide6.QtCore import QPointF, QRectF, Qt
-from PySide6.QtGui import QColor, QPainterPath, QPen
+from PySide6.QtGui import QColor, QPen, QPolygonF
 
 from app.results.response_data import decade_ticks
 from app.text.numbers import FREQ_SIG, hz, number
@@ -50,7 +50,7 @@ def draw_response_section(pg, response) -> None:
     # grid and tick labels
     grid = QPen(st.grid, max(1.0, 0.003 * d))
     label_pt = 7.0
-    for v, text in decade_ticks(f[0], f[-1]):
+    for v, text in _report_ticks(f[0], f[-1]):
         q = to_px(v, 10 ** y0)
         p.setPen(grid)
         p.drawLine(QPointF(q.x(), box.top()), QPointF(q.x(), box.bottom()))
@@ -69,24 +69,20 @@ def draw_response_section(pg, response) -> None:
         p.drawLine(to_px(f[0], 1.0), to_px(f[-1], 1.0))
     p.setPen(QPen(st.ink_soft, max(1.0, 0.005 * d)))
     p.drawRect(box)
-    # curves, clipped to the box
+    # curves: cut to the box and thinned to what its pixels can show before Qt strokes them
+    # (a curve 1e12 times below the box, stroked and then clipped, took Qt 28 s to draw)
     p.save()
     p.setClipRect(box)
+    lx0, lx1 = np.log10(f[0]), np.log10(f[-1])
     for i, (c, m) in enumerate(zip(response.curves, mags)):
-        path = QPainterPath()
-        pen_down = False
-        for fx, a in zip(f, m):
-            if not np.isfinite(a):
-                pen_down = False
-                continue
-            q = to_px(fx, a)
-            if pen_down:
-                path.lineTo(q)
-            else:
-                path.moveTo(q)
-                pen_down = True
+        with np.errstate(divide="ignore", invalid="ignore"):
+            px = box.left() + (np.log10(f) - lx0) / (lx1 - lx0) * box.width()
+            py = box.bottom() - (np.log10(m) - y0) / (y1 - y0) * box.height()
         p.setPen(QPen(st.trace(i), max(1.5, 0.009 * d)))
-        p.drawPath(path)
+        pad = 0.02 * d   # the pen's width: a line just outside still shows its edge
+        for line in plot_lines(px, py, box.left() - pad, box.right() + pad, box.top() - pad,
+                               box.bottom() + pad):
+            p.drawPolyline(QPolygonF([QPointF(x, y) for x, y in line]))
     p.restore()
     # axis titles and legend
     pg.text(QRectF(box.left(), box.bottom() + 0.2 * d, box.width(), 0.2 * d), "frequency (Hz)",
@@ -112,6 +108,90 @@ def draw_response_section(pg, response) -> None:
     _peaks_table(pg, response)
 
 
+def plot_lines(x, y, x_min: float, x_max: float, y_min: float, y_max: float) -> list:
+    """The polyline through points (x, y) (pixels; NaN breaks it) cut to the rectangle and
+    thinned for drawing: a list of (n, 2) arrays.
+
+    Each segment is clipped to the rectangle (Liang-Barsky; a segment leaving it ends on its
+    edge, one crossing it keeps the part inside), so no point far outside is ever stroked; then
+    within each pixel column only the first, last, lowest and highest point of a run are kept
+    (M4 aggregation), which draws the same pixels as the full curve. Parts entirely outside are
+    dropped; ``x`` must be ascending (a frequency axis).
+    """
+    x = np.asarray(x, float)
+    y = np.asarray(y, float)
+    if len(x) < 2:
+        return []
+    x0, y0, x1, y1 = x[:-1], y[:-1], x[1:], y[1:]
+    ok = np.isfinite(x0) & np.isfinite(y0) & np.isfinite(x1) & np.isfinite(y1)
+    dx, dy = x1 - x0, y1 - y0
+    t0 = np.zeros(len(x0))
+    t1 = np.ones(len(x0))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        for p, q in ((-dx, x0 - x_min), (dx, x_max - x0), (-dy, y0 - y_min), (dy, y_max - y0)):
+            ok &= ~((p == 0) & (q < 0))          # parallel to this edge and outside it
+            r = q / p
+            t0 = np.where(p < 0, np.maximum(t0, r), t0)
+            t1 = np.where(p > 0, np.minimum(t1, r), t1)
+    ok &= t0 <= t1
+    idx = np.flatnonzero(ok)
+    if not len(idx):
+        return []
+    sx, sy = x0[idx] + t0[idx] * dx[idx], y0[idx] + t0[idx] * dy[idx]
+    ex, ey = x0[idx] + t1[idx] * dx[idx], y0[idx] + t1[idx] * dy[idx]
+    # a segment continues the previous line when that one ended, unclipped, at its start
+    joined = np.zeros(len(idx), bool)
+    joined[1:] = (idx[1:] == idx[:-1] + 1) & (t1[idx[:-1]] >= 1) & (t0[idx[1:]] <= 0)
+    lines = []
+    starts = np.flatnonzero(~joined)
+    for a, b in zip(starts, list(starts[1:]) + [len(idx)]):
+        xs = np.concatenate([[sx[a]], ex[a:b]])
+        ys = np.concatenate([[sy[a]], ey[a:b]])
+        lines.append(_thinned(xs, ys))
+    return lines
+
+
+def _thinned(xs: np.ndarray, ys: np.ndarray) -> np.ndarray:
+    """(n, 2) points of an x-ascending polyline keeping per pixel column the first, last,
+    lowest and highest point, in their order along the line."""
+    if len(xs) <= 8:
+        return np.column_stack([xs, ys])
+    col = np.floor(xs).astype(np.int64)
+    order = np.lexsort((ys, col))               # by column, then by y within the column
+    first_in_col = np.r_[True, col[order][1:] != col[order][:-1]]
+    last_in_col = np.r_[col[order][1:] != col[order][:-1], True]
+    starts = np.r_[True, col[1:] != col[:-1]]   # along the line: first and last of each run
+    ends = np.r_[col[1:] != col[:-1], True]
+    keep = np.zeros(len(xs), bool)
+    keep[order[first_in_col]] = True
+    keep[order[last_in_col]] = True
+    keep |= starts | ends
+    return np.column_stack([xs[keep], ys[keep]])
+
+
+def _report_ticks(lo: float, hi: float) -> list[tuple[float, str]]:
+    """Frequency-axis ticks that fit the page: 1-2-5 labels over a few decades, decades only
+    over more, and over many only every second or third decade labelled (a model with modes
+    from 1e-5 Hz to 1e12 Hz spans 18 decades, whose 54 labels would overwrite each other)."""
+    decades = np.log10(hi / lo)
+    if decades <= 4:
+        return decade_ticks(lo, hi)
+    ticks = decade_ticks(lo, hi, labelled=(1,))
+    if decades <= 10:
+        return ticks
+    every = int(np.ceil(decades / 10))
+    out = []
+    for v, text in ticks:
+        if text:   # the decades, every ``every``-th of them labelled
+            e = int(round(np.log10(v)))
+            out.append((v, text if e % every == 0 else ""))
+    return out
+
+
+#: Peaks listed at most (the strongest; the Response panel lists every one).
+MAX_PEAK_ROWS = 16
+
+
 def _input_sentence(response) -> str:
     parts = []
     if response.bands:
@@ -132,6 +212,12 @@ def _peaks_table(pg, response) -> None:
     if not rows:
         pg.paragraph("No resonance peak inside the plotted range.", 8.5, st.ink_soft)
         return
+    left_out = max(0, len(rows) - MAX_PEAK_ROWS)
+    if left_out:   # the strongest peaks, in their order (curve, then frequency)
+        size = [float(pk.amplitude) for _, pk in rows]
+        strongest = sorted(range(len(rows)), key=lambda i: -size[i] if size[i] == size[i]
+                           else np.inf)
+        rows = [rows[i] for i in sorted(strongest[:MAX_PEAK_ROWS])]
     unit = response.display_unit("SI")[0] or "ratio"
     cols = ("output", "peak (Hz)", f"amplitude ({unit})", "half-power width (Hz)",
             "damping ratio ≈")
@@ -156,6 +242,9 @@ def _peaks_table(pg, response) -> None:
             x += w
         pg.y += h * 0.9
     pg.y += 0.04 * d
+    if left_out:
+        pg.paragraph(f"The {MAX_PEAK_ROWS} highest peaks are listed; {left_out} lower ones are"
+                     " not (the Response panel lists every peak).", 7.0, st.ink_soft)
     pg.paragraph("Damping ratio from the half-power bandwidth / (2 f): valid for light damping"
                  " and well separated peaks; — where the curve does not fall to peak/√2 on both"
                  " sides.", 7.0, st.ink_soft)

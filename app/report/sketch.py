@@ -5,6 +5,7 @@ from __future__ import annotations
 from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QPen
 
+from app.report.outline import OUTLINE_MASSES, Outline
 from app.report.page import _Page
 from app.drawing.sketch import SketchLayout
 from app.drawing.sketch import paint_sketch
@@ -12,6 +13,15 @@ from app.drawing.sketch import paint_sketch
 
 def _model_sketch(pg: _Page, model):
     d = pg.dpi
+    if len(model.masses) > OUTLINE_MASSES:
+        h = round(2.6 * d) if model.kind == "planar" else round(1.3 * d)
+        Outline(model, QRectF(pg.left, pg.y, pg.right - pg.left, h)).paint(pg.p, pg.st)
+        pg.y += h
+        pg.paragraph(f"{len(model.masses):,} masses: drawn as an outline (masses as dots, anchors"
+                     " as squares, springs and dashpots as lines); above"
+                     f" {OUTLINE_MASSES} masses the symbols, labels and values would be smaller"
+                     " than the page can show. The model file lists them.", 7.5, pg.st.ink_soft)
+        return
     crowded = len(model.masses) > 10
     ys = [n.y for n in list(model.masses) + list(model.anchors)]
     flat = not ys or max(ys) - min(ys) < 1e-9   # everything on one row: a shallow band will do
