@@ -100,7 +100,8 @@ class MainWindow(QMainWindow):
         super().__init__()
         self.settings = settings if settings is not None else QSettings()
         self.document = Document(parent=self)
-        self.solver = SolveService(self.document, parent=self)
+        # attached to the document at the end, once every view follows it (see attach)
+        self.solver = SolveService(parent=self)
         self.analysis = None
         self._selected_mode = 1
 
@@ -140,7 +141,7 @@ class MainWindow(QMainWindow):
         self._dock("Motion", self.motion_panel, Qt.RightDockWidgetArea, "dock_motion")
         from app.docks.response_panel import ResponsePanel
 
-        self.response_panel = ResponsePanel(self.document)
+        self.response_panel = ResponsePanel(self.document, solve_service=self.solver)
         self.response_panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
         self.response_dock = self._dock("Response", self.response_panel, Qt.BottomDockWidgetArea,
                                         "dock_response")
@@ -163,8 +164,6 @@ class MainWindow(QMainWindow):
         self.document.model_changed.connect(lambda _m: self._update_title())
         self.document.opened.connect(lambda _m: self.view.fit())
         self.solver.results_ready.connect(self._on_results)
-        self.solver.results_ready.connect(self.response_panel.set_analysis)
-        self.solver.live_changed.connect(self.response_panel.set_live)
         self.solver.solve_failed.connect(self._on_solve_failed)
         self._stale_timer = QTimer(self)
         self._stale_timer.setSingleShot(True)
@@ -192,6 +191,9 @@ class MainWindow(QMainWindow):
             QTimer.singleShot(0, self._first_layout)   # once the window has its real size
         self._update_title()
         self._on_mode_change(self.scene.mode)
+        # last: a small model's edit is then solved after every view has taken the new model,
+        # and the edit and its results are painted together
+        self.solver.attach(self.document, immediate=True)
 
     # -- layout helpers -----------------------------------------------------------------------
     def _first_layout(self):
@@ -642,6 +644,7 @@ class MainWindow(QMainWindow):
 
     def export_report(self, path) -> bool:
         self.solver.wait()
+        self.response_panel.wait()
         try:
             from app.report import render_report
 
@@ -716,5 +719,7 @@ class MainWindow(QMainWindow):
         self.settings.setValue("window/geometry", self.saveGeometry())
         self.settings.setValue("window/state", self.saveState())
         self.solver.shutdown()
+        self.response_panel.shutdown()
+        self.tune_panel.shutdown()
         self.recovery.mark_clean_exit()
         event.accept()

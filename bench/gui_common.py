@@ -134,27 +134,56 @@ def paint_watch() -> PaintWatch:
     return _WATCH
 
 
-def settle(win=None, quiet_s: float = 0.03, timeout_s: float = 60.0) -> float:
-    """Process events until the window is idle; returns the time (perf_counter) at the end of
-    the last event pass that painted something (or did work the window waits on).
+def busy(win) -> bool:
+    """True while the window still has work queued that will change what it shows."""
+    if win is None:
+        return False
+    rp, tp = win.response_panel, win.tune_panel
+    return bool(win.solver.pending or rp._timer.isActive() or getattr(rp, "_computing", False)
+                or getattr(tp, "sweep_pending", False))
 
-    Idle: no solve pending, the response panel's debounce timer stopped, and no paint event for
-    ``quiet_s`` seconds (Qt delivers an update() as a paint a few ms later, on its update timer).
+
+class ResultsClock(QObject):
+    """Time (perf_counter) of the last ``results_ready`` of a window's solve service."""
+
+    def __init__(self, win):
+        super().__init__()
+        self.at = None
+        win.solver.results_ready.connect(self._on_results)
+
+    def _on_results(self, _analysis):
+        self.at = time.perf_counter()
+
+
+def settle(win=None, quiet_s: float = 0.03, timeout_s: float = 120.0, clock=None):
+    """Process events until the window is idle.
+
+    Returns the time (perf_counter) at the end of the last event pass that painted something or
+    left work queued (``complete``); with a ``clock`` (:class:`ResultsClock`), returns
+    ``(shown, complete)`` where ``shown`` is the end of the first pass that painted after the
+    solve service delivered its results (every view current, or dimmed and marked updating).
+    Idle: nothing queued (see :func:`busy`) and no paint event for ``quiet_s`` seconds (Qt
+    delivers an update() as a paint on a later pass).
     """
     qapp = app()
     watch = paint_watch()
     last_work = time.perf_counter()
+    shown = None
     deadline = last_work + timeout_s
     while True:
         before = watch.paints
         qapp.processEvents()
         now = time.perf_counter()
-        busy = win is not None and (win.solver.pending or win.response_panel._timer.isActive())
+        working = busy(win)
         painted = watch.paints != before
-        if painted or busy:
+        if painted and shown is None and clock is not None and clock.at is not None:
+            shown = now
+        if painted or working:
             last_work = now
         elif now - last_work > quiet_s:
-            return last_work
+            if clock is None:
+                return last_work
+            return (shown if shown is not None else last_work), last_work
         if not painted:
             time.sleep(0.0005)   # leave the core to a worker thread
         if now > deadline:

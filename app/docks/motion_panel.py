@@ -35,7 +35,10 @@ import pyqtgraph as pg
 from app.drawing.sketch import SketchLayout, fit_scale, paint_sketch
 from app.drawing.style import current_style
 
+#: One press of Step advances the animation by 1/FPS s (of animation time).
 FPS = 30
+#: Playing redraws at the display's refresh rate, this when the screen does not say.
+DISPLAY_HZ = 60.0
 #: Time scales offered (model seconds per wall-clock second).
 TIME_SCALES = (1.0, 0.5, 0.2, 0.1, 0.05, 0.02, 0.01, 0.005, 0.002, 0.001)
 #: Samples per period of the fastest mode in the free-response table.
@@ -112,14 +115,17 @@ class MotionView(QWidget):
 
     def set_model(self, model):
         self.model = model
-        self._layout = None
+        # an edit that leaves the drawing's geometry alone (a stiffness, a damping) keeps the
+        # layout: fitting one is quadratic in the masses
+        if self._layout is None or model is None or not self._layout.rebind(model):
+            self._layout = None
         self.update()
 
     def layout_(self) -> SketchLayout | None:
         """The current sketch layout (refitted when the widget or the model changes)."""
         if self.model is None:
             return None
-        key = (id(self.model), self.width(), self.height())
+        key = (self.width(), self.height())
         if self._layout is None or self._layout_key != key:
             r = self._sketch_rect()
             # screen symbols stay modest on a big panel
@@ -274,9 +280,11 @@ class MotionPanel(QWidget):
         self._traces_due = False
         self._free_scale = 1.0
         self._positions: dict = {}
+        self._trace_key = None
         self._clock = QElapsedTimer()
         self._timer = QTimer(self)
-        self._timer.setInterval(int(1000 / FPS))
+        self._timer.setTimerType(Qt.TimerType.PreciseTimer)
+        self._timer.setInterval(int(1000 / DISPLAY_HZ))
         self._timer.timeout.connect(self._on_tick)
         self._build_ui()
         self._refresh()
@@ -525,6 +533,11 @@ class MotionPanel(QWidget):
     def _on_play_toggled(self, on: bool):
         self.play_button.setText("Pause" if on else "Play")
         if on:
+            # a frame per refresh of the screen the panel is on (the motion is timed by the
+            # wall clock, so the rate only sets how smooth it looks)
+            screen = self.screen()
+            rate = screen.refreshRate() if screen is not None else 0.0
+            self._timer.setInterval(max(1, int(1000.0 / (rate if rate >= 20 else DISPLAY_HZ))))
             self._clock.start()
             self._timer.start()
         else:
@@ -616,6 +629,12 @@ class MotionPanel(QWidget):
         self._refresh()
 
     def _fill_trace_list(self):
+        key = None
+        if self._model is not None and self._modal is not None:
+            key = tuple((dof, self._model.node(dof[0]).label) for dof in self._modal.dofs)
+        if key == self._trace_key:
+            return        # same masses and directions: the list (and what is ticked) stays
+        self._trace_key = key
         checked = {self.trace_list.item(i).data(Qt.ItemDataRole.UserRole)
                    for i in range(self.trace_list.count())
                    if self.trace_list.item(i).checkState() == Qt.CheckState.Checked}

@@ -5,6 +5,8 @@ the normalised sensitivity ``(p/f)(df/dp)`` from ``Analysis.sensitivity`` (Fox a
 eigenvalue derivatives, see :mod:`solver.metrics`): the % change of the mode's frequency per % change
 of the element's value. Stiffness entries are >= 0 and sum to 0.5 over the springs of a mode; mass
 entries are <= 0 and sum to -0.5. Zero-frequency modes have none ("—"). Click a header to sort.
+The table (modes x elements cells, sorted) is filled only while it is shown: results that arrive
+while its tab is hidden are taken when it is shown or read.
 """
 
 from __future__ import annotations
@@ -123,24 +125,40 @@ class SensitivityTable(QWidget):
         lay.setContentsMargins(2, 2, 2, 2)
         lay.addWidget(note)
         lay.addWidget(self.view, 1)
+        self._due, self._has_due = None, False     # results not yet put in the table
         if solve_service is not None:
             solve_service.results_ready.connect(self.set_analysis)
             if solve_service.last_analysis is not None:
                 self.set_analysis(solve_service.last_analysis)
 
     def set_analysis(self, analysis):
+        self._due = analysis
+        self._has_due = True
+        if self.isVisible():
+            self._catch_up()
+
+    def _catch_up(self):
+        if not self._has_due:
+            return
+        analysis, self._due, self._has_due = self._due, None, False
         self.model.set_analysis(analysis)
         if self.view.columnWidth(0) < 140:
             self.view.setColumnWidth(0, 180)
 
+    def showEvent(self, event):  # noqa: N802
+        self._catch_up()
+        super().showEvent(event)
+
     def cell_value(self, element_id: str, field: str, mode: int) -> float:
         """The value shown for an element (id, field) in mode ``mode`` (from 1)."""
+        self._catch_up()
         for i, (eid, f, _label, vals) in enumerate(self.model._rows):
             if eid == element_id and f == field:
                 return float(vals[mode - 1])
         raise KeyError((element_id, field))
 
     def cell_text(self, element_id: str, field: str, mode: int) -> str:
+        self._catch_up()
         for i, (eid, f, _label, _vals) in enumerate(self.model._rows):
             if eid == element_id and f == field:
                 return self.model.data(self.model.index(i, mode))

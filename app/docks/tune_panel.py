@@ -11,7 +11,10 @@ Beside the controls, the sweep plot: every mode's frequency (Hz) against the val
 range (:func:`solver.sweep`, log-spaced, recomputed only when the element, the range or the rest of
 the model changes), the excitation sources as horizontal bands widened by the margin
 (:func:`solver.source_bands`), a cursor at the current value and the points where a mode curve
-enters or leaves a widened band.
+enters or leaves a widened band. The sweep is :data:`SWEEP_POINTS` solves: when an edit of
+another element makes it stale, it is recomputed in a worker thread while the old curves stay
+dimmed and titled as updating, so the edit's own results are shown at once; sweeps of the last
+few models are kept (an undo redraws at once).
 
 Below, the retune row: mode, target Hz, *Propose* (ranks the elements by normalised sensitivity,
 :func:`solver.rank_elements`, and picks the strongest), *Retune* (solves for the value,
@@ -22,10 +25,11 @@ reach is explained in the panel, not in a dialog.
 from __future__ import annotations
 
 import math
+from collections import OrderedDict
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QSignalBlocker, Qt, Signal
+from PySide6.QtCore import QObject, QRunnable, QSignalBlocker, Qt, QThreadPool, Signal
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QGridLayout, QHBoxLayout,
                                QLabel, QListWidget, QPushButton, QScrollArea, QSizePolicy,
                                QSlider, QSpinBox, QSplitter, QVBoxLayout, QWidget)
@@ -49,6 +53,46 @@ SWEEP_POINTS = 40
 #: Up to this many DOFs the panel solves each slider step itself (a dense eigensolve of a few
 #: hundred DOFs takes milliseconds); above, the solve service's debounce and worker take over.
 SYNC_DOF_LIMIT = 300
+#: Sweeps kept for recent (model, element, range).
+SWEEP_CACHE_SIZE = 6
+
+
+class _Relay(QObject):
+    """Carries a worker's sweep back to the UI thread (queued signal)."""
+
+    done = Signal(int, object, str)
+
+
+class _SweepJob(QRunnable):
+    """``solver.sweep`` one value at a time, so a sweep overtaken by a newer edit stops after
+    the solve it is in."""
+
+    def __init__(self, generation, key, relay, latest):
+        super().__init__()
+        self.generation, self.key, self.relay, self.latest = generation, key, relay, latest
+        self.setAutoDelete(True)
+
+    def run(self):
+        base, eid, f, values = self.key
+        rows = []
+        try:
+            for v in values:
+                if self.latest() != self.generation:
+                    return
+                rows.append(solver.sweep(base, eid, [v], field=f).frequencies_hz[0])
+        except ModelError as exc:
+            self.relay.done.emit(self.generation, None, str(exc))
+            return
+        except Exception as exc:   # a bug: say so in the panel, never kill the worker silently
+            self.relay.done.emit(self.generation, None, f"internal error: {exc!r}")
+            return
+        width = max((len(r) for r in rows), default=0)
+        out = np.full((len(rows), width), np.nan)
+        for i, r in enumerate(rows):
+            out[i, : len(r)] = r
+        result = solver.SweepResult(element_id=eid, field=f, values=np.asarray(values, float),
+                                    frequencies_hz=out)
+        self.relay.done.emit(self.generation, (self.key, result), "")
 
 
 def tunable_elements(model) -> list[tuple[str, str, str]]:
@@ -171,6 +215,15 @@ class TunePanel(QWidget):
         self._center = 1.0
         self._sweep = None
         self._sweep_base = None
+        self._sweep_generation = 0
+        self._sweep_pending = False
+        self._sweep_cache: OrderedDict = OrderedDict()
+        self._sweep_curve = None
+        self._sources_key = None
+        self._pool = QThreadPool(self)      # before the relay: destroyed first, see solve_service
+        self._pool.setMaxThreadCount(1)
+        self._relay = _Relay(self)
+        self._relay.done.connect(self._on_sweep_done)
         self._drag_serial = 0
         self._proposed: float | None = None
         self._plot_factor = 1.0
@@ -411,10 +464,11 @@ class TunePanel(QWidget):
         v = value_of(model, *self._key)
         lo, hi = self.span
         if not (lo * (1 - 1e-12) <= v <= hi * (1 + 1e-12)) or v <= 0:
-            self._recentre(model, v)
+            self._recentre(model, v, background=True)
         elif self._sweep_base is None or \
                 with_value(model, self._key[0], self._center, self._key[1]) != self._sweep_base:
-            self._recentre(model, self._center)   # another element changed: the sweep is stale
+            # another element changed: the sweep is stale
+            self._recentre(model, self._center, background=True)
         self._place_slider(v)
         self._update_value_label(model)
         self._update_cursor(model)
@@ -444,8 +498,9 @@ class TunePanel(QWidget):
         self._update_value_label(model)
         self._update_cursor(model)
 
-    def _recentre(self, model, value: float):
-        """A new slider range around ``value`` and a new sweep."""
+    def _recentre(self, model, value: float, background: bool = False):
+        """A new slider range around ``value`` and a new sweep (with ``background``, computed
+        in the worker unless kept from before; the old curves are dimmed meanwhile)."""
         eid, f = self._key
         if value <= 0:
             value = 1.0
@@ -453,14 +508,91 @@ class TunePanel(QWidget):
         self._sweep_base = with_value(model, eid, self._center, f)
         lo, hi = self.span
         values = np.logspace(math.log10(lo), math.log10(hi), SWEEP_POINTS)
-        try:
-            self._sweep = solver.sweep(self._sweep_base, eid, values, field=f)
-        except ModelError as exc:
-            self._sweep = None
-            self.message.setText(f"No sweep: {exc}")
         self.low_label.setText(self._show(model, eid, f, lo, 3))
         self.high_label.setText(self._show(model, eid, f, hi, 3))
+        self._sweep_generation += 1       # a sweep still running is for an older model
+        self._sweep_pending = False
+        key = (self._sweep_base, eid, f, tuple(float(v) for v in values))
+        found = self._cached_sweep(key)
+        if found is None and background:
+            self._sweep_pending = True
+            self._dim_sweep(model)
+            self._pool.start(_SweepJob(self._sweep_generation, key, self._relay,
+                                       lambda: self._sweep_generation))
+            return
+        if found is None:
+            try:
+                found = solver.sweep(self._sweep_base, eid, values, field=f)
+                self._remember_sweep(key, found)
+            except ModelError as exc:
+                found = None
+                self.message.setText(f"No sweep: {exc}")
+        self._sweep = found
         self._draw_sweep(model)
+
+    @property
+    def sweep_pending(self) -> bool:
+        """True while the sweep plot shows curves of an older model (a new one is computed)."""
+        return self._sweep_pending
+
+    def wait_sweep(self, msecs: int = 60000) -> bool:
+        """Block until no sweep is being computed (tests, benchmarks). True when idle."""
+        from PySide6.QtCore import QCoreApplication, QElapsedTimer
+
+        clock = QElapsedTimer()
+        clock.start()
+        while self._sweep_pending and clock.elapsed() < msecs:
+            self._pool.waitForDone(20)
+            QCoreApplication.processEvents()
+        return not self._sweep_pending
+
+    def shutdown(self) -> None:
+        """Stop the sweep worker (the window is closing)."""
+        self._sweep_generation += 1
+        self._pool.clear()
+        self._pool.waitForDone(5000)
+
+    def _on_sweep_done(self, generation: int, done, error: str):
+        if done is not None:
+            self._remember_sweep(*done)
+        if generation != self._sweep_generation:
+            return
+        self._sweep_pending = False
+        model = self.document.model
+        if done is None:
+            self._sweep = None
+            self.message.setText(f"No sweep: {error}")
+        else:
+            self._sweep = done[1]
+        self._draw_sweep(model)
+
+    def _cached_sweep(self, key):
+        try:
+            found = self._sweep_cache.get(key)
+        except TypeError:
+            return None
+        if found is not None:
+            self._sweep_cache.move_to_end(key)
+        return found
+
+    def _remember_sweep(self, key, sweep) -> None:
+        try:
+            self._sweep_cache[key] = sweep
+        except TypeError:
+            return
+        while len(self._sweep_cache) > SWEEP_CACHE_SIZE:
+            self._sweep_cache.popitem(last=False)
+
+    def _dim_sweep(self, model):
+        """The shown sweep is for an older model: dimmed, and the title says it is updating."""
+        if self._sweep_curve is not None:
+            self._sweep_curve.setOpacity(0.3)
+        if self._key is not None and self._sweep is not None:
+            eid, f = self._key
+            label = model.element(eid).label if eid in model.ids() else eid
+            self.plot.getPlotItem().setTitle(
+                f"every mode against {label} · {f}: updating for the edited model…",
+                color=current_style().ink_soft_hex, size="9pt")
 
     def _place_slider(self, value: float):
         if value <= 0:
@@ -478,8 +610,12 @@ class TunePanel(QWidget):
         self.value_label.setText(f"{name} = {self._show(model, eid, f, v)}")
 
     def _refresh_sources(self, model):
-        self.sources_list.clear()
         texts = source_texts(model)
+        key = (tuple(texts), model.margin_percent)
+        if key == self._sources_key:
+            return
+        self._sources_key = key
+        self.sources_list.clear()
         for t in texts:
             self.sources_list.addItem(t)
         if texts:
@@ -572,7 +708,9 @@ class TunePanel(QWidget):
         if self.solve_service is None or dof_count(model) > SYNC_DOF_LIMIT:
             return False
         try:
-            analysis = solver.analyse(model)
+            analysis = self.solve_service.cached(model) if hasattr(self.solve_service, "cached") \
+                else None
+            analysis = analysis or solver.analyse(model)
         except ModelError:
             return False   # the service's own solve will report why
         return self.solve_service.offer(model, analysis)
@@ -655,7 +793,7 @@ class TunePanel(QWidget):
         st = current_style()
         pi = self.plot.getPlotItem()
         pi.clear()
-        self._cursor = self._cursor_dots = self._proposal_line = None
+        self._cursor = self._cursor_dots = self._proposal_line = self._sweep_curve = None
         if self._sweep is None or self._key is None:
             pi.setTitle("")
             return
@@ -696,8 +834,13 @@ class TunePanel(QWidget):
                                color=warn, anchor=(0, 1))
             text.setPos(lx0, hi_w)
             pi.addItem(text)
-        for j in range(F.shape[1]):
-            pi.plot(values, F[:, j], pen=pg.mkPen(st.ink, width=1.4))
+        if F.shape[1]:
+            # every mode in one item (curves joined, separated by NaN): one path to build and
+            # paint instead of an item per mode (1000 modes)
+            xs = np.tile(np.append(values, np.nan), F.shape[1])
+            ys = np.vstack([F, np.full((1, F.shape[1]), np.nan)]).T.ravel()
+            self._sweep_curve = pi.plot(xs, ys, pen=pg.mkPen(st.ink, width=1.4),
+                                        connect="finite")
         pts = band_crossings(self._sweep.values, F, bands)
         if pts:
             xs, ys = zip(*pts)

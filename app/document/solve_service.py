@@ -1,7 +1,9 @@
 """Solve the document's model after each edit, debounced, off the UI thread when it is large.
 
 A single edit (a typed value, a drag's release, an undo) is solved on the next turn of the event
-loop, so its results are painted with no added wait. Edits that come in a burst (keys held down,
+loop, so its results are painted with no added wait; attached with ``immediate`` (the main
+window, after every view has connected to the document) a small model is solved within the edit
+itself, so the edit and its results reach the screen in one paint. Edits that come in a burst (keys held down,
 undo pressed repeatedly, a slider on a large model) are debounced: the solve starts
 :data:`DEBOUNCE_MS` after the last one. Small models (up to :data:`THREAD_DOF_LIMIT` DOFs) are
 solved on the UI thread: a dense eigensolve of that size takes a few milliseconds. Larger ones go
@@ -98,7 +100,7 @@ class SolveService(QObject):
     live_changed = Signal(bool)
 
     def __init__(self, document=None, delay_ms: int = DEBOUNCE_MS,
-                 thread_dof_limit: int = THREAD_DOF_LIMIT, parent=None):
+                 thread_dof_limit: int = THREAD_DOF_LIMIT, parent=None, immediate: bool = False):
         super().__init__(parent)
         # _timer starts a solve (0 ms: on the next event-loop turn, so the signals of one edit
         # are all handled first); _burst_timer holds it back while edits keep coming
@@ -113,20 +115,31 @@ class SolveService(QObject):
         self._last_request = -1e9
         self._cache: OrderedDict = OrderedDict()
         self.thread_dof_limit = thread_dof_limit
+        self.immediate = bool(immediate)
         self._model = None
         self._generation = 0
         self._pending = False
         self._running = 0
-        self._relay = _Relay(self)
-        self._relay.done.connect(self._on_done)
+        # the pool first: as a child it is then destroyed first, waiting for a running solve
+        # while the relay that solve reports through still exists
         self._pool = QThreadPool(self)
         self._pool.setMaxThreadCount(1)
+        self._relay = _Relay(self)
+        self._relay.done.connect(self._on_done)
         self.last_analysis = None
         self.last_error = ""
         self._live = False
         if document is not None:
-            document.model_changed.connect(self.request)
-            self.request(document.model)
+            self.attach(document)
+
+    def attach(self, document, immediate: bool | None = None) -> None:
+        """Follow ``document.model_changed`` and solve its current model. With ``immediate``,
+        connect it after every view has connected: a small model is then solved inside the
+        edit's signal, after the views have taken the new model."""
+        if immediate is not None:
+            self.immediate = bool(immediate)
+        document.model_changed.connect(self.request)
+        self.request(document.model)
 
     @property
     def pending(self) -> bool:
@@ -162,6 +175,9 @@ class SolveService(QObject):
             return          # a solve starts on this turn anyway, and takes the latest model
         if burst or self._burst_timer.isActive():
             self._burst_timer.start()
+        elif (self.immediate and not self._live and self._timer.interval() == 0
+              and dof_count(model) <= self.thread_dof_limit):
+            self._start()
         else:
             self._timer.start()
 

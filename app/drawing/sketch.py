@@ -45,6 +45,7 @@ class SketchLayout:
 
     def __init__(self, model, rect: QRectF, base: float | None = None):
         self.model = model
+        self._geometry = _geometry_key(model)
         self.rect = QRectF(rect)
         nodes = list(model.masses) + list(model.anchors)
         self._nodes = {n.id: n for n in nodes}
@@ -90,6 +91,17 @@ class SketchLayout:
             a, b = self.point(s.a), self.point(s.b)
             length = math.hypot(b.x() - a.x(), b.y() - a.y())
             self._turns[s.id] = int(min(8, max(3, round(length / (0.38 * base)))))
+
+    def rebind(self, model) -> bool:
+        """Use this layout for ``model`` when everything the layout depends on (node positions,
+        masses, links, kind) is the same; False (and nothing changed) otherwise."""
+        if model is self.model:
+            return True
+        if _geometry_key(model) != self._geometry:
+            return False
+        self.model = model
+        self._nodes = {n.id: n for n in list(model.masses) + list(model.anchors)}
+        return True
 
     # -- coordinates ------------------------------------------------------------------------
     def _min_spacing_px(self):
@@ -245,6 +257,15 @@ class SketchLayout:
         if abs(sx) >= abs(sy):
             return QPointF(math.copysign(1.0, sx), 0.0)
         return QPointF(0.0, math.copysign(1.0, sy))
+
+
+def _geometry_key(model) -> tuple:
+    """What a :class:`SketchLayout` reads from a model: kind, nodes, masses and links."""
+    return (model.kind,
+            tuple((m.id, m.x, m.y, m.mass) for m in model.masses),
+            tuple((a.id, a.x, a.y) for a in model.anchors),
+            tuple((e.id, e.a, e.b) for e in model.springs),
+            tuple((e.id, e.a, e.b) for e in model.dampers))
 
 
 def fit_scale(layout: SketchLayout, displacements: dict | None, fraction: float = 0.12) -> float:
