@@ -25,14 +25,15 @@ import math
 
 import numpy as np
 from PySide6.QtCore import QElapsedTimer, QPointF, QRectF, Qt, QTimer, Signal
-from PySide6.QtGui import QFont, QFontMetrics, QPainter
+from PySide6.QtGui import QFont, QFontMetrics, QPainter, QPixmap
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QHBoxLayout, QLabel,
                                QListWidget, QListWidgetItem, QPushButton, QSizePolicy, QSlider,
                                QSplitter, QVBoxLayout, QWidget)
 
 import pyqtgraph as pg
 
-from app.drawing.sketch import SketchLayout, fit_scale, paint_sketch
+from app.drawing.sketch import (SketchLayout, can_paint_fast, fit_scale, paint_deformed_layer,
+                                paint_moving_layer, paint_sketch, paint_static_layer)
 from app.drawing.style import current_style
 
 #: One press of Step advances the animation by 1/FPS s (of animation time).
@@ -110,6 +111,7 @@ class MotionView(QWidget):
         self.energy = None
         self._layout: SketchLayout | None = None
         self._layout_key = None
+        self._static = None      # (key, pixmap): background and the parts that never move
         self._drag = None        # (mass_id, grab offset from the displayed centre in px)
         self._drag_pos = None
 
@@ -155,9 +157,21 @@ class MotionView(QWidget):
                 disp = dict(disp or {})
                 disp[mid] = self._drag_displacement(mid, grab, self._drag_pos)
                 highlight = {mid}
-            paint_sketch(p, self.model, lay.rect, disp, self.scale, st, undeformed=True,
-                         energy=self.energy, labels=len(self.model.masses) <= LABEL_LIMIT,
-                         layout=lay, highlight=highlight)
+            labels = len(self.model.masses) <= LABEL_LIMIT
+            if disp and self.model.kind != "torsion":
+                # an animation frame: the layout at rest from a pixmap painted once, then what
+                # moves (without labels or tint: every element at once)
+                fast = can_paint_fast(self.model, disp, labels, self.energy, highlight)
+                p.drawPixmap(0, 0, self._static_pixmap(lay, st, anchors=fast))
+                if fast:
+                    paint_moving_layer(p, lay, disp, self.scale, st)
+                else:
+                    paint_deformed_layer(p, lay, disp, self.scale, st, energy=self.energy,
+                                         labels=labels, highlight=highlight)
+            else:
+                paint_sketch(p, self.model, lay.rect, disp, self.scale, st, undeformed=True,
+                             energy=self.energy, labels=labels, layout=lay,
+                             highlight=highlight)
             p.setPen(st.ink)
             f = QFont(p.font())
             f.setPixelSize(13)
@@ -174,6 +188,23 @@ class MotionView(QWidget):
                                          self.width() - 16))
         finally:
             p.end()
+
+    def _static_pixmap(self, lay, st, anchors: bool) -> QPixmap:
+        """Background, the layout at rest (and the anchors), painted once per layout and size."""
+        ratio = self.devicePixelRatioF()
+        key = (lay, lay._geometry, st.name, self.width(), self.height(), ratio, anchors)
+        if self._static is not None and self._static[0] == key:
+            return self._static[1]
+        pix = QPixmap(max(1, round(self.width() * ratio)), max(1, round(self.height() * ratio)))
+        pix.setDevicePixelRatio(ratio)
+        pix.fill(st.background)
+        p = QPainter(pix)
+        try:
+            paint_static_layer(p, lay, st, anchors=anchors)
+        finally:
+            p.end()
+        self._static = (key, pix)
+        return pix
 
     # -- dragging ----------------------------------------------------------------------------
     def _directions(self, mass_id):

@@ -604,9 +604,9 @@ class ResponsePanel(QWidget):
             self._texts = texts
             self.mag_plot.setLabel("left", texts[0])
             self.mag_plot.setTitle(texts[1], size="9pt")
+        self.mag_plot.setXRange(np.log10(lo), np.log10(hi), padding=0)
         if (lo, hi) != self._x_span:
             self._x_span = (lo, hi)
-            self.mag_plot.setXRange(np.log10(lo), np.log10(hi), padding=0)
             for p in (self.mag_plot, self.phase_plot):
                 p.getAxis("bottom").setTicks(log_ticks(lo, hi))
         self.mag_plot.enableAutoRange(axis="y")

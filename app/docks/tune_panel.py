@@ -218,7 +218,8 @@ class TunePanel(QWidget):
         self._sweep_generation = 0
         self._sweep_pending = False
         self._sweep_cache: OrderedDict = OrderedDict()
-        self._sweep_curve = None
+        self._sweep_curve = self._crossing_dots = None
+        self._sweep_frame = None              # what the sweep plot's items were built for
         self._sources_key = None
         self._pool = QThreadPool(self)      # before the relay: destroyed first, see solve_service
         self._pool.setMaxThreadCount(1)
@@ -590,9 +591,7 @@ class TunePanel(QWidget):
         if self._key is not None and self._sweep is not None:
             eid, f = self._key
             label = model.element(eid).label if eid in model.ids() else eid
-            self.plot.getPlotItem().setTitle(
-                f"every mode against {label} · {f}: updating for the edited model…",
-                color=current_style().ink_soft_hex, size="9pt")
+            self._set_title(f"every mode against {label} · {f}: updating for the edited model…")
 
     def _place_slider(self, value: float):
         if value <= 0:
@@ -792,13 +791,13 @@ class TunePanel(QWidget):
     def _draw_sweep(self, model):
         st = current_style()
         pi = self.plot.getPlotItem()
-        pi.clear()
-        self._cursor = self._cursor_dots = self._proposal_line = self._sweep_curve = None
         if self._sweep is None or self._key is None:
-            pi.setTitle("")
+            pi.clear()
+            self._cursor = self._cursor_dots = self._proposal_line = self._sweep_curve = None
+            self._sweep_frame = None
+            self._set_title("")
             return
         eid, f = self._key
-        pi.setLabel("bottom", f"{model.element(eid).label} · {f} ({self._unit(model, eid, f)})")
         # the plot's x is in display units; the sweep and the crossings stay SI
         self._plot_factor = self._factor(model, eid, f)
         values, F = self._sweep.values / self._plot_factor, self._sweep.frequencies_hz
@@ -807,8 +806,51 @@ class TunePanel(QWidget):
         if not top > 0:
             top = 1.0          # only zero-frequency modes: keep the axis at 0 and up
         bands = source_bands(model)
-        lx0 = math.log10(values[0])
         labels = {e.id: e.label for e in model.excitations}
+        frame = (eid, f, model.element(eid).label, self._unit(model, eid, f), self._plot_factor,
+                 tuple(bands), tuple(labels.items()), st.name, float(values[0]),
+                 float(values[-1]))
+        if frame != self._sweep_frame or self._cursor is None:
+            # a new element, range, unit, source or palette: the items are built again; an
+            # edit elsewhere in the model only moves the curves (new data, same items)
+            self._sweep_frame = frame
+            self._build_sweep_items(model, st, values, bands, labels)
+        if F.shape[1]:
+            # every mode in one item (curves joined, separated by NaN): one path to build and
+            # paint instead of an item per mode (1000 modes)
+            xs = np.tile(np.append(values, np.nan), F.shape[1])
+            ys = np.vstack([F, np.full((1, F.shape[1]), np.nan)]).T.ravel()
+            self._sweep_curve.setData(xs, ys)
+        else:
+            self._sweep_curve.setData([], [])
+        self._sweep_curve.setOpacity(1.0)
+        pts = band_crossings(self._sweep.values, F, bands)
+        if pts:
+            xs, ys = zip(*pts)
+            self._crossing_dots.setData([x / self._plot_factor for x in xs], list(ys))
+        else:
+            self._crossing_dots.setData([], [])
+        self.crossings = pts
+        band_top = max([b[5] for b in bands if b[5] < 3 * top] + [0.0])
+        pi.setXRange(math.log10(values[0]), math.log10(values[-1]), padding=0.02)
+        pi.setYRange(0, max(top, band_top) * 1.05, padding=0)
+        self._set_title(f"every mode against {model.element(eid).label} · {f}")
+        self._update_cursor(model)
+        self._draw_proposal()
+
+    def _set_title(self, text: str):
+        if text != getattr(self, "_sweep_title", None):
+            self._sweep_title = text
+            self.plot.getPlotItem().setTitle(text, color=current_style().ink_soft_hex,
+                                             size="9pt")
+
+    def _build_sweep_items(self, model, st, values, bands, labels):
+        """The sweep plot's items for the picked element: bands, curves, crossings, cursor."""
+        pi = self.plot.getPlotItem()
+        pi.clear()
+        eid, f = self._key
+        pi.setLabel("bottom", f"{model.element(eid).label} · {f} ({self._unit(model, eid, f)})")
+        lx0 = math.log10(values[0])
         warn = st.warning
         for sid, order, lo, hi, lo_w, hi_w in bands:
             c = pg.mkColor(warn)
@@ -834,20 +876,10 @@ class TunePanel(QWidget):
                                color=warn, anchor=(0, 1))
             text.setPos(lx0, hi_w)
             pi.addItem(text)
-        if F.shape[1]:
-            # every mode in one item (curves joined, separated by NaN): one path to build and
-            # paint instead of an item per mode (1000 modes)
-            xs = np.tile(np.append(values, np.nan), F.shape[1])
-            ys = np.vstack([F, np.full((1, F.shape[1]), np.nan)]).T.ravel()
-            self._sweep_curve = pi.plot(xs, ys, pen=pg.mkPen(st.ink, width=1.4),
-                                        connect="finite")
-        pts = band_crossings(self._sweep.values, F, bands)
-        if pts:
-            xs, ys = zip(*pts)
-            xs = [x / self._plot_factor for x in xs]
-            pi.plot(list(xs), list(ys), pen=None, symbol="o", symbolSize=7,
-                    symbolBrush=pg.mkBrush(st.error), symbolPen=pg.mkPen(st.background))
-        self.crossings = pts
+        self._sweep_curve = pi.plot([], [], pen=pg.mkPen(st.ink, width=1.4), connect="finite")
+        self._crossing_dots = pi.plot([], [], pen=None, symbol="o", symbolSize=7,
+                                      symbolBrush=pg.mkBrush(st.error),
+                                      symbolPen=pg.mkPen(st.background))
         self._cursor = pg.InfiniteLine(angle=90, pen=pg.mkPen(st.accent, width=2))
         pi.addItem(self._cursor)
         self._cursor_dots = pi.plot([], [], pen=None, symbol="o", symbolSize=8,
@@ -857,16 +889,9 @@ class TunePanel(QWidget):
                                                                      style=Qt.PenStyle.DashLine))
         self._proposal_line.hide()
         pi.addItem(self._proposal_line)
-        band_top = max([b[5] for b in bands if b[5] < 3 * top] + [0.0])
-        pi.setXRange(math.log10(values[0]), math.log10(values[-1]), padding=0.02)
         # a decade either way: label 1 and 5 of each decade (1, 2, 5 would overlap here)
         pi.getAxis("bottom").setTicks(log_ticks(values[0], values[-1], labelled=(1, 5),
                                                 fmt=value_text))
-        pi.setYRange(0, max(top, band_top) * 1.05, padding=0)
-        pi.setTitle(f"every mode against {model.element(eid).label} · {f}", color=st.ink_soft_hex,
-                    size="9pt")
-        self._update_cursor(model)
-        self._draw_proposal()
 
     def _update_cursor(self, model):
         if self._cursor is None or self._key is None:
