@@ -155,7 +155,7 @@ class ResultsClock(QObject):
         self.at = time.perf_counter()
 
 
-def settle(win=None, quiet_s: float = 0.03, timeout_s: float = 120.0, clock=None):
+def settle(win=None, quiet_s: float = 0.03, timeout_s: float = 900.0, clock=None):
     """Process events until the window is idle.
 
     Returns the time (perf_counter) at the end of the last event pass that painted something or

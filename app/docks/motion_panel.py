@@ -662,7 +662,8 @@ class MotionPanel(QWidget):
     def _fill_trace_list(self):
         key = None
         if self._model is not None and self._modal is not None:
-            key = tuple((dof, self._model.node(dof[0]).label) for dof in self._modal.dofs)
+            labels = {n.id: n.label for n in self._model.masses + self._model.anchors}
+            key = tuple((dof, labels[dof[0]]) for dof in self._modal.dofs)
         if key == self._trace_key:
             return        # same masses and directions: the list (and what is ticked) stays
         self._trace_key = key
@@ -676,7 +677,7 @@ class MotionPanel(QWidget):
             first = not checked
             for k, dof in enumerate(dofs):
                 mid, d = dof
-                item = QListWidgetItem(f"{self._model.node(mid).label} {d}")
+                item = QListWidgetItem(f"{labels[mid]} {d}")
                 item.setData(Qt.ItemDataRole.UserRole, dof)
                 on = (dof in checked) or (first and k < 2)
                 item.setFlags(item.flags() | Qt.ItemFlag.ItemIsUserCheckable)

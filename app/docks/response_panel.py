@@ -23,10 +23,11 @@ from collections import OrderedDict
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QObject, QRunnable, QSignalBlocker, Qt, QThreadPool, QTimer, Signal
-from PySide6.QtWidgets import (QCheckBox, QComboBox, QFileDialog, QHBoxLayout, QHeaderView, QLabel,
-                               QLineEdit, QListWidget, QListWidgetItem, QPushButton, QSplitter,
-                               QTableWidget, QTableWidgetItem, QVBoxLayout, QWidget)
+from PySide6.QtCore import (QAbstractTableModel, QModelIndex, QObject, QRunnable, QSignalBlocker,
+                            Qt, QThreadPool, QTimer, Signal)
+from PySide6.QtWidgets import (QAbstractItemView, QCheckBox, QComboBox, QFileDialog, QHBoxLayout,
+                               QHeaderView, QLabel, QLineEdit, QListWidget, QListWidgetItem,
+                               QPushButton, QSplitter, QTableView, QVBoxLayout, QWidget)
 
 from solver.errors import ModelError
 
@@ -40,6 +41,45 @@ DEBOUNCE_MS = 80
 THREAD_WORK_LIMIT = 1.5e7
 #: Curves kept for recent (model, choices): an undo or redo redraws without computing.
 CACHE_SIZE = 6
+
+
+class _PeaksModel(QAbstractTableModel):
+    """The peaks of every curve, one row each; cells are formatted only when shown (an
+    undamped 200-mass model has thousands of peaks)."""
+
+    HEADER = ("output", "peak (Hz)", "amplitude", "−3 dB width (Hz)", "damping ratio ≈")
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        self.rows: list = []
+
+    def set_rows(self, rows) -> None:
+        self.beginResetModel()
+        self.rows = list(rows)
+        self.endResetModel()
+
+    def rowCount(self, parent=QModelIndex()):  # noqa: N802
+        return 0 if parent.isValid() else len(self.rows)
+
+    def columnCount(self, parent=QModelIndex()):  # noqa: N802
+        return 0 if parent.isValid() else len(self.HEADER)
+
+    def headerData(self, section, orientation, role=Qt.ItemDataRole.DisplayRole):  # noqa: N802
+        if orientation == Qt.Orientation.Horizontal and role == Qt.ItemDataRole.DisplayRole:
+            return self.HEADER[section]
+        return None
+
+    def data(self, index, role=Qt.ItemDataRole.DisplayRole):
+        if not index.isValid():
+            return None
+        c = index.column()
+        if role == Qt.ItemDataRole.DisplayRole:
+            label, p = self.rows[index.row()]
+            return (label, _fmt(p.frequency_hz, 5), _fmt(p.amplitude), _fmt(p.bandwidth_hz),
+                    _fmt(p.damping_ratio, 3))[c]
+        if role == Qt.ItemDataRole.TextAlignmentRole:
+            return int(Qt.AlignRight | Qt.AlignVCenter if c else Qt.AlignLeft | Qt.AlignVCenter)
+        return None
 
 
 class _Relay(QObject):
@@ -249,13 +289,13 @@ class ResponsePanel(QWidget):
         self.note_label.setWordWrap(True)
         self.note_label.setTextInteractionFlags(Qt.TextSelectableByMouse)
         bl.addWidget(self.note_label)
-        self.peaks_table = QTableWidget(0, 5)
+        self.peaks_table = QTableView()
         self.peaks_table.setObjectName("response_peaks")
-        self.peaks_table.setHorizontalHeaderLabels(
-            ["output", "peak (Hz)", "amplitude", "−3 dB width (Hz)", "damping ratio ≈"])
+        self._peaks = _PeaksModel(self)
+        self.peaks_table.setModel(self._peaks)
         self.peaks_table.horizontalHeader().setSectionResizeMode(QHeaderView.Stretch)
         self.peaks_table.verticalHeader().hide()
-        self.peaks_table.setEditTriggers(QTableWidget.NoEditTriggers)
+        self.peaks_table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
         self.peaks_table.setToolTip("Damping ratio from the half-power bandwidth / (2 f)"
                                     " (valid for light damping and well separated peaks)")
         self.peaks_table.verticalHeader().setDefaultSectionSize(20)
@@ -578,7 +618,7 @@ class ResponsePanel(QWidget):
             self.f_hi_edit.setText(f"{self.f_range[1]:.4g}")
         if resp is None:
             self._clear_plots()
-            self.peaks_table.setRowCount(0)
+            self._peaks.set_rows([])
             self.note_label.setText(message)
             self.note_label.setStyleSheet(f"color: {st.error.name()};" if self.error else "")
             self.curves_changed.emit()
@@ -659,24 +699,7 @@ class ResponsePanel(QWidget):
             self.mag_plot.addItem(one)
 
     def _fill_peaks(self, rows):
-        """Peak rows into the table, reusing its items (a few hundred rows on a big model)."""
-        table = self.peaks_table
-        table.setUpdatesEnabled(False)
-        try:
-            table.setRowCount(len(rows))
-            for r, (label, p) in enumerate(rows):
-                for col, text in enumerate((label, _fmt(p.frequency_hz, 5), _fmt(p.amplitude),
-                                            _fmt(p.bandwidth_hz), _fmt(p.damping_ratio, 3))):
-                    it = table.item(r, col)
-                    if it is None:
-                        it = QTableWidgetItem(text)
-                        it.setTextAlignment(Qt.AlignRight | Qt.AlignVCenter if col else
-                                            Qt.AlignLeft | Qt.AlignVCenter)
-                        table.setItem(r, col, it)
-                    elif it.text() != text:
-                        it.setText(text)
-        finally:
-            table.setUpdatesEnabled(True)
+        self._peaks.set_rows(rows)
 
     # -- plotted data (tests, export) ---------------------------------------------------------
     def plotted_data(self) -> list[tuple[str, np.ndarray, np.ndarray]]:

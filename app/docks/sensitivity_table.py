@@ -28,15 +28,16 @@ def sensitivity_rows(analysis) -> list[tuple[str, str, str, np.ndarray]]:
     if analysis is None:
         return []
     model, sens = analysis.model, analysis.sensitivity
+    by_id = {e.id: e for e in model.springs + model.masses}    # one look-up each, not a search
     rows = []
     for j, sid in enumerate(sens.spring_ids):
-        label = model.element(sid).label
+        label = by_id[sid].label
         rows.append((sid, "k", f"{label} · k", np.asarray(sens.normalised_k[:, j], float)))
         if model.kind == "planar":
             rows.append((sid, "k_t", f"{label} · k_t",
                          np.asarray(sens.normalised_kt[:, j], float)))
     for j, mid in enumerate(sens.mass_ids):
-        m = model.element(mid)
+        m = by_id[mid]
         what = "inertia" if model.kind == "torsion" else "m"
         rows.append((mid, "mass", f"{m.label} · {what}", np.asarray(sens.normalised_m[:, j], float)))
     return rows

@@ -55,6 +55,9 @@ SWEEP_POINTS = 40
 SYNC_DOF_LIMIT = 300
 #: Sweeps kept for recent (model, element, range).
 SWEEP_CACHE_SIZE = 6
+#: Up to this many DOFs a sweep (SWEEP_POINTS solves) is computed at once when an element is
+#: picked; above, always in the worker (40 solves of 300 DOFs stall the window for a second).
+SWEEP_SYNC_DOF_LIMIT = 30
 
 
 class _Relay(QObject):
@@ -515,7 +518,7 @@ class TunePanel(QWidget):
         self._sweep_pending = False
         key = (self._sweep_base, eid, f, tuple(float(v) for v in values))
         found = self._cached_sweep(key)
-        if found is None and background:
+        if found is None and (background or dof_count(model) > SWEEP_SYNC_DOF_LIMIT):
             self._sweep_pending = True
             self._dim_sweep(model)
             self._pool.start(_SweepJob(self._sweep_generation, key, self._relay,
