@@ -26,7 +26,7 @@ import math
 import numpy as np
 from PySide6.QtCore import QElapsedTimer, QPointF, QRectF, Qt, QTimer, Signal
 from PySide6.QtGui import QFont, QFontMetrics, QPainter, QPixmap
-from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QHBoxLayout, QLabel,
+from PySide6.QtWidgets import (QCheckBox, QGraphicsItem, QComboBox, QDoubleSpinBox, QHBoxLayout, QLabel,
                                QListWidget, QListWidgetItem, QPushButton, QSizePolicy, QSlider,
                                QSplitter, QVBoxLayout, QWidget)
 
@@ -713,6 +713,9 @@ class MotionPanel(QWidget):
             j = table.dofs.index(dof)
             curve = self.plot.plot(table.times, table.x[:, j], pen=pg.mkPen(st.trace(k), width=1.5),
                                    name=f"{self._model.node(dof[0]).label} {dof[1]}")
+            # drawn once into a pixmap: the time cursor moves every frame and would otherwise
+            # restroke thousands of samples under it
+            curve.curve.setCacheMode(QGraphicsItem.CacheMode.DeviceCoordinateCache)
             self._curves.append(curve)
 
     def _refresh(self):
