@@ -48,7 +48,8 @@ class _Watch(QObject):
                 if self.first is None:
                     self.first = now
                     print("FIRST", repr(now), flush=True)
-                if getattr(win, "analysis", None) is not None or not hasattr(win, "solver"):
+                a = getattr(win, "analysis", None)
+                if not hasattr(win, "solver") or (a is not None and a.model.masses):
                     print("RESULTS", repr(now), flush=True)
                     QTimer.singleShot(0, QApplication.instance().quit)
         return False
@@ -59,7 +60,7 @@ def _exec_watched(self=None):
     app = QApplication.instance()
     app.installEventFilter(_watch)
     QTimer.singleShot(20000, app.quit)
-    return _exec(app)
+    return _exec()
 QApplication.exec = _exec_watched
 """
 
