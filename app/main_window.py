@@ -718,6 +718,9 @@ class MainWindow(QMainWindow):
             return
         self.settings.setValue("window/geometry", self.saveGeometry())
         self.settings.setValue("window/state", self.saveState())
+        from app.results import offload
+
+        offload.shutdown()          # first: a worker thread waiting on it returns at once
         self.solver.shutdown()
         self.response_panel.shutdown()
         self.tune_panel.shutdown()

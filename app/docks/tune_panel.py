@@ -76,13 +76,19 @@ class _SweepJob(QRunnable):
         self.setAutoDelete(True)
 
     def run(self):
+        from app.results import offload
+
         base, eid, f, values = self.key
+        # beyond a tiny model the solves go to the worker process: scipy's eigensolver keeps the
+        # interpreter lock, and in this thread it would stall the window for each point
+        far = dof_count(base) > SWEEP_SYNC_DOF_LIMIT
         rows = []
         try:
             for v in values:
                 if self.latest() != self.generation:
                     return
-                rows.append(solver.sweep(base, eid, [v], field=f).frequencies_hz[0])
+                rows.append(offload.run(offload.sweep_point, base, eid, v, f) if far
+                            else solver.sweep(base, eid, [v], field=f).frequencies_hz[0])
         except ModelError as exc:
             self.relay.done.emit(self.generation, None, str(exc))
             return

@@ -6,9 +6,11 @@ window, after every view has connected to the document) a small model is solved 
 itself, so the edit and its results reach the screen in one paint. Edits that come in a burst (keys held down,
 undo pressed repeatedly, a slider on a large model) are debounced: the solve starts
 :data:`DEBOUNCE_MS` after the last one. Small models (up to :data:`THREAD_DOF_LIMIT` DOFs) are
-solved on the UI thread: a dense eigensolve of that size takes a few milliseconds. Larger ones go
-to a worker thread, which is safe without locks because the Model is immutable: the worker holds
-its own snapshot, and the UI stays responsive while it runs. Every solve carries a generation
+solved on the UI thread: a dense eigensolve of that size takes a few milliseconds. Larger ones are
+handed by a worker thread to a worker process (:mod:`app.results.offload`: scipy's eigensolver
+keeps the interpreter lock while it runs, so in a thread it froze the window), which is safe
+without locks because the Model is immutable: the worker holds its own snapshot, and the UI stays
+responsive while it runs. Every solve carries a generation
 number, and a result whose generation is not the latest is dropped, so a slow old solve can never
 overwrite a newer one.
 
@@ -67,7 +69,12 @@ class _SolveJob(QRunnable):
         if self.latest() != self.generation:
             return     # queued behind a solve and overtaken by a newer edit: never needed
         try:
-            result = analyse(self.model)
+            from app.results import offload
+
+            result = offload.run(offload.analyse, self.model)
+            # the views tell current results by the identity of their model: the process sent
+            # back an equal copy, so the analysis gets the document's model object again
+            result = dataclasses.replace(result, model=self.model)
             self.relay.done.emit(self.generation, result, "")
         except ModelError as exc:
             self.relay.done.emit(self.generation, None, str(exc))
