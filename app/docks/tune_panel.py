@@ -53,6 +53,8 @@ SWEEP_POINTS = 40
 #: Up to this many DOFs the panel solves each slider step itself (a dense eigensolve of a few
 #: hundred DOFs takes milliseconds); above, the solve service's debounce and worker take over.
 SYNC_DOF_LIMIT = 300
+#: Mode curves per plot item in the sweep plot.
+SWEEP_GROUP = 16
 #: Sweeps kept for recent (model, element, range).
 SWEEP_CACHE_SIZE = 6
 #: Up to this many DOFs a sweep (SWEEP_POINTS solves) is computed at once when an element is
@@ -227,7 +229,8 @@ class TunePanel(QWidget):
         self._sweep_generation = 0
         self._sweep_pending = False
         self._sweep_cache: OrderedDict = OrderedDict()
-        self._sweep_curve = self._crossing_dots = None
+        self._sweep_curves: list = []
+        self._crossing_dots = None
         self._sweep_frame = None              # what the sweep plot's items were built for
         self._sources_key = None
         self._pool = QThreadPool(self)      # before the relay: destroyed first, see solve_service
@@ -595,8 +598,8 @@ class TunePanel(QWidget):
 
     def _dim_sweep(self, model):
         """The shown sweep is for an older model: dimmed, and the title says it is updating."""
-        if self._sweep_curve is not None:
-            self._sweep_curve.setOpacity(0.3)
+        for item in self._sweep_curves:
+            item.setOpacity(0.3)
         if self._key is not None and self._sweep is not None:
             eid, f = self._key
             label = model.element(eid).label if eid in model.ids() else eid
@@ -802,7 +805,8 @@ class TunePanel(QWidget):
         pi = self.plot.getPlotItem()
         if self._sweep is None or self._key is None:
             pi.clear()
-            self._cursor = self._cursor_dots = self._proposal_line = self._sweep_curve = None
+            self._cursor = self._cursor_dots = self._proposal_line = None
+            self._sweep_curves = []
             self._sweep_frame = None
             self._set_title("")
             return
@@ -824,15 +828,23 @@ class TunePanel(QWidget):
             # edit elsewhere in the model only moves the curves (new data, same items)
             self._sweep_frame = frame
             self._build_sweep_items(model, st, values, bands, labels)
-        if F.shape[1]:
-            # every mode in one item (curves joined, separated by NaN): one path to build and
-            # paint instead of an item per mode (1000 modes)
-            xs = np.tile(np.append(values, np.nan), F.shape[1])
-            ys = np.vstack([F, np.full((1, F.shape[1]), np.nan)]).T.ravel()
-            self._sweep_curve.setData(xs, ys)
-        else:
-            self._sweep_curve.setData([], [])
-        self._sweep_curve.setOpacity(1.0)
+        # the modes in groups, each group one item of curves joined and separated by NaN: an
+        # item per mode costs its own overhead (1000 modes), a single path of every mode is
+        # slow to fill where the curves crowd
+        groups = [F[:, j:j + SWEEP_GROUP] for j in range(0, F.shape[1], SWEEP_GROUP)]
+        if len(groups) != len(self._sweep_curves):
+            pi = self.plot.getPlotItem()
+            for item in self._sweep_curves:
+                pi.removeItem(item)
+            pen = pg.mkPen(st.ink, width=1.4)
+            self._sweep_curves = [pi.plot([], [], pen=pen, connect="finite") for _g in groups]
+            for item in self._sweep_curves:
+                item.setZValue(-1)      # over bands and their labels, under markers and cursor
+        for item, G in zip(self._sweep_curves, groups):
+            xs = np.tile(np.append(values, np.nan), G.shape[1])
+            ys = np.vstack([G, np.full((1, G.shape[1]), np.nan)]).T.ravel()
+            item.setData(xs, ys)
+            item.setOpacity(1.0)
         pts = band_crossings(self._sweep.values, F, bands)
         if pts:
             xs, ys = zip(*pts)
@@ -878,14 +890,17 @@ class TunePanel(QWidget):
                 core.setZValue(-9)
                 pi.addItem(core)
             else:
-                pi.addItem(pg.InfiniteLine(pos=lo, angle=0, pen=pg.mkPen(warn, width=1,
-                                                                      style=Qt.PenStyle.DashLine)))
+                line = pg.InfiniteLine(pos=lo, angle=0, pen=pg.mkPen(warn, width=1,
+                                                                 style=Qt.PenStyle.DashLine))
+                line.setZValue(-2)      # under the mode curves (z -1), over the bands
+                pi.addItem(line)
             name = labels.get(sid, sid)
             text = pg.TextItem(f"{name}" + (f" ×{order:g}" if order is not None else ""),
                                color=warn, anchor=(0, 1))
             text.setPos(lx0, hi_w)
+            text.setZValue(-2)
             pi.addItem(text)
-        self._sweep_curve = pi.plot([], [], pen=pg.mkPen(st.ink, width=1.4), connect="finite")
+        self._sweep_curves = []           # filled by _draw_sweep, a group of modes each
         self._crossing_dots = pi.plot([], [], pen=None, symbol="o", symbolSize=7,
                                       symbolBrush=pg.mkBrush(st.error),
                                       symbolPen=pg.mkPen(st.background))

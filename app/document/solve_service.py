@@ -2,17 +2,18 @@
 
 A single edit (a typed value, a drag's release, an undo) is solved on the next turn of the event
 loop, so its results are painted with no added wait; attached with ``immediate`` (the main
-window, after every view has connected to the document) a small model is solved within the edit
-itself, so the edit and its results reach the screen in one paint. Edits that come in a burst (keys held down,
-undo pressed repeatedly, a slider on a large model) are debounced: the solve starts
-:data:`DEBOUNCE_MS` after the last one. Small models (up to :data:`THREAD_DOF_LIMIT` DOFs) are
-solved on the UI thread: a dense eigensolve of that size takes a few milliseconds. Larger ones are
-handed by a worker thread to a worker process (:mod:`app.results.offload`: scipy's eigensolver
-keeps the interpreter lock while it runs, so in a thread it froze the window), which is safe
-without locks because the Model is immutable: the worker holds its own snapshot, and the UI stays
-responsive while it runs. Every solve carries a generation
-number, and a result whose generation is not the latest is dropped, so a slow old solve can never
-overwrite a newer one.
+window does so after every view has connected to the document) a small model is solved within
+the edit itself, and the edit and its results reach the screen in one paint. Edits that come in
+a burst (keys held down, undo pressed repeatedly, a slider on a large model) are debounced: the
+solve starts :data:`DEBOUNCE_MS` after the last one.
+
+Small models (up to :data:`THREAD_DOF_LIMIT` DOFs) are solved on the UI thread: a dense
+eigensolve of that size takes a few milliseconds. Larger ones are handed by a worker thread to a
+worker process (:mod:`app.results.offload`; scipy's eigensolver keeps the interpreter lock while
+it runs, so in a thread it froze the window). That is safe without locks because the Model is
+immutable: the worker holds its own snapshot. Every solve carries a generation number, and a
+result whose generation is not the latest is dropped, so a slow old solve can never overwrite a
+newer one.
 
 The analyses of the last few models are kept (:data:`CACHE_SIZE`): an undo, a redo or an edit
 typed back to an earlier value gives a model equal to one already solved, and its results come
@@ -30,8 +31,8 @@ from PySide6.QtCore import QObject, QRunnable, QThreadPool, QTimer, Signal
 
 from solver.errors import ModelError
 
-#: Above this many degrees of freedom the solve runs in a worker thread (a dense solve of this
-#: size takes ~10-30 ms on a loaded machine; beyond it the UI thread would stall visibly).
+#: Above this many degrees of freedom the solve runs in the worker process (a dense solve of
+#: this size takes ~10-30 ms on a loaded machine; beyond it the UI thread would stall visibly).
 THREAD_DOF_LIMIT = 250
 #: Debounce of a burst of edits (ms): an edit within this time of the previous one waits this
 #: long for the next.
