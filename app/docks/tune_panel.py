@@ -930,9 +930,10 @@ class TunePanel(QWidget):
             st = current_style()
             bad = {c.mode for c in solver.margin_check(model, a.modal).conflicts} \
                 if model.excitations else set()
-            # a mode inside a widened band is marked in the error colour at the cursor
-            brushes = [pg.mkBrush(st.error if i + 1 in bad else st.accent)
-                       for i in range(len(fr))]
+            # a mode inside a widened band is marked in the error colour at the cursor (one
+            # brush for all when none is: a brush per dot costs pyqtgraph a symbol each)
+            brushes = ([pg.mkBrush(st.error if i + 1 in bad else st.accent)
+                        for i in range(len(fr))] if bad else pg.mkBrush(st.accent))
             self._cursor_dots.setData(np.full(fr.shape, v / self._plot_factor), fr,
                                       symbolBrush=brushes)
         else:
