@@ -89,8 +89,10 @@ class _SweepJob(QRunnable):
             for v in values:
                 if self.latest() != self.generation:
                     return
-                rows.append(offload.run(offload.sweep_point, base, eid, v, f) if far
-                            else solver.sweep(base, eid, [v], field=f).frequencies_hz[0])
+                if far:
+                    rows.append(offload.run(offload.sweep_point, base, eid, v, f, lane="sweep"))
+                else:
+                    rows.append(solver.sweep(base, eid, [v], field=f).frequencies_hz[0])
         except ModelError as exc:
             self.relay.done.emit(self.generation, None, str(exc))
             return

@@ -6,9 +6,10 @@ LAPACK call, so a dense solve of 1000 DOFs in a worker thread froze the window f
 ran (0.7-2 s measured); other Python work in a thread slows the UI thread the same way. A
 process has its own interpreter lock.
 
-:func:`run` sends a picklable call to one long-lived worker process (started on first use, with
+:func:`run` sends a picklable call to a long-lived worker process (started on first use, with
 the ``spawn`` method: no fork of a process that runs Qt threads) and waits for its result; call it
-from a worker thread, never the UI thread. Large results come back as pickle protocol 5 with the
+from a worker thread, never the UI thread. Each ``lane`` has its own process, so a sweep of many
+solves never holds back the solve of the latest edit. Large results come back as pickle protocol 5 with the
 arrays out of band, so the receiving side copies them once and rebuilds the objects without
 holding the interpreter lock for long.
 """
@@ -20,7 +21,7 @@ import pickle
 import threading
 
 _lock = threading.Lock()
-_pool = None
+_pools: dict = {}
 
 
 def _packed(fn, args):
@@ -35,37 +36,36 @@ def _unpacked(packed):
     return pickle.loads(head, buffers=buffers)
 
 
-def _get_pool():
-    global _pool
+def _get_pool(lane: str):
     with _lock:
-        if _pool is None:
+        if lane not in _pools:
             import multiprocessing
 
-            _pool = multiprocessing.get_context("spawn").Pool(processes=1)
-        return _pool
+            _pools[lane] = multiprocessing.get_context("spawn").Pool(processes=1)
+        return _pools[lane]
 
 
-def run(fn, *args):
-    """``fn(*args)`` in the worker process; its exceptions are raised here (ModelError too).
-    Raises RuntimeError when :func:`shutdown` stops the process meanwhile."""
+def run(fn, *args, lane: str = "solve"):
+    """``fn(*args)`` in the ``lane``'s worker process; its exceptions are raised here
+    (ModelError too). Raises RuntimeError when :func:`shutdown` stops the process meanwhile."""
     import multiprocessing
 
-    pool = _get_pool()
+    pool = _get_pool(lane)
     pending = pool.apply_async(_packed, (fn, args))
     while True:
         try:
             return _unpacked(pending.get(timeout=0.2))
         except multiprocessing.TimeoutError:
-            if _pool is not pool:
+            if _pools.get(lane) is not pool:
                 raise RuntimeError("the solve process was stopped") from None
 
 
 def shutdown() -> None:
-    """Stop the worker process at once (a solve still running in it is dropped)."""
-    global _pool
+    """Stop the worker processes at once (solves still running in them are dropped)."""
     with _lock:
-        pool, _pool = _pool, None
-    if pool is not None:
+        pools = list(_pools.values())
+        _pools.clear()
+    for pool in pools:
         pool.terminate()
         pool.join()
 
