@@ -9,9 +9,9 @@ process has its own interpreter lock.
 :func:`run` sends a picklable call to a long-lived worker process (started on first use, with
 the ``spawn`` method: no fork of a process that runs Qt threads) and waits for its result; call it
 from a worker thread, never the UI thread. Each ``lane`` has its own process, so a sweep of many
-solves never holds back the solve of the latest edit. Large results come back as pickle protocol 5 with the
-arrays out of band, so the receiving side copies them once and rebuilds the objects without
-holding the interpreter lock for long.
+solves never holds back the solve of the latest edit. Large results come back as pickle protocol
+5 with the arrays out of band, so the receiving side copies them once and rebuilds the objects
+without holding the interpreter lock for long.
 """
 
 from __future__ import annotations
