@@ -398,8 +398,7 @@ def _sparse_eig(system: System, M_diag: np.ndarray, want: int, bound: float):
     # to the lowest nonzero eigenvalue to keep the transformed spectrum well separated, yet far
     # above rounding: 1e-10 of the spectral bound serves chains of 10^5 masses.
     sigma = -1e-10 * bound
-    lu = spla.splu((K - sigma * M).tocsc())
-    op = spla.LinearOperator(K.shape, matvec=lu.solve, dtype=float)
+    op = spla.LinearOperator(K.shape, matvec=_factor((K - sigma * M).tocsc()), dtype=float)
     extra = max(3, want // 8)
     k = min(n - 1, want + extra)
     note = None
@@ -458,6 +457,28 @@ def _group_cut(lam, want, bound):
     return None
 
 
+#: A sparse matrix of at most this many rows whose nonzeros exceed DENSE_FILL of its size is
+#: factored densely (LAPACK): a model whose masses each have dozens of springs fills its sparse
+#: LU in completely (2,500 masses with 197,000 springs: SuperLU 10 s per factor, dense LU 3 s),
+#: and a dense n^2 array of this size is 290 MB at most.
+DENSE_FACTOR_DOF = 6000
+DENSE_FILL = 0.02
+
+
+def _dense_enough(A) -> bool:
+    n = A.shape[0]
+    return n <= DENSE_FACTOR_DOF and A.nnz > DENSE_FILL * n * n
+
+
+def _factor(A):
+    """A function solving ``A x = b`` (A square, sparse, non-singular): sparse LU, or a dense
+    LU when the sparse one would fill in anyway (:data:`DENSE_FILL`)."""
+    if _dense_enough(A):
+        lu = scipy.linalg.lu_factor(A.toarray(), check_finite=False)
+        return lambda b: scipy.linalg.lu_solve(lu, b, check_finite=False)
+    return spla.splu(A).solve
+
+
 def _count_below(K, M, shift):
     """Number of eigenvalues of ``K v = lam M v`` below ``shift``: the negative pivots of a
     symmetric LDL^T of ``K - shift M`` (Sylvester's law of inertia). SuperLU with no row
@@ -465,22 +486,46 @@ def _count_below(K, M, shift):
     ``U = D L^T``; a factor that pivoted anyway is not trusted (returns None unless the dense
     Bunch-Kaufman LDL^T, scipy.linalg.ldl, is affordable)."""
     A = sp.csc_matrix(K - shift * M)
+    dense = _dense_enough(A)   # straight to the dense LDL^T a full fill-in would cost anyway
     try:
-        lu = spla.splu(A, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
-                       options={"SymmetricMode": True})
-        if np.array_equal(lu.perm_r, lu.perm_c):
-            d = lu.U.diagonal()
-            if np.all(np.isfinite(d)) and np.all(d != 0):
-                return int(np.sum(d < 0))
+        if not dense:
+            lu = spla.splu(A, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
+                           options={"SymmetricMode": True})
+            if np.array_equal(lu.perm_r, lu.perm_c):
+                d = lu.U.diagonal()
+                if np.all(np.isfinite(d)) and np.all(d != 0):
+                    return int(np.sum(d < 0))
     except RuntimeError:   # an exactly singular pivot
         pass
-    if A.shape[0] <= 4000:
-        _l, D, _p = scipy.linalg.ldl(A.toarray())
-        # D is block diagonal with 1x1 and 2x2 blocks (so tridiagonal): the signs of its
-        # eigenvalues are the inertia
-        ev = scipy.linalg.eigvalsh_tridiagonal(np.diag(D).copy(), np.diag(D, 1).copy())
-        return int(np.sum(ev < 0))
+    if A.shape[0] <= 4000 or dense:
+        return _negative_pivots(A.toarray())
     return None
+
+
+def _negative_pivots(A: np.ndarray) -> int:
+    """Negative eigenvalues of the symmetric ``A``: those of D in the Bunch-Kaufman
+    ``A = L D L^T`` (LAPACK dsytrf; Sylvester's law of inertia). D has 1x1 blocks and 2x2
+    blocks; a 2x2 block with a negative determinant has one negative eigenvalue, one with a
+    positive determinant two of the sign of its diagonal. (scipy.linalg.ldl gives the same D
+    but builds L in Python: 14 s of a 5,000-row count, against 1.5 s here.)"""
+    lapack = scipy.linalg.lapack
+    # the blocked algorithm needs its workspace; the default is the unblocked one (30x slower)
+    lwork = int(lapack.dsytrf_lwork(A.shape[0], lower=1)[0])
+    ldu, ipiv, info = lapack.dsytrf(A, lower=1, lwork=max(lwork, 1), overwrite_a=True)
+    if info < 0:
+        raise ValueError(f"dsytrf: argument {-info} is invalid")
+    diag, sub = np.diag(ldu), np.r_[np.diag(ldu, -1), 0.0]
+    negative, k, n = 0, 0, len(diag)
+    two = ipiv < 0   # LAPACK marks both rows of a 2x2 block with the same negative entry
+    while k < n:
+        if two[k] and k + 1 < n:
+            det = diag[k] * diag[k + 1] - sub[k] * sub[k]
+            negative += 1 if det < 0 else (2 if diag[k] < 0 else 0)
+            k += 2
+        else:
+            negative += int(diag[k] < 0)
+            k += 1
+    return negative
 
 
 def _finish(system, lam, phi, M_diag, bound, warnings, complete, method, rigid=None,
