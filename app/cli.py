@@ -106,6 +106,23 @@ def _num(value: float):
     return value if math.isfinite(value) else None
 
 
+def _nums(values) -> list:
+    """A list of floats for JSON, null where a value is not finite (numpy's tolist, not a
+    Python call per value: a 100,000-DOF model has millions of them)."""
+    import numpy as np
+
+    arr = np.asarray(values, float)
+    out = arr.tolist()
+    if not np.all(np.isfinite(arr)):
+        out = [v if math.isfinite(v) else None for v in out]
+    return out
+
+
+#: Above this many numbers in the modes, ``solve --json`` is written without indentation
+#: (json's C encoder; indenting 6 million numbers took 14 s).
+JSON_INDENT_MAX = 200_000
+
+
 def solve_json(analysis) -> dict:
     """The machine-readable result of ``springwright solve --json`` (DESIGN.md section 5).
 
@@ -120,6 +137,7 @@ def solve_json(analysis) -> dict:
 
     modal = analysis.modal
     model = analysis.model
+    energy = analysis.energy
     pct = modal.effective_mass_percent
     margins = margin_check(model, modal)
     said = verdicts(model, margins)
@@ -134,14 +152,12 @@ def solve_json(analysis) -> dict:
             "omega_rad_s": _num(modal.omegas[i]),
             "period_s": _num(modal.periods_s[i]),
             "zero_frequency": z is not None,
-            "shape": [_num(v) for v in modal.shapes[:, i]],
+            "shape": _nums(modal.shapes[:, i]),
             "effective_mass_kg": {d: _num(v[i]) for d, v in modal.effective_mass.items()},
             "effective_mass_percent": {d: _num(v[i]) for d, v in pct.items()},
             "participation_factor": {d: _num(v[i]) for d, v in modal.participation.items()},
-            "strain_energy_fraction": {k: _num(v) for k, v in
-                                       analysis.energy.strain_energy_fraction(n).items()},
-            "kinetic_energy_fraction": {k: _num(v) for k, v in
-                                        analysis.energy.kinetic_energy_fraction(n).items()},
+            "strain_energy_fraction": dict(zip(energy.spring_ids, _nums(energy.strain[i]))),
+            "kinetic_energy_fraction": dict(zip(energy.mass_ids, _nums(energy.kinetic[i]))),
             "repeated_with": [m for m in modal.repeated_group(n) if m != n],
             "conflicts": list(dict.fromkeys(c.source_id for c in margins.conflicts if c.mode == n)),
             "conflict_labels": list(dict.fromkeys(v.source for v in said if v.mode == n)),
@@ -166,7 +182,9 @@ def solve_json(analysis) -> dict:
         "margin_percent": model.margin_percent,
         "warnings": list(analysis.warnings) + [v.sentence for v in said],
         "caution": CAUTION,
-        **solve_json_keys(model, modal),    # "margins" (the margin table), "interference"
+        # "margins" (the margin table), "interference"; a separation from a source at 0 Hz
+        # is infinite, which JSON writes as null
+        **_finite_json(solve_json_keys(model, modal)),
     }
 
 
@@ -268,8 +286,12 @@ def cmd_solve(args) -> int:
         analysis = analyse(model)
     except ModelError as exc:
         return _fail(f"{args.file}: {exc}")
-    text = json.dumps(_finite_json(solve_json(analysis)), indent=2, allow_nan=False) \
-        if args.json else solve_table(analysis)
+    if args.json:
+        big = analysis.modal.n_modes * (len(analysis.modal.dofs) + len(analysis.model.springs)
+                                        + len(analysis.model.masses)) > JSON_INDENT_MAX
+        text = json.dumps(solve_json(analysis), indent=None if big else 2, allow_nan=False)
+    else:
+        text = solve_table(analysis)
     try:
         print(text)
         sys.stdout.flush()

@@ -163,9 +163,11 @@ def _modal_solve(system: System, f: np.ndarray, F_all: np.ndarray, result=None,
     w = 2 * np.pi * f
     denom = res.eigenvalues[None, :] - (w ** 2)[:, None] + 1j * w[:, None] * c[None, :]
     num = q_force[None, :] if scale is None else scale[:, None] * q_force[None, :]
-    with np.errstate(divide="ignore", invalid="ignore"):
+    # an undamped resonance hit exactly gives inf or nan; values at the ends of the accepted
+    # ranges (1e-30 kg beside 1e30 N/m) can leave double precision: inf there too
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         q = num / denom
-    with np.errstate(invalid="ignore"):   # an undamped resonance hit exactly: inf, nan
+    with np.errstate(invalid="ignore", over="ignore"):
         X = q @ res.all_shapes.T
     if system.n_dof != len(system.all_dofs) and np.any(F_all[_junction_mask(system)]):
         # the junctions' own static flexibility under a force applied to them

@@ -14,7 +14,16 @@ contract of DESIGN.md section 5 for every one of them:
 Cases: mutations of the shipped examples (type swaps, deletions, unknown keys, colliding ids,
 huge and special numbers, long and odd strings, big arrays), text mutations (truncation, byte
 flips, BOMs, invalid UTF-8, NaN literals, duplicate keys, lone surrogates), generated JSON trees,
-random bytes, and special files (FIFO, /dev/zero, directories, sparse huge files, odd names).
+random bytes, valid models with extreme values (subnormal speeds and band edges, values at the
+range limits, control characters and any script in names: `solve`, `solve --json` and, for
+some, `report` must succeed, the table in printable lines), and special files (FIFO,
+/dev/zero, directories, sparse huge files, odd names, a file at the size limit that must save
+and load back). Beside the files: `report -o` to odd outputs (long and non-UTF-8 names, links
+that loop or dangle, FIFOs, devices: one line, exit 2, or the file under its own name),
+save_model to non-regular targets (refused, the target untouched), and public functions given
+a result of another model or a mode number out of range (a ModelError). Messages must be one
+printable line of at most 1,200 characters plus the file name, in JSON notation (no Python
+``None``/``True``/``'x'``).
 
     python tests/fuzz_files.py --count 3000 --seed 1      # what `make fuzz` runs (fresh seed)
 
@@ -30,6 +39,7 @@ import io
 import json
 import os
 import random
+import re
 import signal
 import subprocess
 import sys
@@ -266,8 +276,10 @@ def cases(seed: int, count: int, big: bool = True):
                 "utf-8", "surrogatepass")
         elif r < 0.75:
             yield f"text-{i}", mutate_text(rng, json.dumps(rng.choice(examples), indent=2))
-        elif r < 0.9:
+        elif r < 0.82:
             yield f"gen-{i}", generated(rng, big).encode("utf-8", "surrogatepass")
+        elif r < 0.92:
+            yield f"extreme-{i}", extreme_valid(rng).encode("utf-8")
         else:
             yield f"bytes-{i}", random_bytes(rng)
 
@@ -326,6 +338,183 @@ def special_files(folder: Path) -> list[tuple[str, str]]:
     return out
 
 
+# values a model accepts that stress code downstream of the loader (formats, log axes, ratios)
+EXTREME = [5e-324, 1e-320, 2.2250738585072014e-308, 1e-300, 1e-30, 1.0000001e-30, 1e-5, 0.5,
+           1.0, 1e15, 1e30, 9.99e29, 1.7976931348623157e308]
+ODD_TEXT = ["电机", "\U0001F600", "A\x1b[2J\x1b]0;x\x07", "a\nb", "x\ry", "\u202e", "tab\t",
+            "é" * 300, " lead", "\u2028"]
+
+
+def extreme_valid(rng: random.Random) -> str:
+    """A model the loader accepts, with values at the edges of what it accepts: subnormal
+    speeds, band edges and orders (their frequencies underflow to 0), ranges from 1e-30 to
+    1e30, masses and stiffnesses at the limits, odd names and labels."""
+    kind = rng.choice(["line", "planar", "torsion"])
+    mass_key = "inertia" if kind == "torsion" else "mass"
+    n = rng.randint(1, 6)
+
+    def tiny_or_huge(lo=1e-30, hi=1e30):
+        return rng.choice([lo, hi, 1.0, rng.choice([lo * 7, hi / 3, 2.5e-7, 4e6])])
+
+    masses = [{"id": f"m{i}", "x": float(i) if kind != "torsion" else 0.0,
+               "y": float(rng.choice([0, i, -i])), mass_key: tiny_or_huge(),
+               "label": rng.choice(ODD_TEXT)} for i in range(n)]
+    anchors = [{"id": "g", "x": -1.0, "y": -0.5}]
+    springs = [{"id": f"s{i}", "a": "g" if i == 0 else f"m{i - 1}", "b": f"m{i}",
+                "k": tiny_or_huge(), "label": rng.choice(ODD_TEXT)} for i in range(n)]
+    ex = []
+    for j in range(rng.randint(0, 3)):
+        r = rng.random()
+        if r < 0.4:
+            ex.append({"id": f"e{j}", "type": "speed", "rpm": rng.choice(EXTREME[:-1]),
+                       "orders": [rng.choice([1e-30, 1.0, 100.0, 5e-324])]})
+        elif r < 0.6:
+            lo = rng.choice(EXTREME[:6])
+            ex.append({"id": f"e{j}", "type": "speed", "rpm_min": lo, "rpm_max": lo * 1e3 + 1e-300})
+        else:
+            lo = rng.choice([0.0] + EXTREME[:-2])
+            ex.append({"id": f"e{j}", "type": "band", "f_min_hz": lo,
+                       "f_max_hz": rng.choice([lo, lo * 2 + 5e-324, 1e30])})
+    data = {"format": "springwright-model", "version": 1, "kind": kind,
+            "name": rng.choice(ODD_TEXT), "masses": masses, "anchors": anchors, "springs": springs,
+            "excitations": ex, "margin_percent": rng.choice([0, 15, 99.9])}
+    if rng.random() < 0.5:
+        data["damping"] = rng.choice([{"model": "modal", "ratio": rng.choice([5e-324, 0.05, 1e30])},
+                                      {"model": "rayleigh", "alpha": 1e-30, "beta": 1e-6}])
+    return json.dumps(data, ensure_ascii=False)
+
+
+def report_outputs(folder: Path) -> list[tuple[str, str, str]]:
+    """(name, -o argument, what must happen: "refused" or "written") for odd report outputs."""
+    out = []
+    fifo = folder / "pipe.png"
+    os.mkfifo(fifo)
+    out.append(("fifo", str(fifo), "refused"))
+    out.append(("folder", str(folder), "refused"))
+    out.append(("name over 255 bytes", str(folder / ("r" * 300 + ".png")), "refused"))
+    (folder / "loop.png").symlink_to(folder / "loop.png")
+    out.append(("symlink loop", str(folder / "loop.png"), "refused"))
+    (folder / "loop.x").symlink_to(folder / "loop.x")
+    out.append(("symlink loop, not .png", str(folder / "loop.x"), "refused"))
+    (folder / "dangling.x").symlink_to(folder / "nowhere" / "r.png")
+    out.append(("dangling symlink", str(folder / "dangling.x"), "refused"))
+    if os.path.exists("/dev/null"):
+        out.append(("device", "/dev/null", "refused"))
+    out.append(("missing folder", str(folder / "no" / "r.png"), "refused"))
+    out.append(("through a file", str(fifo / "r.png"), "refused"))
+    out.append(("name not UTF-8", os.fsdecode(os.fsencode(str(folder)) + b"/r\xff.png"),
+                "written"))
+    out.append(("line break in name", str(folder / "r\nx.png"), "written"))
+    out.append(("escape in name", str(folder / "r\x1b[31m.png"), "written"))
+    out.append(("not .png", str(folder / "r.txt"), "written"))
+    return out
+
+
+def check_report_output(model_path: str, out: str, want: str, cap: float) -> str:
+    """``springwright report FILE -o OUT`` in-process: one line and exit 2 for an output it
+    cannot write, or exit 0 with the PNG under exactly the name given."""
+    from app import cli
+
+    stdout, stderr = io.StringIO(), io.StringIO()
+    try:
+        with time_cap(cap), contextlib.redirect_stdout(stdout), \
+                contextlib.redirect_stderr(stderr):
+            try:
+                rc = cli.main(["report", model_path, "-o", out])
+            except SystemExit as exc:
+                rc = exc.code
+    except Timeout:
+        return "report: hang"
+    except BaseException as exc:   # noqa: BLE001  (any escape is a finding)
+        return f"report: raised {type(exc).__name__}"
+    err = stderr.getvalue()
+    if want == "refused":
+        if rc != 2 or stdout.getvalue() or err.count("\n") != 1 or \
+                not _one_printable_line(err[:-1]):
+            return f"report -o: expected one-line refusal, got exit {rc}: {err[:200]!r}"
+        return "refused"
+    if rc != 0:
+        return f"report -o: exit {rc}: {err[:200]!r}"
+    if not all(_one_printable_line(line) for line in (stdout.getvalue() + err).splitlines()):
+        return "report -o: output not printable lines"
+    try:
+        with open(out, "rb") as fh:   # the name's own bytes (os.fsencode)
+            if fh.read(8) != b"\x89PNG\r\n\x1a\n":
+                return "report -o: not a PNG"
+    except OSError:
+        return "report -o: file not written under its name"
+    os.unlink(out)
+    return "written"
+
+
+def check_save_targets(folder: Path, model) -> list[str]:
+    """save_model to a FIFO, a folder and a link to a device: a ModelError each, target kept."""
+    import stat
+
+    import solver
+
+    fifo = folder / "save-pipe.json"
+    os.mkfifo(fifo)
+    (folder / "save-dir.json").mkdir()
+    targets = [fifo, folder / "save-dir.json"]
+    if os.path.exists("/dev/null"):
+        (folder / "save-null.json").symlink_to("/dev/null")
+        targets.append(folder / "save-null.json")
+    problems = []
+    for target in targets:
+        before = os.stat(target).st_mode
+        try:
+            solver.save_model(model, target)
+            problems.append(f"save_model: wrote over {target.name}")
+        except solver.ModelError as exc:
+            if not _one_printable_line(str(exc)):
+                problems.append("save_model: refusal not one line")
+        except OSError as exc:
+            problems.append(f"save_model: {type(exc).__name__} for {target.name}")
+        if stat.S_IFMT(os.stat(target).st_mode) != stat.S_IFMT(before):
+            problems.append(f"save_model: replaced {target.name}")
+    return problems
+
+
+def check_api_calls(model, other) -> str | None:
+    """Public functions with a result of another model or a mode number out of range must
+    raise ModelError (found by review: IndexError, scipy and numpy ValueErrors, and silently
+    wrong numbers)."""
+    import solver
+
+    if len(model.masses) > 60 or not model.masses:
+        return None
+    try:
+        res, res_other = solver.modes(model), solver.modes(other)
+    except solver.ModelError:
+        return None
+    n = res.n_modes
+    calls = [("margin_check", lambda: solver.margin_check(model, res_other)),
+             ("free_response", lambda: solver.free_response(model, [0.0, 1.0],
+                                                            result=res_other)),
+             ("rank_elements 0", lambda: solver.rank_elements(model, 0)),
+             ("rank_elements n+1", lambda: solver.rank_elements(model, n + 1)),
+             ("shape -1", lambda: res.shape(-1))]
+    if model.springs:
+        sid = model.springs[0].id
+        calls += [("reachable_range 0", lambda: solver.reachable_range(model, sid, 0)),
+                  ("reachable_range n+1", lambda: solver.reachable_range(model, sid, n + 1)),
+                  ("retune -1", lambda: solver.retune(model, sid, -1, 1.0))]
+    if other == model:
+        calls = calls[2:]
+    for name, call in calls:
+        try:
+            call()
+        except solver.ModelError as exc:
+            if not _one_printable_line(str(exc)):
+                return f"api call {name}: message not one line"
+            continue
+        except Exception as exc:   # noqa: BLE001  (what the check looks for)
+            return f"api call {name}: {type(exc).__name__}"
+        return f"api call {name}: no error"
+    return None
+
+
 # ------------------------------------------------------------------ checks
 class Timeout(BaseException):
     """Raised by the per-file timer (a BaseException, so no `except Exception` swallows it)."""
@@ -350,6 +539,24 @@ def _one_printable_line(text: str) -> bool:
     return bool(text) and text.isprintable() and not any(c in text for c in _SPLITS)
 
 
+# Python's notation where a message should use the file's (JSON): got None, True, 'x', {'a': 1}
+_PYTHON_NOTATION = re.compile(r"got (None|True|False)\b|\(allowed: '|\{'[^']*': |^'[^']*' is "
+                              r"|key '|\\u[0-9a-f]{4}\\u[0-9a-f]{4}")
+
+
+def _message_problem(msg: str, path: str) -> str | None:
+    if not _one_printable_line(msg):
+        return "message not one printable line"
+    if not _names_file(msg, path):
+        return "message does not name the file"
+    if len(msg) > 1200 + len(path) + 20:
+        return "message over 1,200 characters"
+    rest = msg[len(path):] if msg.startswith(path) else msg
+    if _PYTHON_NOTATION.search(rest.split(": ", 1)[-1]):
+        return "message in Python notation"
+    return None
+
+
 def _names_file(message: str, path: str) -> bool:
     """Every printable run (3+ characters) of the path's last part shows in the message."""
     base = os.path.basename(path) or path
@@ -364,8 +571,9 @@ def _names_file(message: str, path: str) -> bool:
     return all(r in message for r in runs if len(r) >= 3)
 
 
-def check_api(path: str, cap: float, scratch: Path) -> str:
-    """Outcome of loading ``path``: 'loaded', 'refused', or a failure name."""
+def check_api(path: str, cap: float, scratch: Path, loaded: list | None = None) -> str:
+    """Outcome of loading ``path``: 'loaded', 'refused', or a failure name (``loaded`` gets
+    the model when it loads)."""
     import solver
 
     try:
@@ -373,14 +581,8 @@ def check_api(path: str, cap: float, scratch: Path) -> str:
             try:
                 model = solver.load_model(path)
             except solver.ModelFileError as exc:
-                msg = str(exc)
-                if not _one_printable_line(msg):
-                    return "api: message not one printable line"
-                if not _names_file(msg, path):
-                    return "api: message does not name the file"
-                if len(msg) > 2000:
-                    return "api: message over 2000 characters"
-                return "refused"
+                problem = _message_problem(str(exc), path)
+                return f"api: {problem}" if problem else "refused"
             try:
                 out = scratch / "roundtrip.json"
                 solver.save_model(model, out)
@@ -392,6 +594,8 @@ def check_api(path: str, cap: float, scratch: Path) -> str:
                 return "round trip: model differs"
             if solver.dumps_model(back) != text:
                 return "round trip: text differs"
+            if loaded is not None:
+                loaded.append(model)
             return "loaded"
     except Timeout:
         return "api: hang"
@@ -427,7 +631,13 @@ def _cli_outcome(rc, stdout: str, stderr: str, path: str) -> str:
     if "Traceback" in stderr:
         return "cli: traceback"
     if rc == 0:
-        return "loaded" if stdout else "cli: exit 0 with no output"
+        if not stdout:
+            return "cli: exit 0 with no output"
+        if stderr:
+            return "cli: exit 0 with text on stderr"
+        if not all(line.isprintable() for line in stdout.splitlines()):
+            return "cli: table line not printable (control characters reach the terminal)"
+        return "loaded"
     if rc != 2:
         return f"cli: exit {rc}"
     if stdout:
@@ -451,10 +661,34 @@ def check_subprocess(path: str, cap: float) -> str:
     return _cli_outcome(p.returncode, stdout, stderr, path).replace("cli:", "subprocess:")
 
 
+def at_limit_file(path: Path) -> None:
+    """A compact file just under the size limit, every number in its shortest form and every
+    optional key left out (found by review: such a file loaded and then could not be saved)."""
+    import solver.io
+
+    label = "L" * 100
+    head = b'{"format":"springwright-model","version":1,"kind":"line","masses":['
+    one = len(f'{{"id":"m000000","label":"{label}","x":1e15,"y":1e15,"mass":1e15}},')
+    n = min(solver.model.MAX_ELEMENTS, (solver.io.MAX_FILE_BYTES - len(head) - 2) // one)
+    with open(path, "wb") as fh:
+        fh.write(head)
+        fh.write(",".join(f'{{"id":"m{i:06d}","label":"{label}","x":1e15,"y":1e15,"mass":1e15}}'
+                          for i in range(n)).encode())
+        fh.write(b"]}")
+
+
 def run(seed: int, count: int, cap: float, n_subprocess: int, specials: bool = True,
-        verbose: bool = False, log=print) -> dict:
-    """Run the fuzzer; returns counters of outcomes per entry point and the failing cases."""
-    results = {"api": Counter(), "cli": Counter(), "subprocess": Counter()}
+        verbose: bool = False, log=print, report_every: int = 40) -> dict:
+    """Run the fuzzer; returns counters of outcomes per entry point and the failing cases.
+
+    Every file that loads is also solved (``solve`` or ``solve --json``) and checked against
+    the public functions' argument rules; the ``extreme`` ones and every ``report_every``-th
+    other one also get a report."""
+    import solver
+
+    results = {"api": Counter(), "cli": Counter(), "subprocess": Counter(), "report": Counter(),
+               "calls": Counter()}
+    other = solver.load_model(EXAMPLES[0])
     failures: list[tuple[str, str, bytes | str]] = []
     started = time.perf_counter()
     with tempfile.TemporaryDirectory(prefix="sw-fuzz-") as tmp:
@@ -475,8 +709,9 @@ def run(seed: int, count: int, cap: float, n_subprocess: int, specials: bool = T
             wheres = ["api", "cli"]
             if sub_every and (i % sub_every == 0 or data is None):
                 wheres.append("subprocess")
+            loaded: list = []
             for where in wheres:
-                outcome = (check_api(path, cap, scratch) if where == "api" else
+                outcome = (check_api(path, cap, scratch, loaded) if where == "api" else
                            check_cli(path, cap, ("--json",) if i % 2 else ()) if where == "cli"
                            else check_subprocess(path, cap))
                 results[where][outcome] += 1
@@ -484,10 +719,41 @@ def run(seed: int, count: int, cap: float, n_subprocess: int, specials: bool = T
                     failures.append((name, outcome, data if data is not None else path))
                     if verbose:
                         log(f"  {name}: {outcome}")
+            if loaded:
+                with time_cap(cap):
+                    problem = check_api_calls(loaded[0], other)
+                results["calls"][problem or "ModelError"] += 1
+                if problem:
+                    failures.append((name, problem, data if data is not None else path))
+                if name.startswith("extreme") or i % report_every == 0:
+                    outcome = check_report_output(path, str(scratch / "r.png"), "written",
+                                                  3 * cap)
+                    results["report"][outcome] += 1
+                    if outcome != "written":
+                        failures.append((name, outcome, data if data is not None else path))
             if data is not None:
                 Path(path).unlink()
             if verbose and time.perf_counter() - t0 > cap / 2:
                 log(f"  slow: {name} {time.perf_counter() - t0:.1f} s")
+        if specials:
+            outputs = tmp / "outputs"
+            outputs.mkdir()
+            for name, out, want in report_outputs(outputs):
+                outcome = check_report_output(str(EXAMPLES[0]), out, want, 3 * cap)
+                results["report"][outcome] += 1
+                if outcome != want:
+                    failures.append((f"report -o {name}", outcome, out))
+            (tmp / "save").mkdir()
+            for problem in check_save_targets(tmp / "save", other):
+                failures.append(("save_model", problem, ""))
+            results["api"]["save targets checked"] += 1
+            big = tmp / "at-limit.json"
+            at_limit_file(big)
+            outcome = check_api(str(big), max(cap, 120.0), scratch)
+            results["api"][outcome] += 1
+            if outcome != "loaded":
+                failures.append(("file at the size limit", outcome, str(big)))
+            big.unlink()
     results["seconds"] = time.perf_counter() - started
     results["files"] = len(items)
     results["failures"] = failures
@@ -517,7 +783,7 @@ def main(argv=None) -> int:
 
     res = run(seed, args.count, args.cap, args.subprocess, verbose=args.verbose)
     print(f"file fuzzer: seed {seed}, {res['files']} files, {res['seconds']:.1f} s")
-    for where in ("api", "cli", "subprocess"):
+    for where in ("api", "cli", "subprocess", "report", "calls"):
         print(f"  {where:>10}: " + ", ".join(f"{k} {v}" for k, v in res[where].most_common()))
     bad = res["failures"]
     if args.save_failures and bad:
