@@ -28,7 +28,7 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from .assemble import System, assemble
-from .errors import ModelError, checked_arguments
+from .errors import ModelError, checked_arguments, shown
 from .model import Model
 
 
@@ -43,7 +43,7 @@ def rayleigh_coefficients(f1_hz: float, zeta1: float, f2_hz: float, zeta2: float
     for name, v in (("f1_hz", f1_hz), ("zeta1", zeta1), ("f2_hz", f2_hz), ("zeta2", zeta2)):
         v = float(v)
         if not math.isfinite(v) or v < 0 or (name.startswith("f") and v == 0):
-            raise ModelError(f"Rayleigh fit: {name} must be a positive number, got {v!r}")
+            raise ModelError(f"Rayleigh fit: {name} must be a positive number, got {shown(v)}")
         vals.append(v)
     f1, z1, f2, z2 = vals
     if abs(f1 - f2) <= 1e-12 * max(f1, f2):

@@ -24,7 +24,7 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from .assemble import System, assemble
-from .errors import ModelError, checked_arguments, number, numbers
+from .errors import ModelError, checked_arguments, number, numbers, shown
 from .model import Model
 from .modes import modes
 from .naming import quoted_id
@@ -220,7 +220,7 @@ def harmonic_response(model, freqs_hz, forces, output: str = "displacement",
         raise ModelError("forces must be a mapping {(mass_id, direction): amplitude in N}")
     for key, amp in forces.items():
         if not (isinstance(key, tuple) and len(key) == 2):
-            raise ModelError(f"force key must be (mass_id, direction), got {key!r}")
+            raise ModelError(f"force key must be (mass_id, direction), got {shown(key)}")
         if key not in index:
             from .assemble import _no_dof_message
 
@@ -232,7 +232,7 @@ def harmonic_response(model, freqs_hz, forces, output: str = "displacement",
     elif method == "modal":
         X = _modal_solve(system, f, F, result)
     else:
-        raise ModelError(f'method must be "direct" or "modal", got {method!r}')
+        raise ModelError(f'method must be "direct" or "modal", got {shown(method)}')
     return _convert(_retained(system, X), f, output)
 
 
@@ -273,7 +273,7 @@ def base_transmissibility(model, freqs_hz, direction: str, relative: bool = Fals
         w = 2 * np.pi * f
         Y = _modal_solve(system, f, Mr.astype(complex), result, scale=w * w)
     else:
-        raise ModelError(f'method must be "direct" or "modal", got {method!r}')
+        raise ModelError(f'method must be "direct" or "modal", got {shown(method)}')
     Y = _retained(system, Y)
     if relative:
         return Y

@@ -695,7 +695,7 @@ class Model:
             values[name] = tuple(items)
         for el in put:
             if type(el) not in by_type:
-                raise ModelError(f"model: cannot add {el!r}")
+                raise ModelError(f"model: cannot add {shown(el)}")
         values.update(top)
         return replace(self, **values)
 

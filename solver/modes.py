@@ -33,7 +33,7 @@ import scipy.sparse.linalg as spla
 
 from . import factor
 from .assemble import System, assemble
-from .errors import ModelError, checked_arguments, mode_number
+from .errors import ModelError, checked_arguments, mode_number, shown
 from .model import Model
 from .naming import named, named_id, quoted_id
 
@@ -211,7 +211,7 @@ def modes(model_or_system, count: int | None = None, method: str | None = None) 
     """
     system = model_or_system if isinstance(model_or_system, System) else assemble(model_or_system)
     if count is not None and (isinstance(count, bool) or int(count) != count or count < 0):
-        raise ModelError(f"modes: count must be a whole number >= 0, got {count!r}")
+        raise ModelError(f"modes: count must be a whole number >= 0, got {shown(count)}")
     n = system.n_dof
     warnings = list(system.warnings)
     if n == 0:
@@ -236,7 +236,7 @@ def modes(model_or_system, count: int | None = None, method: str | None = None) 
     if count is None and n > DENSE_DOF_LIMIT:
         warnings.append(f"the model has {n} degrees of freedom; the lowest {want} modes are shown")
     if method not in (None, "dense", "sparse"):
-        raise ModelError(f'modes: method must be "dense" or "sparse", got {method!r}')
+        raise ModelError(f'modes: method must be "dense" or "sparse", got {shown(method)}')
     use_dense = (want >= n - 1 or n <= SWITCH_DOF or 3 * want > n) if method is None else (
         method == "dense" or want >= n - 1)
     use_dense = use_dense or want == 0

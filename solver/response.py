@@ -19,7 +19,7 @@ import scipy.linalg
 
 from .assemble import System, assemble
 from .damping import rigid_split, state_space
-from .errors import ModelError, checked_arguments, number, numbers
+from .errors import ModelError, checked_arguments, number, numbers, shown
 from .model import Model
 from .modes import ModalResult, modes
 from .naming import quoted_id
@@ -89,7 +89,7 @@ def initial_vectors(system: System, x0=None, v0=None):
         for key, value in items:
             if not (isinstance(key, tuple) and len(key) == 2):
                 raise ModelError(f"free response: initial {what} keys are (mass_id, direction),"
-                                 f" got {key!r}")
+                                 f" got {shown(key)}")
             value = number(value, f"initial {what} of {quoted_id(model, key[0])} in {key[1]}")
             if key in lookup:
                 vec[lookup[key]] = value

@@ -541,7 +541,8 @@ def _one_printable_line(text: str) -> bool:
 
 # Python's notation where a message should use the file's (JSON): got None, True, 'x', {'a': 1}
 _PYTHON_NOTATION = re.compile(r"got (None|True|False)\b|\(allowed: '|\{'[^']*': |^'[^']*' is "
-                              r"|key '|\\u[0-9a-f]{4}\\u[0-9a-f]{4}")
+                              r"|key '")
+_ESCAPE = re.compile(r"\\u([0-9a-fA-F]{4})")
 
 
 def _message_problem(msg: str, path: str) -> str | None:
@@ -554,6 +555,10 @@ def _message_problem(msg: str, path: str) -> str | None:
     rest = msg[len(path):] if msg.startswith(path) else msg
     if _PYTHON_NOTATION.search(rest.split(": ", 1)[-1]):
         return "message in Python notation"
+    # printable text is shown as it is; only control characters and lone surrogates escaped
+    if any(chr(int(h, 16)).isprintable() and not 0xD800 <= int(h, 16) <= 0xDFFF
+           for h in _ESCAPE.findall(rest)):
+        return "message escapes printable text"
     return None
 
 

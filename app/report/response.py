@@ -144,11 +144,35 @@ def plot_lines(x, y, x_min: float, x_max: float, y_min: float, y_max: float) -> 
     joined[1:] = (idx[1:] == idx[:-1] + 1) & (t1[idx[:-1]] >= 1) & (t0[idx[1:]] <= 0)
     lines = []
     starts = np.flatnonzero(~joined)
-    for a, b in zip(starts, list(starts[1:]) + [len(idx)]):
+    stops = np.r_[starts[1:], len(idx)]
+    for a, b in zip(starts, stops):
         xs = np.concatenate([[sx[a]], ex[a:b]])
         ys = np.concatenate([[sy[a]], ey[a:b]])
         lines.append(_thinned(xs, ys))
+    if len(lines) > 64:   # a curve darting in and out of the box: thousands of short pieces
+        lines = _merged_columns(lines)
     return lines
+
+
+def _merged_columns(lines: list) -> list:
+    """Pieces that stay within one pixel column replaced by the union of their vertical
+    extents in that column (they paint the same pixels as those vertical lines)."""
+    keep, spans = [], []
+    for line in lines:
+        col = np.floor(line[:, 0])
+        if col[0] == col[-1] and np.all(col == col[0]):
+            spans.append((col[0], line[:, 1].min(), line[:, 1].max()))
+        else:
+            keep.append(line)
+    spans.sort()
+    merged: list[list[float]] = []
+    for col, lo, hi in spans:
+        if merged and merged[-1][0] == col and lo <= merged[-1][2]:
+            merged[-1][2] = max(merged[-1][2], hi)
+        else:
+            merged.append([col, lo, hi])
+    keep += [np.array([[c + 0.5, lo], [c + 0.5, hi]]) for c, lo, hi in merged]
+    return keep
 
 
 def _thinned(xs: np.ndarray, ys: np.ndarray) -> np.ndarray:

@@ -20,6 +20,7 @@ import sys
 from contextlib import redirect_stderr, redirect_stdout
 from pathlib import Path
 
+import numpy as np
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
@@ -820,3 +821,100 @@ def test_reachable_range_speaks_in_its_own_name():
     for mode in (0, 3):
         with pytest.raises(ModelError, match=r"^reachable_range: "):
             solver.reachable_range(model, "mounts", mode)
+
+
+# ------------------------------------------------------------------ command line, found by review
+@pytest.mark.parametrize("case, words", [
+    ("name over 255 bytes", ["too long"]),
+    ("symlink loop", ["loops"]),
+    ("dangling symlink", ["does not exist"]),
+    ("device", ["not a regular file"]),
+])
+def test_report_output_refused_in_one_line_with_the_reason(tmp_path, case, words):
+    """POSIX (found by review: a name over 255 bytes ended in an OSError traceback with exit 1;
+    a link that loops or dangles, named other than .png, gave a note and then an error with no
+    reason): each is refused before rendering, in one line with the reason, exit 2."""
+    out = {"name over 255 bytes": tmp_path / ("r" * 300 + ".png"),
+           "symlink loop": tmp_path / "loop.x", "dangling symlink": tmp_path / "dangling.x",
+           "device": Path("/dev/null")}[case]
+    if case == "symlink loop":
+        out.symlink_to(out)
+    if case == "dangling symlink":
+        out.symlink_to(tmp_path / "nowhere" / "r.png")
+    rc, stdout, err = _cli("report", GOOD, "-o", out)
+    assert rc == 2 and stdout == "" and err.count("\n") == 1, (rc, err)
+    assert all(w in err for w in words), err
+
+
+def test_report_written_under_the_names_own_bytes(tmp_path):
+    """POSIX file names are bytes (found by review: -o r\\xff.png wrote r\\xef\\xbf\\xbd.png
+    and said it wrote r\\xff.png): the PNG is written under exactly the bytes given, and the
+    line saying so is printable (the odd byte escaped)."""
+    name = os.fsdecode(os.fsencode(str(tmp_path)) + b"/r\xff.png")
+    rc, out, err = _cli("report", GOOD, "-o", name)
+    assert rc == 0 and err == "", err
+    assert os.listdir(os.fsencode(str(tmp_path))) == [b"r\xff.png"]
+    assert out.isprintable() or out.endswith("\n") and out[:-1].isprintable(), out
+    rc, out, err = _cli("report", GOOD, "-o", tmp_path / "r\nx.png")
+    assert rc == 0 and out.count("\n") == 1 and "r\\nx.png" in out
+
+
+def test_solve_table_escapes_control_characters():
+    """A name or label may hold ESC, BEL, CR and LF (the file allows them); the command line's
+    table prints them escaped, so no terminal escape sequence runs and each row stays one
+    line (found by review: a name could clear the screen and fake a line)."""
+    rc, out, err = _cli("solve", CORPUS / "control-chars-in-names.json")
+    assert rc == 0 and err == ""
+    assert all(line.isprintable() for line in out.splitlines())
+    assert "\\x1b[2J" in out and "\\nfake: line" in out and "Mass\\rX" not in out.replace(
+        "Mass\\\\rX", "")
+
+
+def test_file_name_starting_with_a_dash_gets_a_hint(tmp_path, monkeypatch):
+    """argparse reads -x.json as an option: the one-line error says to write -- or ./ before
+    such a file name (found by review: only "the following arguments are required: file")."""
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "-x.json").write_bytes(GOOD.read_bytes())
+    rc, out, err = _cli("solve", "-x.json")
+    assert rc == 2 and err.count("\n") == 1 and '"--"' in err and "./" in err, err
+    rc, out, err = _cli("solve", "--", "-x.json")
+    assert rc == 0, err
+    rc, out, err = _cli("solve", str(GOOD), "--colour")
+    assert rc == 2 and '"--"' not in err, err
+
+
+def test_messages_are_capped(tmp_path):
+    """A 20 MB key in "initial" (found by review: a 20,000,107-character line) gives a
+    message of at most MESSAGE_MAX characters after the file name, with no component the
+    file does not hold (no ".mass_id")."""
+    data = _base()
+    data["initial"] = {"k" * 20_000_000: {"y": 1.0}}
+    msg = _refusal(_write(tmp_path, "long-key.json", data))
+    assert len(msg) < solver.errors.MESSAGE_MAX + len(str(tmp_path)) + 20
+    assert "mass_id" not in msg and "20000000 characters" in msg
+
+
+def test_report_curves_cut_to_the_box_and_thinned():
+    """Liang-Barsky clipping and per-column thinning (math) against a brute-force reference:
+    every drawn point lies in the box; in each pixel column the drawn lines cover the same
+    vertical extent as the original curve's vertices inside the box; and a curve of 100,000
+    points far outside the box above and below gives at most a few points per column."""
+    from app.report.response import plot_lines
+
+    rng = np.random.default_rng(3)
+    box = (10.0, 410.0, 20.0, 220.0)
+    x = np.sort(rng.uniform(0, 420, 5000))
+    y = 120 + 400 * np.sin(x / 7) * rng.uniform(0.2, 1.2, len(x))
+    y[rng.integers(0, len(x), 50)] = np.nan
+    lines = plot_lines(x, y, *box)
+    pts = np.vstack(lines)
+    assert np.all((pts[:, 0] >= box[0] - 1e-9) & (pts[:, 0] <= box[1] + 1e-9))
+    assert np.all((pts[:, 1] >= box[2] - 1e-9) & (pts[:, 1] <= box[3] + 1e-9))
+    inside = np.isfinite(y) & (x >= box[0]) & (x <= box[1]) & (y >= box[2]) & (y <= box[3])
+    for col in np.unique(np.floor(x[inside])):
+        orig = y[inside & (np.floor(x) == col)]
+        drawn = pts[np.floor(pts[:, 0]) == col, 1]
+        assert drawn.min() <= orig.min() + 1e-9 and drawn.max() >= orig.max() - 1e-9
+    far = np.where(np.arange(100_000) % 2, 1e12, -1e12)
+    thin = plot_lines(np.linspace(10, 410, 100_000), far, *box)
+    assert sum(len(line) for line in thin) <= 8 * 400
