@@ -132,29 +132,9 @@ def condense(B, w, retained, slaves, node=None) -> Condensed:
     n_out = len(plain)
     g_r, g_c, g_v = [], [], []
     null_blocks = []
-    for dofs, rows in zip(groups, group_rows):
-        if len(rows) == 0:   # junction DOFs that no spring touches at all
-            null_blocks.append((dofs, np.eye(len(dofs))))
-            continue
-        wr = w[rows]
-        if len(dofs) > CLUSTER_DENSE_LIMIT:
-            Bs_sp = Bs_all[rows][:, dofs]
-            Bm_sp = Bm_all[rows]
-            mcols = np.unique(Bm_sp.indices)
-            rest, Gc, N = _eliminate_sparse(sp.diags(wr) @ Bs_sp,
-                                            sp.diags(wr) @ Bm_sp[:, mcols],
-                                            node[np.asarray(slaves)[dofs]])
-        else:
-            if small:
-                Bs = Bs_d[np.ix_(rows, dofs)]
-                mcols = np.flatnonzero(np.any(Bm_d[rows] != 0.0, axis=0))
-                Bm = Bm_d[np.ix_(rows, mcols)]
-            else:
-                Bs = Bs_all[rows][:, dofs].toarray()
-                Bm_sp = Bm_all[rows]
-                mcols = np.unique(Bm_sp.indices)
-                Bm = Bm_sp[:, mcols].toarray()
-            rest, Gc, N = _condense_dense(Bs, Bm, wr)
+
+    def add(dofs, mcols, rest, Gc, N):
+        nonlocal n_out
         if N.shape[1]:
             null_blocks.append((dofs, N))
         if Gc is not None:
@@ -168,6 +148,53 @@ def condense(B, w, retained, slaves, node=None) -> Condensed:
             f_c.append(mcols[rj])
             f_v.append(rest[ri, rj])
             n_out += rest.shape[0]
+
+    # small clusters of one shape (rows, junction DOFs, retained DOFs) are done together, one
+    # stacked LAPACK call each (a model with many junctions has many alike)
+    batches: dict = {}
+    for dofs, rows in zip(groups, group_rows):
+        if len(rows) == 0:   # junction DOFs that no spring touches at all
+            null_blocks.append((dofs, np.eye(len(dofs))))
+            continue
+        wr = w[rows]
+        if len(dofs) > CLUSTER_DENSE_LIMIT:
+            Bs_sp = Bs_all[rows][:, dofs]
+            Bm_sp = Bm_all[rows]
+            mcols = np.unique(Bm_sp.indices)
+            add(dofs, mcols, *_eliminate_sparse(sp.diags(wr) @ Bs_sp,
+                                                sp.diags(wr) @ Bm_sp[:, mcols],
+                                                node[np.asarray(slaves)[dofs]]))
+            continue
+        if small:
+            mcols = np.flatnonzero(np.any(Bm_d[rows] != 0.0, axis=0))
+        else:
+            mcols = np.unique(Bm_all[rows].indices)
+        if len(dofs) <= 2 and len(rows) >= len(dofs):
+            batches.setdefault((len(rows), len(dofs), len(mcols)), []).append(
+                (dofs, np.asarray(rows), mcols))
+            continue
+        if small:
+            Bs, Bm = Bs_d[np.ix_(rows, dofs)], Bm_d[np.ix_(rows, mcols)]
+        else:
+            Bs = Bs_all[rows][:, dofs].toarray()
+            Bm = Bm_all[rows][:, mcols].toarray()
+        add(dofs, mcols, *_condense_dense(Bs, Bm, wr))
+    for items in batches.values():
+        D = np.array([it[0] for it in items])
+        R = np.array([it[1] for it in items])
+        C = np.array([it[2] for it in items])
+        if small:
+            Bs = Bs_d[R[:, :, None], D[:, None, :]]
+            Bm = Bm_d[R[:, :, None], C[:, None, :]]
+        else:
+            Bs = np.array([Bs_all[r][:, d].toarray() for r, d in zip(R, D)])
+            Bm = np.array([Bm_all[r][:, c].toarray() for r, c in zip(R, C)])
+        rest, G, ok = _condense_batch(Bs, Bm, w[R])
+        for i, (dofs, rows, mcols) in enumerate(items):
+            if ok[i]:
+                add(dofs, mcols, rest[i], G[i], np.zeros((len(dofs), 0)))
+            else:   # a loose junction direction: the one-by-one path finds it
+                add(dofs, mcols, *_condense_dense(Bs[i], Bm[i], w[rows]))
     factor = sp.csr_matrix((np.concatenate(f_v), (np.concatenate(f_r), np.concatenate(f_c))),
                            shape=(n_out, n_m))
     if g_r:
@@ -182,6 +209,38 @@ def condense(B, w, retained, slaves, node=None) -> Condensed:
         null[dofs, col:col + b.shape[1]] = b
         col += b.shape[1]
     return Condensed(factor=factor, G=G, null=null)
+
+
+def _condense_batch(Bs, Bm, W):
+    """:func:`_condense_dense` for a stack of clusters of one shape with at most two junction
+    DOFs each: ``Bs`` (b, r, d), ``Bm`` (b, r, q), row weights ``W`` (b, r). The same
+    algorithm (rows sorted heaviest first, Householder QR with column pivoting: for two columns
+    the larger first), in stacked LAPACK calls. Returns (rest (b, r - d, q), G (b, d, q), ok
+    (b,)): ``ok`` False where the geometry leaves a junction direction loose (not handled
+    here)."""
+    b, r, d = Bs.shape
+    sv = np.linalg.svd(Bs, compute_uv=False)
+    ok = np.all(sv > GEOMETRY_RTOL * sv.max(axis=1, keepdims=True), axis=1)
+    order = np.argsort(-W, axis=1, kind="stable")
+    As = np.take_along_axis(W[:, :, None] * Bs, order[:, :, None], axis=1)
+    Am = np.take_along_axis(W[:, :, None] * Bm, order[:, :, None], axis=1)
+    swap = np.zeros(b, bool)
+    if d == 2:
+        swap = np.linalg.norm(As[:, :, 1], axis=1) > np.linalg.norm(As[:, :, 0], axis=1)
+        As[swap] = As[swap][:, :, ::-1]
+    Q, R = np.linalg.qr(As, mode="complete")
+    QtAm = np.swapaxes(Q, 1, 2) @ Am
+    rhs = -QtAm[:, :d]
+    with np.errstate(divide="ignore", invalid="ignore"):   # rank-deficient ones are not used
+        if d == 1:
+            y = rhs / R[:, :1, :1]
+        else:
+            y1 = rhs[:, 1] / R[:, 1, 1, None]
+            y0 = (rhs[:, 0] - R[:, 0, 1, None] * y1) / R[:, 0, 0, None]
+            y = np.stack([y0, y1], axis=1)
+    if d == 2:
+        y[swap] = y[swap][:, ::-1]
+    return QtAm[:, d:], y, ok
 
 
 def _condense_dense(Bs, Bm, wr):

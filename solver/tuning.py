@@ -230,9 +230,11 @@ def _factored_spectrum(B, w, m_all, node):
     rank = 0
     if Fg.size:
         sv = scipy.linalg.svd(Fg, compute_uv=False, check_finite=False)
-        # against the geometry before condensation too (direction cosines, O(1)): a condensed
-        # factor that is all rounding (a junction that frees a mass) has no rank at all
-        ref = max(sv.max(initial=0.0), float(abs(B).max()) if B.nnz else 0.0)
+        # against the geometry's own scale too (direction cosines: a spring's row has norm 1
+        # or sqrt 2, and the constraint's rotations and merges keep that): a factor that is
+        # all rounding (a junction that frees a mass, a spring parallel to one made rigid) has
+        # no rank at all
+        ref = max(sv.max(initial=0.0), 1.0)
         rank = int(np.sum(sv > factor.GEOMETRY_RTOL * ref))
     n_zero = n - rank
     lam, _phi, err = factor.factored_eig(F, m_all[retained], ACCURATE_RTOL)
@@ -414,7 +416,13 @@ def eigenvalues_below(model: Model, omega2: float) -> int | None:
     Being a count on the uncondensed model, it is independent of the eigen-solver and of the
     static condensation (a different algorithm on different matrices).
     """
-    system = assemble(model)
+    return _count_below(assemble(model), omega2)
+
+
+def _count_below(system, omega2: float) -> int | None:
+    """:func:`eigenvalues_below` on an assembled model (only its element geometry, masses and
+    values are read: the count never uses the condensation or the eigen-solver)."""
+    model = system.model
     n_all = len(system.all_dofs)
     if n_all > COUNT_DENSE_DOF:
         return None
@@ -631,13 +639,23 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
             " another element or add one")
     count = [0]
 
+    class _OnTarget(Exception):
+        pass
+
     def g(u):
         count[0] += 1
         fu = freq(u)
-        return (fu if fu is not None else math.nan) - target
+        if fu is not None and abs(fu - target) <= 8 * np.finfo(float).eps * target:
+            raise _OnTarget(u)   # on the target to a few ulps: Brent's last steps add nothing
+        # log f against log value is nearly straight (f ~ sqrt(k) for a spring that governs
+        # the mode), so Brent's interpolation lands in a few steps
+        return math.log(max(fu, 1e-300) / target) if fu is not None else math.nan
 
-    root = brentq(g, min(bracket), max(bracket), xtol=1e-13, rtol=4 * np.finfo(float).eps,
-                  maxiter=300)
+    try:
+        root = brentq(g, min(bracket), max(bracket), xtol=1e-13, rtol=4 * np.finfo(float).eps,
+                      maxiter=300)
+    except _OnTarget as hit:
+        root = hit.args[0]
     return finish(math.exp(root), evaluations + count[0])
 
 
@@ -683,8 +701,8 @@ def _verified(model, element_id, f, mode, target, value, start, now, rng, exact,
                      f" (relative) only, more than the {VERIFY_RTOL:g} the value is meant to"
                      " hold: treat the value as approximate")
     w = 2 * math.pi * target
-    below_lo = eigenvalues_below(tuned, (w * (1 - COUNT_RTOL)) ** 2)
-    below_hi = eigenvalues_below(tuned, (w * (1 + COUNT_RTOL)) ** 2)
+    below_lo = _count_below(res.system, (w * (1 - COUNT_RTOL)) ** 2)
+    below_hi = _count_below(res.system, (w * (1 + COUNT_RTOL)) ** 2)
     checked = below_lo is not None and below_lo <= mode - 1 and below_hi >= mode
     if below_lo is not None and not checked:
         fz = res.frequencies_hz
