@@ -277,6 +277,10 @@ def main(argv=None) -> int:
                                  " springwright report FILE -o OUT.png")
     parser.add_argument("file", nargs="?")
     args = parser.parse_args(argv)
+    # One BLAS thread in the window (set before numpy loads): a second thread spinning beside the
+    # UI, the solve worker or other programs on a busy 2-core machine made dense solves 4-8x
+    # slower, not faster (bench/edit_bench.py)
+    os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
     if args.file is not None:
         model, err = _load(args.file)
         if err:

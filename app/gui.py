@@ -22,11 +22,12 @@ def example_path() -> Path | None:
 
 
 def run(path=None, argv=None) -> int:
-    """Create the application, open the window on ``path`` (or the example), show it, run it."""
-    from PySide6.QtWidgets import QApplication
+    """Create the application, open the window on ``path`` (or the example), show it, run it.
 
-    from solver.errors import ModelError
-    from solver.io import load_model
+    Without a file the window is shown first and the example opened once it has painted: the
+    example's schema check, solve and every view's update need not hold back the first frame.
+    """
+    from PySide6.QtWidgets import QApplication
 
     from .main_window import MainWindow
 
@@ -37,16 +38,53 @@ def run(path=None, argv=None) -> int:
     opened = False
     if path is not None:
         opened = window.open_path(path, ask=False)
-    if not opened:
-        example = example_path()
-        if example is not None:
-            try:
-                # The example opens as an untitled copy, so Save never overwrites the shipped file.
-                window.document.new(model=load_model(example))
-            except ModelError as exc:
-                window.statusBar().showMessage(f"Example not loaded: {exc}", 10000)
     window.show()
+    if opened:
+        _open_done(window)
+    else:
+        _after_first_paint(window, lambda: _open_example(window))
+    return qapp.exec()
+
+
+def _open_example(window) -> None:
+    from solver.errors import ModelError
+    from solver.io import load_model
+
+    example = example_path()
+    if example is not None and window.document.model.masses == () and not window.document.dirty:
+        try:
+            # The example opens as an untitled copy, so Save never overwrites the shipped file.
+            window.document.new(model=load_model(example))
+        except ModelError as exc:
+            window.statusBar().showMessage(f"Example not loaded: {exc}", 10000)
+    _open_done(window)
+
+
+def _open_done(window) -> None:
     window.view.fit()
     window.solver.solve_now()
     window.check_recovery()
-    return qapp.exec()
+
+
+def _after_first_paint(window, then) -> None:
+    """Call ``then`` on the event-loop turn after the window's first paint (or after 0.5 s if
+    it is not painted, e.g. started minimised)."""
+    from PySide6.QtCore import QEvent, QObject, QTimer
+
+    class _Once(QObject):
+        done = False
+
+        def fire(self):
+            if not self.done:
+                self.done = True
+                window.removeEventFilter(self)
+                QTimer.singleShot(0, then)
+
+        def eventFilter(self, obj, event):  # noqa: N802
+            if event.type() == QEvent.Type.Paint:
+                self.fire()
+            return False
+
+    once = _Once(window)
+    window.installEventFilter(once)
+    QTimer.singleShot(500, once.fire)

@@ -118,7 +118,8 @@ class MainWindow(QMainWindow):
         super().__init__()
         self.settings = settings if settings is not None else QSettings()
         self.document = Document(parent=self)
-        self.solver = SolveService(self.document, parent=self)
+        # attached to the document at the end, once every view follows it (see attach)
+        self.solver = SolveService(parent=self)
         self.analysis = None
         self._selected_mode = 1
 
@@ -163,7 +164,7 @@ class MainWindow(QMainWindow):
         self.splitDockWidget(props_dock, motion_dock, Qt.Horizontal)
         from app.docks.response_panel import ResponsePanel
 
-        self.response_panel = ResponsePanel(self.document)
+        self.response_panel = ResponsePanel(self.document, solve_service=self.solver)
         self.response_panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
         self.response_dock = self._dock("Response", self.response_panel, Qt.BottomDockWidgetArea,
                                         "dock_response")
@@ -192,10 +193,7 @@ class MainWindow(QMainWindow):
         self.document.path_changed.connect(self._update_title)
         self.document.model_changed.connect(lambda _m: self._update_title())
         self.document.opened.connect(lambda _m: self.view.fit())
-        self.document.opened.connect(self._on_opened)
         self.solver.results_ready.connect(self._on_results)
-        self.solver.results_ready.connect(self.response_panel.set_analysis)
-        self.solver.live_changed.connect(self.response_panel.set_live)
         self.solver.solve_failed.connect(self._on_solve_failed)
         self._stale_timer = QTimer(self)
         self._stale_timer.setSingleShot(True)
@@ -213,6 +211,9 @@ class MainWindow(QMainWindow):
         self._make_actions()
         self._add_tune_panels()
         self._add_source_panels()
+        # after every panel's own handler: it clears what the panels show of the last model and
+        # then hands them the new model's results if they are already in
+        self.document.opened.connect(self._on_opened)
         self.setAcceptDrops(True)
         self.recovery = Recovery(self.document, self.settings, folder=recovery_folder, parent=self)
         self.recovery.status_message.connect(lambda m: self.statusBar().showMessage(m, 12000))
@@ -229,6 +230,9 @@ class MainWindow(QMainWindow):
             QTimer.singleShot(0, self._first_layout)   # once the window has its real size
         self._update_title()
         self._on_mode_change(self.scene.mode)
+        # last: a small model's edit is then solved after every view has taken the new model,
+        # and the edit and its results are painted together
+        self.solver.attach(self.document, immediate=True)
 
     # -- layout helpers -----------------------------------------------------------------------
     def _first_layout(self):
@@ -551,6 +555,8 @@ class MainWindow(QMainWindow):
             self.sensitivity_table.set_analysis(None)
             self.tune_panel.set_analysis(None)
             self.energy_tint.show(None, 1)
+        # a small model was solved inside the signal that opened it, before this clearing
+        self.solver.repeat_results(model)
 
     def _on_results(self, analysis):
         self.analysis = analysis
@@ -759,6 +765,7 @@ class MainWindow(QMainWindow):
 
     def export_report(self, path) -> bool:
         self.solver.wait()
+        self.response_panel.wait()
         try:
             from app.report import render_report
 
@@ -837,6 +844,11 @@ class MainWindow(QMainWindow):
             return
         self.settings.setValue("window/geometry", self.saveGeometry())
         self.settings.setValue("window/state", self.saveState())
+        from app.results import offload
+
+        offload.shutdown()          # first: a worker thread waiting on it returns at once
         self.solver.shutdown()
+        self.response_panel.shutdown()
+        self.tune_panel.shutdown()
         self.recovery.mark_clean_exit()
         event.accept()

@@ -84,6 +84,8 @@ class EnergyTint:
         self.enabled = False
         self.mode = 1
         self.analysis = None
+        self._tinted = False           # some item carries a tint or an energy tooltip
+        self._legend_state = None
         self.legend = EnergyLegend(view) if view is not None else None
         self._corner = _Corner(self.legend, view) if view is not None else None
         if self.legend is not None:
@@ -109,37 +111,59 @@ class EnergyTint:
                 a.energy.kinetic_energy_fraction(self.mode))
 
     def refresh(self):
+        # Only what changed is touched: an update() of every item would repaint the whole
+        # canvas after each solve (1000 items), and the tint is off most of the time.
+        if not self.enabled and not self._tinted:
+            self._refresh_legend()
+            return
         st = current_style()
         strain, kinetic = self.shares() if self.enabled else ({}, {})
         a = self.analysis
         model = a.model if a is not None else None
-        stale = model is not self.scene.document.model
+        doc_model = self.scene.document.model
+        stale = model is not doc_model
         for eid, item in self.scene.links.items():
             if not isinstance(item, SpringItem):
                 continue
             share = strain.get(eid)
-            item.energy_color = st.energy_color(share) if share is not None and not stale else None
+            color = st.energy_color(share) if share is not None and not stale else None
             tip = item.tooltip_text(item.element)
-            if item.energy_color is not None:
+            if color is not None:
                 tip += f"\nstrain energy in mode {self.mode}: {100 * share:.1f} %"
-            item.setToolTip(tip)
-            item.update()
+            self._apply(item, color, tip)
         for eid, item in self.scene.nodes.items():
             if not isinstance(item, MassItem):
                 continue
             share = kinetic.get(eid)
-            item.energy_color = st.energy_color(share) if share is not None and not stale else None
-            tip = item.tooltip_text(item.element, self.scene.document.model)
-            if item.energy_color is not None:
+            color = st.energy_color(share) if share is not None and not stale else None
+            tip = item.tooltip_text(item.element, doc_model)
+            if color is not None:
                 tip += f"\nkinetic energy in mode {self.mode}: {100 * share:.1f} %"
-            item.setToolTip(tip)
+            self._apply(item, color, tip)
+        self._tinted = self.enabled
+        self._refresh_legend()
+
+    @staticmethod
+    def _apply(item, color, tip):
+        old = getattr(item, "energy_color", None)
+        if (old is None) != (color is None) or (color is not None and old != color):
+            item.energy_color = color
             item.update()
-        if self.legend is not None:
-            self.legend.mode = self.mode
-            self.legend.setVisible(self.enabled)
-            if self._corner is not None:
-                self._corner.place()
-            self.legend.update()
+        if item.toolTip() != tip:
+            item.setToolTip(tip)
+
+    def _refresh_legend(self):
+        if self.legend is None:
+            return
+        state = (self.enabled, self.mode)
+        if state == self._legend_state:
+            return
+        self._legend_state = state
+        self.legend.mode = self.mode
+        self.legend.setVisible(self.enabled)
+        if self._corner is not None:
+            self._corner.place()
+        self.legend.update()
 
 
 __all__ = ["EnergyTint", "EnergyLegend"]

@@ -134,8 +134,6 @@ class ModelScene(QGraphicsScene):
         """Put every label clear of the symbols and of the labels placed before it (masses,
         then anchors, then springs and dashpots); a label with no clear spot is hidden (the
         element's tooltip still names it). Scene units, so it holds at every zoom."""
-        from app.drawing.labels import LabelPlacer, around, segment_boxes, shifted
-
         nodes = list(self.nodes.values())
         links = list(self.links.values())
         # a slider step changes a value, not the drawing: nothing to place again (an item
@@ -262,8 +260,15 @@ class ModelScene(QGraphicsScene):
             self._kb_cursor.setPen(pen)
 
     def _update_scene_rect(self):
-        rect = self.itemsBoundingRect()
-        if rect.isNull():
+        # from the nodes' positions, not itemsBoundingRect(): that asks every item (a Python
+        # boundingRect each) on every edit; symbols and labels reach a few dozen px beyond
+        # their node, well inside the 3000 px of room given round the model
+        points = [item.pos() for item in self.nodes.values()]
+        if points:
+            xs, ys = [p.x() for p in points], [p.y() for p in points]
+            rect = QRectF(min(xs), min(ys), max(xs) - min(xs), max(ys) - min(ys))
+            rect = rect.adjusted(-100, -100, 100, 100)
+        else:
             rect = QRectF(-200, -200, 400, 400)
         self.setSceneRect(rect.adjusted(-3000, -3000, 3000, 3000))
 

@@ -26,18 +26,22 @@ import math
 import numpy as np
 from PySide6.QtCore import QElapsedTimer, QPointF, QRectF, Qt, QTimer, Signal
 from PySide6.QtGui import QFont, QFontMetrics, QIcon, QPainter, QPen, QPixmap
-from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QHBoxLayout, QLabel,
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QGraphicsItem, QHBoxLayout, QLabel,
                                QListWidget, QListWidgetItem, QPushButton, QSizePolicy, QSlider,
                                QSplitter, QVBoxLayout, QWidget)
 
 import pyqtgraph as pg
 
 from app.drawing.plot_axes import true_value_axes
-from app.drawing.sketch import SketchLayout, fit_scale, paint_sketch
+from app.drawing.sketch import (SketchLayout, can_paint_fast, fit_scale, paint_deformed_layer,
+                                paint_moving_layer, paint_sketch, paint_static_layer)
 from app.drawing.style import current_style
 from app.text.numbers import hz
 
+#: One press of Step advances the animation by 1/FPS s (of animation time).
 FPS = 30
+#: Playing redraws at the display's refresh rate, this when the screen does not say.
+DISPLAY_HZ = 60.0
 #: Time scales offered (model seconds per wall-clock second).
 TIME_SCALES = (1.0, 0.5, 0.2, 0.1, 0.05, 0.02, 0.01, 0.005, 0.002, 0.001)
 #: Samples per period of the fastest mode in the free-response table.
@@ -112,19 +116,23 @@ class MotionView(QWidget):
         self.motion_px = 0.0
         self._layout: SketchLayout | None = None
         self._layout_key = None
+        self._static = None      # (key, pixmap): background and the parts that never move
         self._drag = None        # (mass_id, grab offset from the displayed centre in px)
         self._drag_pos = None
 
     def set_model(self, model):
         self.model = model
-        self._layout = None
+        # an edit that leaves the drawing's geometry alone (a stiffness, a damping) keeps the
+        # layout: fitting one is quadratic in the masses
+        if self._layout is None or model is None or not self._layout.rebind(model):
+            self._layout = None
         self.update()
 
     def layout_(self) -> SketchLayout | None:
         """The current sketch layout (refitted when the widget or the model changes)."""
         if self.model is None:
             return None
-        key = (id(self.model), self.width(), self.height())
+        key = (self.width(), self.height())
         if self._layout is None or self._layout_key != key:
             r = self._sketch_rect()
             # screen symbols stay modest on a big panel
@@ -154,9 +162,22 @@ class MotionView(QWidget):
                 disp = dict(disp or {})
                 disp[mid] = self._drag_displacement(mid, grab, self._drag_pos)
                 highlight = {mid}
-            paint_sketch(p, self.model, lay.rect, disp, self.scale, st, undeformed=True,
-                         energy=self.energy, labels=len(self.model.masses) <= LABEL_LIMIT,
-                         layout=lay, highlight=highlight, motion_px=self.motion_px)
+            labels = len(self.model.masses) <= LABEL_LIMIT
+            if disp and self.model.kind != "torsion":
+                # an animation frame: the layout at rest from a pixmap painted once, then what
+                # moves (without labels or tint: every element at once)
+                fast = can_paint_fast(self.model, disp, labels, self.energy, highlight)
+                p.drawPixmap(0, 0, self._static_pixmap(lay, st, anchors=fast))
+                if fast:
+                    paint_moving_layer(p, lay, disp, self.scale, st)
+                else:
+                    paint_deformed_layer(p, lay, disp, self.scale, st, energy=self.energy,
+                                         labels=labels, highlight=highlight,
+                                         motion_px=self.motion_px)
+            else:
+                paint_sketch(p, self.model, lay.rect, disp, self.scale, st, undeformed=True,
+                             energy=self.energy, labels=labels, layout=lay,
+                             highlight=highlight, motion_px=self.motion_px)
             p.setPen(st.ink)
             f = QFont(p.font())
             f.setPixelSize(13)
@@ -173,6 +194,23 @@ class MotionView(QWidget):
                                          self.width() - 16))
         finally:
             p.end()
+
+    def _static_pixmap(self, lay, st, anchors: bool) -> QPixmap:
+        """Background, the layout at rest (and the anchors), painted once per layout and size."""
+        ratio = self.devicePixelRatioF()
+        key = (lay, lay._geometry, st.name, self.width(), self.height(), ratio, anchors)
+        if self._static is not None and self._static[0] == key:
+            return self._static[1]
+        pix = QPixmap(max(1, round(self.width() * ratio)), max(1, round(self.height() * ratio)))
+        pix.setDevicePixelRatio(ratio)
+        pix.fill(st.background)
+        p = QPainter(pix)
+        try:
+            paint_static_layer(p, lay, st, anchors=anchors)
+        finally:
+            p.end()
+        self._static = (key, pix)
+        return pix
 
     # -- dragging ----------------------------------------------------------------------------
     def _directions(self, mass_id):
@@ -286,9 +324,11 @@ class MotionPanel(QWidget):
         self._free_scale = 1.0
         self.unit_system = "SI"
         self._positions: dict = {}
+        self._trace_key = None
         self._clock = QElapsedTimer()
         self._timer = QTimer(self)
-        self._timer.setInterval(int(1000 / FPS))
+        self._timer.setTimerType(Qt.TimerType.PreciseTimer)
+        self._timer.setInterval(int(1000 / DISPLAY_HZ))
         self._timer.timeout.connect(self._on_tick)
         self._build_ui()
         self._refresh()
@@ -571,6 +611,11 @@ class MotionPanel(QWidget):
     def _on_play_toggled(self, on: bool):
         self.play_button.setText("Pause" if on else "Play")
         if on:
+            # a frame per refresh of the screen the panel is on (the motion is timed by the
+            # wall clock, so the rate only sets how smooth it looks)
+            screen = self.screen()
+            rate = screen.refreshRate() if screen is not None else 0.0
+            self._timer.setInterval(max(1, int(1000.0 / (rate if rate >= 20 else DISPLAY_HZ))))
             self._clock.start()
             self._timer.start()
         else:
@@ -682,6 +727,13 @@ class MotionPanel(QWidget):
         self._refresh()
 
     def _fill_trace_list(self):
+        key = None
+        if self._model is not None and self._modal is not None:
+            labels = {n.id: n.label for n in self._model.masses + self._model.anchors}
+            key = tuple((dof, labels[dof[0]]) for dof in self._modal.dofs)
+        if key == self._trace_key:
+            return        # same masses and directions: the list (and what is ticked) stays
+        self._trace_key = key
         checked = {self.trace_list.item(i).data(Qt.ItemDataRole.UserRole)
                    for i in range(self.trace_list.count())
                    if self.trace_list.item(i).checkState() == Qt.CheckState.Checked}
@@ -692,7 +744,7 @@ class MotionPanel(QWidget):
             first = not checked
             for k, dof in enumerate(dofs):
                 mid, d = dof
-                item = QListWidgetItem(f"{self._model.node(mid).label} {d}")
+                item = QListWidgetItem(f"{labels[mid]} {d}")
                 item.setData(Qt.ItemDataRole.UserRole, dof)
                 on = (dof in checked) or (first and k < 2)
                 item.setFlags(item.flags() | Qt.ItemFlag.ItemIsUserCheckable)
@@ -735,6 +787,9 @@ class MotionPanel(QWidget):
             curve = self.plot.plot(table.times, table.x[:, j] / factor,
                                    pen=pg.mkPen(st.trace(k), width=1.5),
                                    name=f"{self._model.node(dof[0]).label} {dof[1]}")
+            # drawn once into a pixmap: the time cursor moves every frame and would otherwise
+            # restroke thousands of samples under it
+            curve.curve.setCacheMode(QGraphicsItem.CacheMode.DeviceCoordinateCache)
             self._curves.append(curve)
         self._show_trace_colours(colours)
 

@@ -11,7 +11,10 @@ Beside the controls, the sweep plot: every mode's frequency (Hz) against the val
 range (:func:`solver.sweep`, log-spaced, recomputed only when the element, the range or the rest of
 the model changes), the excitation sources as horizontal bands widened by the margin
 (:func:`solver.source_bands`), a cursor at the current value and the points where a mode curve
-enters or leaves a widened band.
+enters or leaves a widened band. The sweep is :data:`SWEEP_POINTS` solves: when an edit of
+another element makes it stale, it is recomputed in a worker thread while the old curves stay
+dimmed and titled as updating, so the edit's own results are shown at once; sweeps of the last
+few models are kept (an undo redraws at once).
 
 Below, the retune row: mode, target Hz, *Propose* (ranks the elements by normalised sensitivity,
 :func:`solver.rank_elements`, and picks the strongest), *Retune* (solves for the value,
@@ -22,10 +25,11 @@ reach is explained in the panel, not in a dialog.
 from __future__ import annotations
 
 import math
+from collections import OrderedDict
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QSignalBlocker, Qt, Signal
+from PySide6.QtCore import QObject, QRunnable, QSignalBlocker, Qt, QThreadPool, Signal
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QGridLayout, QHBoxLayout,
                                QLabel, QListWidget, QPushButton, QScrollArea, QSizePolicy,
                                QSlider, QSpinBox, QSplitter, QVBoxLayout, QWidget)
@@ -53,6 +57,59 @@ SWEEP_POINTS = 40
 #: Up to this many DOFs the panel solves each slider step itself (a dense eigensolve of a few
 #: hundred DOFs takes milliseconds); above, the solve service's debounce and worker take over.
 SYNC_DOF_LIMIT = 300
+#: Mode curves per plot item in the sweep plot.
+SWEEP_GROUP = 16
+#: Sweeps kept for recent (model, element, range).
+SWEEP_CACHE_SIZE = 6
+#: Up to this many DOFs a sweep (SWEEP_POINTS solves) is computed at once when an element is
+#: picked; above, always in the worker (40 solves of 300 DOFs stall the window for a second).
+SWEEP_SYNC_DOF_LIMIT = 30
+
+
+class _Relay(QObject):
+    """Carries a worker's sweep back to the UI thread (queued signal)."""
+
+    done = Signal(int, object, str)
+
+
+class _SweepJob(QRunnable):
+    """``solver.sweep`` one value at a time, so a sweep overtaken by a newer edit stops after
+    the solve it is in."""
+
+    def __init__(self, generation, key, relay, latest):
+        super().__init__()
+        self.generation, self.key, self.relay, self.latest = generation, key, relay, latest
+        self.setAutoDelete(True)
+
+    def run(self):
+        from app.results import offload
+
+        base, eid, f, values = self.key
+        # beyond a tiny model the solves go to the worker process: scipy's eigensolver keeps the
+        # interpreter lock, and in this thread it would stall the window for each point
+        far = dof_count(base) > SWEEP_SYNC_DOF_LIMIT
+        rows = []
+        try:
+            for v in values:
+                if self.latest() != self.generation:
+                    return
+                if far:
+                    rows.append(offload.run(offload.sweep_point, base, eid, v, f, lane="sweep"))
+                else:
+                    rows.append(solver.sweep(base, eid, [v], field=f).frequencies_hz[0])
+        except ModelError as exc:
+            self.relay.done.emit(self.generation, None, str(exc))
+            return
+        except Exception as exc:   # a bug: say so in the panel, never kill the worker silently
+            self.relay.done.emit(self.generation, None, f"internal error: {exc!r}")
+            return
+        width = max((len(r) for r in rows), default=0)
+        out = np.full((len(rows), width), np.nan)
+        for i, r in enumerate(rows):
+            out[i, : len(r)] = r
+        result = solver.SweepResult(element_id=eid, field=f, values=np.asarray(values, float),
+                                    frequencies_hz=out)
+        self.relay.done.emit(self.generation, (self.key, result), "")
 
 
 def tunable_elements(model) -> list[tuple[str, str, str]]:
@@ -162,6 +219,17 @@ class TunePanel(QWidget):
         self._center = 1.0
         self._sweep = None
         self._sweep_base = None
+        self._sweep_generation = 0
+        self._sweep_pending = False
+        self._sweep_cache: OrderedDict = OrderedDict()
+        self._sweep_curves: list = []
+        self._crossing_dots = None
+        self._sweep_frame = None              # what the sweep plot's items were built for
+        self._sources_key = None
+        self._pool = QThreadPool(self)      # before the relay: destroyed first, see solve_service
+        self._pool.setMaxThreadCount(1)
+        self._relay = _Relay(self)
+        self._relay.done.connect(self._on_sweep_done)
         self._drag_serial = 0
         self._proposed: float | None = None
         self._plot_factor = 1.0
@@ -424,10 +492,11 @@ class TunePanel(QWidget):
         v = value_of(model, *self._key)
         lo, hi = self.span
         if not (lo * (1 - 1e-12) <= v <= hi * (1 + 1e-12)) or v <= 0:
-            self._recentre(model, v)
+            self._recentre(model, v, background=True)
         elif self._sweep_base is None or \
                 with_value(model, self._key[0], self._center, self._key[1]) != self._sweep_base:
-            self._recentre(model, self._center)   # another element changed: the sweep is stale
+            # another element changed: the sweep is stale
+            self._recentre(model, self._center, background=True)
         self._place_slider(v)
         self._update_value_label(model)
         self._update_cursor(model)
@@ -457,8 +526,9 @@ class TunePanel(QWidget):
         self._update_value_label(model)
         self._update_cursor(model)
 
-    def _recentre(self, model, value: float):
-        """A new slider range around ``value`` and a new sweep."""
+    def _recentre(self, model, value: float, background: bool = False):
+        """A new slider range around ``value`` and a new sweep (with ``background``, computed
+        in the worker unless kept from before; the old curves are dimmed meanwhile)."""
         eid, f = self._key
         if value <= 0:
             value = 1.0
@@ -466,14 +536,89 @@ class TunePanel(QWidget):
         self._sweep_base = with_value(model, eid, self._center, f)
         lo, hi = self.span
         values = np.logspace(math.log10(lo), math.log10(hi), SWEEP_POINTS)
-        try:
-            self._sweep = solver.sweep(self._sweep_base, eid, values, field=f)
-        except ModelError as exc:
-            self._sweep = None
-            self.message.setText(f"No sweep: {exc}")
         self.low_label.setText(self._show(model, eid, f, lo))
         self.high_label.setText(self._show(model, eid, f, hi))
+        self._sweep_generation += 1       # a sweep still running is for an older model
+        self._sweep_pending = False
+        key = (self._sweep_base, eid, f, tuple(float(v) for v in values))
+        found = self._cached_sweep(key)
+        if found is None and (background or dof_count(model) > SWEEP_SYNC_DOF_LIMIT):
+            self._sweep_pending = True
+            self._dim_sweep(model)
+            self._pool.start(_SweepJob(self._sweep_generation, key, self._relay,
+                                       lambda: self._sweep_generation))
+            return
+        if found is None:
+            try:
+                found = solver.sweep(self._sweep_base, eid, values, field=f)
+                self._remember_sweep(key, found)
+            except ModelError as exc:
+                found = None
+                self.message.setText(f"No sweep: {exc}")
+        self._sweep = found
         self._draw_sweep(model)
+
+    @property
+    def sweep_pending(self) -> bool:
+        """True while the sweep plot shows curves of an older model (a new one is computed)."""
+        return self._sweep_pending
+
+    def wait_sweep(self, msecs: int = 60000) -> bool:
+        """Block until no sweep is being computed (tests, benchmarks). True when idle."""
+        from PySide6.QtCore import QCoreApplication, QElapsedTimer
+
+        clock = QElapsedTimer()
+        clock.start()
+        while self._sweep_pending and clock.elapsed() < msecs:
+            self._pool.waitForDone(20)
+            QCoreApplication.processEvents()
+        return not self._sweep_pending
+
+    def shutdown(self) -> None:
+        """Stop the sweep worker (the window is closing)."""
+        self._sweep_generation += 1
+        self._pool.clear()
+        self._pool.waitForDone(5000)
+
+    def _on_sweep_done(self, generation: int, done, error: str):
+        if done is not None:
+            self._remember_sweep(*done)
+        if generation != self._sweep_generation:
+            return
+        self._sweep_pending = False
+        model = self.document.model
+        if done is None:
+            self._sweep = None
+            self.message.setText(f"No sweep: {error}")
+        else:
+            self._sweep = done[1]
+        self._draw_sweep(model)
+
+    def _cached_sweep(self, key):
+        try:
+            found = self._sweep_cache.get(key)
+        except TypeError:
+            return None
+        if found is not None:
+            self._sweep_cache.move_to_end(key)
+        return found
+
+    def _remember_sweep(self, key, sweep) -> None:
+        try:
+            self._sweep_cache[key] = sweep
+        except TypeError:
+            return
+        while len(self._sweep_cache) > SWEEP_CACHE_SIZE:
+            self._sweep_cache.popitem(last=False)
+
+    def _dim_sweep(self, model):
+        """The shown sweep is for an older model: dimmed, and the title says it is updating."""
+        for item in self._sweep_curves:
+            item.setOpacity(0.3)
+        if self._key is not None and self._sweep is not None:
+            eid, f = self._key
+            label = model.element(eid).label if eid in model.ids() else eid
+            self._set_title(f"every mode against {label} · {f}: updating for the edited model…")
 
     def _place_slider(self, value: float):
         if value <= 0:
@@ -491,8 +636,12 @@ class TunePanel(QWidget):
         self.value_label.setText(f"{name} = {self._show(model, eid, f, v)}")
 
     def _refresh_sources(self, model):
-        self.sources_list.clear()
         texts = source_texts(model)
+        key = (tuple(texts), model.margin_percent)
+        if key == self._sources_key:
+            return
+        self._sources_key = key
+        self.sources_list.clear()
         for t in texts:
             self.sources_list.addItem(t)
         if texts:
@@ -585,7 +734,9 @@ class TunePanel(QWidget):
         if self.solve_service is None or dof_count(model) > SYNC_DOF_LIMIT:
             return False
         try:
-            analysis = solver.analyse(model)
+            analysis = self.solve_service.cached(model) if hasattr(self.solve_service, "cached") \
+                else None
+            analysis = analysis or solver.analyse(model)
         except ModelError:
             return False   # the service's own solve will report why
         return self.solve_service.offer(model, analysis)
@@ -672,14 +823,15 @@ class TunePanel(QWidget):
     def _draw_sweep(self, model):
         st = current_style()
         pi = self.plot.getPlotItem()
-        pi.clear()
-        self._cursor = self._cursor_dots = self._proposal_line = None
         if self._sweep is None or self._key is None:
-            pi.setTitle("")
+            pi.clear()
+            self._cursor = self._cursor_dots = self._proposal_line = None
+            self._sweep_curves = []
+            self._sweep_frame = None
+            self._set_title("")
             pi.setLabel("bottom", "")
             return
         eid, f = self._key
-        pi.setLabel("bottom", f"{model.element(eid).label} · {f} ({self._unit(model, eid, f)})")
         # the plot's x is in display units; the sweep and the crossings stay SI
         self._plot_factor = self._factor(model, eid, f)
         values, F = self._sweep.values / self._plot_factor, self._sweep.frequencies_hz
@@ -688,8 +840,59 @@ class TunePanel(QWidget):
         if not top > 0:
             top = 1.0          # only zero-frequency modes: keep the axis at 0 and up
         bands = source_bands(model)
-        lx0 = math.log10(values[0])
         labels = names(model)
+        frame = (eid, f, model.element(eid).label, self._unit(model, eid, f), self._plot_factor,
+                 tuple(bands), tuple(labels.items()), st.name, float(values[0]),
+                 float(values[-1]))
+        if frame != self._sweep_frame or self._cursor is None:
+            # a new element, range, unit, source or palette: the items are built again; an
+            # edit elsewhere in the model only moves the curves (new data, same items)
+            self._sweep_frame = frame
+            self._build_sweep_items(model, st, values, bands, labels)
+        # the modes in groups, each group one item of curves joined and separated by NaN: an
+        # item per mode costs its own overhead (1000 modes), a single path of every mode is
+        # slow to fill where the curves crowd
+        groups = [F[:, j:j + SWEEP_GROUP] for j in range(0, F.shape[1], SWEEP_GROUP)]
+        if len(groups) != len(self._sweep_curves):
+            pi = self.plot.getPlotItem()
+            for item in self._sweep_curves:
+                pi.removeItem(item)
+            pen = pg.mkPen(st.ink, width=1.4)
+            self._sweep_curves = [pi.plot([], [], pen=pen, connect="finite") for _g in groups]
+            for item in self._sweep_curves:
+                item.setZValue(-1)      # over bands and their labels, under markers and cursor
+        for item, G in zip(self._sweep_curves, groups):
+            xs = np.tile(np.append(values, np.nan), G.shape[1])
+            ys = np.vstack([G, np.full((1, G.shape[1]), np.nan)]).T.ravel()
+            item.setData(xs, ys)
+            item.setOpacity(1.0)
+        pts = band_crossings(self._sweep.values, F, bands)
+        if pts:
+            xs, ys = zip(*pts)
+            self._crossing_dots.setData([x / self._plot_factor for x in xs], list(ys))
+        else:
+            self._crossing_dots.setData([], [])
+        self.crossings = pts
+        band_top = max([b[5] for b in bands if b[5] < 3 * top] + [0.0])
+        pi.setXRange(math.log10(values[0]), math.log10(values[-1]), padding=0.02)
+        pi.setYRange(0, max(top, band_top) * 1.05, padding=0)
+        self._set_title(f"every mode against {model.element(eid).label} · {f}")
+        self._update_cursor(model)
+        self._draw_proposal()
+
+    def _set_title(self, text: str):
+        if text != getattr(self, "_sweep_title", None):
+            self._sweep_title = text
+            self.plot.getPlotItem().setTitle(text, color=current_style().ink_soft_hex,
+                                             size="9pt")
+
+    def _build_sweep_items(self, model, st, values, bands, labels):
+        """The sweep plot's items for the picked element: bands, curves, crossings, cursor."""
+        pi = self.plot.getPlotItem()
+        pi.clear()
+        eid, f = self._key
+        pi.setLabel("bottom", f"{model.element(eid).label} · {f} ({self._unit(model, eid, f)})")
+        lx0 = math.log10(values[0])
         warn = st.warning
         for sid, order, lo, hi, lo_w, hi_w in bands:
             c = pg.mkColor(warn)
@@ -708,22 +911,20 @@ class TunePanel(QWidget):
                 core.setZValue(-9)
                 pi.addItem(core)
             else:
-                pi.addItem(pg.InfiniteLine(pos=lo, angle=0, pen=pg.mkPen(warn, width=1,
-                                                                      style=Qt.PenStyle.DashLine)))
+                line = pg.InfiniteLine(pos=lo, angle=0, pen=pg.mkPen(warn, width=1,
+                                                                 style=Qt.PenStyle.DashLine))
+                line.setZValue(-2)      # under the mode curves (z -1), over the bands
+                pi.addItem(line)
             name = labels.get(sid, sid)
             text = pg.TextItem(f"{name}" + (f" ×{order:g}" if order is not None else ""),
                                color=warn, anchor=(0, 1))
             text.setPos(lx0, hi_w)
+            text.setZValue(-2)
             pi.addItem(text)
-        for j in range(F.shape[1]):
-            pi.plot(values, F[:, j], pen=pg.mkPen(st.ink, width=1.4))
-        pts = band_crossings(self._sweep.values, F, bands)
-        if pts:
-            xs, ys = zip(*pts)
-            xs = [x / self._plot_factor for x in xs]
-            pi.plot(list(xs), list(ys), pen=None, symbol="o", symbolSize=7,
-                    symbolBrush=pg.mkBrush(st.error), symbolPen=pg.mkPen(st.background))
-        self.crossings = pts
+        self._sweep_curves = []           # filled by _draw_sweep, a group of modes each
+        self._crossing_dots = pi.plot([], [], pen=None, symbol="o", symbolSize=7,
+                                      symbolBrush=pg.mkBrush(st.error),
+                                      symbolPen=pg.mkPen(st.background))
         self._cursor = pg.InfiniteLine(angle=90, pen=pg.mkPen(st.accent, width=2))
         pi.addItem(self._cursor)
         self._cursor_dots = pi.plot([], [], pen=None, symbol="o", symbolSize=8,
@@ -733,17 +934,10 @@ class TunePanel(QWidget):
                                                                      style=Qt.PenStyle.DashLine))
         self._proposal_line.hide()
         pi.addItem(self._proposal_line)
-        band_top = max([b[5] for b in bands if b[5] < 3 * top] + [0.0])
-        pi.setXRange(math.log10(values[0]), math.log10(values[-1]), padding=0.02)
         # a decade either way: label 1 and 3 of each decade (evenly spread on a log axis; a
         # value like "300e3" is wide, 1, 2, 5 would overlap here)
         pi.getAxis("bottom").setTicks(log_ticks(values[0], values[-1], labelled=(1, 3),
                                                 fmt=value_text))
-        pi.setYRange(0, max(top, band_top) * 1.05, padding=0)
-        pi.setTitle(f"every mode against {model.element(eid).label} · {f}", color=st.ink_soft_hex,
-                    size="9pt")
-        self._update_cursor(model)
-        self._draw_proposal()
 
     def _update_cursor(self, model):
         if self._cursor is None or self._key is None:
@@ -758,9 +952,10 @@ class TunePanel(QWidget):
             st = current_style()
             bad = {c.mode for c in solver.margin_check(model, a.modal).conflicts} \
                 if model.excitations else set()
-            # a mode inside a widened band is marked in the error colour at the cursor
-            brushes = [pg.mkBrush(st.error if i + 1 in bad else st.accent)
-                       for i in range(len(fr))]
+            # a mode inside a widened band is marked in the error colour at the cursor (one
+            # brush for all when none is: a brush per dot costs pyqtgraph a symbol each)
+            brushes = ([pg.mkBrush(st.error if i + 1 in bad else st.accent)
+                        for i in range(len(fr))] if bad else pg.mkBrush(st.accent))
             self._cursor_dots.setData(np.full(fr.shape, v / self._plot_factor), fr,
                                       symbolBrush=brushes)
         else:

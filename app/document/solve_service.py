@@ -1,24 +1,44 @@
 """Solve the document's model after each edit, debounced, off the UI thread when it is large.
 
-Edits come in bursts (a drag, typing), so a solve starts ~60 ms after the last change. Small
-models (up to :data:`THREAD_DOF_LIMIT` DOFs) are solved at once on the UI thread: a dense eigensolve
-of a few hundred DOFs takes milliseconds, less than a thread hand-off costs in latency. Larger ones
-go to a worker thread, which is safe without locks because the Model is immutable: the worker holds
-its own snapshot. Every solve carries a generation number, and a result whose generation is not the
-latest is dropped, so a slow old solve can never overwrite a newer one.
+A single edit (a typed value, a drag's release, an undo) is solved on the next turn of the event
+loop, so its results are painted with no added wait; attached with ``immediate`` (the main
+window does so after every view has connected to the document) a small model is solved within
+the edit itself, and the edit and its results reach the screen in one paint. Edits that come in
+a burst (keys held down, undo pressed repeatedly, a slider on a large model) are debounced: the
+solve starts :data:`DEBOUNCE_MS` after the last one.
+
+Small models (up to :data:`THREAD_DOF_LIMIT` DOFs) are solved on the UI thread: a dense
+eigensolve of that size takes a few milliseconds. Larger ones are handed by a worker thread to a
+worker process (:mod:`app.results.offload`; scipy's eigensolver keeps the interpreter lock while
+it runs, so in a thread it froze the window). That is safe without locks because the Model is
+immutable: the worker holds its own snapshot. Every solve carries a generation number, and a
+result whose generation is not the latest is dropped, so a slow old solve can never overwrite a
+newer one.
+
+The analyses of the last few models are kept (:data:`CACHE_SIZE`): an undo, a redo or an edit
+typed back to an earlier value gives a model equal to one already solved, and its results come
+back without a new solve. Models are immutable values, so an equal model has the same results.
 """
 
 from __future__ import annotations
 
+import dataclasses
+import time
 import traceback
+from collections import OrderedDict
 
 from PySide6.QtCore import QObject, QRunnable, QThreadPool, QTimer, Signal
 
 from solver.errors import ModelError
 
-#: Above this many degrees of freedom the solve runs in a worker thread.
-THREAD_DOF_LIMIT = 500
+#: Above this many degrees of freedom the solve runs in the worker process (a dense solve of
+#: this size takes ~10-30 ms on a loaded machine; beyond it the UI thread would stall visibly).
+THREAD_DOF_LIMIT = 250
+#: Debounce of a burst of edits (ms): an edit within this time of the previous one waits this
+#: long for the next.
 DEBOUNCE_MS = 60
+#: Analyses of this many recent models are kept for undo, redo and values typed back.
+CACHE_SIZE = 8
 
 
 def analyse(model):
@@ -41,14 +61,21 @@ class _Relay(QObject):
 
 
 class _SolveJob(QRunnable):
-    def __init__(self, generation, model, relay):
+    def __init__(self, generation, model, relay, latest):
         super().__init__()
-        self.generation, self.model, self.relay = generation, model, relay
+        self.generation, self.model, self.relay, self.latest = generation, model, relay, latest
         self.setAutoDelete(True)
 
     def run(self):
+        if self.latest() != self.generation:
+            return     # queued behind a solve and overtaken by a newer edit: never needed
         try:
-            result = analyse(self.model)
+            from app.results import offload
+
+            result = offload.run(offload.analyse, self.model)
+            # the views tell current results by the identity of their model: the process sent
+            # back an equal copy, so the analysis gets the document's model object again
+            result = dataclasses.replace(result, model=self.model)
             self.relay.done.emit(self.generation, result, "")
         except ModelError as exc:
             self.relay.done.emit(self.generation, None, str(exc))
@@ -81,27 +108,46 @@ class SolveService(QObject):
     live_changed = Signal(bool)
 
     def __init__(self, document=None, delay_ms: int = DEBOUNCE_MS,
-                 thread_dof_limit: int = THREAD_DOF_LIMIT, parent=None):
+                 thread_dof_limit: int = THREAD_DOF_LIMIT, parent=None, immediate: bool = False):
         super().__init__(parent)
+        # _timer starts a solve (0 ms: on the next event-loop turn, so the signals of one edit
+        # are all handled first); _burst_timer holds it back while edits keep coming
         self._timer = QTimer(self)
         self._timer.setSingleShot(True)
-        self._timer.setInterval(delay_ms)
+        self._timer.setInterval(0)
         self._timer.timeout.connect(self._start)
+        self._burst_timer = QTimer(self)
+        self._burst_timer.setSingleShot(True)
+        self._burst_timer.setInterval(delay_ms)
+        self._burst_timer.timeout.connect(lambda: self._timer.start())
+        self._last_request = -1e9
+        self._cache: OrderedDict = OrderedDict()
         self.thread_dof_limit = thread_dof_limit
+        self.immediate = bool(immediate)
         self._model = None
         self._generation = 0
         self._pending = False
         self._running = 0
-        self._relay = _Relay(self)
-        self._relay.done.connect(self._on_done)
+        # the pool first: as a child it is then destroyed first, waiting for a running solve
+        # while the relay that solve reports through still exists
         self._pool = QThreadPool(self)
         self._pool.setMaxThreadCount(1)
+        self._relay = _Relay(self)
+        self._relay.done.connect(self._on_done)
         self.last_analysis = None
         self.last_error = ""
         self._live = False
         if document is not None:
-            document.model_changed.connect(self.request)
-            self.request(document.model)
+            self.attach(document)
+
+    def attach(self, document, immediate: bool | None = None) -> None:
+        """Follow ``document.model_changed`` and solve its current model. With ``immediate``,
+        connect it after every view has connected: a small model is then solved inside the
+        edit's signal, after the views have taken the new model."""
+        if immediate is not None:
+            self.immediate = bool(immediate)
+        document.model_changed.connect(self.request)
+        self.request(document.model)
 
     @property
     def pending(self) -> bool:
@@ -125,17 +171,64 @@ class SolveService(QObject):
             self.live_changed.emit(live)
 
     def request(self, model) -> None:
-        """Solve ``model`` once edits pause for the debounce interval."""
+        """Solve ``model``: on the next event-loop turn after a single edit, or once a burst of
+        edits pauses for the debounce interval."""
         self._model = model
         self._generation += 1
         self._set_pending(True)
-        self._timer.start()
+        now = time.monotonic()
+        burst = (now - self._last_request) * 1000.0 < self._burst_timer.interval()
+        self._last_request = now
+        if self._timer.isActive():
+            return          # a solve starts on this turn anyway, and takes the latest model
+        if burst or self._burst_timer.isActive():
+            self._burst_timer.start()
+        elif (self.immediate and not self._live and self._timer.interval() == 0
+              and dof_count(model) <= self.thread_dof_limit):
+            self._start()
+        else:
+            self._timer.start()
+
+    def repeat_results(self, model) -> bool:
+        """Deliver the results of ``model`` again when they are already in (a small model is
+        solved inside the signal that brought it, so a view that cleared itself afterwards, on
+        Open or New, gets them back). True when delivered."""
+        last = self.last_analysis
+        if self._pending or last is None or getattr(last, "model", None) is not model:
+            return False
+        self.results_ready.emit(last)
+        return True
 
     def solve_now(self) -> None:
         """Skip the debounce wait (tests, export)."""
-        if self._timer.isActive():
+        if self._timer.isActive() or self._burst_timer.isActive():
             self._timer.stop()
+            self._burst_timer.stop()
             self._start()
+
+    def cached(self, model):
+        """The analysis of a model equal to ``model`` solved recently (its ``model`` is
+        ``model`` itself), or None."""
+        try:
+            found = self._cache.get(model)
+        except TypeError:      # an unhashable field: no reuse, never an error
+            return None
+        if found is None:
+            return None
+        self._cache.move_to_end(model)
+        return found if found.model is model else dataclasses.replace(found, model=model)
+
+    def _remember(self, analysis) -> None:
+        model = getattr(analysis, "model", None)
+        if model is None:
+            return
+        try:
+            self._cache[model] = analysis
+        except TypeError:
+            return
+        self._cache.move_to_end(model)
+        while len(self._cache) > CACHE_SIZE:
+            self._cache.popitem(last=False)
 
     def offer(self, model, analysis) -> bool:
         """Take results computed elsewhere (the tune panel solves small models at once while a
@@ -144,6 +237,7 @@ class SolveService(QObject):
         if model is not self._model or analysis is None:
             return False
         self._timer.stop()
+        self._burst_timer.stop()
         self._on_done(self._generation, analysis, "")
         return True
 
@@ -163,8 +257,12 @@ class SolveService(QObject):
         generation, model = self._generation, self._model
         if model is None:
             return
+        hit = self.cached(model)
+        if hit is not None:
+            self._on_done(generation, hit, "")
+            return
         if dof_count(model) > self.thread_dof_limit:
-            self._pool.start(_SolveJob(generation, model, self._relay))
+            self._pool.start(_SolveJob(generation, model, self._relay, lambda: self._generation))
             return
         try:
             result, error = analyse(model), ""
@@ -175,6 +273,8 @@ class SolveService(QObject):
         self._on_done(generation, result, error)
 
     def _on_done(self, generation: int, result, error: str):
+        if result is not None:
+            self._remember(result)    # right for its model even when that is no longer current
         if generation != self._generation:
             return  # stale: the model changed while this solve ran
         self._set_pending(False)
@@ -187,6 +287,7 @@ class SolveService(QObject):
 
     def shutdown(self):
         self._timer.stop()
+        self._burst_timer.stop()
         self._generation += 1
         self._pool.clear()
         self._pool.waitForDone(5000)

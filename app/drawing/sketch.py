@@ -16,6 +16,7 @@ from __future__ import annotations
 import math
 from statistics import median
 
+import numpy as np
 from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QBrush, QFont, QFontMetricsF, QPainter, QPen
 
@@ -47,6 +48,7 @@ class SketchLayout:
 
     def __init__(self, model, rect: QRectF, base: float | None = None):
         self.model = model
+        self._geometry = _geometry_key(model)
         self.rect = QRectF(rect)
         nodes = list(model.masses) + list(model.anchors)
         self._nodes = {n.id: n for n in nodes}
@@ -92,6 +94,17 @@ class SketchLayout:
             a, b = self.point(s.a), self.point(s.b)
             length = math.hypot(b.x() - a.x(), b.y() - a.y())
             self._turns[s.id] = int(min(8, max(3, round(length / (0.38 * base)))))
+
+    def rebind(self, model) -> bool:
+        """Use this layout for ``model`` when everything the layout depends on (node positions,
+        masses, links, kind) is the same; False (and nothing changed) otherwise."""
+        if model is self.model:
+            return True
+        if _geometry_key(model) != self._geometry:
+            return False
+        self.model = model
+        self._nodes = {n.id: n for n in list(model.masses) + list(model.anchors)}
+        return True
 
     # -- coordinates ------------------------------------------------------------------------
     def _min_spacing_px(self):
@@ -247,6 +260,15 @@ class SketchLayout:
         if abs(sx) >= abs(sy):
             return QPointF(math.copysign(1.0, sx), 0.0)
         return QPointF(0.0, math.copysign(1.0, sy))
+
+
+def _geometry_key(model) -> tuple:
+    """What a :class:`SketchLayout` reads from a model: kind, nodes, masses and links."""
+    return (model.kind,
+            tuple((m.id, m.x, m.y, m.mass) for m in model.masses),
+            tuple((a.id, a.x, a.y) for a in model.anchors),
+            tuple((e.id, e.a, e.b) for e in model.springs),
+            tuple((e.id, e.a, e.b) for e in model.dampers))
 
 
 def fit_scale(layout: SketchLayout, displacements: dict | None, fraction: float = 0.12) -> float:
@@ -512,6 +534,217 @@ def _label_texts(lay, labels, energy) -> list[tuple[str, object, str]]:
     return out
 
 
+# -- animation frames -----------------------------------------------------------------------
+# A motion view redraws the model many times a second. Without labels or energy tints (over
+# LABEL_LIMIT masses the view has none) a frame is the same picture as paint_sketch's, built
+# differently: the parts that never move (the grey layout at rest and the anchors) are painted
+# once into a pixmap by paint_static_layer, and the moving springs, dashpots and masses are
+# computed for every element at once with numpy and stroked as one path (paint_moving_layer).
+# Per-element Python work, not painting, was what capped the frame rate at 200 masses and more.
+
+
+def can_paint_fast(model, displacements, labels=False, energy=None, highlight=None) -> bool:
+    """True when :func:`paint_static_layer` + :func:`paint_moving_layer` draw what
+    :func:`paint_sketch` would (translation models, moving, no labels, tint or highlight)."""
+    return (model is not None and model.kind != "torsion" and bool(displacements)
+            and not labels and not energy and not highlight)
+
+
+def paint_static_layer(painter: QPainter, lay: SketchLayout, style: Style | None = None,
+                       anchors: bool = True):
+    """What does not move in a frame: the layout at rest in grey, then (with ``anchors``,
+    for :func:`paint_moving_layer`) the anchors."""
+    st = style or current_style()
+    model = lay.model
+    lw = max(1.0, lay.base / 18.0)
+    painter.save()
+    painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+    try:
+        _paint_layer(painter, lay, st, None, 1.0, lw * 0.9, grey=True, energy=None,
+                     labels=False, highlight=set())
+        painter.setBrush(Qt.BrushStyle.NoBrush)
+        for a in (model.anchors if anchors else ()):
+            painter.setPen(QPen(st.anchor, lw))
+            painter.drawPath(shapes.anchor_path(lay.point(a.id), 1.5 * lay.base,
+                                                lay.anchor_normal(a.id)))
+    finally:
+        painter.restore()
+
+
+def paint_deformed_layer(painter: QPainter, lay: SketchLayout, displacements: dict,
+                         scale: float = 1.0, style: Style | None = None, energy=None,
+                         labels=True, highlight=None, motion_px: float = 0.0) -> None:
+    """:func:`paint_sketch`'s deformed layer alone (its layer at rest comes from
+    :func:`paint_static_layer` with ``anchors=False``): a frame with labels or a tint, the
+    labels kept clear of the room each symbol sweeps (``motion_px``), as paint_sketch does."""
+    st = style or current_style()
+    painter.save()
+    painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+    try:
+        _paint_layer(painter, lay, st, displacements, scale, max(1.0, lay.base / 18.0),
+                     grey=False, energy=energy, labels=labels, highlight=set(highlight or ()),
+                     show_rest_radius=True)
+        if labels:
+            _paint_labels(painter, lay, st, labels, energy, motion_px)
+        else:
+            lay.placed_labels = []
+    finally:
+        painter.restore()
+
+
+def _frame_arrays(lay: SketchLayout) -> dict:
+    """Per-layout arrays for fast frames (node points, block sizes, link ends, lanes, turns)."""
+    fd = getattr(lay, "_frame_arrays", None)
+    if fd is not None and fd["geometry"] is lay._geometry:
+        return fd
+    model = lay.model
+    nodes = list(model.masses) + list(model.anchors)
+    index = {n.id: k for k, n in enumerate(nodes)}
+    rest = np.array([[q.x(), q.y()] for q in (lay.to_px(n.x, n.y) for n in nodes)],
+                    float).reshape(-1, 2)
+    half = np.zeros(len(nodes))       # half side of a mass block; 0: junction or anchor
+    for k, m in enumerate(model.masses):
+        if m.mass > 0:
+            half[k] = shapes.mass_block_side(m.mass, lay.base, lay.reference_mass) / 2
+    lanes = lay.lanes()
+
+    def links(elements):
+        a = np.array([index[e.a] for e in elements], int)
+        b = np.array([index[e.b] for e in elements], int)
+        lane = np.array([lanes.get(e.id, 0.0) for e in elements], float)
+        return a, b, lane
+
+    fd = {"geometry": lay._geometry, "n_masses": len(model.masses),
+          "mass_ids": [m.id for m in model.masses], "rest": rest, "half": half,
+          "springs": links(model.springs), "dampers": links(model.dampers),
+          "turns": np.array([lay.turns(s.id) for s in model.springs], int)}
+    lay._frame_arrays = fd
+    return fd
+
+
+def _exit(half, centre, start, u):
+    """Distance from ``start`` along unit ``u`` to the edge of the block round ``centre``
+    (per row; 0 where ``half`` is 0), as :meth:`SketchLayout._exit_distance`."""
+    t = np.full(len(half), np.inf)
+    for ax in (0, 1):
+        pu = u[:, ax]
+        ok = np.abs(pu) > 1e-12
+        edge = np.where(pu > 0, centre[:, ax] + half, centre[:, ax] - half)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            t = np.where(ok, np.minimum(t, (edge - start[:, ax]) / np.where(ok, pu, 1.0)), t)
+    t = np.where(np.isfinite(t), np.maximum(t, 0.0), 0.0)
+    return np.where(half > 0, t, 0.0)
+
+
+def _link_ends(fd, points, links):
+    """Ends of every link (n, 2) and (n, 2), as :meth:`SketchLayout.link_ends`."""
+    a, b, lane = links
+    pa, pb = points[a], points[b]
+    d = pb - pa
+    length = np.hypot(d[:, 0], d[:, 1])
+    short = length < 1e-9
+    u = d / np.where(short, 1.0, length)[:, None]
+    nrm = np.stack([-u[:, 1], u[:, 0]], axis=1)
+    sa, sb = pa + nrm * lane[:, None], pb + nrm * lane[:, None]
+    ta = _exit(fd["half"][a], pa, sa, u)
+    tb = _exit(fd["half"][b], pb, sb, -u)
+    overlap = (ta + tb >= length - 2.0)[:, None]    # blocks overlap: keep a stub
+    p1 = np.where(overlap, sa, sa + u * ta[:, None])
+    p2 = np.where(overlap, sb, sb - u * tb[:, None])
+    return np.where(short[:, None], pa, p1), np.where(short[:, None], pb, p2)
+
+
+def _coils(p1, p2, turns, width):
+    """Vertices of the zig-zag springs (as :func:`shapes.coil_path`): ``[(index, (m, 2))]`` per
+    spring drawn (a degenerate one, p1 == p2, draws nothing there either)."""
+    d = p2 - p1
+    length = np.hypot(d[:, 0], d[:, 1])
+    keep = length >= 1e-9
+    xs = []
+    for t in np.unique(turns[keep]):
+        sel = keep & (turns == t)
+        q1, L = p1[sel], length[sel]
+        u = d[sel] / L[:, None]
+        nrm = np.stack([-u[:, 1], u[:, 0]], axis=1)
+        lead = np.minimum(0.2 * L, np.maximum(width, 0.12 * L))
+        lead = np.maximum(0.0, np.minimum(lead, 0.35 * L))
+        body = L - 2 * lead
+        peaks = 2 * int(t)
+        i = np.arange(peaks)
+        along = np.concatenate([np.zeros((len(L), 1)), lead[:, None],
+                                lead[:, None] + body[:, None] * (i + 0.5) / peaks,
+                                (L - lead)[:, None], L[:, None]], axis=1)
+        side = np.concatenate([[0.0, 0.0], np.where(i % 2 == 0, 0.5, -0.5) * width, [0.0, 0.0]])
+        x = q1[:, 0:1] + u[:, 0:1] * along + nrm[:, 0:1] * side[None, :]
+        y = q1[:, 1:2] + u[:, 1:2] * along + nrm[:, 1:2] * side[None, :]
+        x[:, -1], y[:, -1] = p2[sel, 0], p2[sel, 1]       # the end exactly on p2
+        xs.extend(zip(np.flatnonzero(sel), np.stack([x, y], axis=2)))
+    return sorted(xs, key=lambda item: item[0])
+
+
+def paint_moving_layer(painter: QPainter, lay: SketchLayout, displacements: dict,
+                       scale: float = 1.0, style: Style | None = None) -> None:
+    """The moving part of a frame (see :func:`can_paint_fast`): springs, dashpots and masses
+    displaced by ``displacements`` x ``scale``, over :func:`paint_static_layer`."""
+    # numpy straight into a QPolygonF's memory (the motion view has pyqtgraph loaded already)
+    from pyqtgraph.functions import create_qpolygonf, ndarray_from_qpolygonf
+
+    st = style or current_style()
+    model = lay.model
+    fd = _frame_arrays(lay)
+    base, n_m = lay.base, fd["n_masses"]
+    lw = max(1.0, base / 18.0)
+    points = fd["rest"].copy()
+    k = scale * lay.px_per_m
+    for j, mid in enumerate(fd["mass_ids"]):
+        dd = displacements.get(mid)
+        if dd:
+            points[j, 0] += dd.get("x", 0.0) * k
+            points[j, 1] -= dd.get("y", 0.0) * k
+    painter.save()
+    painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+    try:
+        pen = QPen(st.ink, lw)
+        pen.setCapStyle(Qt.PenCapStyle.RoundCap)
+        pen.setJoinStyle(Qt.PenJoinStyle.RoundJoin)
+        painter.setBrush(Qt.BrushStyle.NoBrush)
+        painter.setPen(pen)
+        if len(fd["springs"][0]):
+            p1, p2 = _link_ends(fd, points, fd["springs"])
+            # one stroke per spring, as paint_sketch: a single path of every spring is faster
+            # to build but far slower to fill where the zig-zags overlap
+            for _i, verts in _coils(p1, p2, fd["turns"], 0.42 * base):
+                poly = create_qpolygonf(len(verts))
+                ndarray_from_qpolygonf(poly)[:] = verts
+                painter.drawPolyline(poly)
+        if len(fd["dampers"][0]):
+            p1, p2 = _link_ends(fd, points, fd["dampers"])
+            for q1, q2 in zip(p1, p2):
+                painter.drawPath(shapes.dashpot_path(QPointF(*q1), QPointF(*q2), 0.42 * base))
+        half = fd["half"][:n_m]
+        pts = points[:n_m]
+        painter.setPen(QPen(st.mass_edge, lw))
+        painter.setBrush(QBrush(st.mass_fill))
+        fill, edge = QBrush(st.mass_fill), QBrush(st.mass_edge)
+        for (x, y), h in zip(pts.tolist(), half.tolist()):   # in order: blocks may overlap
+            if h > 0:
+                painter.setBrush(fill)
+                painter.drawRect(QRectF(x - h, y - h, 2 * h, 2 * h))
+            else:
+                painter.setBrush(edge)
+                painter.drawEllipse(QPointF(x, y), 0.14 * base, 0.14 * base)
+        for j, m in enumerate(model.masses):
+            if m.fixed:
+                below = half[j] if half[j] > 0 else 0.14 * base
+                # the lock is drawn with the mass's own brush, as paint_sketch does
+                painter.setBrush(QBrush(st.mass_fill if half[j] > 0 else st.mass_edge))
+                painter.setPen(QPen(st.ink_soft, lw))
+                _paint_locks(painter, lay, QPointF(*pts[j]), below, m.fixed)
+        painter.setBrush(Qt.BrushStyle.NoBrush)
+    finally:
+        painter.restore()
+
+
 def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
     from app.drawing.labels import LabelPlacer, around, segment_boxes, shifted
 
@@ -652,4 +885,5 @@ def _paint_locks(painter, lay, c: QPointF, below: float, fixed):
         painter.drawPath(shapes.anchor_path(p, s, QPointF(0, -1), 3))
 
 
-__all__ = ["SketchLayout", "paint_sketch", "fit_scale", "symbol_rects", "LIGHT"]
+__all__ = ["SketchLayout", "paint_sketch", "fit_scale", "symbol_rects", "LIGHT", "can_paint_fast",
+           "paint_static_layer", "paint_moving_layer", "paint_deformed_layer"]

@@ -130,9 +130,10 @@ def test_us_units_reach_plots_tables_traces_csv_and_messages(qtbot, window, tmp_
     (label, f, mag), *_ = panel.plotted_data()
     assert label == si_label
     np.testing.assert_allclose(mag, si_mag * LBF / INCH, rtol=1e-12)
-    head = [panel.peaks_table.horizontalHeaderItem(c).text() for c in range(5)]
+    peaks = panel.peaks_table.model()
+    head = [peaks.headerData(c, Qt.Orientation.Horizontal) for c in range(5)]
     assert "in/lbf" in head[2]
-    assert read_number(panel.peaks_table.item(0, 2).text()) == pytest.approx(
+    assert read_number(peaks.index(0, 2).data()) == pytest.approx(
         si_peak * LBF / INCH, rel=5e-4)
     # Tune sweep: the stiffness axis in lbf/in
     assert stated_unit(window.tune_panel.plot.getPlotItem().getAxis("bottom"))[0] == "lbf/in"
@@ -341,8 +342,9 @@ def test_one_number_format_in_table_panels_report_csv_and_cli(qtbot, window, tmp
     panel = window.response_panel
     render_report(model, analysis, tmp_path / "r.png", dpi=60, response=panel.response)
     assert f1 in drawn                                   # the report's mode table
-    amp = panel.peaks_table.item(0, 2).text()
-    freq = panel.peaks_table.item(0, 1).text()
+    peaks = panel.peaks_table.model()
+    amp = peaks.index(0, 2).data()
+    freq = peaks.index(0, 1).data()
     assert amp in drawn and freq in drawn                # the report's peaks table
 
     # CSV: units in every header, 12 significant digits at most, values intact

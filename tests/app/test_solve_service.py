@@ -1,0 +1,120 @@
+"""Solve service: when and where a model is solved, and that what comes back is current.
+
+References: the two-mass chain's natural frequencies are the roots of det(K - w^2 M) = 0, checked
+with scipy.linalg.eigh(K, M) built by hand (REFERENCES.md section 10), rtol 1e-10.
+"""
+
+import numpy as np
+import pytest
+import scipy.linalg
+
+from app.document import solve_service
+from app.document.document import Document
+from app.document.solve_service import SolveService
+
+
+def _reference_hz(k1, k2, m1=2.0, m2=1.0):
+    K = np.array([[k1 + k2, -k2], [-k2, k2]])
+    M = np.diag([m1, m2])
+    return np.sqrt(scipy.linalg.eigh(K, M, eigvals_only=True)) / (2 * np.pi)
+
+
+def _frequencies(analysis):
+    return np.asarray(analysis.modal.frequencies_hz, float)
+
+
+def test_single_edit_solved_inside_the_edit(qtbot, two_mass_model):
+    """common practice: a lone edit of a small model needs no debounce wait; with ``immediate``
+    its results are delivered before the edit call returns, for the document's own model."""
+    doc = Document(two_mass_model)
+    service = SolveService(parent=doc)
+    got = []
+    service.results_ready.connect(got.append)
+    service.attach(doc, immediate=True)
+    assert got and got[-1].model is doc.model
+    qtbot.wait(2 * solve_service.DEBOUNCE_MS)     # a pause: the next edit is a single one
+    doc.set_element("s2", k=4000.0)
+    assert got[-1].model is doc.model and not service.pending
+    np.testing.assert_allclose(_frequencies(got[-1]), _reference_hz(1000.0, 4000.0), rtol=1e-10)
+
+
+def test_undo_reuses_the_earlier_analysis(qtbot, two_mass_model, monkeypatch):
+    """common practice: undo gives back a model equal to one already solved; its results come
+    back without a new solve, as results of the current model object (never marked stale)."""
+    doc = Document(two_mass_model)
+    service = SolveService(doc, parent=doc, immediate=True)
+    got = []
+    service.results_ready.connect(got.append)
+    doc.set_element("s2", k=4000.0)
+    assert service.wait(5000)
+    qtbot.wait(2 * solve_service.DEBOUNCE_MS)
+    calls = []
+    real = solve_service.analyse
+    monkeypatch.setattr(solve_service, "analyse", lambda m: calls.append(m) or real(m))
+    doc.undo_stack.undo()
+    assert not service.pending and calls == []
+    assert got[-1].model is doc.model
+    np.testing.assert_allclose(_frequencies(got[-1]), _reference_hz(1000.0, 500.0), rtol=1e-10)
+
+
+def test_burst_of_edits_is_solved_once(qtbot, two_mass_model, monkeypatch):
+    """common practice: edits in quick succession (keys held down) are debounced: one solve, of
+    the last model."""
+    doc = Document(two_mass_model)
+    service = SolveService(doc, parent=doc, immediate=True)
+    assert service.wait(5000)
+    calls = []
+    real = solve_service.analyse
+    monkeypatch.setattr(solve_service, "analyse", lambda m: calls.append(m) or real(m))
+    qtbot.wait(2 * solve_service.DEBOUNCE_MS)
+    for k in (600.0, 700.0, 800.0, 900.0):
+        doc.set_element("s2", k=k)
+    assert len(calls) <= 1            # the first may go at once; the rest wait for the pause
+    assert service.wait(5000)
+    assert calls[-1] is doc.model and len(calls) <= 2
+    np.testing.assert_allclose(_frequencies(service.last_analysis), _reference_hz(1000.0, 900.0),
+                               rtol=1e-10)
+
+
+def test_large_model_solved_in_worker_process_is_current(qtbot, two_mass_model):
+    """A model above the thread limit (forced here with a limit of 0 DOFs) is solved in the
+    worker process; the results are those of eigh(K, M) and belong to the document's own model
+    object, so no view takes them for stale ones."""
+    from app.results import offload
+
+    doc = Document(two_mass_model)
+    service = SolveService(doc, parent=doc, thread_dof_limit=0)
+    try:
+        got = []
+        service.results_ready.connect(got.append)
+        assert service.wait(120000)
+        doc.set_element("s1", k=2500.0)
+        assert service.pending
+        assert service.wait(120000)
+        assert got[-1].model is doc.model
+        np.testing.assert_allclose(_frequencies(got[-1]), _reference_hz(2500.0, 500.0),
+                                   rtol=1e-10)
+    finally:
+        service.shutdown()
+        offload.shutdown()
+
+
+def test_hidden_sensitivity_table_fills_when_shown(qtbot, two_mass_model):
+    """math: (k/f) df/dk of a spring is half its strain-energy share (see test_tune_panel); the
+    table takes new results only while shown, and shows the latest ones once it is."""
+    from app.docks.sensitivity_table import SensitivityTable
+
+    doc = Document(two_mass_model)
+    service = SolveService(doc, parent=doc, immediate=True)
+    table = SensitivityTable(service)
+    qtbot.addWidget(table)
+    table.hide()
+    doc.set_element("s2", k=4000.0)
+    assert table._has_due and table.model.rowCount() == 0    # not filled while hidden
+    table.show()
+    qtbot.waitExposed(table)
+    assert not table._has_due and table.model.rowCount() == 4   # 2 springs, 2 masses
+    a = service.last_analysis
+    j = list(a.energy.spring_ids).index("s2")
+    assert table.cell_value("s2", "k", 1) == pytest.approx(0.5 * a.energy.strain[0, j],
+                                                           rel=1e-12)
