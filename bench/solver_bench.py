@@ -181,14 +181,15 @@ def junction_section():
                         ("modes, same with links 1e9 stiffer", junction_chain(100, 1e9))):
         system = solver.assemble(model)
         K, M = system.dense("K"), system.dense("M")
-        bare = median_time(lambda: scipy.linalg.eigh(K, M), 9)
-        ours = median_time(lambda: solver.modes(model), 9)
+        bare = median_time(lambda K=K, M=M: scipy.linalg.eigh(K, M), 9)
+        ours = median_time(lambda model=model: solver.modes(model), 9)
         print(f"{name:>34} {bare * 1e3:>13.2f} {ours * 1e3:>9.2f} {ours / bare:>7.2f}")
     for n, sid, mode, stiff in ((10, "v3", 2, 1.0), (25, "v5", 3, 1.0), (25, "v5", 3, 1e8)):
         model = junction_chain(n, stiff)
         target = solver.modes(solver.with_value(model, sid, 6e3)).frequencies_hz[mode - 1]
-        one = median_time(lambda: solver.modes(model), 5)
-        ours = median_time(lambda: solver.retune(model, sid, mode, target), 5)
+        one = median_time(lambda model=model: solver.modes(model), 5)
+        ours = median_time(lambda model=model, sid=sid, mode=mode, target=target:
+                           solver.retune(model, sid, mode, target), 5)
         name = f"retune, {n} masses + junctions" + (f" (x{stiff:g})" if stiff != 1 else "")
         print(f"{name:>34} {'(modes) ' + format(one * 1e3, '.2f'):>13} {ours * 1e3:>9.2f}"
               f" {ours / one:>7.1f}")

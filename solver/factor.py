@@ -218,7 +218,7 @@ def _condense_batch(Bs, Bm, W):
     the larger first), in stacked LAPACK calls. Returns (rest (b, r - d, q), G (b, d, q), ok
     (b,)): ``ok`` False where the geometry leaves a junction direction loose (not handled
     here)."""
-    b, r, d = Bs.shape
+    b, _r, d = Bs.shape
     sv = np.linalg.svd(Bs, compute_uv=False)
     ok = np.all(sv > GEOMETRY_RTOL * sv.max(axis=1, keepdims=True), axis=1)
     order = np.argsort(-W, axis=1, kind="stable")

@@ -13,12 +13,10 @@ from fractions import Fraction
 
 import numpy as np
 import pytest
+from sw_mp import frequencies_hz as mp_frequencies
 
 import solver
-import solver.factor as factor
-from solver import Anchor, Mass, Model, Spring
-
-from sw_mp import frequencies_hz as mp_frequencies
+from solver import Anchor, Mass, Model, Spring, factor
 
 
 def junction_chain(n, ks, kind="line"):

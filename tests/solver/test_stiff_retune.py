@@ -13,9 +13,9 @@ import re
 
 import numpy as np
 import pytest
+import sw_mp
 
 import solver
-import sw_mp
 from solver import Anchor, Mass, Model, ModelError, Spring
 from solver.tuning import eigenvalues_below, reachable_range, retune_result, with_value
 
