@@ -158,6 +158,43 @@ def sparse_section():
               f" method: {runs[0][3]} {' '.join(runs[0][4:])}")
 
 
+def junction_chain(n: int, stiff: float = 1.0) -> Model:
+    """A planar chain of n masses, each reached through a massless junction (first link
+    ``stiff`` times the second) that is also tied to an anchor: 2n DOFs after condensation."""
+    masses, springs, prev = [], [], "g"
+    for i in range(n):
+        masses.append(Mass(f"m{i}", float(i + 1), 0.1 * np.sin(i), 1.0 + 0.1 * i))
+        masses.append(Mass(f"j{i}", float(i + 1) + 0.5, 0.3, 0.0))
+        springs += [Spring(f"a{i}", prev, f"j{i}", 1e4 * stiff), Spring(f"b{i}", f"j{i}", f"m{i}", 1e4),
+                    Spring(f"t{i}", "h", f"j{i}", 1e3), Spring(f"v{i}", "h", f"m{i}", 2e3)]
+        prev = f"m{i}"
+    return Model(kind="planar", masses=tuple(masses),
+                 anchors=(Anchor("g", 0, 0), Anchor("h", 3.3, -5)), springs=tuple(springs))
+
+
+def junction_section():
+    print()
+    print("junctions: modes() with massless junctions (condensed in factored form) against bare"
+          " eigh(K, M) of the condensed matrices; retune against one modes()")
+    print(f"{'case':>34} {'bare eigh ms':>13} {'ours ms':>9} {'ratio':>7}")
+    for name, model in (("modes, 200 DOF + 100 junctions", junction_chain(100)),
+                        ("modes, same with links 1e9 stiffer", junction_chain(100, 1e9))):
+        system = solver.assemble(model)
+        K, M = system.dense("K"), system.dense("M")
+        bare = median_time(lambda K=K, M=M: scipy.linalg.eigh(K, M), 9)
+        ours = median_time(lambda model=model: solver.modes(model), 9)
+        print(f"{name:>34} {bare * 1e3:>13.2f} {ours * 1e3:>9.2f} {ours / bare:>7.2f}")
+    for n, sid, mode, stiff in ((10, "v3", 2, 1.0), (25, "v5", 3, 1.0), (25, "v5", 3, 1e8)):
+        model = junction_chain(n, stiff)
+        target = solver.modes(solver.with_value(model, sid, 6e3)).frequencies_hz[mode - 1]
+        one = median_time(lambda model=model: solver.modes(model), 5)
+        ours = median_time(lambda model=model, sid=sid, mode=mode, target=target:
+                           solver.retune(model, sid, mode, target), 5)
+        name = f"retune, {n} masses + junctions" + (f" (x{stiff:g})" if stiff != 1 else "")
+        print(f"{name:>34} {'(modes) ' + format(one * 1e3, '.2f'):>13} {ours * 1e3:>9.2f}"
+              f" {ours / one:>7.1f}")
+
+
 def main():
     if len(sys.argv) == 3 and sys.argv[1] == "--child":
         sparse_child(int(sys.argv[2]))
@@ -173,6 +210,7 @@ def main():
           f" cores: {os.cpu_count()}")
     dense_section()
     accurate_section()
+    junction_section()
     switch_section()
     sparse_section()
 

@@ -9,7 +9,7 @@ statically (Guyan condensation, exact for massless DOFs),
 and their motion is recovered from that of the masses. The condensation is done on the
 stiffness factor ``K = A^T A`` by orthogonal projection (solver/factor.py), which gives the same
 K_red and x_s without the cancellation of the formula above when one spring is far stiffer than
-the others; junction clusters too large for it use the sparse Schur complement. ``System.M``, ``.K``, ``.C`` and ``.dofs``
+the others. ``System.M``, ``.K``, ``.C`` and ``.dofs``
 are the condensed matrices on the DOFs that carry mass; ``.M_full``, ``.K_full``, ``.C_full`` and
 ``.all_dofs`` keep every DOF, junctions included, for direct frequency-domain solves.
 
@@ -26,7 +26,6 @@ from dataclasses import dataclass, field
 import numpy as np
 import scipy.linalg
 import scipy.sparse as sp
-import scipy.sparse.linalg as spla
 
 from . import factor
 from .errors import ModelError, checked_arguments
@@ -86,8 +85,7 @@ class System:
     loose: np.ndarray = field(default=None, repr=False)
     #: (n_rows, n) sparse stiffness factor on ``dofs``: ``K = K_factor^T K_factor`` (one row per
     #: spring, or per condensed combination of springs; see solver/factor.py). It keeps what
-    #: forming K loses to rounding (a soft spring beside a very stiff one); None when the
-    #: junctions were condensed by the Schur complement (very long junction chains).
+    #: forming K loses to rounding (a soft spring beside a very stiff one).
     K_factor: object = field(default=None, repr=False)
 
     @property
@@ -308,84 +306,24 @@ def _model_damping(model: Model, M, K, C_dash):
     return C_dash + Cm, []
 
 
-def _sparse_null(Kss, scale: float):
-    """Orthonormal null space of a large sparse positive semi-definite junction block (the
-    directions no spring holds), usually empty: a sparse LU with healthy pivots proves it is; a
-    suspect factor is followed by shift-invert Lanczos for the smallest eigenvalues.
-
-    Returns (null, lu): lu is the healthy factor of Kss when there is no null space, else None.
-    """
-    n = Kss.shape[0]
-    try:
-        lu = spla.splu(Kss)
-        piv = np.abs(lu.U.diagonal())
-        if piv.size and piv.min() > 1e-11 * piv.max():
-            return np.zeros((n, 0)), lu
-    except RuntimeError:   # an exactly zero pivot: certainly a loose direction
-        pass
-    k = 6
-    while True:
-        k = min(k, n - 1)
-        lam, vec = spla.eigsh(Kss, k=k, sigma=-1e-8 * scale, which="LM")
-        zero = lam <= 1e-11 * scale
-        if not zero.all() or k >= n - 1 or k >= 256:
-            break
-        k *= 2
-    if not zero.any():
-        return np.zeros((n, 0)), None
-    q, _r = np.linalg.qr(vec[:, zero])
-    return q, None
-
-
 def _condense(K_full, C_full, retained, slaves, all_dofs, B, w, model):
     """Static condensation of the massless DOFs ``slaves``.
 
     By orthogonal projection of the stiffness factor ``diag(w) B`` (solver/factor.py), which
-    stays accurate and semi-definite whatever the stiffness contrast; for junction clusters too
-    large for that, by the Schur complement of K.
+    stays accurate and semi-definite whatever the stiffness contrast and however large the
+    cluster of junctions.
 
     Returns K, C, recovery, warnings, the loose junction directions (see ``System.loose``) and
-    the condensed stiffness factor (None from the Schur complement). ``model`` names the
-    junctions in the warnings.
+    the condensed stiffness factor. ``model`` names the junctions in the warnings.
     """
     warnings = []
-    Kmm = K_full[retained][:, retained]
-    Kms = K_full[retained][:, slaves]
-    Ksm = K_full[slaves][:, retained]
-    Kss = K_full[slaves][:, slaves]
-    n_s = len(slaves)
-    cond = factor.condense(B, w, retained, slaves)
-    K_factor = None
-    if cond is not None:
-        K_factor = cond.factor
-        G = cond.G
-        null = cond.null
-        loose = null.shape[1]
-    elif n_s <= 2000:
-        Kss_d = Kss.toarray()
-        # A massless node with a direction no spring resists has an undetermined position; the
-        # pseudo-inverse picks the least motion, which leaves the masses' equations unchanged.
-        scale = max(np.abs(Kss_d).max(initial=0.0), 1e-300)
-        u, sv, vt = scipy.linalg.svd(Kss_d) if n_s else (None, np.zeros(0), None)
-        loose = int(np.sum(sv <= 1e-11 * scale)) if n_s else 0
-        pinv = scipy.linalg.pinv(Kss_d, atol=1e-11 * scale) if n_s else np.zeros((0, 0))
-        G = -(pinv @ Ksm.toarray())
-        G = sp.csr_matrix(G)
-        null = vt[len(sv) - loose:].T if loose else np.zeros((n_s, 0))
-    else:
-        Kss = sp.csc_matrix(Kss)
-        scale = max(float(abs(Kss).max()), 1e-300)
-        null, lu = _sparse_null(Kss, scale)   # lu: the factor of Kss when nothing is loose
-        if lu is None and null.shape[1]:
-            # Kss + s N N^T is Kss on the held directions and s on the loose ones; the right-hand
-            # sides Ksm x carry nothing along N (K is positive semi-definite), so its solution is
-            # the least-motion one, as the pseudo-inverse gives for smaller models
-            Ns = sp.csr_matrix(null)
-            lu = spla.splu(sp.csc_matrix(Kss + scale * (Ns @ Ns.T)))
-        elif lu is None:   # a suspect pivot but no null space found: the plain factor
-            lu = spla.splu(Kss)
-        G = sp.csr_matrix(-lu.solve(Ksm.toarray()))
-        loose = null.shape[1]
+    owner = {}
+    node = np.array([owner.setdefault(mid, len(owner)) for mid, _d in all_dofs], dtype=np.int64)
+    cond = factor.condense(B, w, retained, slaves, node)
+    K_factor = cond.factor
+    G = cond.G
+    null = cond.null
+    loose = null.shape[1]
     if loose:
         # the junctions that take part in an unheld direction (a spring at an angle leaves a
         # combination of x and y loose, so a zero diagonal of K would miss them)
@@ -395,10 +333,7 @@ def _condense(K_full, C_full, retained, slaves, all_dofs, B, w, model):
         detail = f' (e.g. {", ".join(quoted_id(model, n) for n in names[:3])})' if names else ""
         warnings.append(f"{loose} direction(s) of massless junctions{detail} are held by no"
                         " spring; their motion is undetermined and shown as zero")
-    if K_factor is not None:
-        K = K_factor.T @ K_factor
-    else:
-        K = Kmm + Kms @ G
+    K = K_factor.T @ K_factor
     K = (K + K.T) * 0.5
     Cmm = C_full[retained][:, retained]
     Cms = C_full[retained][:, slaves]

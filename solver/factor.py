@@ -25,6 +25,7 @@ it. The factor keeps every spring in its own row, so nothing is added:
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -36,9 +37,10 @@ from scipy.sparse.csgraph import connected_components
 #: Singular values of the geometry below this fraction of the largest count as zero (a junction
 #: direction no spring holds); direction cosines are O(1), so this is an angle in radians.
 GEOMETRY_RTOL = 1e-9
-#: Largest junction cluster (DOFs joined through junctions) condensed in factored form; larger
-#: ones (long chains of junctions) use the sparse Schur complement of assemble.py.
-CLUSTER_LIMIT = 1500
+#: Junction clusters (DOFs joined through junctions) up to this size are condensed by one dense
+#: pivoted QR each; larger ones (long chains of junctions, meshes of them) junction by junction
+#: on the sparse rows (:func:`_eliminate_sparse`), whose cost grows with the fill, not the cube.
+CLUSTER_DENSE_LIMIT = 60
 #: Largest model solved by Jacobi SVD; above it, divide-and-conquer SVD (gesdd).
 JACOBI_DOF_LIMIT = 400
 
@@ -105,19 +107,19 @@ def junction_clusters(B, slaves):
     return groups, [np.asarray(g, np.int64) for g in group_rows], row_label
 
 
-def condense(B, w, retained, slaves) -> Condensed | None:
+def condense(B, w, retained, slaves, node=None) -> Condensed:
     """Condense the junction DOFs ``slaves`` out of ``A = diag(w) B`` by orthogonal projection.
 
-    Returns None when a cluster of junctions is larger than ``CLUSTER_LIMIT`` (the caller then
-    condenses ``K`` by the sparse Schur complement).
+    Each cluster of junctions (joined through springs) is done on its own rows: a small one by
+    one dense pivoted QR, a large one junction by junction on the sparse rows
+    (:func:`_eliminate_sparse`). Either way the result is ``Q_2^T A_m`` for an orthogonal
+    ``Q``, so it is exact up to rounding in each row whatever the stiffness contrast.
+    ``node`` (n_all,) labels the node each DOF belongs to (by default each DOF its own).
     """
+    node = np.arange(B.shape[1]) if node is None else np.asarray(node)
     n_rows = B.shape[0]
     n_m, n_s = len(retained), len(slaves)
-    m_col = np.full(B.shape[1], -1)
-    m_col[retained] = np.arange(n_m)
     groups, group_rows, row_label = junction_clusters(B, slaves)
-    if any(len(g) > CLUSTER_LIMIT for g in groups):
-        return None
     Bm_all = sp.csr_matrix(B[:, retained])
     Bs_all = sp.csr_matrix(B[:, slaves])
     small = n_rows * (n_m + n_s) <= 200_000   # dense slicing is far cheaper for small models
@@ -125,54 +127,76 @@ def condense(B, w, retained, slaves) -> Condensed | None:
         Bm_d, Bs_d = Bm_all.toarray(), Bs_all.toarray()
     # rows touching no junction pass through unchanged
     plain = np.flatnonzero(row_label < 0)
-    blocks = [sp.diags(w[plain]) @ Bm_all[plain]]
+    plain_rows = sp.coo_matrix(sp.diags(w[plain]) @ Bm_all[plain])
+    f_r, f_c, f_v = [plain_rows.row], [plain_rows.col], [plain_rows.data]
+    n_out = len(plain)
     g_r, g_c, g_v = [], [], []
     null_blocks = []
-    for dofs, rows in zip(groups, group_rows):
-        if len(rows) == 0:   # junction DOFs that no spring touches at all
-            null_blocks.append((dofs, np.eye(len(dofs))))
-            continue
-        if small:
-            Bs = Bs_d[np.ix_(rows, dofs)]
-            mcols = np.flatnonzero(np.any(Bm_d[rows] != 0.0, axis=0))
-            Bm = Bm_d[np.ix_(rows, mcols)]
-        else:
-            Bs = Bs_all[rows][:, dofs].toarray()
-            Bm_sp = Bm_all[rows]
-            mcols = np.unique(Bm_sp.indices)
-            Bm = Bm_sp[:, mcols].toarray()
-        # loose directions and rank from the geometry alone
-        _u, sv, vt = scipy.linalg.svd(Bs, check_finite=False)
-        rank = int(np.sum(sv > GEOMETRY_RTOL * sv.max(initial=0.0))) if sv.size else 0
-        if rank < len(dofs):
-            null_blocks.append((dofs, vt[rank:].T))
-        wr = w[rows]
-        order = np.argsort(-wr, kind="stable")   # heaviest rows first (row-wise stability)
-        As = wr[order, None] * Bs[order]
-        Am = wr[order, None] * Bm[order]
-        if rank:
-            Q, R, piv = scipy.linalg.qr(As, pivoting=True, check_finite=False)
-            QtAm = Q.T @ Am
-            rest = QtAm[rank:]
-            # least-squares junction motion: R11 y = -(Q1^T A_m) on the pivot columns, then
-            # the least-motion solution (nothing along the loose directions)
-            y = _back_substitute(R[:rank, :rank], -QtAm[:rank])
-            Gc = np.zeros((len(dofs), len(mcols)))
-            Gc[piv[:rank]] = y
-            if rank < len(dofs):
-                N = vt[rank:].T
-                Gc -= N @ (N.T @ Gc)
+
+    def add(dofs, mcols, rest, Gc, N):
+        nonlocal n_out
+        if N.shape[1]:
+            null_blocks.append((dofs, N))
+        if Gc is not None:
             gi, gj = np.nonzero(Gc)
             g_r.append(dofs[gi])
             g_c.append(mcols[gj])
             g_v.append(Gc[gi, gj])
-        else:
-            rest = Am
         if rest.shape[0]:
-            blk = np.zeros((rest.shape[0], n_m))
-            blk[:, mcols] = rest
-            blocks.append(sp.csr_matrix(blk))
-    factor = sp.vstack(blocks, format="csr") if blocks else sp.csr_matrix((0, n_m))
+            ri, rj = np.nonzero(rest)
+            f_r.append(ri + n_out)
+            f_c.append(mcols[rj])
+            f_v.append(rest[ri, rj])
+            n_out += rest.shape[0]
+
+    # small clusters of one shape (rows, junction DOFs, retained DOFs) are done together, one
+    # stacked LAPACK call each (a model with many junctions has many alike)
+    batches: dict = {}
+    for dofs, rows in zip(groups, group_rows):
+        if len(rows) == 0:   # junction DOFs that no spring touches at all
+            null_blocks.append((dofs, np.eye(len(dofs))))
+            continue
+        wr = w[rows]
+        if len(dofs) > CLUSTER_DENSE_LIMIT:
+            Bs_sp = Bs_all[rows][:, dofs]
+            Bm_sp = Bm_all[rows]
+            mcols = np.unique(Bm_sp.indices)
+            add(dofs, mcols, *_eliminate_sparse(sp.diags(wr) @ Bs_sp,
+                                                sp.diags(wr) @ Bm_sp[:, mcols],
+                                                node[np.asarray(slaves)[dofs]]))
+            continue
+        if small:
+            mcols = np.flatnonzero(np.any(Bm_d[rows] != 0.0, axis=0))
+        else:
+            mcols = np.unique(Bm_all[rows].indices)
+        if len(dofs) <= 2 and len(rows) >= len(dofs):
+            batches.setdefault((len(rows), len(dofs), len(mcols)), []).append(
+                (dofs, np.asarray(rows), mcols))
+            continue
+        if small:
+            Bs, Bm = Bs_d[np.ix_(rows, dofs)], Bm_d[np.ix_(rows, mcols)]
+        else:
+            Bs = Bs_all[rows][:, dofs].toarray()
+            Bm = Bm_all[rows][:, mcols].toarray()
+        add(dofs, mcols, *_condense_dense(Bs, Bm, wr))
+    for items in batches.values():
+        D = np.array([it[0] for it in items])
+        R = np.array([it[1] for it in items])
+        C = np.array([it[2] for it in items])
+        if small:
+            Bs = Bs_d[R[:, :, None], D[:, None, :]]
+            Bm = Bm_d[R[:, :, None], C[:, None, :]]
+        else:
+            Bs = np.array([Bs_all[r][:, d].toarray() for r, d in zip(R, D)])
+            Bm = np.array([Bm_all[r][:, c].toarray() for r, c in zip(R, C)])
+        rest, G, ok = _condense_batch(Bs, Bm, w[R])
+        for i, (dofs, rows, mcols) in enumerate(items):
+            if ok[i]:
+                add(dofs, mcols, rest[i], G[i], np.zeros((len(dofs), 0)))
+            else:   # a loose junction direction: the one-by-one path finds it
+                add(dofs, mcols, *_condense_dense(Bs[i], Bm[i], w[rows]))
+    factor = sp.csr_matrix((np.concatenate(f_v), (np.concatenate(f_r), np.concatenate(f_c))),
+                           shape=(n_out, n_m))
     if g_r:
         G = sp.csr_matrix((np.concatenate(g_v), (np.concatenate(g_r), np.concatenate(g_c))),
                           shape=(n_s, n_m))
@@ -185,6 +209,242 @@ def condense(B, w, retained, slaves) -> Condensed | None:
         null[dofs, col:col + b.shape[1]] = b
         col += b.shape[1]
     return Condensed(factor=factor, G=G, null=null)
+
+
+def _condense_batch(Bs, Bm, W):
+    """:func:`_condense_dense` for a stack of clusters of one shape with at most two junction
+    DOFs each: ``Bs`` (b, r, d), ``Bm`` (b, r, q), row weights ``W`` (b, r). The same
+    algorithm (rows sorted heaviest first, Householder QR with column pivoting: for two columns
+    the larger first), in stacked LAPACK calls. Returns (rest (b, r - d, q), G (b, d, q), ok
+    (b,)): ``ok`` False where the geometry leaves a junction direction loose (not handled
+    here)."""
+    b, _r, d = Bs.shape
+    sv = np.linalg.svd(Bs, compute_uv=False)
+    ok = np.all(sv > GEOMETRY_RTOL * sv.max(axis=1, keepdims=True), axis=1)
+    order = np.argsort(-W, axis=1, kind="stable")
+    As = np.take_along_axis(W[:, :, None] * Bs, order[:, :, None], axis=1)
+    Am = np.take_along_axis(W[:, :, None] * Bm, order[:, :, None], axis=1)
+    swap = np.zeros(b, bool)
+    if d == 2:
+        swap = np.linalg.norm(As[:, :, 1], axis=1) > np.linalg.norm(As[:, :, 0], axis=1)
+        As[swap] = As[swap][:, :, ::-1]
+    Q, R = np.linalg.qr(As, mode="complete")
+    QtAm = np.swapaxes(Q, 1, 2) @ Am
+    rhs = -QtAm[:, :d]
+    with np.errstate(divide="ignore", invalid="ignore"):   # rank-deficient ones are not used
+        if d == 1:
+            y = rhs / R[:, :1, :1]
+        else:
+            y1 = rhs[:, 1] / R[:, 1, 1, None]
+            y0 = (rhs[:, 0] - R[:, 0, 1, None] * y1) / R[:, 0, 0, None]
+            y = np.stack([y0, y1], axis=1)
+    if d == 2:
+        y[swap] = y[swap][:, ::-1]
+    return QtAm[:, d:], y, ok
+
+
+def _condense_dense(Bs, Bm, wr):
+    """One small junction cluster: geometry ``Bs`` (rows x junction DOFs), ``Bm`` (rows x the
+    retained DOFs it touches), row weights ``wr``. Returns the projected rows on the retained
+    DOFs (dense), the junction motion ``Gc`` (junction DOFs x retained; None when nothing holds
+    the junctions) and the orthonormal loose directions (junction DOFs x n_loose)."""
+    # loose directions and rank from the geometry alone
+    _u, sv, vt = np.linalg.svd(Bs)
+    rank = int(np.sum(sv > GEOMETRY_RTOL * sv.max(initial=0.0))) if sv.size else 0
+    N = vt[rank:].T
+    order = np.argsort(-wr, kind="stable")   # heaviest rows first (row-wise stability)
+    As = wr[order, None] * Bs[order]
+    Am = wr[order, None] * Bm[order]
+    if not rank:
+        return Am, None, N
+    Q, R, piv = scipy.linalg.qr(As, pivoting=True, check_finite=False)
+    QtAm = Q.T @ Am
+    # least-squares junction motion: R11 y = -(Q1^T A_m) on the pivot columns, then the
+    # least-motion solution (nothing along the loose directions)
+    y = _back_substitute(R[:rank, :rank], -QtAm[:rank])
+    Gc = np.zeros((Bs.shape[1], Am.shape[1]))
+    Gc[piv[:rank]] = y
+    if N.shape[1]:
+        Gc -= N @ (N.T @ Gc)
+    return QtAm[rank:], Gc, N
+
+
+def _eliminate_sparse(As, Am, node, rtol: float = GEOMETRY_RTOL):
+    """Condense a large junction cluster one junction at a time on the sparse rows.
+
+    ``As`` (r, p) and ``Am`` (r, q) sparse: the weighted rows of the cluster on its junction
+    DOFs and on the retained DOFs they touch; ``node`` (p,) labels the junction each DOF belongs
+    to. Each step takes the rows that touch one junction (fewest first: minimum degree, so a
+    chain is worked from its ends and keeps no fill), sorted by decreasing norm, and applies a
+    Householder QR with column pivoting on that junction's columns (as the small clusters get,
+    :func:`_condense_dense`): the first rows give the junction's motion, the others, with those
+    columns zero, go back to the pool. Two springs in series through a junction become one row
+    of stiffness ``k_1 k_2 / (k_1 + k_2)`` (compliances add, ``1/k = sum 1/k_i``), each entry
+    formed without cancellation.
+
+    An entry below ``rtol`` times the norm of its row counts as zero, and a junction's rank is
+    judged on its rows scaled to unit norm: the rows are direction cosines times a weight, so a
+    direction no spring holds is found by angle, not by size.
+
+    Returns (rest (n_rest, q) dense rows on the retained DOFs, G (p, q) dense junction motion
+    with no part along the loose directions, N (p, n_loose) orthonormal loose directions).
+    """
+    import heapq
+
+    p, q = As.shape[1], Am.shape[1]
+    W = sp.csr_matrix(sp.hstack([As, Am], format="csr"))
+    node = np.asarray(node)
+    node_ids, node_of = np.unique(node, return_inverse=True)
+    members = [[] for _ in node_ids]
+    for c, nd in enumerate(node_of):
+        members[nd].append(c)
+    # rows as (columns, values) arrays, columns ascending; junction DOFs are columns < p
+    rows = {}
+    touch = [set() for _ in node_ids]      # rows touching each junction
+    for i in range(W.shape[0]):
+        lo, hi = W.indptr[i], W.indptr[i + 1]
+        cols, vals = W.indices[lo:hi], W.data[lo:hi]
+        nz = vals != 0.0
+        if not nz.any():
+            continue
+        rows[i] = (cols[nz], vals[nz])
+        for nd in set(node_of[cols[nz][cols[nz] < p]].tolist()):
+            touch[nd].add(i)
+    next_id = W.shape[0]
+    heap = [(len(t), nd) for nd, t in enumerate(touch)]
+    heapq.heapify(heap)
+    done = np.zeros(len(node_ids), bool)
+    order = []                 # junction DOFs in elimination order
+    recovery = {}              # junction DOF -> (columns, coefficients): x_c = sum coef x_col
+    loose = []
+    empty = (np.zeros(0, np.int64), np.zeros(0))
+    while heap:
+        deg, nd = heapq.heappop(heap)
+        if done[nd] or deg != len(touch[nd]):
+            continue
+        done[nd] = True
+        own = np.asarray(members[nd])
+        keep, norms = [], []
+        for rid in touch[nd]:
+            cols, vals = rows[rid]
+            norm = float(np.sqrt(vals @ vals))
+            mine = (cols < p) & (node_of[np.minimum(cols, p - 1)] == nd)
+            # rounding of a combination in which this junction's DOFs cancelled
+            drop = mine & (np.abs(vals) <= rtol * norm)
+            if drop.any():
+                cols, vals = cols[~drop], vals[~drop]
+                rows[rid] = (cols, vals)
+                mine = mine[~drop]
+            if mine.any():
+                keep.append(rid)
+                norms.append(norm)
+        touch[nd] = set()
+        if not keep:
+            loose.extend(own.tolist())
+            for c in own.tolist():
+                recovery[c] = empty
+            continue
+        idx = np.argsort(-np.asarray(norms), kind="stable")   # heaviest rows first
+        keep = [keep[i] for i in idx]
+        norms = np.asarray(norms)[idx]
+        allcols = np.unique(np.concatenate([rows[rid][0] for rid in keep]))
+        others = allcols[(allcols >= p) | (node_of[np.minimum(allcols, p - 1)] != nd)]
+        cols_all = np.concatenate([own, others])
+        D = np.zeros((len(keep), len(cols_all)))
+        pos = np.argsort(cols_all)
+        for i, rid in enumerate(keep):
+            cols, vals = rows[rid]
+            D[i, pos[np.searchsorted(cols_all[pos], cols)]] = vals
+        for rid in keep:
+            cols = rows.pop(rid)[0]
+            for k in set(node_of[cols[cols < p]].tolist()):
+                if k != nd:
+                    touch[k].discard(rid)
+        n_own = len(own)
+        if n_own == 1:
+            # one DOF (line, torsion): one Householder reflection H a = alpha e_1 of its column
+            # (rows whose entry is negligible were cleared above, so the rank is 1)
+            a = D[:, 0]
+            alpha = -math.copysign(float(np.sqrt(a @ a)), a[0])
+            Dr = D[:, 1:]
+            if len(keep) > 1:
+                v = a.copy()
+                v[0] -= alpha
+                Dr = Dr - np.outer(v, (2.0 / float(v @ v)) * (v @ Dr))
+            c = int(own[0])
+            nz = Dr[0] != 0.0
+            recovery[c] = (others[nz], -Dr[0, nz] / alpha)
+            order.append(c)
+            new_rows = Dr[1:]
+            rank = -1
+        else:
+            # rank of the junction's columns, judged on rows of unit norm (angles)
+            sv = np.linalg.svd(D[:, :n_own] / norms[:, None], compute_uv=False)
+            rank = int(np.sum(sv > rtol * sv.max(initial=0.0)))
+        if rank == -1:
+            pass
+        elif rank == 0:
+            loose.extend(own.tolist())
+            for c in own.tolist():
+                recovery[c] = empty
+            new_rows = D[:, n_own:]
+        else:
+            Q, R, piv = scipy.linalg.qr(D[:, :n_own], pivoting=True, check_finite=False)
+            QtD = Q.T @ D[:, n_own:]
+            # pivot DOFs: R11 x_piv + R12 x_free + (Q^T D)[:rank] x_others = 0 (least squares)
+            rhs = -np.hstack([R[:rank, rank:n_own], QtD[:rank]])
+            y = _back_substitute(R[:rank, :rank], rhs)
+            free = own[piv[rank:]]
+            rest_cols = np.concatenate([free, others])
+            for i in range(rank):
+                c = int(own[piv[i]])
+                nz = y[i] != 0.0
+                recovery[c] = (rest_cols[nz], y[i, nz])
+                order.append(c)
+            for c in free.tolist():
+                loose.append(c)
+                recovery[c] = empty
+            new_rows = QtD[rank:]
+        if new_rows.shape[0] > new_rows.shape[1]:
+            # more rows than columns: keep only their triangular factor (an orthogonal
+            # transformation of rows leaves A^T A as it is), so fill does not pile up rows
+            srt = np.argsort(-np.linalg.norm(new_rows, axis=1), kind="stable")
+            new_rows = scipy.linalg.qr(new_rows[srt], mode="r", check_finite=False)[0]
+            new_rows = new_rows[:new_rows.shape[1]]
+        for r_ in new_rows:
+            nz = r_ != 0.0
+            if not nz.any():
+                continue
+            cols = others[nz]
+            rows[next_id] = (cols, r_[nz])
+            for k in set(node_of[cols[cols < p]].tolist()):
+                touch[k].add(next_id)
+            next_id += 1
+        for k in set(node_of[others[others < p]].tolist()):
+            if not done[k]:
+                heapq.heappush(heap, (len(touch[k]), k))
+    # what is left acts on the retained DOFs only
+    rest = np.zeros((len(rows), q))
+    for i, (cols, vals) in enumerate(rows.values()):
+        rest[i, cols - p] = vals
+    # junction motion: back-substitution in reverse elimination order, x_s = T x_s + P x_m,
+    # with a unit column for each loose DOF (whose recovery then gives the loose directions)
+    n_loose = len(loose)
+    X = np.zeros((p, q + n_loose))
+    for j, c in enumerate(loose):
+        X[c, q + j] = 1.0
+    for c in reversed(order):
+        cols, coef = recovery[c]
+        junction = cols < p
+        if junction.any():
+            X[c] += coef[junction] @ X[cols[junction]]
+        X[c, cols[~junction] - p] += coef[~junction]
+    G = X[:, :q]
+    N = np.zeros((p, 0))
+    if n_loose:
+        N, _r = np.linalg.qr(X[:, q:])
+        G = G - N @ (N.T @ G)
+    return rest, G, N
 
 
 def _back_substitute(R, rhs):

@@ -33,7 +33,7 @@ from dataclasses import dataclass
 import math
 
 from .errors import ModelError, checked_arguments, number
-from .margins import EDGE_RTOL, keep_out_intervals, source_bands
+from .margins import EDGE_RTOL, in_conflict, keep_out_intervals, source_bands
 from .model import Model
 
 POSITIONS = ("below", "inside", "above")
@@ -143,7 +143,7 @@ def margin_table(model: Model, modal, margin_percent: float | None = None) -> Ma
         nearest, below, above = nearest_clear(f, keep_out)
         for sid, order, lo, hi, lo_w, hi_w in bands:
             position, sep = separation(f, lo, hi)
-            fails = lo_w * (1 + EDGE_RTOL) < f < hi_w * (1 - EDGE_RTOL)
+            fails = in_conflict(f, lo, hi, lo_w, hi_w)
             rows.append(MarginRow(mode=i + 1, frequency_hz=f, source_id=sid, order=order,
                                   low_hz=float(lo), high_hz=float(hi), position=position,
                                   separation_percent=float(sep), passes=not fails,

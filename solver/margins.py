@@ -86,6 +86,15 @@ def source_bands(model: Model, margin_percent: float | None = None) -> tuple:
     return tuple(bands)
 
 
+def in_conflict(f: float, lo: float, hi: float, lo_w: float, hi_w: float) -> bool:
+    """True when a mode at ``f`` Hz violates the margin of the source interval ``[lo, hi]``
+    widened to ``(lo_w, hi_w)``: strictly inside the widened interval (a mode exactly on a
+    widened edge has exactly the margin and passes), or on the excitation itself, which is a
+    resonance at any margin, 0 % included (both to :data:`EDGE_RTOL`)."""
+    inside = lo_w * (1 + EDGE_RTOL) < f < hi_w * (1 - EDGE_RTOL)
+    return inside or lo * (1 - EDGE_RTOL) <= f <= hi * (1 + EDGE_RTOL)
+
+
 def keep_out_intervals(bands) -> tuple:
     """Union of the widened intervals ``(lo_w, hi_w)`` of ``bands`` (see :func:`source_bands`) as
     disjoint (lo, hi) in Hz, ascending. Intervals are open: two that only touch (within
@@ -113,7 +122,7 @@ def margin_check(model: Model, modal, margin_percent: float | None = None) -> Ma
         if zero[i]:
             continue
         for sid, order, lo, hi, lo_w, hi_w in bands:
-            if lo_w * (1 + EDGE_RTOL) < f < hi_w * (1 - EDGE_RTOL):
+            if in_conflict(f, lo, hi, lo_w, hi_w):
                 below, above = next(((a, b) for a, b in keep_out if a <= f <= b), (lo_w, hi_w))
                 down, up = below - f, above - f
                 move = down if (below > 0 and abs(down) <= abs(up)) else up

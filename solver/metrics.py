@@ -34,6 +34,7 @@ import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.csgraph import connected_components
 
+from . import factor
 from .errors import ModelError, checked_arguments, mode_number, shown
 from .modes import ModalResult
 
@@ -140,7 +141,9 @@ def strain_vectors(system, spring_index: int) -> tuple[np.ndarray, np.ndarray]:
 
 def unheld_junction_directions(system, near=None) -> np.ndarray:
     """(n_all, r) orthonormal directions of massless junctions that no spring holds: the null
-    space of the junction block K_ss of the stiffness before condensation.
+    space of the junctions' columns of the spring geometry (direction cosines; the same test as
+    the condensation's, solver/factor.py), so a soft spring beside a very stiff one still holds
+    what it holds (the junction block of K would lose it to rounding).
 
     near : optional DOF indices; only the groups of junction DOFs coupled (through K_ss) to one of
         them are examined, which keeps this cheap on large models.
@@ -155,16 +158,24 @@ def unheld_junction_directions(system, near=None) -> np.ndarray:
     _n, labels = connected_components(Kss != 0, directed=False)
     wanted = set(range(_n)) if near is None else {
         labels[i] for i in np.flatnonzero(np.isin(slaves, np.asarray(list(near), int)))}
+    model = system.model
+    planar = model.kind == "planar"
+    B, _w = factor.spring_rows(system.spring_dofs, system.spring_axis,
+                               [s_.k for s_ in model.springs],
+                               [s_.k_t for s_ in model.springs] if planar else None, n_all)
+    Bs = sp.csc_matrix(sp.csr_matrix(B)[:, slaves])
     cols = []
     for lab in sorted(wanted):
         members = np.flatnonzero(labels == lab)
-        block = Kss[members][:, members].toarray()
-        scale = np.abs(block).max(initial=0.0)
-        if scale == 0:
-            vals, vecs = np.zeros(len(members)), np.eye(len(members))
+        block = Bs[:, members]
+        rows = np.unique(block.tocoo().row)
+        if rows.size == 0:
+            vecs = np.eye(len(members))
         else:
-            vals, vecs = np.linalg.eigh(block)
-        for v in vecs[:, np.abs(vals) <= 1e-11 * max(scale, 1e-300)].T:
+            _u, sv, vt = np.linalg.svd(block[rows].toarray())
+            rank = int(np.sum(sv > factor.GEOMETRY_RTOL * sv.max(initial=0.0)))
+            vecs = vt[rank:].T
+        for v in vecs.T:
             col = np.zeros(n_all)
             col[slaves[members]] = v
             cols.append(col)

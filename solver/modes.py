@@ -335,10 +335,19 @@ def _zero_count(system, lam, phi, zero_tol, rigid) -> int:
     n_zero_numeric = int(np.sum(lam <= zero_tol))
     n_rigid = rigid[0].shape[1]
     if system.model.kind == "planar" and n_zero_numeric > n_rigid:
-        # a very stiff link can push a real soft mode under the numerical threshold:
-        # keep only the candidates that strain no spring, judged by geometry (relative end
-        # motion against the motion itself), which no stiffness contrast disturbs
-        n_zero_numeric = _strain_free_count(system, phi[:, :n_zero_numeric])
+        # a very stiff link (or springs nearly in line) can push a real soft mode under the
+        # numerical threshold: keep only the candidates that strain no spring, judged by
+        # geometry (relative end motion against the motion itself), which no stiffness
+        # contrast disturbs. The computed vectors of a cluster of small eigenvalues carry
+        # ~eps lam_max / gap of the modes above it (Davis-Kahan), so a strain above that (and
+        # above the angle resolution of the geometry, factor.GEOMETRY_RTOL) is real: springs
+        # 1e-6 rad off a line hold the mass, at a frequency the factored SVD resolves.
+        top = zero_tol / ZERO_RTOL
+        gap = float(lam[n_zero_numeric]) if n_zero_numeric < len(lam) else 0.0
+        eps = np.finfo(float).eps
+        rtol = 1e-6 if gap <= 0 else min(1e-6, max(factor.GEOMETRY_RTOL,
+                                                   1e3 * eps * max(top, gap) / gap))
+        n_zero_numeric = _strain_free_count(system, phi[:, :n_zero_numeric], rtol)
         return min(max(n_zero_numeric, n_rigid), len(lam))
     return min(n_rigid, len(lam))
 

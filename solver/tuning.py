@@ -22,13 +22,18 @@ decades (another mode's plateau, before a crossing) and then move. Its range ove
   motion, whose frequency falls to zero).
 
 An increasing limit keeps every zero-frequency mode at zero and lets modes that lose their mass
-or gain a rigid link go to infinity. The limits are eigenvalues of small constrained / condensed
-pencils solved densely, never a "very stiff" spring, so they are free of the round-off that a
-huge stiffness brings. :func:`retune` refuses a target outside them (stating them), then finds a
-bracket by stepping the value a decade at a time and solves ``f_N(exp u) = target`` on ``u =
-log(value)`` with Brent's method (bisection-safeguarded: it never leaves the bracket, so plateaus
-cannot stall it). Every value it returns is verified (:data:`VERIFY_RTOL`, and a count of the
-eigenvalues below the target by the inertia of ``K - w^2 M`` before condensation).
+or gain a rigid link go to infinity. The limits are solved in factored form, as
+:func:`solver.modes` solves the model (the stiffness factor ``K = A^T A``, one row per spring:
+a stiffness taken out is its row removed, a rigid one its row removed and its strain held at
+zero by eliminating one DOF; junctions condensed by orthogonal projection, frequencies from the
+factor's singular values, zeros counted on the geometry), never a "very stiff" spring, so they
+are free of the round-off that a huge stiffness brings and as accurate as the modes.
+:func:`retune` refuses a target outside them (stating them, and a range that always contains
+the present frequency), then finds a bracket by stepping the value a decade at a time and
+solves ``f_N(exp u) = target`` on ``u = log(value)`` with Brent's method (bisection-safeguarded:
+it never leaves the bracket, so plateaus cannot stall it). Every value it returns is verified
+(:data:`VERIFY_RTOL`, and a count of the eigenvalues below the target by the inertia of the
+model's flexibility form before condensation, :func:`eigenvalues_below`).
 """
 
 from __future__ import annotations
@@ -38,13 +43,15 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 import scipy.linalg
+import scipy.sparse as sp
 from scipy.optimize import brentq
 
+from . import factor
 from .assemble import assemble
 from .errors import ModelError, checked_arguments, mode_number, number, numbers, shown
-from .metrics import strain_vectors, unheld_junction_directions
+from .metrics import unheld_junction_directions
 from .model import HUGE, TINY, Mass, Model, Spring
-from .modes import ZERO_RTOL, modes
+from .modes import ACCURATE_RTOL, modes
 from .naming import named, quoted, quoted_id
 
 #: A returned value, re-solved, puts the mode on the target to this relative tolerance (Hz).
@@ -138,54 +145,142 @@ def _dense(mat) -> np.ndarray:
     return mat.toarray() if hasattr(mat, "toarray") else np.asarray(mat, float)
 
 
-def _finite_eigenvalues(K: np.ndarray, m_diag: np.ndarray, constraint=None,
-                        count: int | None = None):
-    """Finite eigenvalues of ``K v = lam M v`` (M = diag(m_diag) >= 0) on ``constraint . v = 0``.
+def _node_labels(system) -> np.ndarray:
+    """(n_all,) the node each DOF belongs to (junction DOFs of one node are condensed together)."""
+    owner: dict = {}
+    return np.array([owner.setdefault(mid, len(owner)) for mid, _d in system.all_dofs],
+                    dtype=np.int64)
 
-    The constraint ``c . v = 0`` is imposed by eliminating one DOF p, ``v_p = -(c . v)_rest /
-    c_p`` (K -> T^T K T, M -> T^T M T). p is a massless DOF when c has one, so M stays diagonal;
-    otherwise c touches only DOFs with mass and the massless ones keep exactly zero rows of M.
-    Either way the massless DOFs are known by index and condensed statically (pseudo-inverse:
-    directions nothing holds carry no energy), and the rest is solved with its (SPD) mass
-    block. Returns (ascending eigenvalues, the lowest ``count`` of them when given, stiffness
-    scale in (rad/s)^2 of the uncondensed pencil, against which a zero is judged).
+
+def _constrain(B, m_all, node, c):
+    """Impose ``c . x = 0`` on the factor's columns by eliminating one DOF, keeping M diagonal.
+
+    A massless DOF is eliminated when ``c`` touches one (the largest entry, so the multipliers
+    are at most about 1): ``x_p = -(c_rest . x) / c_p`` is a column operation on ``B``.
+    Otherwise ``c`` joins DOFs with mass: each end node's two directions are first rotated to
+    the direction ``c`` acts along and the one across it (an orthogonal change of coordinates
+    that leaves its isotropic mass diagonal), after which ``c`` touches one DOF per end; one
+    end held (``c`` on one DOF) removes that DOF, two ends merge: ``x_p = -(c_q / c_p) x_q``
+    and ``m_q += m_p (c_q / c_p)^2``. Every step is a column operation of one multiply-add per
+    entry, so the factor keeps each spring's row (and its accuracy). Returns (B, m_all, node).
     """
-    m_diag = np.asarray(m_diag, float)
-    c = None if constraint is None else np.asarray(constraint, float)
-    if c is not None and np.any(c != 0):
-        light_c = np.where(m_diag == 0, np.abs(c), 0.0)
-        p = int(np.argmax(light_c)) if light_c.max() > 0 else int(np.argmax(np.abs(c)))
-        rest = np.setdiff1d(np.arange(len(c)), [p])
-        T = np.zeros((len(c), len(rest)))
-        T[rest, np.arange(len(rest))] = 1.0
-        T[p] = -c[rest] / c[p]
-        K = T.T @ K @ T
-        M = T.T @ (m_diag[:, None] * T)
-    else:
-        M = np.diag(m_diag)
-    K = (K + K.T) * 0.5
-    heavy = np.flatnonzero(np.diag(M) > 0)
-    light = np.flatnonzero(np.diag(M) <= 0)
-    if heavy.size == 0:
-        return np.zeros(0), 0.0
-    Mhh = M[np.ix_(heavy, heavy)]
-    s = 1.0 / np.sqrt(np.diag(Mhh))
-    Kpp = K[np.ix_(heavy, heavy)]
-    scale = float((np.abs(Kpp) * s[:, None] * s[None, :]).sum(axis=1).max(initial=0.0))
+    B = sp.csc_matrix(B)
+    n = B.shape[1]
+    supp = np.flatnonzero(c)
+    if supp.size == 0:
+        return B, m_all, node
+    m_all = np.asarray(m_all, float).copy()
+    light = supp[m_all[supp] == 0]
     if light.size:
-        Kzz = K[np.ix_(light, light)]
-        Kzp = K[np.ix_(light, heavy)]
-        atol = 1e-11 * max(np.abs(K).max(initial=0.0), 1e-300)
-        Kpp = Kpp - Kzp.T @ scipy.linalg.pinv(Kzz, atol=atol) @ Kzp
-    # scaled by the diagonal of M first, so a wide spread of masses costs no accuracy
-    A = Kpp * s[:, None] * s[None, :]
-    B = Mhh * s[:, None] * s[None, :]
-    top = len(heavy) if count is None else min(int(count), len(heavy))
-    if top == 0:
-        return np.zeros(0), scale
-    lam = scipy.linalg.eigh((A + A.T) * 0.5, (B + B.T) * 0.5, eigvals_only=True,
-                            subset_by_index=(0, top - 1))
-    return np.sort(lam), scale
+        p = int(light[np.argmax(np.abs(c[light]))])
+        r = -c / c[p]
+        r[p] = 0.0
+    else:
+        # rotate each end node with two directions in c to (along c, across c)
+        rot = sp.lil_matrix(sp.identity(n))
+        c = c.copy()
+        for nd in np.unique(node[supp]):
+            pair = np.flatnonzero(node == nd)
+            if len(pair) != 2:
+                continue
+            d = c[pair]
+            size = float(np.hypot(d[0], d[1]))
+            u = d / size
+            rot[pair[0], pair[0]], rot[pair[0], pair[1]] = u[0], -u[1]
+            rot[pair[1], pair[0]], rot[pair[1], pair[1]] = u[1], u[0]
+            c[pair] = (size, 0.0)
+        B = sp.csc_matrix(B @ sp.csc_matrix(rot))
+        supp = np.flatnonzero(c)
+        p = int(supp[np.argmax(np.abs(c[supp]))])
+        r = np.zeros(n)
+        for q in supp:
+            if q != p:
+                r[q] = -c[q] / c[p]
+                m_all[q] += m_all[p] * r[q] * r[q]
+    keep = np.setdiff1d(np.arange(n), [p])
+    if np.any(r):
+        B = sp.csc_matrix(B + sp.csc_matrix(B[:, [p]]) @ sp.csr_matrix(r[None, :]))
+    return B[:, keep], m_all[keep], node[keep]
+
+
+def _factored_spectrum(B, w, m_all, node):
+    """Eigenvalues (ascending, (rad/s)^2) of ``K = (diag(w) B)^T diag(w) B`` with masses
+    ``m_all`` (0: a junction, condensed), by the same machinery as :func:`solver.modes`:
+    orthogonal condensation of the junctions (solver/factor.py) and the singular values of the
+    factor (Jacobi SVD where divide and conquer would lose digits). Zero eigenvalues are
+    counted on the geometry alone (the rank of the condensed factor with every weight 1: the
+    motions that strain no spring, whatever the stiffnesses) and set to exactly 0.
+
+    Returns (lam, estimated relative error of each w, n_zero).
+    """
+    m_all = np.asarray(m_all, float)
+    retained = np.flatnonzero(m_all > 0)
+    slaves = np.flatnonzero(m_all == 0)
+    n = len(retained)
+    if n == 0:
+        return np.zeros(0), np.zeros(0), 0
+    B = sp.csr_matrix(B)
+    if slaves.size:
+        F = factor.condense(B, w, retained, slaves, node).factor
+        Fg = factor.condense(B, np.ones(B.shape[0]), retained, slaves, node).factor
+    else:
+        F = sp.diags(w) @ B
+        Fg = B
+    Fg = Fg.toarray() if sp.issparse(Fg) else np.asarray(Fg)
+    rank = 0
+    if Fg.size:
+        sv = scipy.linalg.svd(Fg, compute_uv=False, check_finite=False)
+        # against the geometry's own scale too (direction cosines: a spring's row has norm 1
+        # or sqrt 2, and the constraint's rotations and merges keep that): a factor that is
+        # all rounding (a junction that frees a mass, a spring parallel to one made rigid) has
+        # no rank at all
+        ref = max(sv.max(initial=0.0), 1.0)
+        rank = int(np.sum(sv > factor.GEOMETRY_RTOL * ref))
+    n_zero = n - rank
+    lam, _phi, err = factor.factored_eig(F, m_all[retained], ACCURATE_RTOL)
+    lam, err = lam.copy(), err.copy()
+    lam[:n_zero] = 0.0
+    err[:n_zero] = 0.0
+    return lam, err, n_zero
+
+
+def _limit_pencil(model, system, el, f, toward):
+    """The factor, masses and node labels of one limit problem (see the module docstring): a
+    stiffness taken out is its row removed; made rigid, its row removed and its strain held at
+    zero (:func:`_constrain`); a mass to zero, its DOFs massless junctions; a mass to infinity,
+    its DOFs held (columns removed). Returns (B, w, m_all, node, extra_zeros)."""
+    n_all = len(system.all_dofs)
+    m_all = np.asarray(system.M_full.diagonal(), float).ravel().copy()
+    node = _node_labels(system)
+    planar = model.kind == "planar"
+    k = np.array([s_.k for s_ in model.springs], float)
+    kt = np.array([s_.k_t for s_ in model.springs], float) if planar else None
+    c = None
+    if isinstance(el, Spring):
+        j = next(i for i, s_ in enumerate(model.springs) if s_.id == el.id)
+        if f == "k":
+            k[j] = 0.0
+        else:
+            kt[j] = 0.0
+        if toward == "infinity":
+            one, none = np.ones(1), np.zeros(1)
+            Bc, _w = factor.spring_rows(system.spring_dofs[j:j + 1], system.spring_axis[j:j + 1],
+                                        one if f == "k" else none,
+                                        (none if f == "k" else one) if planar else None, n_all)
+            c = Bc.toarray().ravel() if Bc.shape[0] else None
+    B, w = factor.spring_rows(system.spring_dofs, system.spring_axis, k, kt, n_all)
+    extra_zeros = 0
+    if isinstance(el, Mass):
+        own = [i for i in system.mass_dofs[el.id] if i >= 0]
+        if toward == "zero":
+            m_all[own] = 0.0
+        else:
+            keep = np.setdiff1d(np.arange(n_all), own)
+            B, m_all, node = sp.csr_matrix(B)[:, keep], m_all[keep], node[keep]
+            extra_zeros = len(own)
+    if c is not None:
+        B, m_all, node = _constrain(B, m_all, node, c)
+    return B, w, m_all, node, extra_zeros
 
 
 @checked_arguments
@@ -199,71 +294,53 @@ def limit_spectrum(model: Model, element_id: str, field: str | None, toward: str
     toward : ``"zero"`` or ``"infinity"``.
     n_zero : how many zero-frequency modes the model has at positive values (found by
         :func:`solver.modes` when not given); an increasing limit keeps exactly these at zero.
-    count : only the lowest ``count`` limits (cheaper on large models).
+    count : only the lowest ``count`` limits.
 
     Returns
     -------
-    (n_dof,) or (count,) ascending, ``inf`` for modes that rise without bound. The limits are those of the
-    model's modes 1..n_dof in ascending order (see the module docstring for each case).
+    (n_dof,) or (count,) ascending, ``inf`` for modes that rise without bound. The limits are
+    those of the model's modes 1..n_dof in ascending order (see the module docstring for each
+    case). They are solved in factored form as :func:`solver.modes` solves the model itself (a
+    spring's row taken out, or its strain held at zero; never a very large or small value), so
+    they are as accurate as its frequencies.
     """
+    return _limit_spectrum(model, element_id, field, toward, n_zero, count)[0]
+
+
+def _limit_spectrum(model, element_id, field, toward, n_zero=None, count=None, system=None):
+    """:func:`limit_spectrum`, and the estimated relative error of each limit's frequency."""
     el, f = _field_for(model, element_id, field)
     if toward not in ("zero", "infinity"):
         raise ModelError(f'limit: toward must be "zero" or "infinity", got "{toward}"')
     if getattr(el, f) <= 0:
         raise ModelError(f"limit of {quoted(el.id, el.label)}: give a model in which its {f} is"
                          " positive")
-    system = assemble(model, sparse=False)
+    system = assemble(model) if system is None else system
     n = system.n_dof
-    m_full = np.asarray(_dense(system.M_full).diagonal(), float)
     rising = (toward == "infinity") == (f != "mass")
-    if isinstance(el, Spring):
-        j = next(i for i, s in enumerate(model.springs) if s.id == element_id)
-        axial, trans = strain_vectors(system, j)
-        K0 = _dense(assemble(model.with_changes(remove=[element_id]), sparse=False).K_full)
-        if model.kind == "planar":
-            other, c_other = (el.k_t, trans) if f == "k" else (el.k, axial)
-            if other > 0:
-                K0 = K0 + other * np.outer(c_other, c_other)
-        c = axial if f == "k" else trans
-        lam, scale = _finite_eigenvalues(K0, m_full, c if toward == "infinity" else None, count)
-        extra_zeros = 0
-    else:
-        own = [i for i in system.mass_dofs[el.id] if i >= 0]
-        K = _dense(system.K_full)
-        if toward == "zero":
-            m = m_full.copy()
-            m[own] = 0.0
-            lam, scale = _finite_eigenvalues(K, m, count=count)
-            extra_zeros = 0
-        else:
-            keep = np.setdiff1d(np.arange(len(m_full)), own)
-            lam, scale = _finite_eigenvalues(K[np.ix_(keep, keep)], m_full[keep], count=count)
-            extra_zeros = len(own)
-    # a zero is judged against the stiffness of the model itself too: taking a spring out can
-    # leave a pencil that is pure round-off (e.g. nothing else joins a free-free pair)
-    K_own = _dense(system.K_full)
-    heavy = m_full > 0
-    s_own = 1.0 / np.sqrt(m_full[heavy])
-    own_scale = float((np.abs(K_own[np.ix_(heavy, heavy)]) * s_own[:, None] * s_own[None, :])
-                      .sum(axis=1).max(initial=0.0))
-    lam = np.where(lam <= ZERO_RTOL * max(scale, own_scale, 1e-300), 0.0, lam)
+    B, w, m_all, node, extra_zeros = _limit_pencil(model, system, el, f, toward)
+    lam, err, pencil_zero = _factored_spectrum(B, w, m_all, node)
     if rising:
         if n_zero is None:
-            n_zero = int(modes(model).is_zero.sum())
+            n_zero = int(modes(system).is_zero.sum())
         # zero modes stay at zero; the pencil's own zeros are those same modes (or directions
         # that lost all stiffness and mass, which are no modes), so only its positive part counts
-        positive = lam[lam > 0]
-        if count is None:
-            positive = positive[max(0, positive.size - (n - n_zero)):]
-        out = np.concatenate([np.zeros(n_zero), positive,
-                              np.full(max(n - n_zero - positive.size, 0), np.inf)])
+        positive, perr = lam[pencil_zero:], err[pencil_zero:]
+        drop = max(0, positive.size - (n - n_zero))
+        positive, perr = positive[drop:], perr[drop:]
+        pad = max(n - n_zero - positive.size, 0)
+        out = np.concatenate([np.zeros(n_zero), positive, np.full(pad, np.inf)])
+        out_err = np.concatenate([np.zeros(n_zero), perr, np.zeros(pad)])
     else:
-        out = np.sort(np.concatenate([np.zeros(extra_zeros), lam]))
+        out = np.concatenate([np.zeros(extra_zeros), lam])
+        out_err = np.concatenate([np.zeros(extra_zeros), err])
+        order = np.argsort(out, kind="stable")
+        out, out_err = out[order], out_err[order]
     want = n if count is None else min(int(count), n)
-    out = out[:want]
+    out, out_err = out[:want], out_err[:want]
     if out.size != want:
         raise AssertionError(f"limit spectrum has {out.size} entries for {want} modes")
-    return out
+    return out, out_err
 
 
 def _estimated_spectrum(model, element_id, f, toward, count) -> np.ndarray:
@@ -289,23 +366,25 @@ def reachable_range(model: Model, element_id: str, mode: int, field: str | None 
     return tuple(sorted((lo, hi)))
 
 
-def _limits(model, element_id, f, mode, n_zero=None, who="retune"):
-    """(f at value -> 0, f at value -> inf, exact?) of mode ``mode`` in Hz."""
-    system = assemble(model)
+def _limits(model, element_id, f, mode, n_zero=None, system=None, who="retune"):
+    """(f at value -> 0, f at value -> inf, exact?, estimated relative error of each) of mode
+    ``mode`` in Hz."""
+    system = assemble(model) if system is None else system
     mode_number(mode, system.n_dof, who)   # before any count is handed to an eigensolver
-    n_all = len(system.all_dofs)
-    if n_all <= LIMIT_DENSE_DOF:
-        at0 = limit_spectrum(model, element_id, f, "zero", n_zero, count=mode)
-        atinf = limit_spectrum(model, element_id, f, "infinity", n_zero, count=mode)
+    if len(system.all_dofs) <= LIMIT_DENSE_DOF:
+        at0, e0 = _limit_spectrum(model, element_id, f, "zero", n_zero, mode, system)
+        atinf, einf = _limit_spectrum(model, element_id, f, "infinity", n_zero, mode, system)
         exact = True
     else:
         at0 = _estimated_spectrum(model, element_id, f, "zero", mode)
         atinf = _estimated_spectrum(model, element_id, f, "infinity", mode)
+        e0 = einf = np.full(max(len(at0), len(atinf)), np.inf)
         exact = False
     if mode > len(at0) or mode > len(atinf):
         raise ModelError(f"{who}: mode {mode} does not exist; the model has"
                          f" {min(len(at0), len(atinf))} modes")
-    return _hz(at0[mode - 1]), _hz(atinf[mode - 1]), exact
+    return (_hz(at0[mode - 1]), _hz(atinf[mode - 1]), exact,
+            (float(e0[mode - 1]), float(einf[mode - 1])))
 
 
 def _solve(model, mode):
@@ -320,33 +399,66 @@ def _solve(model, mode):
 @checked_arguments
 def eigenvalues_below(model: Model, omega2: float) -> int | None:
     """How many natural frequencies lie below ``sqrt(omega2)`` rad/s, by Sylvester's law of
-    inertia: the negative eigenvalues of ``K - omega2 M`` before condensation (an LDL^T
-    factorisation, Bunch-Kaufman pivoting), which equal those of the condensed pencil (the
-    junction block of K is positive semi-definite; its null directions, which no spring holds,
-    are set aside). None above :data:`COUNT_DENSE_DOF` DOFs.
+    inertia on the model before condensation, in flexibility (mixed) form:
 
-    Being a count on the uncondensed matrices, it is independent of the eigen-solver and of the
+        A = [[-diag(1/k), B], [B^T, -omega2 M]],
+
+    one row per spring stiffness (``B`` its geometry, direction cosines) and one column per
+    DOF, junctions included. The Schur complement of the first block is ``K - omega2 M``, so
+    (Haynsworth inertia additivity) the count is the number of negative eigenvalues of ``A``
+    less the number of springs. A stiff spring appears as a small compliance ``1/k``, not as a
+    huge stiffness beside small ones, so the count does not lose the soft springs to rounding
+    (the stiffness form ``K - omega2 M`` does at a link ratio of about 1e8). ``A`` is scaled
+    symmetrically to unit row maxima (a congruence: the inertia is unchanged) and factored by
+    ``scipy.linalg.ldl`` (Bunch-Kaufman). Junction directions no spring holds are null vectors
+    of ``K`` and ``M``; they are moved to a positive eigenvalue first. None above
+    :data:`COUNT_DENSE_DOF` DOFs.
+
+    Being a count on the uncondensed model, it is independent of the eigen-solver and of the
     static condensation (a different algorithm on different matrices).
     """
-    system = assemble(model, sparse=False)
+    return _count_below(assemble(model), omega2)
+
+
+def _count_below(system, omega2: float) -> int | None:
+    """:func:`eigenvalues_below` on an assembled model (only its element geometry, masses and
+    values are read: the count never uses the condensation or the eigen-solver)."""
+    model = system.model
     n_all = len(system.all_dofs)
     if n_all > COUNT_DENSE_DOF:
         return None
     if n_all == 0:
         return 0
-    K = _dense(system.K_full)
-    A = K - omega2 * _dense(system.M_full)
-    # a junction direction nothing holds is an exact null vector of K and of M, so of A: a zero
-    # pivot that round-off could tip either way. Moving it to a positive eigenvalue changes no
-    # other eigenvalue (it is an invariant subspace of the symmetric A).
+    planar = model.kind == "planar"
+    k = np.array([s_.k for s_ in model.springs], float)
+    kt = np.array([s_.k_t for s_ in model.springs], float) if planar else None
+    B, w = factor.spring_rows(system.spring_dofs, system.spring_axis, k, kt, n_all)
+    n_r = B.shape[0]
+    m_all = np.asarray(system.M_full.diagonal(), float).ravel()
+    A = np.zeros((n_r + n_all, n_r + n_all))
+    A[np.arange(n_r), np.arange(n_r)] = -1.0 / (w * w)
+    Bd = B.toarray()
+    A[:n_r, n_r:] = Bd
+    A[n_r:, :n_r] = Bd.T
+    A[n_r + np.arange(n_all), n_r + np.arange(n_all)] = -omega2 * m_all
     N = unheld_junction_directions(system)
     if N.shape[1]:
-        A = A + max(np.abs(np.diag(A)).max(initial=0.0), 1.0) * (N @ N.T)
-    _lu, D, _perm = scipy.linalg.ldl((A + A.T) * 0.5, lower=True)
-    d = np.diag(D).copy()
-    off = np.diag(D, -1).copy()
-    ev = scipy.linalg.eigvalsh_tridiagonal(d, off) if n_all > 1 else d
-    return int(np.sum(ev < 0))
+        # a junction direction nothing holds is an exact null vector of K and of M: a zero
+        # pivot that round-off could tip either way. Moving it to a positive eigenvalue changes
+        # no other (it is an invariant subspace of the symmetric K - omega2 M).
+        A[n_r:, n_r:] += N @ N.T
+    # symmetric equilibration (Ruiz): d_i <- d_i / sqrt(max_j |d_i a_ij d_j|)
+    d = np.ones(A.shape[0])
+    absA = np.abs(A)
+    for _ in range(8):
+        row = (absA * d[None, :]).max(axis=1) * d
+        row = np.where(row > 0, row, 1.0)
+        d = d / np.sqrt(row)
+    As = A * d[:, None] * d[None, :]
+    _lu, D, _perm = scipy.linalg.ldl((As + As.T) * 0.5, lower=True)
+    ev = scipy.linalg.eigvalsh_tridiagonal(np.diag(D).copy(), np.diag(D, -1).copy()) \
+        if D.shape[0] > 1 else np.diag(D)
+    return int(np.sum(ev < 0)) - n_r
 
 
 # ---------------------------------------------------------------------------------------------
@@ -365,6 +477,8 @@ class RetuneResult:
         model was too large to solve the limits exactly.
     count_checked : True when the inertia count confirmed that mode ``mode`` (not a neighbour)
         is the one on the target.
+    warnings : cautions on the value (a re-solved frequency less accurate than
+        :data:`VERIFY_RTOL`, a count that could not confirm the mode number).
     """
 
     element_id: str
@@ -379,6 +493,7 @@ class RetuneResult:
     range_exact: bool
     evaluations: int
     count_checked: bool
+    warnings: tuple = ()
 
 
 @checked_arguments
@@ -439,19 +554,34 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
                          f" positive {name} of {who}; no value of it gives the mode a"
                          " frequency: add a spring")
     n_zero = int(base.is_zero.sum())
-    f_zero, f_inf, exact = _limits(work, element_id, f, mode, n_zero)
+    f_zero, f_inf, exact, (e_zero, e_inf) = _limits(work, element_id, f, mode, n_zero,
+                                                    base.system)
     now = float(base.frequencies_hz[mode - 1])
     rising = f != "mass"
     lo, hi = (f_zero, f_inf) if rising else (f_inf, f_zero)
+    # how far the limits and the present frequency may be off (their error estimates)
+    slack = max(1e-12, 4 * max(e_zero, e_inf, float(base.frequency_rtol[mode - 1])))
+    widened = ""
+    if not lo * (1 - slack) <= now <= hi * (1 + slack):
+        # f_N is monotone in the value (Rayleigh), so limits that do not contain the present
+        # frequency are wrong: never state them; the range is widened to include it and said
+        # to be approximate, and the search below decides by solving the model itself
+        lo, hi = min(lo, now), max(hi, now)
+        exact = False
+        widened = (" (the computed limits did not contain the present frequency, so this"
+                   " range is only approximate)")
     evaluations = 1
+
+    solved = {start: base} if v0 > 0 else {}
 
     def finish(value, evals):
         return _verified(model, element_id, f, mode, target, value, start, now, (lo, hi), exact,
-                         evals, name, unit)
+                         evals, name, unit, solved.get(value))
 
     if abs(now - target) <= 1e-12 * target:
         return finish(start, evaluations)
-    approx = "" if exact else " (estimated: the model is too large for the exact limits)"
+    approx = widened or ("" if exact else
+                         " (estimated: the model is too large for the exact limits)")
     if v0 > 0:
         now_text = f"now {now:.7g} Hz at {v0:.6g} {unit}"
     else:   # the present value is 0 (k_t not set, a junction): say what the mode is at 0
@@ -460,12 +590,12 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
             now_text = f"now {at_zero:.7g} Hz with no {name}"
         except (ModelError, IndexError):
             now_text = f"now no {name}"
-    if math.isfinite(hi) and abs(hi - lo) <= DEPEND_RTOL * max(hi, 1e-300):
+    if math.isfinite(hi) and abs(hi - lo) <= max(DEPEND_RTOL, slack) * max(hi, 1e-300):
         raise ModelError(
             f"retune: mode {mode} does not depend on the {name} of {who}: it stays at"
             f" {now:.7g} Hz for every value from 0 to infinity{approx} (the element does not"
             " deform in this mode whatever its value); change another element")
-    if not lo * (1 - 1e-12) <= target <= hi * (1 + 1e-12):
+    if not lo * (1 - slack) <= target <= hi * (1 + slack):
         raise ModelError(
             f"retune: mode {mode} cannot reach {target:.7g} Hz by changing the {name} of"
             f" {who} alone: over all values from 0 to infinity it stays"
@@ -473,11 +603,15 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
             " element or add one")
 
     def freq(u):
+        value = math.exp(u)
         try:
-            return float(_solve(with_value(model, element_id, math.exp(u), f), mode)
-                         .frequencies_hz[mode - 1])
+            res = _solve(with_value(model, element_id, value, f), mode)
         except ModelError:   # values too far apart to solve: treated as the end of the search
             return None
+        # the verification takes the solve at exactly the value returned, not a second one
+        solved.clear()
+        solved[value] = res
+        return float(res.frequencies_hz[mode - 1])
 
     # step a decade at a time in the direction that helps until the target is passed; a plateau
     # (another mode's frequency, before a crossing) is stepped over, never taken as a limit
@@ -507,13 +641,23 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
             " another element or add one")
     count = [0]
 
+    class _OnTarget(Exception):
+        pass
+
     def g(u):
         count[0] += 1
         fu = freq(u)
-        return (fu if fu is not None else math.nan) - target
+        if fu is not None and abs(fu - target) <= 8 * np.finfo(float).eps * target:
+            raise _OnTarget(u)   # on the target to a few ulps: Brent's last steps add nothing
+        # log f against log value is nearly straight (f ~ sqrt(k) for a spring that governs
+        # the mode), so Brent's interpolation lands in a few steps
+        return math.log(max(fu, 1e-300) / target) if fu is not None else math.nan
 
-    root = brentq(g, min(bracket), max(bracket), xtol=1e-13, rtol=4 * np.finfo(float).eps,
-                  maxiter=300)
+    try:
+        root = brentq(g, min(bracket), max(bracket), xtol=1e-13, rtol=4 * np.finfo(float).eps,
+                      maxiter=300)
+    except _OnTarget as hit:
+        root = hit.args[0]
     return finish(math.exp(root), evaluations + count[0])
 
 
@@ -534,12 +678,17 @@ def _limit_text(lo, hi, up, rising) -> str:
 
 
 def _verified(model, element_id, f, mode, target, value, start, now, rng, exact, evals,
-              name, unit) -> RetuneResult:
-    """Re-solve the model with ``value``; refuse (with what was reached) unless mode ``mode`` is
-    on the target to VERIFY_RTOL and the inertia count agrees that it is mode ``mode``."""
+              name, unit, solved=None) -> RetuneResult:
+    """Re-solve the model with ``value`` (or take the search's own solve at exactly that value,
+    ``solved``); refuse (with what was reached) unless mode ``mode`` is on the target to
+    VERIFY_RTOL. The inertia count then confirms the mode number; where it disagrees with a
+    complete dense solve whose error estimate is far inside the count's window (two
+    independent methods, each claiming the digits), the value is kept and the disagreement
+    is stated in ``warnings``: a correct value is never refused on an inconclusive check."""
     tuned = with_value(model, element_id, value, f)
     who = quoted_id(model, element_id)
-    reached = float(_solve(tuned, mode).frequencies_hz[mode - 1])
+    res = solved if solved is not None else _solve(tuned, mode)
+    reached = float(res.frequencies_hz[mode - 1])
     if not abs(reached - target) <= VERIFY_RTOL * target:
         raise ModelError(
             f"retune: the search for mode {mode} at {target:.7g} Hz ended at the {name} of"
@@ -547,21 +696,37 @@ def _verified(model, element_id, f, mode, target, value, start, now, rng, exact,
             f" mode {mode} at {reached:.9g} Hz (off by {abs(reached / target - 1):.2g}, more than"
             f" the {VERIFY_RTOL:g} allowed); the frequencies are not accurate enough at that"
             " value, so no value is given")
+    notes = []
+    rtol = float(res.frequency_rtol[mode - 1]) if res.frequency_rtol is not None else 0.0
+    if rtol > VERIFY_RTOL:
+        notes.append(f"mode {mode} of the re-solved model is accurate to about {rtol:.1g}"
+                     f" (relative) only, more than the {VERIFY_RTOL:g} the value is meant to"
+                     " hold: treat the value as approximate")
     w = 2 * math.pi * target
-    below_lo = eigenvalues_below(tuned, (w * (1 - COUNT_RTOL)) ** 2)
-    below_hi = eigenvalues_below(tuned, (w * (1 + COUNT_RTOL)) ** 2)
-    checked = below_lo is not None
-    if checked and not (below_lo <= mode - 1 and below_hi >= mode):
-        raise ModelError(
-            f"retune: with the {name} of {who} = {value:.9g} {unit} the eigen-solver puts"
-            f" mode {mode} at {reached:.9g} Hz, but a count of the eigenvalues of the unreduced"
-            f" model (inertia of K - w^2 M) finds {below_lo} below {target * (1 - COUNT_RTOL):.9g}"
-            f" Hz and {below_hi} below {target * (1 + COUNT_RTOL):.9g} Hz: the frequencies are not"
-            " reliable at that value (a link far stiffer than the rest?), so no value is given")
+    below_lo = _count_below(res.system, (w * (1 - COUNT_RTOL)) ** 2)
+    below_hi = _count_below(res.system, (w * (1 + COUNT_RTOL)) ** 2)
+    checked = below_lo is not None and below_lo <= mode - 1 and below_hi >= mode
+    if below_lo is not None and not checked:
+        fz = res.frequencies_hz
+        sure = (res.complete and rtol <= 1e-3 * COUNT_RTOL
+                and (mode < 2 or fz[mode - 2] < target * (1 - COUNT_RTOL))
+                and (mode >= len(fz) or fz[mode] > target * (1 + COUNT_RTOL)))
+        said = (f"a count of the eigenvalues of the unreduced model (inertia of its flexibility"
+                f" form) finds {below_lo} below {target * (1 - COUNT_RTOL):.9g} Hz and"
+                f" {below_hi} below {target * (1 + COUNT_RTOL):.9g} Hz")
+        if not sure:
+            raise ModelError(
+                f"retune: with the {name} of {who} = {value:.9g} {unit} the eigen-solver puts"
+                f" mode {mode} at {reached:.9g} Hz, but {said}: the frequencies are not"
+                " reliable at that value (a link far stiffer than the rest?), so no value is"
+                " given")
+        notes.append(f"the mode number is not confirmed: the dense solve puts mode {mode} at"
+                     f" {reached:.9g} Hz (estimated error {rtol:.1g}, its neighbours clear of"
+                     f" the target), but {said}")
     return RetuneResult(element_id=element_id, field=f, mode=mode, target_hz=target,
                         value=float(value), frequency_hz=reached, start_value=start,
                         start_hz=now, range_hz=tuple(rng), range_exact=exact, evaluations=evals,
-                        count_checked=checked)
+                        count_checked=checked, warnings=tuple(notes))
 
 
 @dataclass(frozen=True, eq=False)

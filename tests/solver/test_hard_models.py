@@ -15,6 +15,7 @@ import scipy.linalg
 
 import solver
 from solver import Anchor, Mass, Model, Spring
+from sw_mp import frequencies_hz as mp_frequencies
 from sw_builders import (chain, dense, lattice_eigenvalues, mp_rayleigh, mp_reference,
                          square_lattice)
 
@@ -268,3 +269,25 @@ def test_mechanism_causes_state_a_free_motion(name, model):
         assert set(stated) == set(z.masses), z.cause
         rq, top = mp_rayleigh(ref, stated)
         assert abs(rq) <= 1e-5 * top, (z.cause, rq)
+
+
+@pytest.mark.parametrize("offset", [1e-12, 1e-10, 1e-8, 1e-7, 1e-6, 2e-6, 1e-5])
+def test_nearly_straight_layout_is_computed_or_flagged(offset):
+    """A 1 kg mass between two 1000 N/m springs to anchors at (-1, 0) and (1, offset): across the
+    near-line the stiffness is second order in the angle (about 3.559e-6 Hz at offset 1e-6; it
+    was shown as a 0 Hz mechanism). mpmath reference (sw_mp, 60 digits, model data only): every
+    frequency shown is right to its own stated accuracy (10x frequency_rtol, at least 1e-12),
+    or it is shown as 0 Hz with a zero-frequency flag and a warning."""
+    model = Model(kind="planar", masses=(Mass("m", 0, 0, 1.0),),
+                  anchors=(Anchor("a", -1, 0), Anchor("b", 1, offset)),
+                  springs=(Spring("s1", "a", "m", 1e3), Spring("s2", "m", "b", 1e3)))
+    ref = np.array(mp_frequencies(model, 60))
+    res = solver.modes(model)
+    for i, (f, r) in enumerate(zip(res.frequencies_hz, ref)):
+        if f == 0.0:
+            assert res.zero_mode(i + 1) is not None and res.warnings
+        else:
+            assert abs(f - r) <= max(10 * res.frequency_rtol[i], 1e-12) * r
+    if offset >= 1e-8:   # an angle well above the geometry's resolution: computed, not flagged
+        assert res.zero_modes == ()
+        assert res.frequencies_hz[0] == pytest.approx(ref[0], rel=1e-9)

@@ -144,7 +144,8 @@ def test_margin_argument_and_model_margin():
     res15 = margin_check(model, exact([17.5, 18.5]), margin_percent=15.0)
     assert conflicted_modes(res15) == [1, 2]
     res0 = margin_check(model, exact([20.0, 19.999]), margin_percent=0.0)
-    assert res0.ok  # zero margin: a line is a zero-width interval, nothing lies strictly inside
+    # zero margin: a mode exactly on the line is a resonance; 1e-4 off it passes
+    assert conflicted_modes(res0) == [1]
 
 
 def test_zero_modes_never_conflict():
@@ -256,3 +257,35 @@ def test_band_from_zero_has_no_lower_advice():
     assert c.move_hz == pytest.approx(6.5, rel=1e-12)
     assert "above 11.5 Hz" in c.message and "below" not in c.message.split(":")[1].replace(
         "no frequency below", "")
+
+
+@pytest.mark.parametrize("f, conflict", [(20.0, True), (40.0, True), (60.0, True),
+                                         (19.99, False), (20.01, False), (100.0, True),
+                                         (110.0, True), (120.0, True), (99.9, False),
+                                         (120.1, False)])
+def test_on_the_excitation_conflicts_at_zero_margin(f, conflict):
+    """At margin_percent = 0 the widened intervals are the excitations themselves: a mode exactly
+    on a speed order (20, 40, 60 Hz at 1200 rpm) or in the band [100, 120] Hz, edges included,
+    is a resonance and conflicts; anything off them passes (common practice: a forcing frequency
+    on a natural frequency is resonance, whatever margin is asked). The margin table agrees."""
+    model = oscillators([f], excitations=(ENG, FAN), margin=0.0)
+    res = margin_check(model, exact([f]))
+    assert bool(res.conflicts) is conflict
+    table = solver.margin_table(model, exact([f]))
+    assert table.ok is (not conflict)
+
+
+@pytest.mark.parametrize("f", [20.0, 40.0])
+def test_on_the_excitation_through_the_eigen_solver_at_zero_margin(f):
+    """The same with the frequency from the eigen-solver, k = m (2 pi f)^2 (math): on the line to
+    round-off is on it."""
+    model = oscillators([f], margin=0.0)
+    assert not margin_check(model, solver.modes(model)).ok
+
+
+def test_widened_edge_still_passes_with_a_margin():
+    """With a 15 % margin the edges 17 and 23 Hz keep exactly the margin and pass, while 20 Hz
+    (on the line) conflicts (common practice; edges by hand)."""
+    model = oscillators([17.0, 20.0, 23.0])
+    res = margin_check(model, exact([17.0, 20.0, 23.0]))
+    assert conflicted_modes(res) == [2]

@@ -598,3 +598,96 @@ def test_sensitivities_equal_finite_differences_everywhere(model, data):
     for g in _fd_groups(lam):
         want, got = fd[g].sum(), analytic[g].sum()
         assert abs(got - want) <= 1e-6 * abs(want) + 1e-7 * len(g) / light, (eid, field, g, got, want)
+
+
+# --------------------------------------------------------------------------------------------
+# stiffness spreads up to 1e12 (stiff links as springs): limits and retune against mpmath
+
+@st.composite
+def spread_models(draw):
+    """small_models with some springs made 10^e stiffer, e up to 12 (a rigid joint modelled as
+    a very stiff spring, common practice)."""
+    model = draw(small_models())
+    springs = []
+    for s in model.springs:
+        e = draw(st.sampled_from([0.0, 0.0, 3.0, 6.0, 9.0, 12.0])) if len(springs) % 2 == 0 else 0.0
+        springs.append(Spring(id=s.id, a=s.a, b=s.b, k=s.k * 10 ** e, k_t=s.k_t))
+    return model.with_changes(springs=tuple(springs))
+
+
+def _mp_limits(model, eid, field, mode, dps=120):
+    """Mode ``mode`` of the mpmath reference (sw_mp) as the value goes to 1e-30 and to 1e30, the
+    extremes a model holds (18 decades beyond a 1e12 spread), in Hz, and at the value itself.
+    An end where the frequency still moves as sqrt(value) (x10 over the last two decades) is
+    the limit 0 or infinity (its finite value there only reflects where the scan stopped)."""
+    def at(x):
+        return sw_mp.frequencies_hz(with_value(model, eid, x, field), dps)[mode - 1]
+
+    ends = []
+    for x, x_in in ((1e-30, 1e-28), (1e30, 1e28)):
+        f, f_in = at(x), at(x_in)
+        if f > 5 * f_in:
+            f = math.inf
+        elif f_in > 5 * f or f == 0.0:
+            f = 0.0
+        ends.append(f)
+    return ends, sw_mp.frequencies_hz(model, dps)[mode - 1]
+
+
+@PROPERTY
+@given(spread_models(), st.data())
+def test_reachable_range_with_stiffness_spread(model, data):
+    """Random models with stiffness spreads up to 1e12: reachable_range of a random element and
+    mode against the mpmath limits (rtol 1e-6, the review's scan; :func:`_mp_limits`)."""
+    res = solver.modes(model)
+    assume(res.n_modes > 0 and _elements(model))
+    eid, field = data.draw(st.sampled_from(_elements(model)))
+    mode = data.draw(st.integers(1, res.n_modes))
+    work = _positive(model, eid, field)
+    assume(not solver.modes(work).is_zero[mode - 1])
+    (a, b), now = _mp_limits(work, eid, field, mode)
+    assume(now > 0)
+    ref = sorted((a, b))
+    got = solver.reachable_range(work, eid, mode, field=field)
+    for g, r in zip(got, ref):
+        if r == 0.0 or math.isinf(r):
+            assert g == r or (r == 0.0 and g <= 1e-9 * now), (got, ref, now)
+        else:
+            assert g == pytest.approx(r, rel=1e-6), (got, ref, now)
+
+
+@PROPERTY
+@given(spread_models(), st.data())
+def test_retune_with_stiffness_spread(model, data):
+    """Random models with stiffness spreads up to 1e12: a target strictly inside the mpmath range
+    (5 to 95 % of it) is reached, and mpmath at the returned value puts the mode on it (rtol
+    1e-7); a target outside is refused, and a refusal that states a range states one that holds
+    the present frequency (the review found 'stays between 7.130495 and 12.32773 Hz (now
+    6.164067 Hz)')."""
+    res = solver.modes(model)
+    assume(res.n_modes > 0 and _elements(model))
+    eid, field = data.draw(st.sampled_from(_elements(model)))
+    mode = data.draw(st.integers(1, res.n_modes))
+    work = _positive(model, eid, field)
+    assume(not solver.modes(work).is_zero[mode - 1])
+    (a, b), now = _mp_limits(work, eid, field, mode)
+    lo, hi = sorted((a, b))
+    unbounded = math.isinf(hi)
+    assume(now > 0 and (unbounded or hi - lo > 1e-4 * hi))
+    t = data.draw(st.floats(0.05, 0.95))
+    target = lo + t * ((10 * max(lo, now)) if unbounded else (hi - lo))
+    try:
+        value = solver.retune(work, eid, mode, target, field=field)
+    except ModelError as err:
+        raise AssertionError(f"reachable target refused: {err}") from None
+    got = sw_mp.frequencies_hz(with_value(work, eid, value, field), 120)[mode - 1]
+    assert got == pytest.approx(target, rel=1e-7)
+    outside = hi * data.draw(st.floats(1.01, 3.0)) if not unbounded else lo * 0.5
+    assume(outside > 0 and (not unbounded or lo > 1e-6 * now))
+    with pytest.raises(ModelError) as err:
+        solver.retune(work, eid, mode, outside, field=field)
+    msg = str(err.value)
+    rng = re.search(r"between ([-+.\de]+) Hz \(.*?\) and ([-+.\de]+) Hz", msg)
+    if rng:
+        x, y = float(rng.group(1)), float(rng.group(2))
+        assert x <= now * (1 + 1e-6) and now * (1 - 1e-6) <= y, msg
