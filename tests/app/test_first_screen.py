@@ -95,3 +95,100 @@ def test_the_modes_table_refits_for_a_larger_font(qtbot, first_start):
     view.setFont(font)
     qtbot.wait(100)
     _assert_columns_fit(window.modes_table)
+
+
+# -- 3. plot axes: titles clear of the tick labels and whole ---------------------------------------
+def _plot_items(window):
+    out = []
+    for w in window.findChildren(pg.GraphicsView):
+        if isinstance(w, pg.PlotWidget):
+            out.append((w.objectName(), w.getPlotItem()))
+        elif isinstance(w, pg.GraphicsLayoutWidget):
+            out += [(w.objectName(), i) for i in w.ci.items if isinstance(i, pg.PlotItem)]
+    return out
+
+
+def _axis_problems(where, ax):
+    """The title's rectangle against every tick label's rectangle as the axis draws them
+    (AxisItem.generateDrawSpecs, in the axis's coordinates), and the title's length against
+    the axis's."""
+    if not ax.isVisible() or not ax.labelText or not ax.label.isVisible():
+        return []
+    picture = QPicture()
+    p = QPainter(picture)
+    try:
+        specs = ax.generateDrawSpecs(p)
+    finally:
+        p.end()
+    if specs is None:
+        return []
+    title = ax.label.mapRectToParent(ax.label.boundingRect())
+    out = [f"{where} {ax.orientation} title {ax.labelText!r} over tick label {text!r}"
+           for rect, _flags, text in specs[2] if rect.intersects(title)]
+    vertical = ax.orientation in ("left", "right")
+    length, room = (title.height(), ax.height()) if vertical else (title.width(), ax.width())
+    if length > room + 0.5:
+        out.append(f"{where} {ax.orientation} title {ax.labelText!r} cut: {length:.0f} >"
+                   f" {room:.0f}")
+    if vertical and (title.top() < -0.5 or title.bottom() > ax.height() + 0.5):
+        out.append(f"{where} title {ax.labelText!r} runs off its axis")
+    return out
+
+
+def _plots_problems(window):
+    out = []
+    for name, pi in _plot_items(window):
+        view = pi.getViewWidget()
+        if not pi.isVisible() or not view.isVisible() or \
+                view.viewport().visibleRegion().isEmpty():
+            continue                      # a panel tabbed behind another
+        for side in ("left", "bottom"):
+            out += _axis_problems(name, pi.getAxis(side))
+    return out
+
+
+def _raise(window, name):
+    return lambda: window.findChild(QDockWidget, name).raise_()
+
+
+@pytest.mark.parametrize("name", ["fan_drive.json", "pump_shaft.json", "shaker_fixture.json",
+                                  "rod_chain.json"])
+def test_axis_titles_clear_of_tick_labels_and_whole(qtbot, first_start, name):
+    """Every plot of the window (Response magnitude and phase, the Tune sweep, the free-response
+    traces, the interference diagram): no axis title touches a tick label and none is longer
+    than its axis, whatever the tick labels' width (engineering notation: ``100e-12``)."""
+    window = first_start(name)
+    problems = []
+    for state, show in [("Response", _raise(window, "dock_response")),
+                        ("Tune", _raise(window, "dock_tune")),
+                        ("Interference", _raise(window, "dock_interference")),
+                        ("free response", window.motion_panel.show_free_response),
+                        ("Response with free response", _raise(window, "dock_response"))]:
+        show()
+        qtbot.wait(150)
+        problems += [f"{state}: {p}" for p in _plots_problems(window)]
+    assert not problems, "\n".join(problems)
+
+
+def test_a_long_axis_title_wraps_to_fit_a_short_axis(qtbot):
+    """A title longer than its axis goes onto two lines (the quantity, then the unit), still
+    clear of the tick labels; with room again it is one line."""
+    from app.drawing.plot_axes import true_value_axes
+
+    plot = pg.PlotWidget(axisItems=true_value_axes())
+    qtbot.addWidget(plot)
+    plot.setLabel("left", "|displacement| (rad/(N m))")
+    plot.plot([1.0, 2.0, 3.0], [1e-12, 3e-9, 2e-6])
+    plot.resize(400, 120)
+    plot.show()
+    qtbot.waitExposed(plot)
+    qtbot.wait(100)
+    ax = plot.getAxis("left")
+    one_line = QFontMetrics(ax.label.font()).horizontalAdvance(ax.labelText)
+    assert one_line > ax.height()
+    assert not _axis_problems("plot", ax)
+    assert "<br>" in ax.labelString()
+    plot.resize(400, 500)
+    qtbot.wait(100)
+    assert "<br>" not in ax.labelString()
+    assert not _axis_problems("plot", ax)
