@@ -10,7 +10,7 @@ from pathlib import Path
 
 import pyqtgraph as pg
 import pytest
-from PySide6.QtCore import QSize
+from PySide6.QtCore import QSize, Qt
 from PySide6.QtGui import QFont, QFontMetrics, QPainter, QPicture
 from PySide6.QtWidgets import QDockWidget, QTabBar
 
@@ -192,3 +192,78 @@ def test_a_long_axis_title_wraps_to_fit_a_short_axis(qtbot):
     qtbot.wait(100)
     assert "<br>" not in ax.labelString()
     assert not _axis_problems("plot", ax)
+
+
+# -- 2. the motion view's caption: whole, never elided ---------------------------------------------
+def _wrapped_height(fm, width, text):
+    return fm.boundingRect(0, 0, int(width), 100000, int(Qt.TextFlag.TextWordWrap), text).height()
+
+
+@pytest.mark.parametrize("name", ["fan_drive.json", "pump_shaft.json"])
+def test_the_motion_caption_is_whole_at_the_first_size(qtbot, first_start, name):
+    """A rigid-body mode's caption with its cause ("the whole shaft can spin freely ...") is
+    longer than the Motion panel is wide: it wraps, every word of it is drawn, and the drawing
+    starts below its last line; the hint under the drawing is whole too."""
+    window = first_start(name)
+    window.motion_panel.show_mode(1)
+    qtbot.wait(100)
+    view = window.motion_panel.view
+    caption = view.caption
+    assert "(rigid)" in caption
+    font = view.caption_font()
+    fm = QFontMetrics(font)
+    width = view.width() - 16
+    assert fm.horizontalAdvance(caption) > width, "the case needs a caption longer than a line"
+    need = _wrapped_height(fm, width, caption)
+    sketch = view.layout_().rect
+    assert sketch.top() >= 4 + need, (sketch.top(), need)
+    lines = view.text_lines("caption")
+    assert " ".join(lines).split() == caption.split()
+    assert all(fm.horizontalAdvance(t) <= width for t in lines)
+    assert view.text_rect("caption").height() >= len(lines) * fm.lineSpacing()
+    assert view.text_rect("caption").bottom() <= sketch.top()
+    hint = view.text_lines("hint")
+    assert " ".join(hint).split() == view.hint.split()
+    assert view.text_rect("hint").top() >= sketch.bottom()
+
+
+def test_the_motion_caption_wraps_in_a_narrow_panel_and_the_drawing_stays_put(qtbot):
+    """Mode to mode in a narrow Motion panel: every caption whole; the drawing is fitted once
+    for the longest caption seen, not moved each time a caption changes its line count."""
+    from app.docks.motion_panel import MotionPanel
+    from solver import analyse
+    from solver.io import load_model
+
+    panel = MotionPanel()
+    qtbot.addWidget(panel)
+    panel.resize(330, 420)
+    panel.show()
+    qtbot.waitExposed(panel)
+    model = load_model(EXAMPLES / "fan_drive.json")
+    panel.set_analysis(analyse(model))
+    view = panel.view
+    fm = QFontMetrics(view.caption_font())
+    tops = []
+    for n in (1, 2, 3, 1):
+        panel.show_mode(n)
+        qtbot.wait(30)
+        lines = view.text_lines("caption")
+        assert " ".join(lines).split() == view.caption.split()
+        assert all(fm.horizontalAdvance(t) <= view.width() - 16 for t in lines)
+        assert view.layout_().rect.top() >= view.text_rect("caption").bottom()
+        tops.append(view.layout_().rect.top())
+    assert len(set(tops)) == 1, tops
+
+
+def test_the_canvas_motion_caption_is_whole(qtbot, first_start):
+    """Modes animated on the canvas: the caption in its corner wraps to the canvas's width."""
+    from _screen import clipped_texts
+
+    window = first_start("fan_drive.json")
+    window.motion_panel.canvas_box.setChecked(True)
+    window.motion_panel.show_mode(1)
+    qtbot.wait(100)
+    label = window.canvas_motion.caption
+    assert label.isVisible() and "(rigid)" in label.text()
+    assert label.geometry().right() <= label.parentWidget().width()
+    assert not [p for p in clipped_texts(window) if "canvas_motion_caption" in p]
