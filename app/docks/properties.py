@@ -103,6 +103,18 @@ class QuantityField(QWidget):
         self.value_entered.emit(value)
 
 
+def _show_text(edit: QLineEdit, text: str) -> None:
+    """A name in a field narrower than the name: its start shows (where a name is read from)
+    and the whole of it is in the tooltip, above what the field is for."""
+    edit.setText(text)
+    edit.setCursorPosition(0)
+    hint = edit.property("hint")
+    if hint is None:
+        hint = edit.toolTip()
+        edit.setProperty("hint", hint)
+    edit.setToolTip(f"{text}\n\n{hint}" if text and hint else (text or hint))
+
+
 def model_counts(model) -> str:
     """``"3 masses, 1 anchor, 3 springs, 1 dashpot"`` of ``model``."""
     return ", ".join((units.count(len(model.masses), "mass", "masses"),
@@ -240,7 +252,7 @@ class PropertyPanel(QWidget):
             with QSignalBlocker(w):
                 if isinstance(w, QLineEdit):
                     if not w.hasFocus():
-                        w.setText(getter(model))
+                        _show_text(w, getter(model))
                 elif isinstance(w, QComboBox):
                     w.setCurrentIndex(max(0, w.findData(getter(model))))
                 elif isinstance(w, QCheckBox):
@@ -380,6 +392,7 @@ class PropertyPanel(QWidget):
     def _build_model(self, model):
         name = QLineEdit()
         name.setObjectName("field_name")
+        name.setToolTip("The model's name, shown in the title and the report")
         name.editingFinished.connect(
             lambda e=name: self._try(lambda: self.document.set_top(name=e.text().strip()), None))
         self.form.addRow("Name", name)

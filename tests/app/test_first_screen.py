@@ -267,3 +267,38 @@ def test_the_canvas_motion_caption_is_whole(qtbot, first_start):
     assert label.isVisible() and "(rigid)" in label.text()
     assert label.geometry().right() <= label.parentWidget().width()
     assert not [p for p in clipped_texts(window) if "canvas_motion_caption" in p]
+
+
+# -- 4. Properties: a long name reads from its start ---------------------------------------------
+def test_a_long_model_name_shows_its_start_and_the_whole_in_the_tooltip(qtbot, first_start):
+    """fan_drive's name is longer than the Name field: the field shows its first characters
+    (cursor at 0, nothing scrolled off on the left) and its tooltip holds the whole name; the
+    same after the name is changed by an undo."""
+    window = first_start("fan_drive.json")
+    edit = window.properties.widget("name")
+    name = window.document.model.name
+    assert QFontMetrics(edit.font()).horizontalAdvance(name) > edit.width(), "needs a long name"
+    assert edit.text() == name
+    assert edit.cursorPosition() == 0
+    assert edit.cursorRect().left() < 8
+    assert name in edit.toolTip()
+    window.document.set_top(name=name + " (copy for the variable-speed study)")
+    qtbot.wait(20)
+    edit = window.properties.widget("name")
+    assert edit.cursorPosition() == 0 and "variable-speed study" in edit.toolTip()
+    window.document.undo_stack.undo()
+    qtbot.wait(20)
+    edit = window.properties.widget("name")
+    assert edit.cursorPosition() == 0 and edit.toolTip().startswith(name + "\n")
+
+
+def test_a_long_element_label_shows_its_start(qtbot, first_start):
+    """A spring's label in its Label field: the start shows, the whole in the tooltip."""
+    window = first_start("pump_shaft.json")
+    spring = max(window.document.model.springs, key=lambda s: len(s.label))
+    window.scene.select_ids([spring.id])
+    qtbot.wait(20)
+    edit = window.properties.widget("label")
+    assert edit.text() == spring.label
+    assert edit.cursorPosition() == 0
+    assert spring.label in edit.toolTip()
