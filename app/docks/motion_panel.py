@@ -483,6 +483,9 @@ class MotionPanel(QWidget):
         self.trace_list = QListWidget(self)
         self.trace_list.setObjectName("motion_traces")
         self.trace_list.setMaximumWidth(170)
+        # a long label ("Level 1 (power supplies) x") wraps rather than being cut
+        self.trace_list.setWordWrap(True)
+        self.trace_list.setTextElideMode(Qt.TextElideMode.ElideNone)
         self.trace_list.setToolTip("Masses whose displacement is traced against time; the"
                                    " colour of each ticked one is its curve's (the legend)")
         self.trace_list.itemChanged.connect(lambda _i: self._rebuild_traces())

@@ -351,3 +351,29 @@ def test_the_last_tab_comes_back_on_the_next_start(qtbot, first_start, settings)
     again = first_start("shaker_fixture.json")
     qtbot.wait(50)
     assert _shown_tab(again) == "Sources"
+
+
+# -- 6. combo boxes fit their text -----------------------------------------------------------------
+def _combo_room(combo):
+    from PySide6.QtWidgets import QStyle, QStyleOptionComboBox
+
+    opt = QStyleOptionComboBox()
+    combo.initStyleOption(opt)
+    return combo.style().subControlRect(QStyle.ComplexControl.CC_ComboBox, opt,
+                                        QStyle.SubControl.SC_ComboBoxEditField, combo).width()
+
+
+def test_the_tune_element_list_fits_a_long_label(qtbot, first_start):
+    """A spring renamed to a long label: the Tune panel's element box widens so that every entry,
+    picked, shows whole (the controls' column grows, the sweep plot gives way)."""
+    window = first_start("pump_shaft.json")
+    spring = window.document.model.springs[0]
+    window.document.set_element(spring.id, label="Motor shaft end, keyed hub and flexible disc")
+    qtbot.wait(100)
+    combo = window.tune_panel.element_combo
+    fm = QFontMetrics(combo.font())
+    for i in range(combo.count()):
+        combo.setCurrentIndex(i)
+        qtbot.wait(10)
+        assert fm.horizontalAdvance(combo.currentText()) <= _combo_room(combo), \
+            combo.currentText()
