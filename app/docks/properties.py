@@ -179,6 +179,11 @@ class PropertyPanel(QWidget):
         self._body = QWidget()
         self.form = QFormLayout(self._body)
         self.form.setFieldGrowthPolicy(QFormLayout.AllNonFixedFieldsGrow)
+        # rows closer than the style's default: a planar mass's twelve rows (position, mass,
+        # locks, initial displacement and velocity in x, y and θ) then fit the panel's first
+        # height without a scroll bar; the framed fields keep them apart
+        self.form.setVerticalSpacing(3)
+        self.form.setContentsMargins(4, 2, 4, 2)
         scroll.setWidget(self._body)
         outer.addWidget(scroll, 1)
         document.model_changed.connect(self._on_model_change)

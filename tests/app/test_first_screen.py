@@ -377,3 +377,22 @@ def test_the_tune_element_list_fits_a_long_label(qtbot, first_start):
         qtbot.wait(10)
         assert fm.horizontalAdvance(combo.currentText()) <= _combo_room(combo), \
             combo.currentText()
+
+
+# -- 7. Properties: every field without scrolling ----------------------------------------------------
+@pytest.mark.parametrize("name", ALL_EXAMPLES)
+def test_properties_shows_every_field_without_scrolling(qtbot, first_start, name):
+    """The model's fields, a mass's (a planar mass has twelve rows: label, position, mass,
+    locks, initial displacement and velocity in x, y and θ) and a spring's, each without a
+    scroll bar at the first size."""
+    from PySide6.QtWidgets import QScrollArea
+
+    window = first_start(name)
+    scroll = window.findChild(QScrollArea, "properties_scroll")
+    model = window.document.model
+    for what, ids in [("model", []), ("mass", [model.masses[0].id]),
+                      ("spring", [model.springs[0].id])]:
+        window.scene.select_ids(ids)
+        qtbot.wait(60)
+        assert scroll.verticalScrollBar().maximum() == 0, \
+            (what, scroll.widget().minimumSizeHint().height(), scroll.viewport().height())
