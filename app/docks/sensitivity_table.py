@@ -171,6 +171,17 @@ class SensitivityTable(QWidget):
         self.model.set_analysis(analysis)
         if self.view.columnWidth(0) < 140:
             self.view.setColumnWidth(0, 180)
+        self._fit_mode_columns()
+
+    def _fit_mode_columns(self):
+        """Each mode column at least as wide as its heading ("mode 12" over "29.2296e3 Hz"),
+        measured in the header's own font with the sort arrow's room (fonts differ between
+        desktops: a fixed width cut the frequency on some)."""
+        hdr = self.view.horizontalHeader()
+        for c in range(1, self.model.columnCount()):
+            need = hdr.sectionSizeHint(c)
+            if hdr.sectionSize(c) < need:
+                hdr.resizeSection(c, need)
 
     def showEvent(self, event):  # noqa: N802
         self._catch_up()

@@ -396,3 +396,31 @@ def test_properties_shows_every_field_without_scrolling(qtbot, first_start, name
         qtbot.wait(60)
         assert scroll.verticalScrollBar().maximum() == 0, \
             (what, scroll.widget().minimumSizeHint().height(), scroll.viewport().height())
+
+
+# -- and the sensitivity table's headings ------------------------------------------------------------
+def test_sensitivity_headings_fit_in_a_larger_font(qtbot):
+    """The 40-mass rod's mode headings ("mode 12" over "29.2296e3 Hz") in a font a fifth larger
+    than the default: every heading's wider line fits its column."""
+    from app.docks.sensitivity_table import SensitivityTable
+    from solver import analyse
+    from solver.io import load_model
+
+    table = SensitivityTable()
+    qtbot.addWidget(table)
+    font = QFont(table.font())
+    font.setPointSizeF(font.pointSizeF() * 1.2)
+    table.setFont(font)
+    table.resize(900, 300)
+    table.show()
+    qtbot.waitExposed(table)
+    table.set_analysis(analyse(load_model(EXAMPLES / "rod_chain.json")))
+    qtbot.wait(20)
+    hdr = table.view.horizontalHeader()
+    fm = QFontMetrics(hdr.font())
+    model = table.view.model()
+    assert model.columnCount() == 41
+    for c in range(1, model.columnCount()):
+        text = model.headerData(c, Qt.Orientation.Horizontal)
+        need = max(fm.horizontalAdvance(t) for t in text.split("\n"))
+        assert hdr.sectionSize(c) >= need + 8, (text, hdr.sectionSize(c), need)
