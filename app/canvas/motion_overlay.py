@@ -98,6 +98,8 @@ class CanvasMotion:
         mode's cause is longer than a line), never cut."""
         label = self.caption
         room = label.parentWidget().width() - 16 if label.parentWidget() is not None else 600
+        # the viewport moves its children when the scene scrolls: back to the corner each time
+        label.move(8, 8)
         label.setWordWrap(False)
         label.setText(text)
         if label.sizeHint().width() > room:

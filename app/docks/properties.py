@@ -12,7 +12,7 @@ from __future__ import annotations
 
 from PySide6.QtCore import QSignalBlocker, Qt, Signal
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QHBoxLayout, QLabel, QLineEdit,
-                               QScrollArea, QVBoxLayout, QWidget)
+                               QScrollArea, QSizePolicy, QVBoxLayout, QWidget)
 
 from solver.errors import ModelError
 from solver.model import Anchor, Damper, Mass, Spring
@@ -171,6 +171,9 @@ class PropertyPanel(QWidget):
         self.title = QLabel()
         self.title.setObjectName("properties_title")
         self.title.setStyleSheet("font-weight: bold;")
+        # a long model name wraps inside the panel: it must not widen the dock
+        self.title.setWordWrap(True)
+        self.title.setSizePolicy(QSizePolicy.Policy.Ignored, QSizePolicy.Policy.Preferred)
         outer.addWidget(self.title)
         scroll = QScrollArea()
         scroll.setObjectName("properties_scroll")

@@ -10,9 +10,9 @@ from pathlib import Path
 
 import pyqtgraph as pg
 import pytest
-from PySide6.QtCore import QSize, Qt
+from PySide6.QtCore import QPoint, QSize, Qt
 from PySide6.QtGui import QFont, QFontMetrics, QPainter, QPicture
-from PySide6.QtWidgets import QDockWidget, QTabBar
+from PySide6.QtWidgets import QDockWidget, QStyle, QTabBar
 
 EXAMPLES = Path(__file__).resolve().parents[2] / "assets" / "examples"
 ALL_EXAMPLES = sorted(p.name for p in EXAMPLES.glob("*.json"))
@@ -277,10 +277,19 @@ def test_the_canvas_motion_caption_is_whole(qtbot, first_start):
 
 # -- 4. Properties: a long name reads from its start ---------------------------------------------
 def test_a_long_model_name_shows_its_start_and_the_whole_in_the_tooltip(qtbot, first_start):
-    """fan_drive's name is longer than the Name field: the field shows its first characters
+    """A name longer than the Name field: the field shows its first characters
     (cursor at 0, nothing scrolled off on the left) and its tooltip holds the whole name; the
     same after the name is changed by an undo."""
     window = first_start("fan_drive.json")
+    field = window.properties.widget("name")
+    panel_width = window.properties.width()
+    long = window.document.model.name
+    while QFontMetrics(field.font()).horizontalAdvance(long) <= field.width() + 40:
+        long += ", second build for the variable-speed study"   # longer than the field
+    window.document.set_top(name=long)
+    qtbot.wait(20)
+    assert window.properties.width() == panel_width, "a long name must not widen the panel"
+    assert window.properties.title.width() <= panel_width
     edit = window.properties.widget("name")
     name = window.document.model.name
     assert QFontMetrics(edit.font()).horizontalAdvance(name) > edit.width(), "needs a long name"
@@ -424,3 +433,12 @@ def test_sensitivity_headings_fit_in_a_larger_font(qtbot):
         text = model.headerData(c, Qt.Orientation.Horizontal)
         need = max(fm.horizontalAdvance(t) for t in text.split("\n"))
         assert hdr.sectionSize(c) >= need + 8, (text, hdr.sectionSize(c), need)
+    # sorted by mode 3: its heading shares the column with the sort arrow
+    x = hdr.sectionViewportPosition(3) + hdr.sectionSize(3) // 2
+    qtbot.mouseClick(hdr.viewport(), Qt.MouseButton.LeftButton, pos=QPoint(x, 5))
+    qtbot.wait(20)
+    assert hdr.sortIndicatorSection() == 3
+    arrow = hdr.style().pixelMetric(QStyle.PixelMetric.PM_HeaderMarkSize, None, hdr)
+    text = model.headerData(3, Qt.Orientation.Horizontal)
+    need = max(fm.horizontalAdvance(t) for t in text.split("\n"))
+    assert hdr.sectionSize(3) >= need + 8 + arrow
