@@ -227,7 +227,7 @@ class MainWindow(QMainWindow):
         if state is not None:
             self.restoreState(state)
         else:
-            QTimer.singleShot(0, self._first_layout)   # once the window has its real size
+            self._first_layout_due = True    # on the first show: the window has its real size
         self._update_title()
         self._on_mode_change(self.scene.mode)
         # last: a small model's edit is then solved after every view has taken the new model,
@@ -235,10 +235,16 @@ class MainWindow(QMainWindow):
         self.solver.attach(self.document, immediate=True)
 
     # -- layout helpers -----------------------------------------------------------------------
+    def showEvent(self, event):  # noqa: N802 (Qt's name)
+        super().showEvent(event)
+        if getattr(self, "_first_layout_due", False):
+            self._first_layout_due = False
+            QTimer.singleShot(0, self._first_layout)
+
     def _first_layout(self):
         """Dock sizes on a first start. Top row: the canvas, Properties (every model field
         without scrolling), Motion. Bottom row: the modes table wide enough for all its columns,
-        then the Tune / Sensitivity / Response tabs."""
+        then the Tune / Sensitivity / Response tabs, Tune in front."""
         docks = {d.objectName(): d for d in self.findChildren(QDockWidget)}
         row = [docks[n] for n in ("dock_modes", "dock_tune") if n in docks]
         w, h = self.width(), self.height()
@@ -248,6 +254,11 @@ class MainWindow(QMainWindow):
         side = [docks[n] for n in ("dock_properties", "dock_motion") if n in docks]
         if len(side) == 2:
             self.resizeDocks(side, [int(w * 0.235), int(w * 0.30)], Qt.Horizontal)
+        # Tune in front: the main loop reads the frequencies in the table and moves them there.
+        # Raised here, once the window is shown: a raise_() before the tab bar exists is lost
+        # and left whichever tab Qt put in front. A saved layout brings back the user's tab.
+        if "dock_tune" in docks:
+            docks["dock_tune"].raise_()
         QTimer.singleShot(0, self.view.fit)   # the canvas has its final size now
 
     def _dock(self, title, widget, area, name):
@@ -454,7 +465,6 @@ class MainWindow(QMainWindow):
         # the Response plots share the Tune tab stack: beside the modes table they get the width
         # their controls and curves need, which three panels in one row could not give
         self.tabifyDockWidget(sens_dock, self.response_dock)
-        tune_dock.raise_()
         self.energy_tint = EnergyTint(self.scene, self.view)
         view_menu = next(a.menu() for a in self.menuBar().actions() if a.text() == "&View")
         view_menu.addSeparator()
@@ -487,8 +497,6 @@ class MainWindow(QMainWindow):
         diagram_dock = self._dock("Interference diagram", self.interference_panel,
                                   Qt.BottomDockWidgetArea, "dock_interference")
         self.tabifyDockWidget(self.response_dock, diagram_dock)
-        self.findChild(QDockWidget, "dock_tune").raise_()
-        self.response_dock.raise_()
         self.solver.results_ready.connect(self.sources_panel.set_analysis)
         self.solver.results_ready.connect(self.interference_panel.set_analysis)
         self.solver.live_changed.connect(self.interference_panel.set_live)

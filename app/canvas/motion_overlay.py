@@ -91,10 +91,24 @@ class CanvasMotion:
         for link in self.scene.links.values():
             link.refresh(label=False)      # labels stay where they were placed, at rest
         if caption:
-            self.caption.setText(caption)
-            self.caption.adjustSize()
-            self.caption.show()
-            self.caption.raise_()
+            self._show_caption(caption)
+
+    def _show_caption(self, text: str) -> None:
+        """The caption in the canvas's corner, wrapped to the canvas's width (a rigid-body
+        mode's cause is longer than a line), never cut."""
+        label = self.caption
+        room = label.parentWidget().width() - 16 if label.parentWidget() is not None else 600
+        # the viewport moves its children when the scene scrolls: back to the corner each time
+        label.move(8, 8)
+        label.setWordWrap(False)
+        label.setText(text)
+        if label.sizeHint().width() > room:
+            label.setWordWrap(True)
+            label.resize(room, label.heightForWidth(room))
+        else:
+            label.adjustSize()
+        label.show()
+        label.raise_()
 
     def clear(self) -> None:
         """Every item back where the model puts it; the caption hidden."""

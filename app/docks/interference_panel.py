@@ -65,7 +65,6 @@ class InterferencePanel(QWidget):
         for ax in ("left", "bottom"):
             pi.getAxis(ax).setTextPen(st.ink)
             pi.getAxis(ax).setPen(st.ink_soft)
-        pi.getAxis("left").setWidth(52)
         self.plot.setSizePolicy(QSizePolicy.Policy.Expanding, QSizePolicy.Policy.Expanding)
         self.plot.setMinimumSize(260, 160)
         self.message = QLabel()

@@ -144,8 +144,10 @@ class ModesTable(QWidget):
         self.view.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Interactive)
         self._col_chars: list[int] = []
         self._wrapped = False
+        self._sharing = False
         self.view.setWordWrap(True)
         self.view.installEventFilter(self)
+        self.view.viewport().installEventFilter(self)
         self.view.setAlternatingRowColors(True)
         self.view.setToolTip("Select a mode to animate it. Hover the notes for zero-frequency"
                              " causes and repeated modes.")
@@ -240,32 +242,46 @@ class ModesTable(QWidget):
                 hdr.moveSection(hdr.visualIndex(notes), 4)
         if not in_place or len(chars) != len(self._col_chars) or \
                 any(a > b for a, b in zip(chars, self._col_chars)):
-            self.view.resizeColumnsToContents()
+            self._measure_numbers()
             self._col_chars = chars
             self._share_width()
 
+    def _measure_numbers(self):
+        """Each number column as wide as its widest cell or header line, in the table's own
+        font (the widths follow the fonts of the desktop it runs on)."""
+        notes = len(self._model._header) - 1
+        for c in range(notes):
+            self.view.resizeColumnToContents(c)
+
     def _share_width(self):
-        """The notes take the width the number columns leave (at least :data:`MIN_NOTES` px)
-        and wrap onto more lines rather than being cut, so no column is out of sight."""
+        """The notes take exactly the width the number columns leave (at least
+        :data:`MIN_NOTES` px) and wrap onto more lines rather than being cut, so the columns add
+        up to the viewport's width and none is out of sight."""
         header = self._model._header
-        if not header:
+        if not header or self._sharing:
             return
-        hdr = self.view.horizontalHeader()
-        notes = len(header) - 1
-        others = sum(hdr.sectionSize(c) for c in range(len(header)) if c != notes)
-        avail = self.view.viewport().width()
-        want = max(self.view.sizeHintForColumn(notes), hdr.sectionSizeHint(notes))
-        width = max(MIN_NOTES, min(want, avail - others)) if avail > others else want
-        if width != hdr.sectionSize(notes):
-            hdr.resizeSection(notes, width)
-        if want > width or self._wrapped:
-            self.view.resizeRowsToContents()
+        self._sharing = True
+        try:
+            hdr = self.view.horizontalHeader()
+            notes = len(header) - 1
+            others = sum(hdr.sectionSize(c) for c in range(len(header)) if c != notes)
+            width = max(MIN_NOTES, self.view.viewport().width() - others)
+            if width != hdr.sectionSize(notes):
+                hdr.resizeSection(notes, width)
+            want = self.view.sizeHintForColumn(notes) if self._model.rowCount() else 0
+            if want > width or self._wrapped:
+                self.view.resizeRowsToContents()
             self._wrapped = want > width
-        else:
-            self._wrapped = False
+        finally:
+            self._sharing = False
 
     def eventFilter(self, obj, event):  # noqa: N802
-        if obj is self.view and event.type() == QEvent.Type.Resize:
+        # the viewport's own resize (not the view's): it comes after the frame and the scroll
+        # bars are laid out, so its width is the room the columns really have
+        if obj is self.view.viewport() and event.type() == QEvent.Type.Resize:
+            self._share_width()
+        elif obj is self.view and event.type() == QEvent.Type.FontChange:
+            self._measure_numbers()
             self._share_width()
         return False
 

@@ -25,7 +25,7 @@ import math
 
 import numpy as np
 from PySide6.QtCore import QElapsedTimer, QPointF, QRectF, Qt, QTimer, Signal
-from PySide6.QtGui import QFont, QFontMetrics, QIcon, QPainter, QPen, QPixmap
+from PySide6.QtGui import QFont, QFontMetrics, QIcon, QPainter, QPen, QPixmap, QTextLayout
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QGraphicsItem, QHBoxLayout, QLabel,
                                QListWidget, QListWidgetItem, QPushButton, QSizePolicy, QSlider,
                                QSplitter, QVBoxLayout, QWidget)
@@ -94,6 +94,29 @@ class _ResponseTable:
                 + h01 * self.x[i + 1] + h11 * self.dt * self.v[i + 1])
 
 
+def wrap_text(text: str, font: QFont, width: float) -> list[str]:
+    """``text`` broken at word boundaries into lines no wider than ``width`` px in ``font``
+    (a single word wider than that is broken inside)."""
+    if not text:
+        return []
+    layout = QTextLayout(text, font)
+    option = layout.textOption()
+    option.setWrapMode(option.WrapMode.WrapAtWordBoundaryOrAnywhere)
+    layout.setTextOption(option)
+    lines = []
+    layout.beginLayout()
+    try:
+        while True:
+            line = layout.createLine()
+            if not line.isValid():
+                break
+            line.setLineWidth(width)
+            lines.append(text[line.textStart():line.textStart() + line.textLength()].rstrip())
+    finally:
+        layout.endLayout()
+    return [t for t in lines if t]
+
+
 class MotionView(QWidget):
     """Paints the model with the current displacements; turns a mass drag into a request."""
 
@@ -109,8 +132,8 @@ class MotionView(QWidget):
         self.model = None
         self.displacements: dict | None = None
         self.scale = 1.0
-        self.caption = ""
-        self.hint = ""
+        self._texts = {"caption": "", "hint": ""}
+        self._rows = {"caption": 1, "hint": 1}    # lines the bands above and below have room for
         self.energy = None
         #: the largest drawn excursion of a mass in the animation shown (px): labels keep off it
         self.motion_px = 0.0
@@ -120,19 +143,81 @@ class MotionView(QWidget):
         self._drag = None        # (mass_id, grab offset from the displayed centre in px)
         self._drag_pos = None
 
+    # -- the caption over the drawing and the hint under it: wrapped, never cut -------------
+    @property
+    def caption(self) -> str:
+        """The text over the drawing (mode, frequency, the cause of a zero-frequency mode)."""
+        return self._texts["caption"]
+
+    @caption.setter
+    def caption(self, text: str) -> None:
+        self._set_text("caption", text)
+
+    @property
+    def hint(self) -> str:
+        """The text under the drawing (what a drag does)."""
+        return self._texts["hint"]
+
+    @hint.setter
+    def hint(self, text: str) -> None:
+        self._set_text("hint", text)
+
+    def caption_font(self) -> QFont:
+        f = QFont(self.font())
+        f.setPixelSize(13)
+        return f
+
+    def text_lines(self, which: str = "caption") -> list[str]:
+        """``"caption"`` or ``"hint"`` broken into the lines drawn at the current width."""
+        return wrap_text(self._texts[which], self.caption_font(), self._text_width())
+
+    def text_rect(self, which: str = "caption") -> QRectF:
+        """Where ``"caption"`` (the band above the drawing) or ``"hint"`` (below) is drawn."""
+        line = QFontMetrics(self.caption_font()).lineSpacing()
+        h = max(20, self._rows[which] * line)
+        top = 4 if which == "caption" else self.height() - 2 - h
+        return QRectF(8, top, self._text_width(), h)
+
+    def _text_width(self) -> float:
+        return max(10.0, self.width() - 16.0)
+
+    def _set_text(self, which: str, text: str) -> None:
+        self._texts[which] = text
+        self._reserve_rows(which)
+
+    def _reserve_rows(self, which: str) -> None:
+        # a band grows to the longest text shown since the drawing was last fitted, and does not
+        # shrink back from mode to mode: stepping through the modes would otherwise refit and
+        # shift the drawing each time a caption changes its number of lines
+        rows = max(1, len(self.text_lines(which)))
+        if rows > self._rows[which]:
+            self._rows[which] = rows
+            self._layout = None
+            self.update()
+
+    def _reset_rows(self) -> None:
+        self._rows = {"caption": 1, "hint": 1}
+        for which in self._rows:
+            self._reserve_rows(which)
+
+    def resizeEvent(self, event):  # noqa: N802 (Qt's name)
+        self._reset_rows()
+        super().resizeEvent(event)
+
     def set_model(self, model):
         self.model = model
         # an edit that leaves the drawing's geometry alone (a stiffness, a damping) keeps the
         # layout: fitting one is quadratic in the masses
         if self._layout is None or model is None or not self._layout.rebind(model):
             self._layout = None
+            self._reset_rows()
         self.update()
 
     def layout_(self) -> SketchLayout | None:
         """The current sketch layout (refitted when the widget or the model changes)."""
         if self.model is None:
             return None
-        key = (self.width(), self.height())
+        key = (self.width(), self.height(), self._rows["caption"], self._rows["hint"])
         if self._layout is None or self._layout_key != key:
             r = self._sketch_rect()
             # screen symbols stay modest on a big panel
@@ -143,7 +228,9 @@ class MotionView(QWidget):
 
     def _sketch_rect(self) -> QRectF:
         # a band at the top for the caption and one at the bottom for the hint
-        return QRectF(8, 26, max(10, self.width() - 16), max(10, self.height() - 50))
+        top = self.text_rect("caption").bottom() + 2
+        bottom = self.text_rect("hint").top() - 2
+        return QRectF(8, top, max(10, self.width() - 16), max(10, bottom - top))
 
     def paintEvent(self, event):
         st = current_style(self.palette())
@@ -179,19 +266,19 @@ class MotionView(QWidget):
                              energy=self.energy, labels=labels, layout=lay,
                              highlight=highlight, motion_px=self.motion_px)
             p.setPen(st.ink)
-            f = QFont(p.font())
-            f.setPixelSize(13)
+            f = self.caption_font()
             p.setFont(f)
             fm = QFontMetrics(f)
-            p.drawText(QRectF(8, 4, self.width() - 16, 20),
-                       Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter,
-                       fm.elidedText(self.caption, Qt.TextElideMode.ElideRight, self.width() - 16))
-            if self.hint:
+            left = Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter
+            right = Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter
+            for which, align in (("caption", left), ("hint", right)):
+                band, lines = self.text_rect(which), self.text_lines(which)
+                y = band.top() + max(0.0, (band.height() - len(lines) * fm.lineSpacing()) / 2)
+                for line in lines:
+                    p.drawText(QRectF(band.left(), y, band.width(), fm.lineSpacing()), align,
+                               line)
+                    y += fm.lineSpacing()
                 p.setPen(st.ink_soft)
-                p.drawText(QRectF(8, self.height() - 22, self.width() - 16, 20),
-                           Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter,
-                           fm.elidedText(self.hint, Qt.TextElideMode.ElideRight,
-                                         self.width() - 16))
         finally:
             p.end()
 
@@ -396,6 +483,9 @@ class MotionPanel(QWidget):
         self.trace_list = QListWidget(self)
         self.trace_list.setObjectName("motion_traces")
         self.trace_list.setMaximumWidth(170)
+        # a long label ("Level 1 (power supplies) x") wraps rather than being cut
+        self.trace_list.setWordWrap(True)
+        self.trace_list.setTextElideMode(Qt.TextElideMode.ElideNone)
         self.trace_list.setToolTip("Masses whose displacement is traced against time; the"
                                    " colour of each ticked one is its curve's (the legend)")
         self.trace_list.itemChanged.connect(lambda _i: self._rebuild_traces())

@@ -12,7 +12,7 @@ from __future__ import annotations
 
 from PySide6.QtCore import QSignalBlocker, Qt, Signal
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QHBoxLayout, QLabel, QLineEdit,
-                               QScrollArea, QVBoxLayout, QWidget)
+                               QScrollArea, QSizePolicy, QVBoxLayout, QWidget)
 
 from solver.errors import ModelError
 from solver.model import Anchor, Damper, Mass, Spring
@@ -103,6 +103,18 @@ class QuantityField(QWidget):
         self.value_entered.emit(value)
 
 
+def _show_text(edit: QLineEdit, text: str) -> None:
+    """A name in a field narrower than the name: its start shows (where a name is read from)
+    and the whole of it is in the tooltip, above what the field is for."""
+    edit.setText(text)
+    edit.setCursorPosition(0)
+    hint = edit.property("hint")
+    if hint is None:
+        hint = edit.toolTip()
+        edit.setProperty("hint", hint)
+    edit.setToolTip(f"{text}\n\n{hint}" if text and hint else (text or hint))
+
+
 def model_counts(model) -> str:
     """``"3 masses, 1 anchor, 3 springs, 1 dashpot"`` of ``model``."""
     return ", ".join((units.count(len(model.masses), "mass", "masses"),
@@ -159,6 +171,9 @@ class PropertyPanel(QWidget):
         self.title = QLabel()
         self.title.setObjectName("properties_title")
         self.title.setStyleSheet("font-weight: bold;")
+        # a long model name wraps inside the panel: it must not widen the dock
+        self.title.setWordWrap(True)
+        self.title.setSizePolicy(QSizePolicy.Policy.Ignored, QSizePolicy.Policy.Preferred)
         outer.addWidget(self.title)
         scroll = QScrollArea()
         scroll.setObjectName("properties_scroll")
@@ -167,6 +182,11 @@ class PropertyPanel(QWidget):
         self._body = QWidget()
         self.form = QFormLayout(self._body)
         self.form.setFieldGrowthPolicy(QFormLayout.AllNonFixedFieldsGrow)
+        # rows closer than the style's default: a planar mass's twelve rows (position, mass,
+        # locks, initial displacement and velocity in x, y and θ) then fit the panel's first
+        # height without a scroll bar; the framed fields keep them apart
+        self.form.setVerticalSpacing(3)
+        self.form.setContentsMargins(4, 2, 4, 2)
         scroll.setWidget(self._body)
         outer.addWidget(scroll, 1)
         document.model_changed.connect(self._on_model_change)
@@ -240,7 +260,7 @@ class PropertyPanel(QWidget):
             with QSignalBlocker(w):
                 if isinstance(w, QLineEdit):
                     if not w.hasFocus():
-                        w.setText(getter(model))
+                        _show_text(w, getter(model))
                 elif isinstance(w, QComboBox):
                     w.setCurrentIndex(max(0, w.findData(getter(model))))
                 elif isinstance(w, QCheckBox):
@@ -380,6 +400,7 @@ class PropertyPanel(QWidget):
     def _build_model(self, model):
         name = QLineEdit()
         name.setObjectName("field_name")
+        name.setToolTip("The model's name, shown in the title and the report")
         name.editingFinished.connect(
             lambda e=name: self._try(lambda: self.document.set_top(name=e.text().strip()), None))
         self.form.addRow("Name", name)

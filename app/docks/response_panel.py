@@ -277,7 +277,9 @@ class ResponsePanel(QWidget):
         self.phase_plot.getAxis("left").setTicks([[(v, f"{v}") for v in (-180, -90, 0, 90, 180)]])
         for p in (self.mag_plot, self.phase_plot):
             p.showGrid(x=True, y=True, alpha=0.25)
-            p.getAxis("left").setWidth(58)
+        # one width for both value axes (the widest tick label and title of either), so the
+        # two plots start at the same frequency
+        self.mag_plot.getAxis("left").share_width(self.phase_plot.getAxis("left"))
         self.phase_plot.setLabel("bottom", "frequency (Hz)")
         self.phase_plot.setLabel("left", "phase (deg)")
         # the key sits in a column of its own beside the plots, never over a curve and costing

@@ -15,7 +15,9 @@ import math
 
 import numpy as np
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
-from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QLabel, QTableView, QVBoxLayout, QWidget
+from PySide6.QtGui import QFontMetrics
+from PySide6.QtWidgets import (QAbstractItemView, QHeaderView, QLabel, QStyle, QTableView,
+                               QVBoxLayout, QWidget)
 
 from app.drawing.style import current_style
 from app.text.numbers import hz, signed
@@ -143,6 +145,8 @@ class SensitivityTable(QWidget):
         self.view.verticalHeader().setVisible(False)
         self.view.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Interactive)
         self.view.horizontalHeader().setDefaultSectionSize(86)
+        self.view.horizontalHeader().sortIndicatorChanged.connect(
+            lambda *_: self._fit_mode_columns())
         self.view.setAlternatingRowColors(True)
         note = QLabel("(p/f)(df/dp): % change of a mode's frequency per % change of an element."
                       " Springs sum to +0.5 in each mode, masses to −0.5.")
@@ -171,6 +175,24 @@ class SensitivityTable(QWidget):
         self.model.set_analysis(analysis)
         if self.view.columnWidth(0) < 140:
             self.view.setColumnWidth(0, 180)
+        self._fit_mode_columns()
+
+    def _fit_mode_columns(self):
+        """Each mode column at least as wide as its heading ("mode 12" over "29.2296e3 Hz"),
+        measured in the header's own font with the sort arrow's room (fonts differ between
+        desktops: a fixed width cut the frequency on some)."""
+        hdr = self.view.horizontalHeader()
+        fm = QFontMetrics(hdr.font())
+        style = self.view.style()
+        margin = style.pixelMetric(QStyle.PixelMetric.PM_HeaderMargin, None, hdr)
+        arrow = style.pixelMetric(QStyle.PixelMetric.PM_HeaderMarkSize, None, hdr) + margin
+        for c in range(1, self.model.columnCount()):
+            text = str(self.model.headerData(c, Qt.Orientation.Horizontal))
+            need = max(fm.horizontalAdvance(t) for t in text.split("\n")) + 2 * margin + 8
+            if c == hdr.sortIndicatorSection():
+                need += arrow             # the sort arrow takes room from the heading
+            if hdr.sectionSize(c) < need:
+                hdr.resizeSection(c, need)
 
     def showEvent(self, event):  # noqa: N802
         self._catch_up()

@@ -253,6 +253,9 @@ class TunePanel(QWidget):
         self.element_combo = QComboBox()
         self.element_combo.setObjectName("tune_element")
         self.element_combo.setToolTip("The spring stiffness or mass the slider changes")
+        # as wide as its longest entry (labels are the model's own and can be long): an entry
+        # is never cut, and picking another does not change the panel's width
+        self.element_combo.setSizeAdjustPolicy(QComboBox.SizeAdjustPolicy.AdjustToContents)
         self.element_combo.currentIndexChanged.connect(self._on_element_pick)
         self.slider = QSlider(Qt.Orientation.Horizontal)
         self.slider.setObjectName("tune_slider")
@@ -370,6 +373,7 @@ class TunePanel(QWidget):
         scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
         scroll.setFrameShape(QScrollArea.Shape.NoFrame)
         scroll.setMinimumWidth(280)
+        self._controls_scroll = scroll
         split.addWidget(scroll)
         split.addWidget(self.plot)
         split.setStretchFactor(1, 1)
@@ -464,6 +468,16 @@ class TunePanel(QWidget):
         self.apply_button.setEnabled(False)
         self._draw_proposal()
 
+    def _fit_controls_width(self):
+        """The controls' column at least as wide as its rows need (the element list's longest
+        entry): the scroll area around them scrolls only up and down, so it must be told."""
+        scroll = self._controls_scroll
+        # a combo box's minimum size ignores its entries, so the layout could squeeze it
+        self.element_combo.setMinimumWidth(self.element_combo.sizeHint().width())
+        need = scroll.widget().minimumSizeHint().width() + 2 * scroll.frameWidth() + \
+            scroll.verticalScrollBar().sizeHint().width()
+        scroll.setMinimumWidth(max(280, need))
+
     def _on_model_change(self, model):
         if not self._applying:
             self._clear_messages()
@@ -482,6 +496,7 @@ class TunePanel(QWidget):
                     idx = 0
                     self._auto_pick = True   # the governing spring, once the results arrive
                 self.element_combo.setCurrentIndex(idx)
+            self._fit_controls_width()
             key = self.element_combo.currentData() if idx >= 0 else None
             if key != self._key:
                 self._set_key(key, model)

@@ -57,11 +57,13 @@ def _states(window):
 
 
 @pytest.mark.parametrize("name", ["shaker_fixture.json", "camera_bracket.json",
-                                  "instrument_shelf.json"])
+                                  "instrument_shelf.json", "pump_shaft.json", "fan_drive.json",
+                                  "equipment_rack.json"])
 def test_nothing_clipped_at_the_first_size(qtbot, default_window, name):
     """Every label, button, check box, combo box, table header and cell, list entry, axis title
     and legend of the shown panels fits; the modes table shows all its columns and Properties
-    every field without scrolling (the default example, a planar model, a two-source model)."""
+    every field without scrolling (the default example, a planar model, a two-source model, two
+    shafts in torsion with long labels, a rack with long mass labels)."""
     window = default_window
     assert window.open_path(EXAMPLES / name)
     _settle(qtbot, window)
