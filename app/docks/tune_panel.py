@@ -38,7 +38,6 @@ import solver
 from solver.errors import ModelError
 from solver.margins import source_bands
 from solver.model import Mass, Spring
-from solver.tuning import FIELDS, ranked, value_of, with_value
 
 from app.drawing.plot_axes import log_ticks, true_value_axes
 from app.document.solve_service import dof_count
@@ -47,6 +46,31 @@ from app.results.names import names
 from app.results.source_text import order_frequencies, speed_text
 from app.results.verdicts import all_clear, verdicts
 from app.text.numbers import band_text, hz, number, signed
+
+
+# solver.tuning loads scipy.optimize: imported on first use, after the window's first paint
+def value_of(model, element_id, field=None):
+    from solver.tuning import value_of as fn
+
+    return fn(model, element_id, field)
+
+
+def with_value(model, element_id, value, field=None):
+    from solver.tuning import with_value as fn
+
+    return fn(model, element_id, value, field)
+
+
+def ranked(model, sens, mode):
+    from solver.tuning import ranked as fn
+
+    return fn(model, sens, mode)
+
+
+def _fields():
+    from solver.tuning import FIELDS
+
+    return FIELDS
 
 #: The slider spans this many decades either side of the value at selection time.
 DECADES = 1.0
@@ -632,7 +656,7 @@ class TunePanel(QWidget):
             return
         eid, f = self._key
         v = value_of(model, eid, f)
-        name = FIELDS[(Spring if f in ("k", "k_t") else Mass, f)][0]
+        name = _fields()[(Spring if f in ("k", "k_t") else Mass, f)][0]
         self.value_label.setText(f"{name} = {self._show(model, eid, f, v)}")
 
     def _refresh_sources(self, model):
