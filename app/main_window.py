@@ -500,6 +500,13 @@ class MainWindow(QMainWindow):
         self.solver.results_ready.connect(self.sources_panel.set_analysis)
         self.solver.results_ready.connect(self.interference_panel.set_analysis)
         self.solver.live_changed.connect(self.interference_panel.set_live)
+        # a panel behind another tab does no work on an edit; its tab shown, it catches up
+        for name, panel in (("dock_tune", self.tune_panel), ("dock_response", self.response_panel),
+                            ("dock_sensitivity", self.sensitivity_table),
+                            ("dock_sources", self.sources_panel),
+                            ("dock_interference", self.interference_panel)):
+            self.findChild(QDockWidget, name).visibilityChanged.connect(
+                lambda shown, p=panel: shown and p.catch_up())
 
     def show_guide(self):
         """A non-modal window with the tools, their keys, the main loop and the cautions."""

@@ -15,23 +15,78 @@ Pure numpy/scipy; no Qt. The public API (stable, used by scripts and the command
 - :class:`ModelError`, :class:`ModelFileError`
 """
 
-from .analysis import Analysis, analyse
-from .assemble import System, assemble
-from .errors import ModelError, ModelFileError
-from .io import dumps_model, load_model, model_from_dict, model_to_dict, save_model, schema
-from .metrics import EnergyResult, Sensitivity, energy_fractions, sensitivities
-from .model import (Anchor, Damper, Damping, Excitation, Initial, Mass, Model, Spring,
-                    directions_for)
-from .modes import ModalResult, ZeroMode, modes
-from .response import FreeResponse, free_response
-from .frequency import (Peak, base_transmissibility, find_peaks, harmonic_response,
-                        isolation_efficiency, rms_over_band)
-from .damping import DampedModes, damped_modes, rayleigh_coefficients
-from .margins import Conflict, MarginResult, margin_check, source_bands
-from .margin_table import MarginRow, MarginTable, margin_table
-from .interference import Crossing, Interference, OrderLine, interference
-from .tuning import (RetuneResult, SweepResult, limit_spectrum, rank_elements, reachable_range,
-                     retune, retune_result, sweep, with_value)
+import sys as _sys
+import types as _types
+from importlib import import_module as _import_module
+from importlib.util import LazyLoader as _LazyLoader
+from importlib.util import find_spec as _find_spec
+from importlib.util import module_from_spec as _module_from_spec
+
+# Submodules load on first use (PEP 562): ``import solver`` costs little (the window paints
+# before scipy is loaded), and ``from solver import X`` or ``solver.X`` loads X's module then.
+# Public name -> the submodule that defines it.
+_EXPORTS = {name: module for module, names in {
+    "analysis": ("Analysis", "analyse"),
+    "assemble": ("System", "assemble"),
+    "errors": ("ModelError", "ModelFileError"),
+    "io": ("dumps_model", "load_model", "model_from_dict", "model_to_dict", "save_model", "schema"),
+    "metrics": ("EnergyResult", "Sensitivity", "energy_fractions", "sensitivities"),
+    "model": ("Anchor", "Damper", "Damping", "Excitation", "Initial", "Mass", "Model", "Spring",
+              "directions_for"),
+    "modes": ("ModalResult", "ZeroMode", "modes"),
+    "response": ("FreeResponse", "free_response"),
+    "frequency": ("Peak", "base_transmissibility", "find_peaks", "harmonic_response",
+                  "isolation_efficiency", "rms_over_band"),
+    "damping": ("DampedModes", "damped_modes", "rayleigh_coefficients"),
+    "margins": ("Conflict", "MarginResult", "margin_check", "source_bands"),
+    "margin_table": ("MarginRow", "MarginTable", "margin_table"),
+    "interference": ("Crossing", "Interference", "OrderLine", "interference"),
+    "tuning": ("RetuneResult", "SweepResult", "limit_spectrum", "rank_elements",
+               "reachable_range", "retune", "retune_result", "sweep", "with_value"),
+}.items() for name in names}
+
+
+class _Package(_types.ModuleType):
+    """The package's module type: where a submodule has the name of the function it exports
+    (``solver.modes``, ``solver.assemble``, ...), the package attribute stays the function when
+    the import system binds the loaded submodule to it (the public API calls ``solver.modes(...)``;
+    the module is ``sys.modules["solver.modes"]``)."""
+
+    def __setattr__(self, name, value):
+        if isinstance(value, _types.ModuleType) and _EXPORTS.get(name) == name:
+            value = getattr(value, name)
+        super().__setattr__(name, value)
+
+
+def __getattr__(name):
+    module = _EXPORTS.get(name)
+    if module is not None:
+        value = getattr(_import_module(f".{module}", __name__), name)
+    elif _find_spec(f".{name}", __name__) is not None and not name.startswith("_"):
+        value = _import_module(f".{name}", __name__)   # solver.io, solver.tuning, ...
+    else:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    globals()[name] = value
+    return value
+
+
+def __dir__():
+    return sorted(set(globals()) | set(__all__))
+
+
+def _registered_lazily(name: str) -> None:
+    """Put submodule ``name`` in ``sys.modules`` now, executed on its first attribute access
+    (``sys.modules["solver.modes"]`` is the modes module right after ``import solver``, as it
+    was when the package imported everything at once)."""
+    spec = _find_spec(f"{__name__}.{name}")
+    spec.loader = _LazyLoader(spec.loader)
+    module = _module_from_spec(spec)
+    _sys.modules[spec.name] = module
+    spec.loader.exec_module(module)
+
+
+_sys.modules[__name__].__class__ = _Package
+_registered_lazily("modes")
 
 __all__ = [
     "Analysis", "analyse", "System", "assemble", "ModelError", "ModelFileError", "dumps_model",

@@ -17,7 +17,6 @@ from PySide6.QtCore import QSignalBlocker, Signal
 from PySide6.QtWidgets import (QComboBox, QFormLayout, QLabel, QLineEdit, QPushButton,
                                QVBoxLayout, QWidget)
 
-from solver.damping import rayleigh_coefficients
 from solver.errors import ModelError
 from solver.model import Damping
 
@@ -266,6 +265,9 @@ class DampingEditor(QWidget):
                 e.show_error(str(exc))
                 return False
         try:
+            # scipy: loaded on first use, after the window's first paint
+            from solver.damping import rayleigh_coefficients
+
             alpha, beta = rayleigh_coefficients(*vals)
         except ModelError as exc:
             self.fit_error.show_error(str(exc))

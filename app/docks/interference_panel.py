@@ -21,6 +21,7 @@ from PySide6.QtWidgets import QLabel, QScrollArea, QSizePolicy, QVBoxLayout, QWi
 from solver.errors import ModelError
 from solver.interference import interference
 
+from app.docks.on_screen import on_screen
 from app.drawing.plot_axes import true_value_axes
 from app.report.interference import spread
 from app.drawing.style import current_style
@@ -96,7 +97,7 @@ class InterferencePanel(QWidget):
         if analysis is None:
             self.clear()
             return
-        if self.isVisible() and not self._live:
+        if on_screen(self) and not self._live:
             self._redraw()
         else:
             self._dirty = True
@@ -109,7 +110,7 @@ class InterferencePanel(QWidget):
         self._live = bool(live)
         if not self._live:
             self.plot.getPlotItem().setOpacity(1.0)
-            if self._dirty and self._analysis is not None and self.isVisible():
+            if self._dirty and self._analysis is not None and on_screen(self):
                 self._redraw()
 
     def clear(self, text: str = "") -> None:
@@ -134,6 +135,10 @@ class InterferencePanel(QWidget):
 
     def showEvent(self, event):  # noqa: N802
         super().showEvent(event)
+        self.catch_up()
+
+    def catch_up(self) -> None:
+        """Draw the results that came while the panel was behind another tab."""
         if self._dirty and self._analysis is not None and not self._live:
             self._redraw()
 

@@ -33,6 +33,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QCheckBox, QComboBox, QFileDia
 
 from solver.errors import ModelError
 
+from app.docks.on_screen import behind_tab
 from app.results import response_data as rd
 from app.results.names import dof_name, names
 from app.drawing.plot_axes import log_ticks, true_value_axes
@@ -152,6 +153,7 @@ class ResponsePanel(QWidget):
         self._timer.timeout.connect(self.recompute)
         self._service = solve_service
         self._awaiting = False          # a model change waits for the service's results
+        self._due = False               # a model change came while hidden: redraw when shown
         self._computing = False         # a worker computes the curves of the current choices
         self._generation = 0
         self._cache: OrderedDict = OrderedDict()
@@ -328,8 +330,28 @@ class ResponsePanel(QWidget):
         bl.addWidget(self.peaks_table, 1)
 
     # -- model --------------------------------------------------------------------------------
+    def showEvent(self, event):  # noqa: N802
+        super().showEvent(event)
+        self.catch_up()
+
+    def catch_up(self) -> None:
+        """Choices and curves of the model changed while the panel was behind another tab."""
+        if self._due and self.model is not None:
+            self._due = False
+            self._awaiting = False
+            self._sync_choices(self.model)
+            if self._live:
+                self._hold()
+            else:
+                self._refresh()
+
     def _on_model_change(self, model):
         self.model = model
+        if behind_tab(self):
+            self._due = True             # choices and curves when shown
+            self._timer.stop()
+            self._awaiting = False
+            return
         self._sync_choices(model)
         if self._live:
             self._hold()
@@ -344,7 +366,10 @@ class ResponsePanel(QWidget):
         self._live = bool(live)
         if not self._live and self._held:
             self._held = False
-            self._refresh()
+            if behind_tab(self):
+                self._due = True
+            else:
+                self._refresh()
 
     @property
     def held(self) -> bool:
@@ -388,7 +413,10 @@ class ResponsePanel(QWidget):
         self._sync_choices(model)
         self.response, self.error = None, ""
         self._draw(None, "Computing the response of the model just opened…")
-        if self._service is not None:
+        if behind_tab(self):
+            self._due, self._awaiting = True, False
+            self._timer.stop()
+        elif self._service is not None:
             self._awaiting = True
         else:
             self._timer.start()
@@ -405,7 +433,7 @@ class ResponsePanel(QWidget):
         if model is None:
             return
         self._modal, self._modal_model = analysis.modal, model
-        if self._live:
+        if self._live or self._due:
             return
         if model is self.model and (self._timer.isActive() or self._awaiting):
             self._timer.stop()

@@ -19,6 +19,7 @@ from PySide6.QtGui import QFontMetrics
 from PySide6.QtWidgets import (QAbstractItemView, QHeaderView, QLabel, QStyle, QTableView,
                                QVBoxLayout, QWidget)
 
+from app.docks.on_screen import on_screen
 from app.drawing.style import current_style
 from app.text.numbers import hz, signed
 
@@ -165,8 +166,12 @@ class SensitivityTable(QWidget):
     def set_analysis(self, analysis):
         self._due = analysis
         self._has_due = True
-        if self.isVisible():
+        if on_screen(self):
             self._catch_up()
+
+    def catch_up(self):
+        """The results that came while the table was behind another tab."""
+        self._catch_up()
 
     def _catch_up(self):
         if not self._has_due:

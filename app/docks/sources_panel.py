@@ -29,6 +29,7 @@ from solver.errors import ModelError
 from solver.margin_table import margin_table
 from solver.model import Excitation
 
+from app.docks.on_screen import on_screen
 from app.docks.properties import QuantityField
 from app.drawing.style import current_style
 from app.results import margin_rows
@@ -307,7 +308,7 @@ class SourcesPanel(QWidget):
     def set_analysis(self, analysis) -> None:
         """New results: the margin table follows (now when shown, else when its tab is shown)."""
         self._analysis = analysis
-        if self.tabs.currentIndex() == 1 and self.isVisible():
+        if self.tabs.currentIndex() == 1 and on_screen(self):
             self._fill_margin_table()
         else:
             self._table_dirty = True
@@ -325,6 +326,10 @@ class SourcesPanel(QWidget):
 
     def showEvent(self, event):  # noqa: N802
         super().showEvent(event)
+        self.catch_up()
+
+    def catch_up(self) -> None:
+        """Fill the margin table with the results that came while it was not on screen."""
         if self._table_dirty and self.tabs.currentIndex() == 1:
             self._fill_margin_table()
 

@@ -38,8 +38,8 @@ import solver
 from solver.errors import ModelError
 from solver.margins import source_bands
 from solver.model import Mass, Spring
-from solver.tuning import FIELDS, ranked, value_of, with_value
 
+from app.docks.on_screen import behind_tab
 from app.drawing.plot_axes import log_ticks, true_value_axes
 from app.document.solve_service import dof_count
 from app.drawing.style import current_style
@@ -47,6 +47,31 @@ from app.results.names import names
 from app.results.source_text import order_frequencies, speed_text
 from app.results.verdicts import all_clear, verdicts
 from app.text.numbers import band_text, hz, number, signed
+
+
+# solver.tuning loads scipy.optimize: imported on first use, after the window's first paint
+def value_of(model, element_id, field=None):
+    from solver.tuning import value_of as fn
+
+    return fn(model, element_id, field)
+
+
+def with_value(model, element_id, value, field=None):
+    from solver.tuning import with_value as fn
+
+    return fn(model, element_id, value, field)
+
+
+def ranked(model, sens, mode):
+    from solver.tuning import ranked as fn
+
+    return fn(model, sens, mode)
+
+
+def _fields():
+    from solver.tuning import FIELDS
+
+    return FIELDS
 
 #: The slider spans this many decades either side of the value at selection time.
 DECADES = 1.0
@@ -238,6 +263,9 @@ class TunePanel(QWidget):
         self._analysis = None
         self._applying = False
         self._target_set = False
+        self._sweep_due = False       # the sweep is for an older model (panel behind a tab)
+        self._cursor_due = False
+        self._catching_up = False
         self.unit_system = "SI"
         self._build_ui()
         self.target_spin.valueChanged.connect(lambda _v: setattr(self, "_target_set", True))
@@ -478,6 +506,25 @@ class TunePanel(QWidget):
             scroll.verticalScrollBar().sizeHint().width()
         scroll.setMinimumWidth(max(280, need))
 
+    def showEvent(self, event):  # noqa: N802
+        super().showEvent(event)
+        self.catch_up()
+
+    def catch_up(self) -> None:
+        """Sweep and cursor of the model changed while the panel was behind another tab (the
+        sweep is SWEEP_POINTS solves: a hidden panel keeps its values and choices current but
+        runs none, and draws nothing)."""
+        model = self.document.model
+        self._catching_up = True        # the tab may not be on screen yet when this is called
+        try:
+            if self._sweep_due and self._key is not None:
+                self._sweep_due = False
+                self._recentre(model, self._center, background=True)
+            if self._cursor_due:
+                self._update_cursor(model)
+        finally:
+            self._catching_up = False
+
     def _on_model_change(self, model):
         if not self._applying:
             self._clear_messages()
@@ -557,6 +604,10 @@ class TunePanel(QWidget):
         self._sweep_pending = False
         key = (self._sweep_base, eid, f, tuple(float(v) for v in values))
         found = self._cached_sweep(key)
+        if background and not self._catching_up and behind_tab(self):
+            self._sweep_due = True         # swept and drawn when the panel is shown (catch_up)
+            return
+        self._sweep_due = False
         if found is None and (background or dof_count(model) > SWEEP_SYNC_DOF_LIMIT):
             self._sweep_pending = True
             self._dim_sweep(model)
@@ -647,7 +698,7 @@ class TunePanel(QWidget):
             return
         eid, f = self._key
         v = value_of(model, eid, f)
-        name = FIELDS[(Spring if f in ("k", "k_t") else Mass, f)][0]
+        name = _fields()[(Spring if f in ("k", "k_t") else Mass, f)][0]
         self.value_label.setText(f"{name} = {self._show(model, eid, f, v)}")
 
     def _refresh_sources(self, model):
@@ -957,6 +1008,10 @@ class TunePanel(QWidget):
     def _update_cursor(self, model):
         if self._cursor is None or self._key is None:
             return
+        if not self._catching_up and behind_tab(self):
+            self._cursor_due = True
+            return
+        self._cursor_due = False
         v = value_of(model, *self._key)
         if v <= 0:
             return

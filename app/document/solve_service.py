@@ -147,7 +147,15 @@ class SolveService(QObject):
         if immediate is not None:
             self.immediate = bool(immediate)
         document.model_changed.connect(self.request)
-        self.request(document.model)
+        if document.model.masses:
+            self.request(document.model)
+        else:
+            # nothing to solve yet (a new window): after the debounce interval, so the window
+            # paints before the solver's numerical libraries are loaded
+            self._model = document.model
+            self._generation += 1
+            self._set_pending(True)
+            self._burst_timer.start()
 
     @property
     def pending(self) -> bool:

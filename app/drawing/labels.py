@@ -6,7 +6,7 @@ keeps its tooltip, and the model file lists every name). Labels are placed in or
 importance (masses, then anchors, then springs and dashpots), on the drawing at rest, so an
 animation does not make them jump from frame to frame.
 
-Overlap tests look only at the neighbourhood (a grid of cells about one text line high), so the
+Overlap tests look only at the neighbourhood (a grid of cells a few text lines high), so the
 labels of a model with hundreds of elements are placed in linear time.
 """
 
@@ -20,25 +20,50 @@ from PySide6.QtCore import QPointF, QRectF
 PAD = 2.0
 
 
+def _coords(r: QRectF) -> tuple[float, float, float, float]:
+    x1, y1, x2, y2 = r.getCoords()
+    return min(x1, x2), min(y1, y2), max(x1, x2), max(y1, y2)
+
+
 class RectIndex:
-    """Rectangles bucketed on a square grid of ``cell`` units."""
+    """Rectangles bucketed on a square grid of ``cell`` units, kept as plain (left, top, right,
+    bottom) tuples: a test is a few float comparisons, not a call into Qt per pair."""
 
     def __init__(self, cell: float):
         self.cell = max(1.0, float(cell))
-        self.cells: dict[tuple[int, int], list[QRectF]] = {}
+        self.cells: dict[tuple[int, int], list[tuple[float, float, float, float]]] = {}
 
-    def _keys(self, r: QRectF):
+    def _keys(self, box):
         c = self.cell
-        for i in range(math.floor(r.left() / c), math.floor(r.right() / c) + 1):
-            for j in range(math.floor(r.top() / c), math.floor(r.bottom() / c) + 1):
+        left, top, right, bottom = box
+        for i in range(math.floor(left / c), math.floor(right / c) + 1):
+            for j in range(math.floor(top / c), math.floor(bottom / c) + 1):
                 yield i, j
 
     def add(self, r: QRectF) -> None:
-        for k in self._keys(r):
-            self.cells.setdefault(k, []).append(QRectF(r))
+        box = _coords(r)
+        if not (box[2] > box[0] and box[3] > box[1]):
+            return      # a null rectangle meets nothing (as QRectF.intersects has it)
+        cells = self.cells
+        for k in self._keys(box):
+            found = cells.get(k)
+            if found is None:
+                cells[k] = [box]
+            else:
+                found.append(box)
 
     def hits(self, r: QRectF) -> bool:
-        return any(r.intersects(o) for k in self._keys(r) for o in self.cells.get(k, ()))
+        """True when ``r`` overlaps a stored rectangle (open intervals: touching edges do not
+        overlap, as QRectF.intersects)."""
+        left, top, right, bottom = box = _coords(r)
+        if not (right > left and bottom > top):
+            return False
+        cells = self.cells
+        for k in self._keys(box):
+            for a, b, c, d in cells.get(k, ()):
+                if left < c and a < right and top < d and b < bottom:
+                    return True
+        return False
 
 
 class LabelPlacer:
@@ -51,7 +76,8 @@ class LabelPlacer:
     def __init__(self, line: float, bounds: QRectF | None = None, pad: float = PAD):
         self.bounds = QRectF(bounds) if bounds is not None else None
         self.pad = pad
-        self.index = RectIndex(max(8.0, line))
+        # cells of a few lines: a symbol widened by the room it sweeps spans few of them
+        self.index = RectIndex(max(32.0, 4.0 * line))
         self.symbols: list[QRectF] = []
         self.placed: list[tuple[str, QRectF]] = []
 

@@ -12,8 +12,24 @@ def _elements(model):
             + list(model.excitations))
 
 
+#: The tables of the last few models (by identity: a Model is immutable), so the many callers
+#: of one edit's update (every choice of a list names its element) build it once.
+_RECENT: list = []
+
+
 def names(model) -> dict[str, str]:
-    """``{id: name shown}`` for every mass, anchor, spring, dashpot and excitation source."""
+    """``{id: name shown}`` for every mass, anchor, spring, dashpot and excitation source (the
+    caller must not change the dict returned: it is shared)."""
+    for m, table in _RECENT:
+        if m is model:
+            return table
+    table = _names(model)
+    _RECENT.insert(0, (model, table))
+    del _RECENT[4:]
+    return table
+
+
+def _names(model) -> dict[str, str]:
     els = _elements(model)
     count: dict[str, int] = {}
     for e in els:

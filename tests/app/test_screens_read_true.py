@@ -16,6 +16,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 from PySide6.QtCore import QPoint, Qt
+from PySide6.QtWidgets import QDockWidget
 
 from solver.io import load_model
 from solver.model import Anchor, Excitation, Mass, Model, Spring
@@ -328,6 +329,9 @@ def test_one_number_format_in_table_panels_report_csv_and_cli(qtbot, window, tmp
     analysis = window.solver.last_analysis
     f1 = window.modes_table.view.model().data(window.modes_table.view.model().index(0, 1))
     assert read_number(f1) == pytest.approx(analysis.modal.frequencies_hz[0], rel=1e-4)
+    # the table fills when its tab is shown (a tab behind another does no work)
+    window.findChild(QDockWidget, "dock_sensitivity").raise_()
+    qtbot.waitUntil(lambda: window.sensitivity_table.model.columnCount() > 1, timeout=5000)
     sens = window.sensitivity_table.model.headerData(1, Qt.Orientation.Horizontal)
     assert f1 in sens.split()
 

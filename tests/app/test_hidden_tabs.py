@@ -1,0 +1,117 @@
+"""Panels in a tab behind another do no work after an edit and catch up when their tab is clicked.
+
+Issue 10 (speed): an edit updates every *visible* panel; the Tune sweep (40 solves) and the
+Response curves of a hidden tab are computed only when the tab is shown. The numbers a panel
+shows once its tab is clicked are checked against closed forms of the one-mass oscillator
+(math: f = sqrt(k/m) / 2 pi; undamped base transmissibility |T| = 1 / |1 - r^2|, r = f / f_n;
+Chopra, Dynamics of Structures, 3.6).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+from PySide6.QtCore import Qt
+from PySide6.QtWidgets import QTabBar
+
+import solver
+from app.docks.on_screen import on_screen
+from solver.model import Anchor, Mass, Model, Spring
+
+
+def _one_mass(k: float = 4000.0, m: float = 1.0) -> Model:
+    return Model(kind="line", name="one", axis="x", masses=(Mass("m1", 0.3, 0.0, m),),
+                 anchors=(Anchor("g", 0.0, 0.0),), springs=(Spring("s1", "g", "m1", k),))
+
+
+def _click_tab(qtbot, window, text: str) -> None:
+    for bar in window.findChildren(QTabBar):
+        for i in range(bar.count()):
+            if bar.tabText(i) == text and bar.isVisible():
+                qtbot.mouseClick(bar, Qt.MouseButton.LeftButton, pos=bar.tabRect(i).center())
+                qtbot.wait(10)
+                return
+    raise AssertionError(f"no visible tab {text!r}")
+
+
+def _settle(qtbot, window):
+    assert window.solver.wait()
+    qtbot.wait(30)
+
+
+def _f_hz(k, m):
+    return math.sqrt(k / m) / (2 * math.pi)
+
+
+def test_hidden_tune_panel_sweeps_only_when_shown(qtbot, window, monkeypatch):
+    """The Tune tab behind the Response tab runs no sweep after an edit; clicking its tab sweeps
+    the edited model, and the mode curve at every swept value is the closed form of a mass on
+    two parallel springs (f = sqrt((k1 + k2) / m) / 2 pi)."""
+    model = _one_mass(k=4000.0).with_changes(put=[Spring("s2", "g", "m1", 1000.0)])
+    window.document.new(model=model)
+    _settle(qtbot, window)
+    _click_tab(qtbot, window, "Tune")
+    tp = window.tune_panel
+    assert on_screen(tp) and tp.wait_sweep()
+    picked, field = tp.element
+    other = "s2" if picked == "s1" else "s1"
+    _click_tab(qtbot, window, "Response")
+    assert not on_screen(tp)
+    calls = []
+    real = solver.sweep
+    monkeypatch.setattr(solver, "sweep", lambda *a, **k: calls.append(a) or real(*a, **k))
+    window.document.set_element(other, k=9000.0)
+    _settle(qtbot, window)
+    assert calls == [] and not tp.sweep_pending
+    _click_tab(qtbot, window, "Tune")
+    assert tp.wait_sweep()
+    assert calls and all(a[0].element(other).k == 9000.0 for a in calls)   # the edited model
+    sw = tp.sweep_result
+    expected = [_f_hz(v + 9000.0, 1.0) for v in sw.values]
+    assert np.allclose(sw.frequencies_hz[:, 0], expected, rtol=1e-9, atol=0)
+
+
+def test_hidden_response_panel_computes_only_when_shown(qtbot, window):
+    """The Response tab behind the Tune tab keeps its curves after an edit (nothing computed or
+    drawn); clicking its tab draws the edited model's transmissibility, which is the closed
+    form of the undamped one-mass oscillator."""
+    window.document.new(model=_one_mass(k=4000.0))
+    _settle(qtbot, window)
+    rp = window.response_panel
+    before = rp.plotted_data()
+    assert before and on_screen(rp)
+    _click_tab(qtbot, window, "Tune")
+    assert not on_screen(rp)
+    window.document.set_element("s1", k=16000.0)
+    _settle(qtbot, window)
+    same = rp.plotted_data()
+    assert len(same) == len(before)
+    assert all(np.array_equal(a[2], b[2], equal_nan=True) for a, b in zip(same, before))
+    _click_tab(qtbot, window, "Response")
+    assert rp.wait()
+    (label, f, mag), = rp.plotted_data()
+    fn = _f_hz(16000.0, 1.0)
+    r = f / fn
+    away = np.abs(r - 1) > 0.05          # off the resonance the closed form is well conditioned
+    assert np.allclose(mag[away], 1 / np.abs(1 - r[away] ** 2), rtol=1e-6, atol=0)
+
+
+def test_hidden_sensitivity_table_fills_when_shown(qtbot, window):
+    """The Sensitivity tab behind another fills nothing after an edit; clicking its tab shows
+    the edited model's values: for one mass on one spring, (k/f) df/dk = 1/2 (math: f is
+    proportional to sqrt(k))."""
+    window.document.new(model=_one_mass(k=4000.0))
+    _settle(qtbot, window)
+    table = window.sensitivity_table
+    _click_tab(qtbot, window, "Sensitivity")
+    assert on_screen(table)
+    assert table.model._freqs[0] == pytest.approx(_f_hz(4000.0, 1.0), rel=1e-12)
+    _click_tab(qtbot, window, "Response")
+    window.document.set_element("s1", k=16000.0)
+    _settle(qtbot, window)
+    assert table.model._freqs[0] == pytest.approx(_f_hz(4000.0, 1.0), rel=1e-12)   # untouched
+    _click_tab(qtbot, window, "Sensitivity")
+    assert table.model._freqs[0] == pytest.approx(_f_hz(16000.0, 1.0), rel=1e-12)
+    assert table.cell_value("s1", "k", 1) == pytest.approx(0.5, rel=1e-9)
