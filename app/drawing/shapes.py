@@ -208,5 +208,80 @@ def rotation_arrow_path(center: QPointF, radius: float, start_deg: float = 30.0,
     return path
 
 
-__all__ = ["coil_path", "dashpot_path", "anchor_path", "mass_block_rect", "mass_block_side",
+def gear_pair_path(p1: QPointF, p2: QPointF, ratio: float = 1.0, size: float = 16.0,
+                   ) -> QPainterPath:
+    """A gear stage between two discs: two pitch circles touching at the middle of p1-p2, a
+    tick across the line of centres at the pitch point, and a shaft line from each disc to its
+    wheel.
+
+    ``ratio`` n = speed of the wheel at p1 / speed of the wheel at p2; pitch radii are inversely
+    proportional to speed, so the wheel at p1 is drawn with radius ``size / (1 + n)`` and the
+    one at p2 ``size n / (1 + n)`` (each kept at least a fifth of ``size`` so an extreme ratio
+    stays visible). ``size`` is the sum of the two radii (device units).
+    """
+    length, u, n = _frame(p1, p2)
+    path = QPainterPath()
+    if u is None:
+        return path
+    r = ratio if ratio > 0 and math.isfinite(ratio) else 1.0
+    ra = min(0.8, max(0.2, 1.0 / (1.0 + r))) * size
+    rb = size - ra
+    if 2 * (ra + rb) > 0.9 * length:        # discs close together: shrink the pair to fit
+        k = 0.9 * length / (2 * (ra + rb))
+        ra, rb = ra * k, rb * k
+    mid = _at(p1, u, n, 0.5 * length)
+    ca = QPointF(mid.x() - u.x() * ra, mid.y() - u.y() * ra)
+    cb = QPointF(mid.x() + u.x() * rb, mid.y() + u.y() * rb)
+    path.addEllipse(ca, ra, ra)
+    path.addEllipse(cb, rb, rb)
+    # shaft lines, stopping at each wheel's rim
+    path.moveTo(p1)
+    path.lineTo(QPointF(ca.x() - u.x() * ra, ca.y() - u.y() * ra))
+    path.moveTo(QPointF(cb.x() + u.x() * rb, cb.y() + u.y() * rb))
+    path.lineTo(p2)
+    # the pitch point: a tick across the line of centres
+    t = 0.45 * min(ra, rb) + 2.0
+    path.moveTo(QPointF(mid.x() - n.x() * t, mid.y() - n.y() * t))
+    path.lineTo(QPointF(mid.x() + n.x() * t, mid.y() + n.y() * t))
+    # the hubs
+    for c, rr in ((ca, ra), (cb, rb)):
+        path.addEllipse(c, 0.15 * rr, 0.15 * rr)
+    return path
+
+
+def centre_of_mass_path(center: QPointF, radius: float = 5.0) -> tuple[QPainterPath, QPainterPath]:
+    """The centre-of-mass mark of mechanics drawings: a circle split in quarters, two opposite
+    quarters filled. Returns (outline to stroke, filled quarters)."""
+    rect = QRectF(center.x() - radius, center.y() - radius, 2 * radius, 2 * radius)
+    outline = QPainterPath()
+    outline.addEllipse(rect)
+    outline.moveTo(QPointF(center.x() - radius, center.y()))
+    outline.lineTo(QPointF(center.x() + radius, center.y()))
+    outline.moveTo(QPointF(center.x(), center.y() - radius))
+    outline.lineTo(QPointF(center.x(), center.y() + radius))
+    filled = QPainterPath()
+    for start in (0.0, 180.0):
+        filled.moveTo(center)
+        filled.arcTo(rect, start, 90.0)
+        filled.closeSubpath()
+    return outline, filled
+
+
+def elastic_centre_path(center: QPointF, radius: float = 5.0) -> QPainterPath:
+    """The elastic-centre mark: a small diamond with a cross through it (told apart from the
+    centre-of-mass mark at a glance)."""
+    c, r = center, radius
+    path = QPainterPath(QPointF(c.x(), c.y() - r))
+    path.lineTo(QPointF(c.x() + r, c.y()))
+    path.lineTo(QPointF(c.x(), c.y() + r))
+    path.lineTo(QPointF(c.x() - r, c.y()))
+    path.closeSubpath()
+    path.moveTo(QPointF(c.x() - 1.5 * r, c.y()))
+    path.lineTo(QPointF(c.x() + 1.5 * r, c.y()))
+    path.moveTo(QPointF(c.x(), c.y() - 1.5 * r))
+    path.lineTo(QPointF(c.x(), c.y() + 1.5 * r))
+    return path
+
+
+__all__ = ["gear_pair_path", "centre_of_mass_path", "elastic_centre_path", "coil_path", "dashpot_path", "anchor_path", "mass_block_rect", "mass_block_side",
            "disc_path", "disc_radius", "axis_arrow_path", "rotation_arrow_path"]

@@ -8,7 +8,10 @@ Model coordinates are metres with y up; the rectangle is in the painter's device
 multiplied by ``scale`` before drawing (a magnification: mode shapes and small vibrations are
 invisible at true scale). In a line model a mass moves along the model's axis; in a planar model
 in x and y; in a torsion model the discs stay put and a radius line on each disc turns by
-``theta * scale``.
+``theta * scale``. A planar rigid body (a mass with an inertia) is a box round its mount points,
+moved by ``(x, y) * scale`` and turned by ``theta * scale`` (:mod:`app.drawing.bodies`); springs
+and dashpots end on their attachment points. Gear stages of a torsion model are drawn as two
+pitch circles between their discs with the speed ratio.
 """
 
 from __future__ import annotations
@@ -20,6 +23,7 @@ import numpy as np
 from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QBrush, QFont, QFontMetricsF, QPainter, QPen
 
+from app.drawing import bodies as _bodies
 from app.drawing import shapes
 from app.drawing.style import LIGHT, Style, current_style
 
@@ -63,6 +67,13 @@ class SketchLayout:
         if nodes:
             xs = [n.x for n in nodes]
             ys = [n.y for n in nodes]
+            # a body's box reaches out to its mount points
+            for m in model.masses:
+                ex, ey = _bodies.mount_extent(model, m.id) if _bodies.is_body(model, m) \
+                    else (0.0, 0.0)
+                if ex or ey:
+                    xs += [m.x - ex, m.x + ex]
+                    ys += [m.y - ey, m.y + ey]
             x0, x1, y0, y1 = min(xs), max(xs), min(ys), max(ys)
         else:
             x0 = x1 = y0 = y1 = 0.0
@@ -91,7 +102,8 @@ class SketchLayout:
         self.extent_m = extent if extent > 1e-12 else 1.0
         self._turns = {}
         for s in model.springs:
-            a, b = self.point(s.a), self.point(s.b)
+            a = self.attach(s.a, _bodies.offset_of(s, "a"))
+            b = self.attach(s.b, _bodies.offset_of(s, "b"))
             length = math.hypot(b.x() - a.x(), b.y() - a.y())
             self._turns[s.id] = int(min(8, max(3, round(length / (0.38 * base)))))
 
@@ -149,8 +161,39 @@ class SketchLayout:
     def is_mass(self, node_id: str) -> bool:
         return node_id in self._is_mass
 
+    def is_body(self, node_id: str) -> bool:
+        n = self._nodes.get(node_id)
+        return n is not None and node_id in self._is_mass and _bodies.is_body(self.model, n)
+
+    def turn(self, node_id: str, displacements: dict | None = None, scale: float = 1.0) -> float:
+        """Drawn turn of a body (rad, counter-clockwise on the page): theta x ``scale``."""
+        if not displacements or not self.is_body(node_id):
+            return 0.0
+        return (displacements.get(node_id) or {}).get("theta", 0.0) * scale
+
+    def attach(self, node_id: str, offset=_bodies.ORIGIN, displacements: dict | None = None,
+               scale: float = 1.0) -> QPointF:
+        """Device point of an attachment at ``offset`` (m, body frame) on a node, moved with
+        the body (translation and turn, both times ``scale``)."""
+        c = self.point(node_id, displacements, scale)
+        if offset == _bodies.ORIGIN:
+            return c
+        ox, oy = _bodies.rotated(offset, self.turn(node_id, displacements, scale))
+        return QPointF(c.x() + ox * self.px_per_m, c.y() - oy * self.px_per_m)
+
+    def body_half(self, mass) -> tuple[float, float]:
+        """Half width and half height (device units) of a body's box: the mass's block, grown
+        to take in its mount points with a little room."""
+        side = shapes.mass_block_side(mass.mass, self.base, self.reference_mass)
+        ex, ey = _bodies.mount_extent(self.model, mass.id)
+        pad = 0.12 * self.base
+        return (max(side / 2, ex * self.px_per_m + pad), max(side / 2, ey * self.px_per_m + pad))
+
     def mass_rect(self, mass, center: QPointF) -> QRectF:
-        """Block of a mass (translation models)."""
+        """Block of a mass (translation models); a body's box (at rest orientation)."""
+        if self.is_body(mass.id):
+            hw, hh = self.body_half(mass)
+            return QRectF(center.x() - hw, center.y() - hh, 2 * hw, 2 * hh)
         return shapes.mass_block_rect(center, mass.mass, self.base, self.reference_mass)
 
     def disc_radius(self, mass) -> float:
@@ -176,11 +219,20 @@ class SketchLayout:
         return hit
 
     # -- element geometry --------------------------------------------------------------------
-    def _exit_distance(self, node_id: str, center: QPointF, start: QPointF, u: QPointF) -> float:
-        """Distance from ``start`` (inside the node's symbol) along ``u`` to the symbol's edge."""
+    def _exit_distance(self, node_id: str, center: QPointF, start: QPointF, u: QPointF,
+                       turn: float = 0.0) -> float:
+        """Distance from ``start`` (inside the node's symbol) along ``u`` to the symbol's edge
+        (a body's box turned by ``turn`` rad, counter-clockwise on the page)."""
         if node_id not in self._is_mass:
             return 0.0
         m = self._nodes[node_id]
+        if turn and self.is_body(node_id):
+            # into the box's own frame: undo the turn (on a y-down page a counter-clockwise
+            # turn by t is the matrix of -t)
+            c, s_ = math.cos(turn), math.sin(turn)
+            fx, fy = start.x() - center.x(), start.y() - center.y()
+            start = QPointF(center.x() + c * fx - s_ * fy, center.y() + s_ * fx + c * fy)
+            u = QPointF(c * u.x() - s_ * u.y(), s_ * u.x() + c * u.y())
         if self.model.kind == "torsion":
             r = self.disc_radius(m)
             # ray-circle exit from a point inside
@@ -200,12 +252,16 @@ class SketchLayout:
                 ts.append((edge - ps) / pu)
         return max(0.0, min(ts)) if ts else 0.0
 
-    def link_ends(self, a: str, b: str, lane: float, displacements=None, scale=1.0):
+    def link_ends(self, a: str, b: str, lane: float, displacements=None, scale=1.0,
+                  a_offset=_bodies.ORIGIN, b_offset=_bodies.ORIGIN):
         """End points of a spring or dashpot between nodes ``a`` and ``b`` on a side lane.
 
         ``lane`` is a perpendicular offset in device units (parallel elements between the same
-        two nodes are drawn side by side). Ends are trimmed to the edges of mass blocks.
+        two nodes are drawn side by side). Ends are trimmed to the edges of mass blocks; an end
+        with an attachment offset (m, on a body) ends exactly on its attachment point.
         """
+        if a_offset != _bodies.ORIGIN or b_offset != _bodies.ORIGIN:
+            return self._attached_ends(a, b, lane, displacements, scale, a_offset, b_offset)
         pa = self.point(a, displacements, scale)
         pb = self.point(b, displacements, scale)
         dx, dy = pb.x() - pa.x(), pb.y() - pa.y()
@@ -216,19 +272,50 @@ class SketchLayout:
         n = QPointF(-u.y(), u.x())
         sa = QPointF(pa.x() + n.x() * lane, pa.y() + n.y() * lane)
         sb = QPointF(pb.x() + n.x() * lane, pb.y() + n.y() * lane)
-        ta = self._exit_distance(a, pa, sa, u)
-        tb = self._exit_distance(b, pb, sb, QPointF(-u.x(), -u.y()))
+        ta = self._exit_distance(a, pa, sa, u, self.turn(a, displacements, scale))
+        tb = self._exit_distance(b, pb, sb, QPointF(-u.x(), -u.y()),
+                                 self.turn(b, displacements, scale))
         if ta + tb >= length - 2.0:   # blocks overlap: keep a stub rather than reverse
             return sa, sb
         return (QPointF(sa.x() + u.x() * ta, sa.y() + u.y() * ta),
                 QPointF(sb.x() - u.x() * tb, sb.y() - u.y() * tb))
 
+    def _attached_ends(self, a, b, lane, displacements, scale, a_offset, b_offset):
+        """:meth:`link_ends` with an attachment point on at least one end: that end is the
+        point itself; a centre end is trimmed to its block's edge as usual."""
+        pa = self.attach(a, a_offset, displacements, scale)
+        pb = self.attach(b, b_offset, displacements, scale)
+        dx, dy = pb.x() - pa.x(), pb.y() - pa.y()
+        length = math.hypot(dx, dy)
+        if length < 1e-9:
+            return pa, pb
+        u = QPointF(dx / length, dy / length)
+        n = QPointF(-u.y(), u.x())
+        sa = QPointF(pa.x() + n.x() * lane, pa.y() + n.y() * lane)
+        sb = QPointF(pb.x() + n.x() * lane, pb.y() + n.y() * lane)
+        ta = 0.0 if a_offset != _bodies.ORIGIN else \
+            self._exit_distance(a, pa, sa, u, self.turn(a, displacements, scale))
+        tb = 0.0 if b_offset != _bodies.ORIGIN else \
+            self._exit_distance(b, pb, sb, QPointF(-u.x(), -u.y()),
+                                self.turn(b, displacements, scale))
+        if ta + tb >= length - 2.0:
+            return sa, sb
+        return (QPointF(sa.x() + u.x() * ta, sa.y() + u.y() * ta),
+                QPointF(sb.x() - u.x() * tb, sb.y() - u.y() * tb))
+
+    def ends_of(self, link, lane: float = 0.0, displacements=None, scale=1.0):
+        """:meth:`link_ends` of a spring or dashpot element, its attachment points included."""
+        return self.link_ends(link.a, link.b, lane, displacements, scale,
+                              _bodies.offset_of(link, "a"), _bodies.offset_of(link, "b"))
+
     def lanes(self) -> dict:
         """Perpendicular lane offset (device units) of every spring and dashpot id."""
+        cached = getattr(self, "_lanes", None)
+        if cached is not None and cached[0] is self.model:
+            return cached[1]
         groups: dict = {}
         for el in list(self.model.springs) + list(self.model.dampers):
-            key = tuple(sorted((el.a, el.b)))
-            groups.setdefault(key, []).append(el)
+            groups.setdefault(_bodies.link_key(el), []).append(el)
         out = {}
         step = 0.5 * self.base
         for key, els in groups.items():
@@ -237,9 +324,10 @@ class SketchLayout:
                 off = (i - (k - 1) / 2.0) * step
                 # lanes are measured on the a->b normal; keep them consistent for a pair drawn
                 # in either direction
-                if (el.a, el.b) != key:
+                if (el.a, _bodies.offset_of(el, "a")) != key[0]:
                     off = -off
                 out[el.id] = off
+        self._lanes = (self.model, out)
         return out
 
     def anchor_normal(self, anchor_id: str) -> QPointF:
@@ -263,12 +351,18 @@ class SketchLayout:
 
 
 def _geometry_key(model) -> tuple:
-    """What a :class:`SketchLayout` reads from a model: kind, nodes, masses and links."""
+    """What a :class:`SketchLayout` reads from a model: kind, nodes, masses, bodies, links
+    with their attachment points, gear stages."""
+    def ends(e):
+        return (e.id, e.a, e.b, _bodies.offset_of(e, "a"), _bodies.offset_of(e, "b"))
+
     return (model.kind,
-            tuple((m.id, m.x, m.y, m.mass) for m in model.masses),
+            tuple((m.id, m.x, m.y, m.mass, getattr(m, "inertia", 0.0) > 0)
+                  for m in model.masses),
             tuple((a.id, a.x, a.y) for a in model.anchors),
-            tuple((e.id, e.a, e.b) for e in model.springs),
-            tuple((e.id, e.a, e.b) for e in model.dampers))
+            tuple(ends(e) for e in model.springs),
+            tuple(ends(e) for e in model.dampers),
+            tuple((g.id, g.a, g.b, g.ratio) for g in getattr(model, "gears", ())))
 
 
 def fit_scale(layout: SketchLayout, displacements: dict | None, fraction: float = 0.12) -> float:
@@ -283,8 +377,17 @@ def fit_scale(layout: SketchLayout, displacements: dict | None, fraction: float 
         big = max((abs(d.get("theta", 0.0)) for d in displacements.values()), default=0.0)
         return _MAX_DRAWN_ROTATION / big if big > 0 else 1.0
     big = 0.0
-    for d in displacements.values():
-        big = max(big, math.hypot(d.get("x", 0.0), d.get("y", 0.0)))
+    turn = 0.0
+    for mid, d in displacements.items():
+        reach = math.hypot(d.get("x", 0.0), d.get("y", 0.0))
+        theta = abs(d.get("theta", 0.0))
+        if theta and layout.is_body(mid):
+            # a body's corners move by its turn times their distance from the centre
+            m = layout._nodes[mid]
+            hw, hh = layout.body_half(m)
+            reach += theta * math.hypot(hw, hh) / layout.px_per_m
+            turn = max(turn, theta)
+        big = max(big, reach)
     if big <= 0:
         return 1.0
     short = min(layout.rect.width(), layout.rect.height())
@@ -293,7 +396,10 @@ def fit_scale(layout: SketchLayout, displacements: dict | None, fraction: float 
     if spacing:
         # neighbours moving towards each other must not swap places on the drawing
         target_px = min(target_px, 0.2 * spacing)
-    return target_px / layout.px_per_m / big
+    scale = target_px / layout.px_per_m / big
+    if turn > 0:
+        scale = min(scale, _MAX_DRAWN_ROTATION / turn)
+    return scale
 
 
 def _value_text(model, el, kind: str) -> str:
@@ -380,7 +486,7 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
 
     # springs
     for s in model.springs:
-        p1, p2 = lay.link_ends(s.a, s.b, lanes.get(s.id, 0.0), disp, scale)
+        p1, p2 = lay.ends_of(s, lanes.get(s.id, 0.0), disp, scale)
         f = energy.get(s.id) if energy else None
         if grey:
             painter.setPen(QPen(ink, lw))
@@ -397,9 +503,18 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
 
     # dashpots
     for d in model.dampers:
-        p1, p2 = lay.link_ends(d.a, d.b, lanes.get(d.id, 0.0), disp, scale)
+        p1, p2 = lay.ends_of(d, lanes.get(d.id, 0.0), disp, scale)
         painter.setPen(QPen(ink, lw) if grey else pen)
         painter.drawPath(shapes.dashpot_path(p1, p2, 0.42 * base))
+
+    # gear stages (torsion): discs stay put, so the symbol does too
+    for g in getattr(model, "gears", ()):
+        p1, p2 = lay.link_ends(g.a, g.b, 0.0)
+        if g.id in highlight and not grey:
+            painter.setPen(QPen(st.accent, lw * 1.6))
+        else:
+            painter.setPen(QPen(ink, lw) if grey else pen)
+        painter.drawPath(shapes.gear_pair_path(p1, p2, g.ratio, 0.55 * base))
 
     # masses
     for m in model.masses:
@@ -429,6 +544,9 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
             painter.setBrush(QBrush(edge))
             painter.drawEllipse(c, 0.14 * base, 0.14 * base)
             below = 0.14 * base
+        elif lay.is_body(m.id):
+            _paint_body(painter, lay, st, m, c, lay.turn(m.id, disp, scale), lw, grey, edge)
+            below = lay.body_half(m)[1]
         else:
             rect = lay.mass_rect(m, c)
             painter.drawRect(rect)
@@ -448,6 +566,31 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
         painter.setBrush(Qt.BrushStyle.NoBrush)
 
 
+def _paint_body(painter, lay, st, m, c: QPointF, turn: float, lw: float, grey: bool, edge):
+    """A rigid body: its box round the mount points, the centre-of-mass mark and a small ring
+    on each mount point, all turned by ``turn`` (rad, counter-clockwise on the page) about the
+    centre. The brush is the caller's (the fill or the energy tint)."""
+    hw, hh = lay.body_half(m)
+    painter.save()
+    try:
+        painter.translate(c)
+        painter.rotate(-math.degrees(turn))
+        painter.drawRect(QRectF(-hw, -hh, 2 * hw, 2 * hh))
+        r = max(2.5, 0.11 * lay.base)
+        outline, filled = shapes.centre_of_mass_path(QPointF(0, 0), r)
+        painter.setPen(QPen(edge, max(0.8, 0.6 * lw)))
+        painter.setBrush(Qt.BrushStyle.NoBrush)
+        painter.drawPath(outline)
+        painter.setBrush(QBrush(edge))
+        painter.drawPath(filled)
+        painter.setBrush(QBrush(st.undeformed if grey else st.background))
+        k = lay.px_per_m
+        for ox, oy in _bodies.mount_points(lay.model).get(m.id, ()):
+            painter.drawEllipse(QPointF(ox * k, -oy * k), 0.7 * r, 0.7 * r)
+    finally:
+        painter.restore()
+
+
 def _axis_origin(lay) -> QPointF:
     r = lay.rect
     return QPointF(r.left() + 0.4 * lay.base, r.bottom() - 0.4 * lay.base)
@@ -459,6 +602,8 @@ def _symbol_half(lay, m) -> float:
         return lay.disc_radius(m)
     if m.mass <= 0:
         return 0.14 * lay.base
+    if lay.is_body(m.id):
+        return max(lay.body_half(m))
     return lay.mass_rect(m, QPointF(0, 0)).height() / 2
 
 
@@ -475,8 +620,11 @@ def symbol_rects(lay: SketchLayout, displacements: dict | None = None,
         out.append(QRectF(c.x() - 0.8 * base, c.y() - 0.8 * base, 1.6 * base, 1.6 * base))
     lanes = lay.lanes()
     for el in list(lay.model.springs) + list(lay.model.dampers):
-        p1, p2 = lay.link_ends(el.a, el.b, lanes.get(el.id, 0.0), displacements, scale)
+        p1, p2 = lay.ends_of(el, lanes.get(el.id, 0.0), displacements, scale)
         out += segment_boxes(p1, p2, 0.21 * base)
+    for g in getattr(lay.model, "gears", ()):
+        p1, p2 = lay.link_ends(g.a, g.b, 0.0)
+        out += segment_boxes(p1, p2, 0.55 * base)
     for m in lay.model.masses:
         c = lay.point(m.id, displacements, scale)
         h = _symbol_half(lay, m)
@@ -500,6 +648,18 @@ def _paint_labels(painter, lay: SketchLayout, st: Style, labels, energy, motion_
         painter.setPen(QPen(color))
         painter.drawText(QPointF(rect.left(), rect.center().y() + fm.ascent() / 2
                                  - fm.descent() / 2), text)
+
+
+def _gear_text(g, labels) -> str:
+    """A gear stage's label: its name when it has one, and its speed ratio (always: the ratio
+    is what the symbol cannot show), with the mesh stiffness among the values."""
+    from app.text.numbers import quantity
+
+    ratio = f"n = {quantity(g.ratio, '').strip()}"
+    text = ratio if g.label == g.id else f"{g.label}  {ratio}"
+    if labels == "values" and getattr(g, "k_mesh", None) is not None:
+        text += f", mesh {_fmt_value(g.k_mesh, 'N·m/rad')}"
+    return text
 
 
 def _label_texts(lay, labels, energy) -> list[tuple[str, object, str]]:
@@ -529,6 +689,8 @@ def _label_texts(lay, labels, energy) -> list[tuple[str, object, str]]:
         if labels == "values":
             text += "  " + _value_text(model, d, "dashpot")
         out.append(("dashpot", d, text))
+    for g in getattr(model, "gears", ()):
+        out.append(("gear", g, _gear_text(g, labels)))
     if model.kind == "line":
         out.append(("axis", None, model.axis))
     return out
@@ -547,7 +709,8 @@ def can_paint_fast(model, displacements, labels=False, energy=None, highlight=No
     """True when :func:`paint_static_layer` + :func:`paint_moving_layer` draw what
     :func:`paint_sketch` would (translation models, moving, no labels, tint or highlight)."""
     return (model is not None and model.kind != "torsion" and bool(displacements)
-            and not labels and not energy and not highlight)
+            and not labels and not energy and not highlight
+            and not (model.kind == "planar" and _bodies.mount_points(model)))
 
 
 def paint_static_layer(painter: QPainter, lay: SketchLayout, style: Style | None = None,
@@ -760,10 +923,14 @@ def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
         placer.block(QRectF(c.x() - 0.8 * base, c.y() - 0.8 * base, 1.6 * base, 1.6 * base))
     lanes = lay.lanes()
     for el in list(model.springs) + list(model.dampers):
-        p1, p2 = lay.link_ends(el.a, el.b, lanes.get(el.id, 0.0))
+        p1, p2 = lay.ends_of(el, lanes.get(el.id, 0.0))
         grow = sweep if (el.a in moving or el.b in moving) else 0.0
         for box in segment_boxes(p1, p2, 0.21 * base):
             placer.block(box.adjusted(-grow, -grow, grow, grow))
+    for g in getattr(model, "gears", ()):
+        p1, p2 = lay.link_ends(g.a, g.b, 0.0)
+        for box in segment_boxes(p1, p2, 0.55 * base):
+            placer.block(box)
     mass_box = {}
     for m in model.masses:
         c = lay.point(m.id)
@@ -816,8 +983,16 @@ def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
             else:
                 first = QRectF(o.x() + 0.4 * base, o.y() - 1.2 * base - h / 2, w, h)
             cands = [first]
+        elif kind == "gear":
+            p1, p2 = lay.link_ends(el.a, el.b, 0.0)
+            pos = _beside(p1, p2, 0.55 * base + 0.35 * h + 2, fm, text)
+            first = QRectF(pos.x() - w / 2, pos.y() - h / 2, w, h)
+            mid = QPointF(0.5 * (p1.x() + p2.x()), 0.5 * (p1.y() + p2.y()))
+            r = 0.55 * base
+            cands = list(shifted(first, h)) + list(around(
+                QRectF(mid.x() - r, mid.y() - r, 2 * r, 2 * r), w, h, placer.pad + 1))
         else:
-            p1, p2 = lay.link_ends(el.a, el.b, lanes.get(el.id, 0.0))
+            p1, p2 = lay.ends_of(el, lanes.get(el.id, 0.0))
             pos = _beside(p1, p2, 0.21 * base + 0.35 * h + 2 + sweep, fm, text,
                           lanes.get(el.id, 0.0))
             first = QRectF(pos.x() - w / 2, pos.y() - h / 2, w, h)
