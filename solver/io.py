@@ -33,8 +33,8 @@ from pathlib import Path
 
 from .errors import ModelError, ModelFileError, one_line, shown
 from .naming import quoted
-from .model import (MAX_ELEMENTS, Anchor, Damper, Damping, Excitation, Initial, Mass, Model,
-                    Spring)
+from .model import (MAX_ELEMENTS, Anchor, Damper, Damping, Excitation, Gear, Initial, Mass,
+                    Model, Spring)
 from .schema_check import Invalid, compile_schema
 
 FORMAT = "springwright-model"
@@ -50,7 +50,7 @@ MAX_CONTAINERS = 4 * MAX_ELEMENTS + 100
 
 _VELOCITY_KEY = {"x": "vx", "y": "vy", "theta": "vtheta"}
 _ELEMENT_LISTS = {"masses": "mass", "anchors": "anchor", "springs": "spring",
-                  "dampers": "dashpot", "excitations": "excitation"}
+                  "dampers": "dashpot", "excitations": "excitation", "gears": "gear"}
 
 
 @lru_cache(maxsize=1)
@@ -188,12 +188,17 @@ def _owner(data, path) -> str:
 
 def _for_kind(data, path, problem: str) -> str:
     """The schema lists both "mass" and "inertia" among a mass's keys; a message listing the
-    allowed keys names only the one this model's kind uses."""
+    allowed keys names only those this model's kind uses (a planar mass may have both: the
+    inertia makes it a rigid body)."""
+    kind = data.get("kind")
     if len(path) == 2 and path[0] == "masses" and " (allowed: " in problem:
-        other = "mass" if data.get("kind") == "torsion" else "inertia"
+        other = "mass" if kind == "torsion" else "inertia" if kind != "planar" else None
         head, _, allowed = problem.partition(" (allowed: ")
         keys = [k for k in allowed.rstrip(")").split(", ") if k != other]
         return f"{head} (allowed: {', '.join(keys)})"
+    if len(path) == 2 and path[0] == "masses" and problem.startswith('"inertia" is not allowed'):
+        return (problem + '; "inertia" is a torsion disc\'s inertia, or a planar rigid body\'s'
+                " rotary inertia beside its mass")
     return problem
 
 
@@ -271,7 +276,8 @@ def _build(data: dict) -> Model:
     def mass(m):
         try:
             return Mass(id=m["id"], x=m["x"], y=m["y"], mass=m[mass_key],
-                        label=m.get("label", ""), fixed=tuple(m.get("fixed", ())))
+                        label=m.get("label", ""), fixed=tuple(m.get("fixed", ())),
+                        inertia=0.0 if kind == "torsion" else m.get("inertia", 0.0))
         except ModelError as exc:   # the Mass calls it "mass" whatever the kind
             if exc.path == ("mass",):
                 exc.path = (mass_key,)
@@ -289,9 +295,14 @@ def _build(data: dict) -> Model:
     anchors = _each(data, "anchors", lambda a: Anchor(id=a["id"], x=a["x"], y=a["y"],
                                                       label=a.get("label", "")))
     springs = _each(data, "springs", lambda s: Spring(
-        id=s["id"], a=s["a"], b=s["b"], k=s["k"], k_t=s.get("k_t", 0.0), label=s.get("label", "")))
-    dampers = _each(data, "dampers", lambda d: Damper(id=d["id"], a=d["a"], b=d["b"], c=d["c"],
-                                                      label=d.get("label", "")))
+        id=s["id"], a=s["a"], b=s["b"], k=s["k"], k_t=s.get("k_t", 0.0), label=s.get("label", ""),
+        a_offset=_pair(s, "a_offset"), b_offset=_pair(s, "b_offset")))
+    dampers = _each(data, "dampers", lambda d: Damper(
+        id=d["id"], a=d["a"], b=d["b"], c=d["c"], label=d.get("label", ""),
+        a_offset=_pair(d, "a_offset"), b_offset=_pair(d, "b_offset")))
+    gears = _each(data, "gears", lambda g: Gear(
+        id=g["id"], a=g["a"], b=g["b"], ratio=g["ratio"], label=g.get("label", ""),
+        k_mesh=g.get("k_mesh")))
     excitations = _each(data, "excitations", excitation)
     dm = data.get("damping", {"model": "none"})
     try:
@@ -314,8 +325,16 @@ def _build(data: dict) -> Model:
             raise ModelError(str(exc), ("initial", mass_id) + inner) from None
     return Model(kind=kind, name=data.get("name", ""), axis=axis, masses=masses, anchors=anchors,
                  springs=springs, dampers=dampers, damping=damping,
-                 excitations=excitations,
+                 excitations=excitations, gears=gears,
                  margin_percent=data.get("margin_percent", 15.0), initial=tuple(initial))
+
+
+_ORIGIN = (0.0, 0.0)
+
+
+def _pair(el: dict, key: str):
+    value = el.get(key)
+    return _ORIGIN if value is None else tuple(value)
 
 
 def model_to_dict(model: Model, minimal: bool = False) -> dict:
@@ -340,6 +359,8 @@ def model_to_dict(model: Model, minimal: bool = False) -> dict:
     for m in model.masses:
         d = labelled(m, {"id": m.id})
         d.update({"x": m.x, "y": m.y, mass_key: m.mass})
+        if m.inertia and model.kind == "planar":
+            d["inertia"] = m.inertia
         if m.fixed:
             d["fixed"] = list(m.fixed)
         out["masses"].append(d)
@@ -349,9 +370,16 @@ def model_to_dict(model: Model, minimal: bool = False) -> dict:
         d = labelled(s, {"id": s.id}) | {"a": s.a, "b": s.b, "k": s.k}
         if s.k_t:
             d["k_t"] = s.k_t
-        out["springs"].append(d)
-    out["dampers"] = [labelled(d, {"id": d.id}) | {"a": d.a, "b": d.b, "c": d.c}
+        out["springs"].append(_offsets(s, d))
+    out["dampers"] = [_offsets(d, labelled(d, {"id": d.id}) | {"a": d.a, "b": d.b, "c": d.c})
                       for d in model.dampers]
+    if model.gears:   # written only when there are any, so older files keep their text
+        out["gears"] = []
+        for g in model.gears:
+            d = labelled(g, {"id": g.id}) | {"a": g.a, "b": g.b, "ratio": g.ratio}
+            if g.k_mesh is not None:
+                d["k_mesh"] = g.k_mesh
+            out["gears"].append(d)
     dm = model.damping
     if dm.model == "modal":
         out["damping"] = {"model": "modal", "ratio": dm.ratio}
@@ -388,6 +416,15 @@ def model_to_dict(model: Model, minimal: bool = False) -> dict:
             if out.get("damping", {}).get(key) == 0:
                 del out["damping"][key]
     return out
+
+
+def _offsets(el, d: dict) -> dict:
+    """``d`` with the element's attachment offsets, where they are not at the centre."""
+    for key in ("a_offset", "b_offset"):
+        value = getattr(el, key)
+        if value != _ORIGIN:
+            d[key] = [float(value[0]), float(value[1])]
+    return d
 
 
 def number_text(v: float, shortest: bool = True) -> str:

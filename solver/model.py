@@ -185,13 +185,42 @@ def _items(owner: str, name: str, value) -> tuple:
 
 _set = object.__setattr__   # frozen dataclasses set their checked fields through this
 
+_ORIGIN = (0.0, 0.0)
+
+
+def _offset(owner: str, name: str, value) -> tuple[float, float]:
+    """An attachment offset ``(dx, dy)`` in metres: two finite numbers of at most HUGE."""
+    if value == _ORIGIN and type(value) is tuple and type(value[0]) is float and \
+            type(value[1]) is float:
+        return value   # the common case, fast
+    if isinstance(value, (str, bytes)) or not isinstance(value, Iterable):
+        raise ModelError(f"{owner}: {name} must be a pair [dx, dy] in m, got {shown(value)}",
+                         (name,))
+    items = tuple(value)
+    if len(items) != 2:
+        raise ModelError(f"{owner}: {name} must be a pair [dx, dy] in m, got {shown(value)}",
+                         (name,))
+    out = []
+    for i, v in enumerate(items):
+        try:
+            out.append(_coordinate(owner, f"{name} {'xy'[i]}", v))
+        except ModelError as exc:
+            raise ModelError(str(exc), (name, i)) from None
+    return (out[0], out[1])
+
 
 @dataclass(frozen=True)
 class Mass:
-    """A lumped mass (or, in a torsion model, a disc).
+    """A lumped mass (or, in a torsion model, a disc), or in a planar model a rigid body.
 
     ``mass`` is in kg (kg m^2 for a torsion disc); zero makes the node a massless junction, condensed
     out of the eigenproblem and its motion recovered. ``fixed`` lists locked directions.
+
+    ``inertia`` is the rotary inertia about the mass's centre in kg m^2, planar models only: a
+    value > 0 makes the mass a rigid body with a third DOF ``theta`` (radians, counter-clockwise),
+    and springs and dashpots may then attach to it at points off its centre (their
+    ``a_offset``/``b_offset``). A body needs a mass > 0 too. In a torsion model a disc's inertia
+    is held in ``mass`` (the file's key ``"inertia"``) and this field stays 0.
     """
 
     id: str
@@ -200,6 +229,7 @@ class Mass:
     mass: float
     label: str = ""
     fixed: tuple[str, ...] = ()
+    inertia: float = 0.0
 
     def __post_init__(self):
         _check_id("mass", self.id)
@@ -218,11 +248,18 @@ class Mass:
         if len(set(fixed)) != len(fixed):
             raise ModelError(f"{owner}: fixed lists a direction twice: {list(fixed)}", ("fixed",))
         _set(self, "fixed", fixed)
+        if self.inertia != 0.0 or type(self.inertia) is not float:
+            _set(self, "inertia", _nonneg(owner, "inertia", self.inertia, "kg m^2",
+                                          ranged=True))
+            if self.inertia > 0 and self.mass == 0:
+                raise ModelError(f"{owner}: inertia = {_fmt(self.inertia)} kg m^2 needs a mass"
+                                 " > 0 (a rigid body has both; a massless junction has neither)",
+                                 ("inertia",))
 
     @property
-    def inertia(self) -> float:
-        """Polar inertia in kg m^2 (torsion models store it in ``mass``)."""
-        return self.mass
+    def is_body(self) -> bool:
+        """True for a rigid body: rotary inertia > 0 (planar models), so ``theta`` is a DOF."""
+        return self.inertia > 0
 
 
 @dataclass(frozen=True)
@@ -249,6 +286,11 @@ class Spring:
 
     ``k`` is the axial stiffness in N/m (N m/rad in torsion); ``k_t`` the transverse stiffness in N/m,
     used only in planar models, acting at right angles to the drawn line.
+
+    ``a_offset``, ``b_offset`` (planar models only): the attachment point of each end relative to
+    that end's centre, (dx, dy) in m, in the body's frame (the global frame at rest). Nonzero only
+    on an end that is a rigid body (a mass with ``inertia`` > 0). The spring's line of action
+    runs between the two attachment points.
     """
 
     id: str
@@ -257,6 +299,8 @@ class Spring:
     k: float
     label: str = ""
     k_t: float = 0.0
+    a_offset: tuple[float, float] = (0.0, 0.0)
+    b_offset: tuple[float, float] = (0.0, 0.0)
 
     def __post_init__(self):
         _check_id("spring", self.id)
@@ -268,17 +312,24 @@ class Spring:
         _set(self, "k", _positive(owner, "stiffness k", self.k, "N/m", ranged=True, field="k"))
         _set(self, "k_t", _nonneg(owner, "transverse stiffness k_t", self.k_t, "N/m",
                                       ranged=True, field="k_t"))
+        _set(self, "a_offset", _offset(owner, "a_offset", self.a_offset))
+        _set(self, "b_offset", _offset(owner, "b_offset", self.b_offset))
 
 
 @dataclass(frozen=True)
 class Damper:
-    """A viscous dashpot between nodes ``a`` and ``b``; ``c`` in N s/m (N m s/rad in torsion)."""
+    """A viscous dashpot between nodes ``a`` and ``b``; ``c`` in N s/m (N m s/rad in torsion).
+
+    ``a_offset``, ``b_offset``: attachment points on rigid bodies, as for :class:`Spring`.
+    """
 
     id: str
     a: str
     b: str
     c: float
     label: str = ""
+    a_offset: tuple[float, float] = (0.0, 0.0)
+    b_offset: tuple[float, float] = (0.0, 0.0)
 
     def __post_init__(self):
         _check_id("dashpot", self.id)
@@ -289,6 +340,46 @@ class Damper:
         _set(self, "b", _check_id(f"{owner} end b", self.b, "b"))
         _set(self, "c", _nonneg(owner, "damping coefficient c", self.c, "N s/m",
                                     ranged=True, field="c"))
+        _set(self, "a_offset", _offset(owner, "a_offset", self.a_offset))
+        _set(self, "b_offset", _offset(owner, "b_offset", self.b_offset))
+
+
+@dataclass(frozen=True)
+class Gear:
+    """A gear stage joining two discs of a torsion model.
+
+    ``ratio`` is the speed ratio n = (speed of disc ``a``) / (speed of disc ``b``), > 0: with a
+    rigid mesh theta_a = n theta_b. Referred to shaft a (kinetic and strain energy kept), an
+    inertia J or a torsional stiffness k on shaft b becomes J / n^2 or k / n^2; referred to
+    shaft b, one on shaft a becomes n^2 J, n^2 k. So for a reduction a -> b (a motor on a
+    turning n times faster than the load on b) the load's J2 and k2 seen from the motor shaft
+    are J2/n^2 and k2/n^2 (a standard textbook method, from memory).
+
+    ``k_mesh``: None for a rigid mesh (a constraint, the default), or the mesh stiffness in
+    N m/rad referred to shaft a, strain energy 1/2 k_mesh (theta_a - n theta_b)^2. The mesh's
+    reversal of direction (an external pair turns its shafts opposite ways) is ignored: it
+    flips the sign of the angles on one side, which changes no frequency and no energy (common
+    practice for natural frequencies).
+    """
+
+    id: str
+    a: str
+    b: str
+    ratio: float
+    label: str = ""
+    k_mesh: float | None = None
+
+    def __post_init__(self):
+        _check_id("gear", self.id)
+        _set(self, "label", _text(f'gear "{self.id}"', "label", self.label, self.id))
+        owner = f"gear {quoted(self.id, self.label)}"
+        _set(self, "a", _check_id(f"{owner} disc a", self.a, "a"))
+        _set(self, "b", _check_id(f"{owner} disc b", self.b, "b"))
+        _set(self, "ratio", _positive(owner, "speed ratio", self.ratio,
+                                      "(speed of a / speed of b)", ranged=True, field="ratio"))
+        if self.k_mesh is not None:
+            _set(self, "k_mesh", _positive(owner, "mesh stiffness k_mesh", self.k_mesh,
+                                           "N m/rad", ranged=True, field="k_mesh"))
 
 
 @dataclass(frozen=True)
@@ -499,11 +590,13 @@ class Model:
     excitations: tuple[Excitation, ...] = ()
     margin_percent: float = 15.0
     initial: tuple[Initial, ...] = ()
+    #: gear stages (torsion models only)
+    gears: tuple[Gear, ...] = ()
 
     def __post_init__(self):
         for name, cls in (("masses", Mass), ("anchors", Anchor), ("springs", Spring),
                           ("dampers", Damper), ("excitations", Excitation),
-                          ("initial", Initial)):
+                          ("initial", Initial), ("gears", Gear)):
             items = _items("model", name, getattr(self, name))
             for i, el in enumerate(items):
                 if type(el) is not cls:
@@ -511,10 +604,11 @@ class Model:
                                      f" {shown(el)}", (name, i))
             _set(self, name, items)
         count = sum(len(getattr(self, n)) for n in ("masses", "anchors", "springs", "dampers",
-                                                    "excitations"))
+                                                    "excitations", "gears"))
         if count > MAX_ELEMENTS:
-            raise ModelError(f"model: {count:,} elements (masses, anchors, springs, dashpots and"
-                             f" excitations); a model may have at most {MAX_ELEMENTS:,}")
+            raise ModelError(f"model: {count:,} elements (masses, anchors, springs, dashpots,"
+                             f" excitations and gears); a model may have at most"
+                             f" {MAX_ELEMENTS:,}")
         if not isinstance(self.damping, Damping):
             raise ModelError(f"model: damping must be a Damping, got {shown(self.damping)}",
                              ("damping",))
@@ -539,14 +633,14 @@ class Model:
                                  ("anchor", "anchors", self.anchors),
                                  ("spring", "springs", self.springs),
                                  ("dashpot", "dampers", self.dampers),
-                                 ("excitation", "excitations", self.excitations)):
+                                 ("excitation", "excitations", self.excitations),
+                                 ("gear", "gears", self.gears)):
             for i, el in enumerate(items):
                 if el.id in seen:
                     raise ModelError(
                         f"{named(el, what)}: id is already used by {_a(seen[el.id])}; ids must"
                         " be unique", (key, i, "id"))
                 seen[el.id] = what
-        allowed = directions_for(self.kind, self.axis)
         # A locked direction the model kind does not have (y in a line model along x) locks
         # nothing; assemble() reports it as a warning rather than refusing the model, so that
         # switching a model's kind never invalidates it.
@@ -566,16 +660,34 @@ class Model:
                     raise ModelError(f"{named(el, what)}: both ends are"
                                      f" {quoted(node.id, node.label)}; {_a(what)} must join"
                                      " two different nodes", (key, i, "b"))
+                if el.a_offset != _ORIGIN:
+                    self._check_offset(el, what, key, i, "a", nodes[el.a])
+                if el.b_offset != _ORIGIN:
+                    self._check_offset(el, what, key, i, "b", nodes[el.b])
                 if self.kind == "planar":
                     na, nb = nodes[el.a], nodes[el.b]
-                    length = math.hypot(nb.x - na.x, nb.y - na.y)
+                    (oax, oay), (obx, oby) = el.a_offset, el.b_offset
+                    length = math.hypot(nb.x + obx - na.x - oax, nb.y + oby - na.y - oay)
                     if length <= 1e-12 * max(1.0, abs(na.x), abs(na.y)):
+                        where = ("attachment points" if el.a_offset != _ORIGIN
+                                 or el.b_offset != _ORIGIN else "ends")
                         raise ModelError(
-                            f"{named(el, what)}: its ends {quoted(na.id, na.label)} and"
+                            f"{named(el, what)}: its {where} on {quoted(na.id, na.label)} and"
                             f" {quoted(nb.id, nb.label)} are at the same point;"
                             " in a planar model a spring acts along its drawn line, so it needs a"
                             " length", (key, i))
-        masses = {m.id for m in self.masses}
+        for i, m in enumerate(self.masses):
+            if m.inertia != 0 and self.kind != "planar":
+                raise ModelError(
+                    f"{named(m, self._mass_word)}: inertia = {_fmt(m.inertia)} kg m^2 is not"
+                    f" allowed in a {self._kind_text()}: a rotary inertia of a rigid body belongs"
+                    " to a planar model"
+                    + (" (a torsion disc's inertia is its mass field, the file's \"inertia\")"
+                       if self.kind == "torsion" else
+                       " (or to a disc of a torsion model)") + "; set it to 0",
+                    ("masses", i, "inertia"))
+        self._validate_gears(nodes)
+        masses = {m.id: m for m in self.masses}
         seen_init = set()
         for ic in self.initial:
             if ic.mass_id not in masses:
@@ -590,14 +702,67 @@ class Model:
                 raise ModelError(f"initial condition: mass {who} is listed twice",
                                  ("initial", ic.mass_id))
             seen_init.add(ic.mass_id)
+            own = self.directions_of(masses[ic.mass_id])
             for name, items in (("displacement", ic.displacement), ("velocity", ic.velocity)):
                 for d, _ in items:
-                    if d not in allowed:
+                    if d == "theta" and self.kind == "planar" and d not in own:
+                        who = quoted(ic.mass_id, nodes[ic.mass_id].label)
+                        raise ModelError(
+                            f'initial condition of {who}: direction "theta" exists only on a'
+                            " rigid body (a mass with an inertia > 0); this mass is a point"
+                            " (allowed: x, y)",
+                            ("initial", ic.mass_id, d if name == "displacement" else "v" + d))
+                    if d not in own:
                         who = quoted(ic.mass_id, nodes[ic.mass_id].label)
                         raise ModelError(
                             f'initial condition of {who}: direction "{d}" does not exist'
-                            f' in a {self._kind_text()} (allowed: {", ".join(allowed)})',
+                            f' in a {self._kind_text()} (allowed: {", ".join(own)})',
                             ("initial", ic.mass_id, d if name == "displacement" else "v" + d))
+
+    @property
+    def _mass_word(self) -> str:
+        return "disc" if self.kind == "torsion" else "mass"
+
+    def _check_offset(self, el, what, key, i, end, node):
+        field = end + "_offset"
+        if self.kind != "planar":
+            raise ModelError(
+                f"{named(el, what)}: {field} is allowed only in planar models (an attachment"
+                f" point off a rigid body's centre); in a {self._kind_text()} it must be"
+                " [0, 0]", (key, i, field))
+        if not isinstance(node, Mass):
+            raise ModelError(
+                f"{named(el, what)}: {field} needs end {end} to be a rigid body (a mass with an"
+                f" inertia > 0); {named(node)} is a point of ground, attached at its centre",
+                (key, i, field))
+        if not node.is_body:
+            raise ModelError(
+                f"{named(el, what)}: {field} needs {named(node)} to have an inertia > 0 (a point"
+                " mass has no rotation to carry an off-centre attachment)", (key, i, field))
+
+    def _validate_gears(self, nodes):
+        if not self.gears:
+            return
+        for i, g in enumerate(self.gears):
+            if self.kind != "torsion":
+                raise ModelError(f"{named(g, 'gear')}: gear stages join discs of torsion models;"
+                                 f" this is a {self._kind_text()}", ("gears", i))
+            for end in ("a", "b"):
+                ref = getattr(g, end)
+                node = nodes.get(ref)
+                if node is None:
+                    raise ModelError(f'{named(g, "gear")}: disc {end} names "{ref}", which is'
+                                     " not a disc of the model", ("gears", i, end))
+                if not isinstance(node, Mass):
+                    raise ModelError(f"{named(g, 'gear')}: disc {end} is {named(node)}; a gear"
+                                     " stage joins two discs (ground cannot turn: leave the"
+                                     " stage out, or anchor the disc with a spring)",
+                                     ("gears", i, end))
+            if g.a == g.b:
+                node = nodes[g.a]
+                raise ModelError(f"{named(g, 'gear')}: both discs are"
+                                 f" {quoted(node.id, node.label)}; a gear stage joins two"
+                                 " different discs", ("gears", i, "b"))
 
     def _kind_text(self) -> str:
         return {"line": f"line model along {self.axis}", "planar": "planar model",
@@ -606,15 +771,35 @@ class Model:
     # -- look-up ------------------------------------------------------------------------------
     @property
     def directions(self) -> tuple[str, ...]:
-        """Directions each mass moves in for this model's kind."""
+        """Directions each mass moves in for this model's kind (a planar rigid body adds theta:
+        see :meth:`directions_of`)."""
         return directions_for(self.kind, self.axis)
+
+    def directions_of(self, mass: Mass) -> tuple[str, ...]:
+        """Directions this mass can move in: the kind's, plus ``theta`` for a planar rigid body
+        (locked directions included)."""
+        if self.kind == "planar" and mass.inertia > 0:
+            return ("x", "y", "theta")
+        return directions_for(self.kind, self.axis)
+
+    @property
+    def bodies(self) -> tuple[Mass, ...]:
+        """The rigid bodies (planar masses with an inertia > 0), in model order."""
+        if self.kind != "planar":
+            return ()
+        return tuple(m for m in self.masses if m.inertia > 0)
+
+    @property
+    def total_inertia(self) -> float:
+        """Sum of the rigid bodies' rotary inertias about their own centres, kg m^2."""
+        return float(sum(m.inertia for m in self.bodies))
 
     @cached_property
     def _by_id(self) -> dict:
         # built once per Model (a Model never changes), so that messages naming many
         # elements, and look-ups by id, do not scan every element each time
         return {el.id: el for items in (self.masses, self.anchors, self.springs, self.dampers,
-                                        self.excitations) for el in items}
+                                        self.excitations, self.gears) for el in items}
 
     def find(self, element_id: str):
         """The element (mass, anchor, spring, dashpot or excitation) with this id, or None."""
@@ -639,7 +824,7 @@ class Model:
 
     def ids(self) -> set[str]:
         return {el.id for items in (self.masses, self.anchors, self.springs, self.dampers,
-                                    self.excitations) for el in items}
+                                    self.excitations, self.gears) for el in items}
 
     def new_id(self, prefix: str) -> str:
         """A fresh id ``prefix<N>`` not used by any element."""
@@ -668,12 +853,13 @@ class Model:
         collection. Removing a node also removes the springs, dashpots and initial conditions
         attached to it, so that the result is valid. Raises :class:`ModelError` (and leaves this
         Model untouched) when the result would be invalid.
+        Removing a disc also removes the gear stages on it.
         """
         remove = set(remove)
         node_ids = {el.id for el in self.masses + self.anchors if el.id in remove}
         put = list(put)
         by_type = {Mass: "masses", Anchor: "anchors", Spring: "springs", Damper: "dampers",
-                   Excitation: "excitations", Initial: "initial"}
+                   Excitation: "excitations", Initial: "initial", Gear: "gears"}
         values = {}
         for cls, name in by_type.items():
             items = list(getattr(self, name))
@@ -681,7 +867,7 @@ class Model:
                 items = [ic for ic in items if ic.mass_id not in remove]
             else:
                 items = [el for el in items if el.id not in remove]
-            if cls in (Spring, Damper):
+            if cls in (Spring, Damper, Gear):
                 items = [el for el in items if el.a not in node_ids and el.b not in node_ids]
             key = (lambda el: el.mass_id) if cls is Initial else (lambda el: el.id)
             index = {key(el): i for i, el in enumerate(items)}
@@ -703,8 +889,9 @@ class Model:
 def element_kind(el) -> str:
     """The trade word for an element's type, as used in messages."""
     return {Mass: "mass", Anchor: "anchor", Spring: "spring", Damper: "dashpot",
-            Excitation: "excitation"}.get(type(el), type(el).__name__.lower())
+            Excitation: "excitation", Gear: "gear"}.get(type(el), type(el).__name__.lower())
 
 
 __all__ = ["Model", "Mass", "Anchor", "Spring", "Damper", "Damping", "Excitation", "Initial",
+           "Gear",
            "KINDS", "AXES", "DIRECTIONS", "directions_for", "element_kind", "fields"]

@@ -18,7 +18,7 @@ LABEL_SHOWN = 40
 
 #: The trade word for each element class, as messages use it.
 _KIND = {"Mass": "mass", "Anchor": "anchor", "Spring": "spring", "Damper": "dashpot",
-         "Excitation": "excitation"}
+         "Excitation": "excitation", "Gear": "gear"}
 
 
 def quoted(element_id: str, label: str | None = None) -> str:

@@ -71,12 +71,13 @@ RAW = [
 ]
 PY_VALUES = [0, -1, 1, 2.5, -0.0, True, False, None, "", " ", "x", "1.0", "m1", "A", "s1",
              "x" * 100_000, "\n", "a\r\nb", "é", "日本", [], [1], ["x", "x"], ["x", "q"], {},
-             {"model": "modal"}, {"x": 1}, 10 ** 20, 10 ** 400, 1e-300, 1e300, "theta"]
+             {"model": "modal"}, {"x": 1}, 10 ** 20, 10 ** 400, 1e-300, 1e300, "theta",
+             [0.1, -0.2], [0, 0], [1, "x"], [[0, 0]]]
 KEYS = ["format", "version", "name", "kind", "axis", "masses", "anchors", "springs", "dampers",
         "damping", "excitations", "margin_percent", "initial", "id", "label", "x", "y", "mass",
         "inertia", "fixed", "a", "b", "k", "k_t", "c", "model", "ratio", "alpha", "beta",
         "mode_ratios", "type", "rpm", "orders", "f_min_hz", "f_max_hz", "vx", "vy", "theta",
-        "vtheta", "colour", "", "\n", "1", "0"]
+        "vtheta", "gears", "a_offset", "b_offset", "k_mesh", "colour", "", "\n", "1", "0"]
 
 
 def dumps(tree) -> str:
@@ -168,7 +169,8 @@ def _mutate_once(rng: random.Random, data, paths, path, how) -> bool:
     elif how == "unknown" and isinstance(parent, dict):
         parent[rng.choice(KEYS + ["extra"])] = _value(rng)
     elif how == "dup_element":
-        lists = [k for k in ("masses", "anchors", "springs", "dampers", "excitations")
+        lists = [k for k in ("masses", "anchors", "springs", "dampers", "excitations",
+                             "gears")
                  if isinstance(data.get(k), list) and data[k]]
         if lists:
             k = rng.choice(lists)

@@ -31,11 +31,13 @@ FAST = settings(max_examples=EXAMPLES, deadline=None, phases=[Phase.explicit, Ph
 
 @st.composite
 def models(draw, kinds=("line", "planar", "torsion"), extras=False, contrast=False,
-           max_mass=6, fixed=True):
+           max_mass=6, fixed=True, bodies=False):
     """A valid random model. ``contrast``: some springs 1e6..1e12 times stiffer than the rest
     (10..1e4 N/m), and up to two massless junctions each joined to a mass by such a stiff link
     and held by soft springs. ``fixed=False``: no locked directions (layouts that must not
-    depend on the axes)."""
+    depend on the axes). ``bodies``: planar masses may be rigid bodies (an inertia, springs and
+    dashpots attached off their centres), torsion discs may be joined by gear stages (rigid or
+    with a mesh stiffness)."""
     kind = draw(st.sampled_from(kinds))
     n_mass = draw(st.integers(1, max_mass))
     n_anchor = draw(st.integers(0, 2))
@@ -55,7 +57,13 @@ def models(draw, kinds=("line", "planar", "torsion"), extras=False, contrast=Fal
         if fixed and kind == "planar" and draw(st.integers(0, 5)) == 0:
             locked = (draw(st.sampled_from(dirs)),)
         label = draw(st.sampled_from(["", "top", "disc Ø"])) if extras else ""
-        masses.append(Mass(f"m{i}", pos[i][0], pos[i][1], value, label=label, fixed=locked))
+        inertia = 0.0
+        if bodies and kind == "planar" and value > 0 and draw(st.booleans()):
+            inertia = draw(st.floats(0.01, 5.0))
+            if fixed and draw(st.integers(0, 5)) == 0:
+                locked = ("theta",)
+        masses.append(Mass(f"m{i}", pos[i][0], pos[i][1], value, label=label, fixed=locked,
+                           inertia=inertia))
     anchors = [Anchor(f"A{j}", *pos[n_mass + j]) for j in range(n_anchor)]
     nodes = [m.id for m in masses] + [a.id for a in anchors]
     pairs = draw(st.lists(st.tuples(st.integers(0, len(nodes) - 1),
@@ -70,7 +78,9 @@ def models(draw, kinds=("line", "planar", "torsion"), extras=False, contrast=Fal
         if contrast and draw(st.integers(0, 3)) == 0:
             stiff = 10.0 ** draw(st.floats(6.0, 12.0))
             k, kt = k * stiff, kt * (stiff if draw(st.booleans()) else 1.0)
-        springs.append(Spring(f"s{s}", nodes[a], nodes[b], k, k_t=kt))
+        springs.append(Spring(f"s{s}", nodes[a], nodes[b], k, k_t=kt,
+                              a_offset=_attachment(draw, masses, a, bodies),
+                              b_offset=_attachment(draw, masses, b, bodies)))
     for j in range(n_link):
         jid = f"J{j}"
         masses.append(Mass(jid, *pos[n_mass + n_anchor + j], 0.0))
@@ -82,6 +92,19 @@ def models(draw, kinds=("line", "planar", "torsion"), extras=False, contrast=Fal
             if other != held:
                 springs.append(Spring(f"L{j}_{t}", other, jid, draw(st.floats(10.0, 1e4))))
     top = {}
+    if bodies and kind == "torsion" and n_mass > 1:
+        gears = []
+        for g in range(draw(st.integers(0, 2))):
+            a, b = draw(st.lists(st.integers(0, n_mass - 1), min_size=2, max_size=2, unique=True))
+            k_mesh = draw(st.one_of(st.none(), st.floats(10.0, 1e6)))
+            gears.append(solver.Gear(f"g{g}", f"m{a}", f"m{b}", draw(st.floats(0.2, 5.0)),
+                                     k_mesh=k_mesh))
+        top["gears"] = tuple(gears)
+    if bodies and kind == "planar" and n_mass > 1 and draw(st.booleans()):
+        a, b = draw(st.lists(st.integers(0, n_mass - 1), min_size=2, max_size=2, unique=True))
+        top["dampers"] = (solver.Damper("c1", f"m{a}", f"m{b}", draw(st.floats(0.1, 50.0)),
+                                        a_offset=_attachment(draw, masses, a, True),
+                                        b_offset=_attachment(draw, masses, b, True)),)
     if extras:
         dm = draw(st.sampled_from(["none", "modal", "rayleigh"]))
         if dm == "modal":
@@ -96,12 +119,21 @@ def models(draw, kinds=("line", "planar", "torsion"), extras=False, contrast=Fal
                                   Excitation("e2", "band", f_min_hz=5.0, f_max_hz=12.5))
         top["margin_percent"] = draw(st.floats(0, 99))
         top["name"] = draw(st.text(max_size=8))
-        free = [d for d in dirs if d not in masses[0].fixed]
+        free = [d for d in dirs + ("theta",) * (masses[0].inertia > 0)
+                if d not in masses[0].fixed]
         if free and draw(st.booleans()):
             top["initial"] = (Initial("m0", displacement=((free[0], draw(st.floats(-1, 1))),),
                                       velocity=((free[0], draw(st.floats(-1, 1))),)),)
     return Model(kind=kind, masses=tuple(masses), anchors=tuple(anchors), springs=tuple(springs),
                  **top)
+
+
+def _attachment(draw, masses, index, bodies):
+    """An offset of at most 0.1 m in each axis on a rigid body (grid cells 1 m apart, jitter
+    0.3 m: attachment points never meet), else the centre."""
+    if not bodies or index >= len(masses) or not masses[index].inertia > 0:
+        return (0.0, 0.0)
+    return (draw(st.floats(-0.1, 0.1)), draw(st.floats(-0.1, 0.1)))
 
 
 def _norm(a):
@@ -209,7 +241,7 @@ def test_stiffening_never_lowers_a_frequency(model, data):
 
 
 @FAST
-@given(models(extras=True))
+@given(models(extras=True, bodies=True))
 def test_save_load_round_trip(tmp_path_factory, model):
     """common practice: a saved model file loads back as the same model (load_model(save_model(m))
     == m), and saving the loaded model gives the same text."""
@@ -355,7 +387,8 @@ def test_sparse_path_never_cuts_a_repeated_group(model, data):
 
 # ------------------------------------------------------------------ invalid files
 def _elements(data):
-    return [(key, i) for key in ("masses", "anchors", "springs", "dampers", "excitations")
+    return [(key, i) for key in ("masses", "anchors", "springs", "dampers", "excitations",
+                                 "gears")
             for i in range(len(data.get(key, [])))]
 
 
@@ -365,7 +398,7 @@ BAD_VALUES = ["text", None, True, [], {}, [1, 2]]
 @st.composite
 def invalid_files(draw):
     """A valid model file broken in one way that must always be refused."""
-    model = draw(models(extras=True))
+    model = draw(models(extras=True, bodies=True))
     data = solver.model_to_dict(model)
     how = draw(st.sampled_from(["unknown_top", "unknown_element", "wrong_type", "negative_mass",
                                 "missing_id", "dangling", "self_loop", "newer", "not_json",
@@ -382,7 +415,8 @@ def invalid_files(draw):
         bad = draw(st.sampled_from(BAD_VALUES))
         if field in ("id", "a", "b") and isinstance(bad, str):
             bad = 5
-        if field in ("orders", "fixed", "mode_ratios") and isinstance(bad, list):
+        if field in ("orders", "fixed", "mode_ratios", "a_offset", "b_offset") and isinstance(
+                bad, list):
             bad = "text"     # a list may be a valid value of these list fields
         data[key][i][field] = bad
     elif how == "negative_mass":
@@ -470,7 +504,7 @@ def _mutate_anywhere(data, draw):
 
 
 @settings(max_examples=EXAMPLES + 10, deadline=None)
-@given(models(extras=True), st.data())
+@given(models(extras=True, bodies=True), st.data())
 def test_random_mutations_load_or_raise_model_file_error(model, data):
     """common practice: any change to a model file either still loads as a valid Model or is
     refused with solver.ModelFileError; no other exception escapes load."""
