@@ -13,6 +13,10 @@ from app.drawing.style import current_style
 
 def _edge_inset(node_item, u: QPointF) -> float:
     """Distance from a node's centre to its outline along unit vector ``u`` (scene axes)."""
+    if getattr(node_item, "is_body", False):
+        hw, hh = node_item.half_extents()
+        ts = [h / abs(c) for h, c in ((hw, u.x()), (hh, u.y())) if abs(c) > 1e-12]
+        return min(ts) if ts else 0.0
     half = getattr(node_item, "half_size", lambda: 0.0)()
     if half <= 0:
         return 0.0
@@ -53,8 +57,16 @@ class LinkItem(QGraphicsObject):
     def build_path(self, p1: QPointF, p2: QPointF) -> QPainterPath:
         raise NotImplementedError
 
+    def _end(self, which: str):
+        """(scene point, True when it is an attachment point off a body's centre)."""
+        item = self.a_item if which == "a" else self.b_item
+        offset = tuple(getattr(self.element, f"{which}_offset", (0.0, 0.0)))
+        if offset != (0.0, 0.0) and hasattr(item, "attach_scene_point"):
+            return item.attach_scene_point(offset), True
+        return item.shown_pos(), False
+
     def endpoints(self) -> tuple[QPointF, QPointF]:
-        c1, c2 = self.a_item.shown_pos(), self.b_item.shown_pos()
+        (c1, on_a), (c2, on_b) = self._end("a"), self._end("b")
         line = QLineF(c1, c2)
         length = line.length()
         if length == 0:
@@ -62,7 +74,9 @@ class LinkItem(QGraphicsObject):
         u = QPointF(line.dx() / length, line.dy() / length)
         n = QPointF(-u.y(), u.x())
         off = QPointF(n.x() * self.offset, n.y() * self.offset)
-        i1, i2 = _edge_inset(self.a_item, u), _edge_inset(self.b_item, u)
+        # an end on a mount point starts right there; a centre end starts at the block's edge
+        i1 = 0.0 if on_a else _edge_inset(self.a_item, u)
+        i2 = 0.0 if on_b else _edge_inset(self.b_item, u)
         if i1 + i2 > 0.8 * length:  # nodes overlap: draw centre to centre
             i1 = i2 = 0.0
         return (QPointF(c1.x() + u.x() * i1, c1.y() + u.y() * i1) + off,

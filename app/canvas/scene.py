@@ -1,7 +1,10 @@
 """The sketch scene: draws the document's model and turns mouse gestures into document edits.
 
 The interaction mode (:class:`Mode`) is explicit state of the scene: select/move, place mass, place
-anchor, connect with a spring, connect with a dashpot. A move is previewed by Qt's own item dragging
+anchor, place a rigid body (planar), connect with a spring, a dashpot or a gear stage (torsion).
+A connection started or ended on a rigid body attaches at the point pressed (on the grid, from the
+body's centre) or on the mount point pressed; dragging a mount point moves every attachment there
+as one edit. A move is previewed by Qt's own item dragging
 (springs follow their nodes live) and becomes one document edit when the mouse is released; a
 connection is previewed as a rubber line and becomes one edit when released on a second node.
 The scene never changes the model directly: it calls the Document, which answers with
@@ -10,21 +13,25 @@ The scene never changes the model directly: it calls the Document, which answers
 
 from __future__ import annotations
 
+import dataclasses
 import enum
 
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt, Signal
 from PySide6.QtGui import QPainter, QPainterPath, QPen
 from PySide6.QtWidgets import QGraphicsItem, QGraphicsLineItem, QGraphicsPathItem, QGraphicsScene
 
+from app.drawing import bodies
 from app.drawing.style import current_style
 from solver.errors import ModelError
-from solver.model import Spring
+from solver.model import Damper, Gear, Mass, Spring
 
 from .anchor_item import AnchorItem, normal_towards
 from .dashpot_item import DashpotItem
+from .gear_item import GearItem
 from .geometry import Mapper
 from .link_item import LinkItem
 from .mass_item import MassItem
+from .mount_item import MountItem
 from .node_item import NodeItem
 from .spring_item import SpringItem
 
@@ -33,8 +40,10 @@ class Mode(enum.Enum):
     SELECT = "select"
     PLACE_MASS = "place mass"
     PLACE_ANCHOR = "place anchor"
+    PLACE_BODY = "place body"
     CONNECT_SPRING = "connect spring"
     CONNECT_DASHPOT = "connect dashpot"
+    CONNECT_GEAR = "connect gear"
 
 
 #: Per mode: menu text, keyboard shortcut, status-bar hint.
@@ -46,11 +55,25 @@ MODE_INFO = {
                       " and Enter (Esc: back to select)"),
     Mode.PLACE_ANCHOR: ("Place &anchor", "A", "Place anchor: click where the ground point goes, or"
                         " arrows/Tab and Enter (Esc: back to select)"),
+    Mode.PLACE_BODY: ("Place rigid &body", "B", "Place rigid body (planar models): click where"
+                      " its centre of mass goes; it turns as well as moves. Springs started or"
+                      " ended on it attach where you press (Esc: back to select)"),
     Mode.CONNECT_SPRING: ("Connect s&pring", "K", "Connect spring: drag from one mass or anchor"
-                          " to another, or Tab to a node, Enter, Tab on, Enter (Esc: back)"),
+                          " to another (on a rigid body: from or to the mount point pressed),"
+                          " or Tab to a node, Enter, Tab on, Enter (Esc: back)"),
     Mode.CONNECT_DASHPOT: ("Connect &dashpot", "D", "Connect dashpot: drag from one mass or"
                            " anchor to another, or Tab to a node, Enter, Tab on, Enter (Esc: back)"),
+    Mode.CONNECT_GEAR: ("Connect gea&r stage", "R", "Connect gear stage (torsion models): drag"
+                        " from the disc on the faster shaft to the disc it drives; the speed"
+                        " ratio starts at 2 and is edited in Properties (Esc: back)"),
 }
+
+#: Model kinds a tool works in (the others every kind).
+MODE_KINDS = {Mode.PLACE_BODY: ("planar",), Mode.CONNECT_GEAR: ("torsion",)}
+#: A new rigid body: its mass (kg) and rotary inertia (kg m^2), a 1 kg block about 0.3 m square.
+NEW_BODY = (1.0, 0.015)
+#: A new gear stage's speed ratio (a common single-stage reduction; edited in Properties).
+NEW_GEAR_RATIO = 2.0
 
 _PARALLEL_GAP = 16.0  # scene units between links joining the same two nodes
 
@@ -89,6 +112,8 @@ class ModelScene(QGraphicsScene):
         self._kb_cursor: QGraphicsPathItem | None = None
         self._clipboard: tuple = ()
         self._paste_count = 0
+        self._connect_offset = bodies.ORIGIN
+        self._mount_drag: MountItem | None = None
         self.selectionChanged.connect(self._on_selection_change)
         document.model_changed.connect(self._on_model_change)
         document.opened.connect(self._on_open)
@@ -109,6 +134,16 @@ class ModelScene(QGraphicsScene):
     # -- mode ---------------------------------------------------------------------------------
     def set_mode(self, mode: Mode) -> None:
         self._cancel_connect()
+        kinds = MODE_KINDS.get(mode)
+        if kinds is not None and self.document.model.kind not in kinds:
+            self.status_message.emit(f"{MODE_INFO[mode][0].replace('&', '')} works in"
+                                     f" {' and '.join(kinds)} models; this is a"
+                                     f" {self.document.model.kind} model")
+            if self.mode != Mode.SELECT:
+                self.set_mode(Mode.SELECT)
+            else:
+                self.mode_changed.emit(self.mode)   # the tool buttons show select again
+            return
         if mode == Mode.SELECT:
             self._hide_cursor()
         if mode != self.mode:
@@ -188,7 +223,8 @@ class ModelScene(QGraphicsScene):
         node_ids = {m.id for m in model.masses} | {a.id for a in model.anchors}
         for gone in set(self.nodes) - node_ids:
             self.removeItem(self.nodes.pop(gone))
-        link_ids = {s.id for s in model.springs} | {d.id for d in model.dampers}
+        link_ids = {s.id for s in model.springs} | {d.id for d in model.dampers} | \
+            {g.id for g in model.gears}
         for gone in set(self.links) - link_ids:
             self.removeItem(self.links.pop(gone))
         for m in model.masses:
@@ -201,6 +237,10 @@ class ModelScene(QGraphicsScene):
                 self.addItem(item)
                 self.nodes[m.id] = item
             key = (m, model.kind, model.axis, reference)
+            if bodies.is_body(model, m):   # its box, rings and elastic centre
+                key += (tuple(bodies.mount_points(model).get(m.id, ())),
+                        bodies.elastic_centre(model, m.id),
+                        bodies.coupling_statement(model, m.id), self.mapper)
             if _stale(item, key):   # unchanged items are left alone (a slider step on 200 masses)
                 item.update_from(m, model, reference_mass=reference)
                 _synced(item, key)
@@ -223,18 +263,20 @@ class ModelScene(QGraphicsScene):
             if _stale(item, key):
                 item.update_from(a, model, normal=normal)
                 _synced(item, key)
-        pairs: dict[frozenset, list[str]] = {}
-        for link in model.springs + model.dampers:
-            pairs.setdefault(frozenset((link.a, link.b)), []).append(link.id)
-        for link in model.springs + model.dampers:
-            cls = SpringItem if isinstance(link, Spring) else DashpotItem
+        pairs: dict[tuple, list[str]] = {}
+        for link in model.springs + model.dampers + model.gears:
+            pairs.setdefault(bodies.link_key(link), []).append(link.id)
+        for link in model.springs + model.dampers + model.gears:
+            cls = SpringItem if isinstance(link, Spring) else \
+                GearItem if isinstance(link, Gear) else DashpotItem
             item = self.links.get(link.id)
             a_item, b_item = self.nodes[link.a], self.nodes[link.b]
-            group = pairs[frozenset((link.a, link.b))]
+            key = bodies.link_key(link)
+            group = pairs[key]
             i = group.index(link.id)
             offset = (i - (len(group) - 1) / 2) * _PARALLEL_GAP
-            if link.a > link.b:  # same side whichever way the link was drawn
-                offset = -offset
+            if (link.a, bodies.offset_of(link, "a")) != key[0]:
+                offset = -offset   # same side whichever way the link was drawn
             if not isinstance(item, cls):
                 if item is not None:
                     self.removeItem(item)
@@ -352,11 +394,13 @@ class ModelScene(QGraphicsScene):
         if event.button() != Qt.LeftButton or self.mode == Mode.SELECT:
             super().mousePressEvent(event)
             if event.button() == Qt.LeftButton:
+                grabber = self.mouseGrabberItem()
+                self._mount_drag = grabber if isinstance(grabber, MountItem) else None
                 self._press_positions = {eid: QPointF(item.pos())
                                          for eid, item in self.nodes.items() if item.isSelected()}
             return
         pos = event.scenePos()
-        if self.mode in (Mode.PLACE_MASS, Mode.PLACE_ANCHOR):
+        if self.mode in (Mode.PLACE_MASS, Mode.PLACE_ANCHOR, Mode.PLACE_BODY):
             self._place_at(pos)
             event.accept()
             return
@@ -374,6 +418,11 @@ class ModelScene(QGraphicsScene):
         try:
             if self.mode == Mode.PLACE_MASS:
                 new_id = self.document.add_mass(x, y)
+            elif self.mode == Mode.PLACE_BODY:
+                new_id = self.document.model.new_id("m")
+                mass, inertia = NEW_BODY
+                self.document.add([Mass(id=new_id, x=x, y=y, mass=mass, inertia=inertia)],
+                                  text=f"Add rigid body {new_id}")
             else:
                 new_id = self.document.add_anchor(x, y)
         except ModelError as exc:
@@ -387,32 +436,116 @@ class ModelScene(QGraphicsScene):
                                  f" y {show(y, 'length', self.unit_system)}")
         return new_id
 
+    def attach_offset(self, node: NodeItem, pos: QPointF) -> tuple[float, float]:
+        """Where a link ending at scene point ``pos`` on ``node`` attaches: (0, 0), the centre,
+        except on a rigid body: the mount point under ``pos``, or the point itself (m, body
+        frame, on the grid from the centre when snapping)."""
+        if not getattr(node, "is_body", False) or self.mode == Mode.CONNECT_GEAR:
+            return bodies.ORIGIN
+        for item in self.items(pos):
+            if isinstance(item, MountItem) and item.body_item is node:
+                return item.offset
+        local = node.mapFromScene(pos)
+        k = self.mapper.px_per_m
+        x, y = local.x() / k, -local.y() / k
+        if self.snap:
+            g = self.mapper.grid_m
+            x, y = round(x / g) * g, round(y / g) * g
+        return (round(x, 9) + 0.0, round(y, 9) + 0.0)
+
     def _start_connect(self, node: NodeItem, pos: QPointF) -> None:
         self._cancel_connect()          # one connection at a time (a click during a keyboard one)
         self._connect_from = node.element_id
-        self._preview = QGraphicsLineItem(QLineF(node.pos(), pos))
+        self._connect_offset = self.attach_offset(node, pos)
+        start = node.attach_scene_point(self._connect_offset) \
+            if self._connect_offset != bodies.ORIGIN else node.pos()
+        self._preview = QGraphicsLineItem(QLineF(start, pos))
         pen = QPen(current_style().accent, 1.5, Qt.DashLine)
         pen.setCosmetic(True)
         self._preview.setPen(pen)
         self._preview.setZValue(5)
         self.addItem(self._preview)
 
-    def _finish_connect(self, target: NodeItem | None) -> str | None:
-        """End a connection on ``target`` (None: nothing added); the new link's id or None."""
-        source = self._connect_from
+    def _finish_connect(self, target: NodeItem | None, pos: QPointF | None = None
+                        ) -> str | None:
+        """End a connection on ``target`` at scene point ``pos`` (None: nothing added); the
+        new link's id or None."""
+        source, source_offset = self._connect_from, self._connect_offset
+        what = {Mode.CONNECT_SPRING: "spring", Mode.CONNECT_GEAR: "gear stage"}.get(
+            self.mode, "dashpot")
+        target_offset = self.attach_offset(target, pos) \
+            if target is not None and pos is not None else bodies.ORIGIN
         self._cancel_connect()
-        what = "spring" if self.mode == Mode.CONNECT_SPRING else "dashpot"
         if target is None or source is None:
-            self.status_message.emit(f"No {what} added: end on a second mass or anchor")
+            where = "disc" if self.mode == Mode.CONNECT_GEAR else "mass or anchor"
+            self.status_message.emit(f"No {what} added: end on a second {where}")
             return None
+        b = target.element_id
         try:
-            new_id = self.document.connect(what, source, target.element_id)
+            if self.mode == Mode.CONNECT_GEAR or source_offset != bodies.ORIGIN \
+                    or target_offset != bodies.ORIGIN:
+                new_id = self._connect_element(what, source, b, source_offset, target_offset)
+            else:
+                new_id = self.document.connect(what, source, b)
         except ModelError as exc:
             self.status_message.emit(f"No {what} added: {exc}")
             return None
         self.select_ids([new_id])
-        self.status_message.emit(f"Added {what} {new_id}: {source}–{target.element_id}")
+        self.status_message.emit(f"Added {what} {new_id}: {source}–{b}")
         return new_id
+
+    def _connect_element(self, what, a, b, a_offset, b_offset) -> str:
+        """A new spring, dashpot (attached at offsets) or gear stage as one undo entry."""
+        from app.document import commands
+        from app.document.document import DEFAULT_DAMPING, DEFAULT_STIFFNESS
+
+        model = self.document.model
+        if what == "gear stage":
+            el = Gear(id=model.new_id("n"), a=a, b=b, ratio=NEW_GEAR_RATIO)
+        elif what == "spring":
+            el = Spring(id=model.new_id("s"), a=a, b=b, k=DEFAULT_STIFFNESS[model.kind],
+                        a_offset=a_offset, b_offset=b_offset)
+        else:
+            el = Damper(id=model.new_id("c"), a=a, b=b, c=DEFAULT_DAMPING[model.kind],
+                        a_offset=a_offset, b_offset=b_offset)
+        self.document.apply(model.with_changes(put=[el]), f"Connect {a}–{b} with {what} {el.id}",
+                            command_class=commands.ConnectCommand)
+        return el.id
+
+    def _finish_mount_drag(self, ring: MountItem) -> bool:
+        """A mount point let go: every attachment at its offset on that body moves to where it
+        was dropped, as one undo entry; a refusal puts the ring back and says why."""
+        if not ring.moved():
+            return False
+        from app.document import commands
+
+        model = self.document.model
+        old, new = ring.offset, ring.dragged_offset()
+        put = []
+        for link in model.springs + model.dampers:
+            changes = {f"{end}_offset": new for end in ("a", "b")
+                       if getattr(link, end) == ring.body_id
+                       and bodies.offset_of(link, end) == old}
+            if changes:
+                put.append(dataclasses.replace(link, **changes))
+        body = model.element(ring.body_id)
+        try:
+            if not put:
+                raise ModelError(f"mount point of {body.label}: nothing is attached there")
+            self.document.apply(model.with_changes(put=put),
+                                f"Move mount point of {body.label}",
+                                command_class=commands.MoveCommand)
+        except ModelError as exc:
+            ring.put_back()
+            self.node_item_moved(ring.body_item)
+            self.status_message.emit(f"Mount point not moved: {exc}")
+            return False
+        from app.text.units import show
+
+        self.status_message.emit(
+            f"Mount point of {body.label} moved to dx {show(new[0], 'length', self.unit_system)},"
+            f" dy {show(new[1], 'length', self.unit_system)} ({len(put)} attachment(s))")
+        return True
 
     def mouseMoveEvent(self, event):  # noqa: N802
         if self._preview is not None:
@@ -425,10 +558,13 @@ class ModelScene(QGraphicsScene):
     def mouseReleaseEvent(self, event):  # noqa: N802
         if self._connect_from is not None and not self._kb_connecting:
             target = self.node_at(event.scenePos(), exclude=self._connect_from)
-            self._finish_connect(target)
+            self._finish_connect(target, event.scenePos())
             event.accept()
             return
         super().mouseReleaseEvent(event)
+        ring, self._mount_drag = self._mount_drag, None
+        if ring is not None:
+            self._finish_mount_drag(ring)
         if self._press_positions:
             self._finish_move()
         self._press_positions = None
@@ -452,6 +588,7 @@ class ModelScene(QGraphicsScene):
             self.removeItem(self._preview)
         self._preview = None
         self._connect_from = None
+        self._connect_offset = bodies.ORIGIN
         self._kb_connecting = False
 
     # -- keyboard -----------------------------------------------------------------------------
@@ -575,7 +712,7 @@ class ModelScene(QGraphicsScene):
             self._show_cursor()
             self.status_message.emit("Arrow keys or Tab move the cross-hair; Enter again to act")
             return
-        if self.mode in (Mode.PLACE_MASS, Mode.PLACE_ANCHOR):
+        if self.mode in (Mode.PLACE_MASS, Mode.PLACE_ANCHOR, Mode.PLACE_BODY):
             self._place_at(pos)
             return
         node = self.node_at(pos, exclude=self._connect_from)
@@ -588,7 +725,7 @@ class ModelScene(QGraphicsScene):
             self.status_message.emit(f"From {node.element_id}: move to a second node and press"
                                      " Enter (Esc cancels)")
         else:
-            self._finish_connect(node)
+            self._finish_connect(node, pos)
 
     def keyPressEvent(self, event):  # noqa: N802
         key = event.key()

@@ -19,7 +19,7 @@ from PySide6.QtGui import QUndoCommand
 
 from solver.model import Model
 
-_COLLECTIONS = ("masses", "anchors", "springs", "dampers", "excitations", "initial")
+_COLLECTIONS = ("masses", "anchors", "springs", "dampers", "excitations", "initial", "gears")
 _TOP = ("kind", "name", "axis", "damping", "margin_percent")
 
 

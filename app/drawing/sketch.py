@@ -576,7 +576,7 @@ def _paint_body(painter, lay, st, m, c: QPointF, turn: float, lw: float, grey: b
         painter.translate(c)
         painter.rotate(-math.degrees(turn))
         painter.drawRect(QRectF(-hw, -hh, 2 * hw, 2 * hh))
-        r = max(2.5, 0.11 * lay.base)
+        r = max(2.5, 0.15 * lay.base)
         outline, filled = shapes.centre_of_mass_path(QPointF(0, 0), r)
         painter.setPen(QPen(edge, max(0.8, 0.6 * lw)))
         painter.setBrush(Qt.BrushStyle.NoBrush)
@@ -586,7 +586,7 @@ def _paint_body(painter, lay, st, m, c: QPointF, turn: float, lw: float, grey: b
         painter.setBrush(QBrush(st.undeformed if grey else st.background))
         k = lay.px_per_m
         for ox, oy in _bodies.mount_points(lay.model).get(m.id, ()):
-            painter.drawEllipse(QPointF(ox * k, -oy * k), 0.7 * r, 0.7 * r)
+            painter.drawEllipse(QPointF(ox * k, -oy * k), 0.8 * r, 0.8 * r)
     finally:
         painter.restore()
 
