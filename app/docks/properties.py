@@ -6,6 +6,11 @@ refuses (``Model`` validation), is refused in place: the field gets a red frame 
 appears under it and in its tooltip; the model is not changed. Esc puts the current value back.
 Fields are refreshed from the model on every change, with signals blocked so that a refresh never
 echoes back as an edit.
+
+In a planar model a mass has an Inertia field (kg m^2 about its centre; > 0 makes it a rigid
+body that turns); a spring or dashpot end on a body has its attachment offset (x and y, length
+units), and a selected body shows how its bounce and rock couple. A gear stage (torsion) has its
+speed ratio, mesh stiffness (blank: rigid) and the equivalent system referred to one shaft.
 """
 
 from __future__ import annotations
@@ -15,8 +20,9 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QHBoxLayout, Q
                                QScrollArea, QSizePolicy, QVBoxLayout, QWidget)
 
 from solver.errors import ModelError
-from solver.model import Anchor, Damper, Mass, Spring
+from solver.model import Anchor, Damper, Gear, Mass, Spring
 
+from app.drawing import bodies
 from app.text import units
 from app.drawing.style import current_style
 
@@ -51,6 +57,15 @@ class QuantityField(QWidget):
         self.edit.setToolTip(self._hint)
         self.edit.setPlaceholderText(units.unit_label(kind, system))
 
+    def _format(self, value_si: float) -> str:
+        return units.format_value(value_si, self.kind, self.system)
+
+    def _parse(self, text: str) -> float:
+        return units.parse(text, self.kind, self.system)
+
+    def _unit(self) -> str:
+        return units.unit_label(self.kind, self.system)
+
     def set_value(self, value_si: float | None, system: str | None = None) -> None:
         """Show ``value_si`` (clears any refusal); None: several elements with different
         values, shown empty with a hint."""
@@ -60,11 +75,14 @@ class QuantityField(QWidget):
         with QSignalBlocker(self.edit):
             if value_si is None:
                 self.edit.clear()
-                self.edit.setPlaceholderText(f"different values ({units.unit_label(self.kind, self.system)})")
+                self.edit.setPlaceholderText(self._blank_text())
             else:
-                self.edit.setText(units.format_value(value_si, self.kind, self.system))
-                self.edit.setPlaceholderText(units.unit_label(self.kind, self.system))
+                self.edit.setText(self._format(value_si))
+                self.edit.setPlaceholderText(self._unit())
         self.clear_error()
+
+    def _blank_text(self) -> str:
+        return f"different values ({self._unit()})"
 
     def show_error(self, message: str) -> None:
         self.error = message
@@ -92,15 +110,66 @@ class QuantityField(QWidget):
         if self.value_si is None and not text.strip() and not self.error:
             return  # several values shown as none and nothing typed
         if (self.value_si is not None and not self.error
-                and text == units.format_value(self.value_si, self.kind, self.system)):
+                and text == self._format(self.value_si)):
             return  # focus left without a change
         try:
-            value = units.parse(text, self.kind, self.system)
+            value = self._parse(text)
         except units.UnitError as exc:
             self.show_error(str(exc))
             return
         self.clear_error()
         self.value_entered.emit(value)
+
+
+class RatioField(QuantityField):
+    """A plain positive number with no unit (a gear stage's speed ratio)."""
+
+    def __init__(self, what: str, example: str, parent=None):
+        super().__init__("length", "SI", parent)
+        self.what = what
+        self._hint = f"{what}: a number above 0, e.g. {example}"
+        self.edit.setToolTip(self._hint)
+        self.edit.setPlaceholderText("")
+
+    def _format(self, value_si: float) -> str:
+        return f"{value_si:.6g}"
+
+    def _parse(self, text: str) -> float:
+        try:
+            value = float(text.strip())
+        except ValueError:
+            raise units.UnitError(f'{self.what}: give a number, e.g. 3.5; got "{text}"') \
+                from None
+        if not value > 0 or value == float("inf"):
+            raise units.UnitError(f"{self.what} must be above 0, got {text.strip()}")
+        return value
+
+    def _unit(self) -> str:
+        return "ratio"
+
+
+class OptionalQuantityField(QuantityField):
+    """A quantity that may be left blank (a gear mesh's stiffness: blank is a rigid mesh).
+    ``cleared`` is emitted when the text is emptied; None shows the blank meaning."""
+
+    cleared = Signal()
+
+    def __init__(self, kind: str, system: str, blank: str, parent=None):
+        super().__init__(kind, system, parent)
+        self.blank = blank
+        self._hint += f"; leave blank for {blank}"
+        self.edit.setToolTip(self._hint)
+
+    def _blank_text(self) -> str:
+        return f"{self.blank} (blank)"
+
+    def _on_edit_finished(self):
+        if not self.edit.text().strip():
+            if self.value_si is not None or self.error:
+                self.clear_error()
+                self.cleared.emit()
+            return
+        super()._on_edit_finished()
 
 
 def _show_text(edit: QLineEdit, text: str) -> None:
@@ -117,10 +186,24 @@ def _show_text(edit: QLineEdit, text: str) -> None:
 
 def model_counts(model) -> str:
     """``"3 masses, 1 anchor, 3 springs, 1 dashpot"`` of ``model``."""
-    return ", ".join((units.count(len(model.masses), "mass", "masses"),
-                      units.count(len(model.anchors), "anchor"),
-                      units.count(len(model.springs), "spring"),
-                      units.count(len(model.dampers), "dashpot")))
+    parts = [units.count(len(model.masses), "mass", "masses"),
+             units.count(len(model.anchors), "anchor"),
+             units.count(len(model.springs), "spring"),
+             units.count(len(model.dampers), "dashpot")]
+    if model.bodies:
+        parts.insert(1, f"{units.count(len(model.bodies), 'rigid body', 'rigid bodies')} among"
+                        " them")
+    if model.gears:
+        parts.append(units.count(len(model.gears), "gear stage"))
+    return ", ".join(parts)
+
+
+def _body_ends(model, el) -> tuple[str, ...]:
+    """The ends (``"a"``, ``"b"``) of a spring or dashpot that sit on a rigid body."""
+    if not isinstance(el, (Spring, Damper)) or model.kind != "planar":
+        return ()
+    return tuple(end for end in ("a", "b")
+                 if bodies.is_body(model, model.find(getattr(el, end))))
 
 
 def _mass_kind(model) -> str:
@@ -226,7 +309,9 @@ class PropertyPanel(QWidget):
         elements = [model.element(i) for i in self.selection]
         signature = (tuple(self.selection), model.kind, model.axis, self.unit_system,
                      tuple(getattr(e, "fixed", ()) for e in elements),
-                     tuple(getattr(e, "mass", None) == 0 for e in elements))  # junction or mass
+                     tuple(getattr(e, "mass", None) == 0 for e in elements),  # junction or mass
+                     tuple(getattr(e, "inertia", 0.0) > 0 for e in elements),  # a rigid body
+                     tuple(_body_ends(model, e) for e in elements))   # offsets to edit
         if signature != self._signature:
             self._signature = signature
             self._rebuild(model, elements)
@@ -242,7 +327,8 @@ class PropertyPanel(QWidget):
         elif len(elements) > 1:
             kinds = {type(e) for e in elements}
             noun = {Mass: ("mass", "masses"), Anchor: ("anchor", "anchors"),
-                    Spring: ("spring", "springs"), Damper: ("dashpot", "dashpots")}
+                    Spring: ("spring", "springs"), Damper: ("dashpot", "dashpots"),
+                    Gear: ("gear stage", "gear stages")}
             what = noun.get(kinds.pop(), ("element", "elements")) if len(kinds) == 1 \
                 else ("element", "elements")
             self.title.setText(f"{units.count(len(elements), *what)} selected")
@@ -265,6 +351,10 @@ class PropertyPanel(QWidget):
                     w.setCurrentIndex(max(0, w.findData(getter(model))))
                 elif isinstance(w, QCheckBox):
                     w.setChecked(bool(getter(model)))
+                elif isinstance(w, QLabel):
+                    text = getter(model)
+                    w.setText(text)
+                    w.setVisible(bool(text))
 
     def _rebuild(self, model, elements):
         self._clear()
@@ -278,7 +368,8 @@ class PropertyPanel(QWidget):
             el = elements[0]
             if isinstance(el, Mass):
                 what = "Disc" if model.kind == "torsion" else ("Junction" if el.mass == 0
-                                                               else "Mass")
+                                                               else "Rigid body" if el.inertia
+                                                               > 0 else "Mass")
                 self.title.setText(f"{what} {el.id}")
                 self._build_mass(model, el)
             elif isinstance(el, Anchor):
@@ -294,12 +385,17 @@ class PropertyPanel(QWidget):
                     self._add_quantity("k_t", "transverse stiffness", "Transverse k_t",
                                        lambda m, i=el.id: m.element(i).k_t,
                                        lambda v, i=el.id: self.document.set_element(i, k_t=v))
+                self._build_offsets(model, el)
             elif isinstance(el, Damper):
                 self.title.setText(f"Dashpot {el.id}: {el.a}–{el.b}")
                 self._build_label(el)
                 self._add_quantity("c", _damping_kind(model), "Damping c",
                                    lambda m, i=el.id: m.element(i).c,
                                    lambda v, i=el.id: self.document.set_element(i, c=v))
+                self._build_offsets(model, el)
+            elif isinstance(el, Gear):
+                self.title.setText(f"Gear stage {el.id}: {el.a}–{el.b}")
+                self._build_gear(model, el)
             else:
                 self.title.setText(f"{el.id}")
 
@@ -319,6 +415,8 @@ class PropertyPanel(QWidget):
         elif kinds == {Mass}:
             kind = _mass_kind(model)
             fields.append(("mass", kind, "Inertia" if kind == "inertia" else "Mass"))
+            if model.kind == "planar":
+                fields.append(("inertia", "inertia", "Inertia"))
         if not fields:
             hint = QLabel("Select springs only, dashpots only or masses only to set a value on"
                           " all of them at once.")
@@ -360,11 +458,23 @@ class PropertyPanel(QWidget):
         self._add_quantity("mass", kind, "Inertia" if kind == "inertia" else "Mass",
                            lambda m, i=el.id: m.element(i).mass,
                            lambda v, i=el.id: self.document.set_element(i, mass=v))
+        if model.kind == "planar":
+            self._add_quantity("inertia", "inertia", "Inertia",
+                               lambda m, i=el.id: m.element(i).inertia,
+                               lambda v, i=el.id: self.document.set_element(i, inertia=v))
+            self.field("inertia").edit.setToolTip(
+                "Rotary inertia about the centre of mass; 0: a point mass, above 0: a rigid"
+                " body that turns (theta) and takes springs at mount points. "
+                + self.field("inertia")._hint)
+            if el.inertia > 0:
+                self._add_note("coupling", "Coupling",
+                               lambda m, i=el.id: bodies.coupling_statement(m, i))
+        directions = model.directions_of(el)
         row = QHBoxLayout()
         box = QWidget()
         box.setLayout(row)
         row.setContentsMargins(0, 0, 0, 0)
-        for d in model.directions:
+        for d in directions:
             cb = QCheckBox(d)
             cb.setObjectName(f"fixed_{d}")
             cb.setToolTip(f"Lock this mass in direction {d} (it then cannot move that way)")
@@ -374,7 +484,7 @@ class PropertyPanel(QWidget):
             self._text_getters[f"fixed_{d}"] = (cb, lambda m, i=el.id, d=d: d in m.element(i).fixed)
         row.addStretch(1)
         self.form.addRow("Locked", box)
-        for d in model.directions:
+        for d in directions:
             rot = d == "theta"
             self._add_quantity(f"init_{d}", "angle" if rot else "length", f"Initial {d}",
                                lambda m, i=el.id, d=d: self._initial(m, i, "displacement", d),
@@ -384,6 +494,57 @@ class PropertyPanel(QWidget):
                                f"Initial v{d}",
                                lambda m, i=el.id, d=d: self._initial(m, i, "velocity", d),
                                lambda v, i=el.id, d=d: self.document.set_initial(i, d, velocity=v))
+
+    def _add_note(self, name: str, label: str, getter) -> None:
+        """A line of text from the model (a body's coupling, a geared system referred to one
+        shaft), wrapped to the panel and refreshed on every change."""
+        note = QLabel()
+        note.setObjectName(f"note_{name}")
+        note.setWordWrap(True)
+        note.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        note.setSizePolicy(QSizePolicy.Policy.Ignored, QSizePolicy.Policy.Preferred)
+        self.form.addRow(label, note)
+        self._widgets[name] = note
+        self._text_getters[name] = (note, getter)
+
+    def _build_offsets(self, model, el):
+        """Attachment offsets of the ends on rigid bodies (m, body frame)."""
+        for end in _body_ends(model, el):
+            node = model.element(getattr(el, end))
+            for k, axis in enumerate(("x", "y")):
+                def setter(v, i=el.id, end=end, k=k):
+                    off = list(getattr(self.document.model.element(i), f"{end}_offset"))
+                    off[k] = v
+                    return self.document.set_element(i, **{f"{end}_offset": tuple(off)})
+
+                self._add_quantity(f"{end}_offset_{axis}", "length", f"{end} offset {axis}",
+                                   lambda m, i=el.id, end=end, k=k:
+                                       getattr(m.element(i), f"{end}_offset")[k], setter)
+                self.field(f"{end}_offset_{axis}").edit.setToolTip(
+                    f"Where end {end} attaches on {node.label}: {axis} from its centre of mass,"
+                    " in the body's frame (0: at the centre). "
+                    + self.field(f"{end}_offset_{axis}")._hint)
+
+    def _build_gear(self, model, el):
+        self._build_label(el)
+        field = RatioField("speed ratio", "3 (disc a turns 3 times as fast as disc b)")
+        field.setObjectName("field_ratio")
+        field.edit.setObjectName("edit_ratio")
+        field.value_entered.connect(lambda v, f=field, i=el.id: self._try(
+            lambda: self.document.set_element(i, ratio=v), f))
+        self.form.addRow("Speed ratio a/b", field)
+        self._fields["ratio"] = (field, lambda m, i=el.id: m.element(i).ratio)
+        mesh = OptionalQuantityField("torsional stiffness", self.unit_system, "rigid mesh")
+        mesh.setObjectName("field_k_mesh")
+        mesh.edit.setObjectName("edit_k_mesh")
+        mesh.value_entered.connect(lambda v, f=mesh, i=el.id: self._try(
+            lambda: self.document.set_element(i, k_mesh=v), f))
+        mesh.cleared.connect(lambda f=mesh, i=el.id: self._try(
+            lambda: self.document.set_element(i, k_mesh=None), f))
+        self.form.addRow("Mesh stiffness", mesh)
+        self._fields["k_mesh"] = (mesh, lambda m, i=el.id: m.element(i).k_mesh)
+        self._add_note("referred", "Referred",
+                       lambda m: "\n".join(bodies.referred_statements(m)))
 
     @staticmethod
     def _initial(model, mass_id, what, direction):
