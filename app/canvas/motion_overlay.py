@@ -4,7 +4,11 @@ The Motion panel sends each frame (``MotionPanel.canvas_frame``); this moves the
 the frame's displacements, magnified so that the largest displacement of the animation is a third
 of the closest spacing between two nodes on the canvas: big enough to read at a glance, small
 enough that neighbours never swap places. Discs of a torsion model show a radius mark turned by
-the angle (the largest at 55 degrees). Only the drawing moves (``NodeItem.set_display_offset``);
+the angle (the largest at 55 degrees). A rigid body of a planar model moves by its x and y and
+turns by its theta, all times the same magnification (a rigid body's displacement field,
+magnified, keeps its shape): the turn drawn is ``theta * magnification / px_per_m`` rad, the
+springs follow its mount points, and the corners of its box count in the room a frame may use.
+Only the drawing moves (``NodeItem.set_display_offset``);
 the model, the items' positions and the undo history are untouched, so editing goes on while it
 plays. A caption in the canvas corner names the mode and its frequency.
 """
@@ -64,18 +68,30 @@ class CanvasMotion:
             self._spacing = best if math.isfinite(best) else 40.0
         return self._spacing
 
-    def show_frame(self, displacements: dict, peak: float, caption: str = "") -> None:
+    def show_frame(self, displacements: dict, peak: float, caption: str = "",
+                   peak_turn: float = 0.0) -> None:
         """Draw the frame ``{mass_id: {direction: value}}`` (m, rad); ``peak`` is the largest
-        value of the whole animation. An empty frame puts every item back."""
-        if not displacements or peak <= 0:
+        value of the whole animation (m; rad in torsion), ``peak_turn`` the largest turn of a
+        planar rigid body (rad). An empty frame puts every item back."""
+        if not displacements or (peak <= 0 and peak_turn <= 0):
             self.clear()
             return
         self.active = True
         torsion = self.scene.document.model.kind == "torsion"
+        ppm = self.scene.mapper.px_per_m
         if torsion:
             self.magnification = MAX_TURN / peak
         else:
-            self.magnification = SPACING_FRACTION * self.spacing() / peak
+            # room used (scene units per metre of magnification): the largest translation, or
+            # a translation plus a body's farthest corner swung by its turn
+            reach = peak
+            if peak_turn > 0:
+                corner = max((math.hypot(*item.half_extents()) for item in self.scene.nodes.values()
+                              if getattr(item, "is_body", False)), default=0.0)
+                reach = peak + corner / ppm * peak_turn
+            self.magnification = SPACING_FRACTION * self.spacing() / reach if reach > 0 else 1.0
+            if peak_turn > 0:
+                self.magnification = min(self.magnification, MAX_TURN * ppm / peak_turn)
         g = self.magnification
         for eid, item in self.scene.nodes.items():
             d = displacements.get(eid)
@@ -86,8 +102,10 @@ class CanvasMotion:
             if torsion:
                 item.set_display_offset(0.0, 0.0, d.get("theta", 0.0) * g)
             else:
-                # model y is up, the scene's y is down
-                item.set_display_offset(d.get("x", 0.0) * g, -d.get("y", 0.0) * g)
+                # model y is up, the scene's y is down; a body turns by the same magnification
+                # (g is scene units per metre, so g / ppm is the drawing's true-size factor)
+                turn = d.get("theta", 0.0) * g / ppm if getattr(item, "is_body", False) else None
+                item.set_display_offset(d.get("x", 0.0) * g, -d.get("y", 0.0) * g, turn)
         for link in self.scene.links.values():
             link.refresh(label=False)      # labels stay where they were placed, at rest
         if caption:
@@ -125,6 +143,17 @@ class CanvasMotion:
         """The display offset of a node now (scene units), for tests and tooltips."""
         item = self.scene.nodes[node_id]
         return item.shown_pos() - item.pos()
+
+    def drawn_turn(self, node_id: str) -> float:
+        """The turn a body (or a disc) is drawn with now (rad, counter-clockwise), 0 at rest."""
+        return getattr(self.scene.nodes[node_id], "display_turn", None) or 0.0
+
+    def turn_magnification(self) -> float:
+        """Drawn turn per radian of theta: the true-size factor of the drawing (a disc of a
+        torsion model: its own magnification)."""
+        if self.scene.document.model.kind == "torsion":
+            return self.magnification
+        return self.magnification / self.scene.mapper.px_per_m
 
 
 __all__ = ["CanvasMotion", "SPACING_FRACTION", "MAX_TURN"]

@@ -389,7 +389,7 @@ class MotionPanel(QWidget):
     #: ``{mass_id: {direction: value}}`` (m, rad; unmagnified), the largest value the animation
     #: reaches (the canvas sizes its magnification on it) and the caption of the frame;
     #: ``({}, 0.0, "")`` when it is switched off.
-    canvas_frame = Signal(dict, float, str)
+    canvas_frame = Signal(dict, float, str, float)
     canvas_toggled = Signal(bool)
 
     def __init__(self, parent=None):
@@ -716,20 +716,30 @@ class MotionPanel(QWidget):
             self.play()
             self._refresh()
         else:
-            self.canvas_frame.emit({}, 0.0, "")
+            self.canvas_frame.emit({}, 0.0, "", 0.0)
         self.canvas_toggled.emit(bool(on))
 
-    def _canvas_peak(self) -> float:
-        """Largest displacement the shown animation reaches (m or rad)."""
+    def _canvas_peak(self) -> tuple[float, float]:
+        """Largest displacement the shown animation reaches (m; rad in torsion) and largest
+        turn of a planar rigid body (rad): two kinds of value, never mixed."""
+        planar = self._model is not None and self._model.kind != "torsion"
+
+        def split(pairs):
+            move = [abs(v) for d, v in pairs if not (planar and d == "theta")]
+            turn = [abs(v) for d, v in pairs if planar and d == "theta"]
+            return max(move, default=0.0), max(turn, default=0.0)
+
         if self._view_kind == MODE_VIEW:
             shape = self._mode_shapes.get(self._mode or 1, ({}, 1.0))[0]
             # the amplitude slider (50 = as fitted) scales the canvas motion too
             gain = self.amplitude.value() / 50.0
-            vals = [abs(v) / gain for dd in shape.values() for v in dd.values()]
-        else:
-            table = self._table
-            vals = [float(np.abs(table.x).max())] if table is not None and table.x.size else []
-        return max(vals, default=0.0)
+            move, turn = split([(d, v) for dd in shape.values() for d, v in dd.items()])
+            return move / gain, turn / gain
+        table = self._table
+        if table is None or not table.x.size:
+            return 0.0, 0.0
+        peak = np.abs(table.x).max(axis=0)
+        return split([(d, float(v)) for (_m, d), v in zip(table.dofs, peak)])
 
     def _on_tick(self):
         dt_wall = self._clock.restart() / 1000.0
@@ -867,14 +877,24 @@ class MotionPanel(QWidget):
         torsion = self._model.kind == "torsion"
         kind = KINDS["angle" if torsion else "length"]
         unit, factor = kind.label(self.unit_system), kind.factor(self.unit_system)
-        self.plot.setLabel("left", "rotation" if torsion else "displacement", units=unit)
+        traced = [dof for dof in self.traced_dofs() if dof in table.dofs]
+        turns = not torsion and any(d == "theta" for _m, d in traced)
+        moves = any(d != "theta" for _m, d in traced)
+        if turns and moves:
+            # a body's turn beside translations: one axis, both units named on it
+            self.plot.setLabel("left", f"displacement ({unit}), rotation (rad)")
+        elif turns:
+            self.plot.setLabel("left", "rotation", units="rad")
+        else:
+            self.plot.setLabel("left", "rotation" if torsion else "displacement", units=unit)
         colours = {}
         for k, dof in enumerate(self.traced_dofs()):
             if dof not in table.dofs:
                 continue
             j = table.dofs.index(dof)
             colours[dof] = st.trace(k)
-            curve = self.plot.plot(table.times, table.x[:, j] / factor,
+            scale = 1.0 if dof[1] == "theta" and not torsion else factor
+            curve = self.plot.plot(table.times, table.x[:, j] / scale,
                                    pen=pg.mkPen(st.trace(k), width=1.5),
                                    name=f"{self._model.node(dof[0]).label} {dof[1]}")
             # drawn once into a pixmap: the time cursor moves every frame and would otherwise
@@ -919,7 +939,7 @@ class MotionPanel(QWidget):
             self._positions = {}
             view.update()
             if self.canvas_box.isChecked():
-                self.canvas_frame.emit({}, 0.0, "")
+                self.canvas_frame.emit({}, 0.0, "", 0.0)
             return
         if self._modal.n_modes == 0:
             view.displacements = None
@@ -928,7 +948,7 @@ class MotionPanel(QWidget):
             self._positions = {}
             view.update()
             if self.canvas_box.isChecked():
-                self.canvas_frame.emit({}, 0.0, "")
+                self.canvas_frame.emit({}, 0.0, "", 0.0)
             return
         if self._view_kind == MODE_VIEW:
             n = self._mode or 1
@@ -961,8 +981,15 @@ class MotionPanel(QWidget):
             view.displacements = disp
             view.scale = self._free_scale
             table = self._table
-            peak = float(np.abs(table.x).max()) if table is not None and table.x.size else 0.0
-            view.motion_px = self._excursion_px({"": {"x": peak}}, view.scale)
+            if getattr(self, "_free_peak_key", None) is not table:
+                # the largest excursion per mass and direction of this window (a body's turn
+                # kept apart from its translation: radians are not metres)
+                peaks: dict = {}
+                if table is not None and table.x.size:
+                    for (mid, d), v in zip(table.dofs, np.abs(table.x).max(axis=0)):
+                        peaks.setdefault(mid, {})[d] = float(v)
+                self._free_peak_key, self._free_peaks = table, peaks
+            view.motion_px = self._excursion_px(self._free_peaks, view.scale)
             ts = self.time_scale()
             view.caption = (f"Free response  t = {self._t:.4f} s   time scale {ts:g}×   "
                             f"drawn {self._free_scale:.3g}× true size")
@@ -973,8 +1000,9 @@ class MotionPanel(QWidget):
         del st
         view.update()
         if self.canvas_box.isChecked():
-            self.canvas_frame.emit(self._positions, self._canvas_peak(),
-                                   view.caption.split(" (shown at")[0])
+            peak, turn = self._canvas_peak()
+            self.canvas_frame.emit(self._positions, peak, view.caption.split(" (shown at")[0],
+                                   turn)
 
     def _excursion_px(self, shape: dict, scale: float) -> float:
         """Largest drawn translation (px) of ``shape`` at ``scale``; 0 in torsion (discs turn
@@ -982,8 +1010,14 @@ class MotionPanel(QWidget):
         lay = self.view.layout_()
         if lay is None or self._model is None or self._model.kind == "torsion":
             return 0.0
-        big = max((math.hypot(d.get("x", 0.0), d.get("y", 0.0)) for d in shape.values()),
-                  default=0.0)
+
+        def reach(mid, d):
+            r = math.hypot(d.get("x", 0.0), d.get("y", 0.0))
+            if d.get("theta") and lay.is_body(mid):   # a body's corner swings with its turn
+                r += abs(d["theta"]) * math.hypot(*lay.body_half(lay._nodes[mid])) / lay.px_per_m
+            return r
+
+        big = max((reach(mid, d) for mid, d in shape.items()), default=0.0)
         # quantised so that the labels are re-placed only when the excursion really changes
         return math.ceil(big * scale * lay.px_per_m / 4.0) * 4.0
 
