@@ -17,6 +17,22 @@ Planar springs act along their drawn line: with ``e`` the unit vector from end a
 at right angles to it, the 2x2 stiffness between the ends' relative displacement and force is
 ``k e e^T + k_t n n^T`` (small displacements about the drawn layout). Dashpots act axially the same
 way with ``c``.
+
+Rigid bodies (planar masses with an inertia > 0) have a third DOF ``theta``. A spring or dashpot
+end attached at offset ``o = (ox, oy)`` from a body's centre moves by ``(ux - theta oy,
+uy + theta ox)`` (small rotations), and the line ``e`` runs between the two attachment points, so
+a spring's axial stretch is ``e . (u_b - u_a) + theta_b (o_b x e) - theta_a (o_a x e)`` (and its
+shear the same with ``n``): one row of coefficients per spring (``System.spring_coef``), which K,
+the stiffness factor and every strain computation share.
+
+Gear stages (torsion): a mesh stiffness is one more row, ``sqrt(k_mesh) (theta_a - n theta_b)``. A
+rigid mesh is the constraint ``theta_a - n theta_b = 0``, eliminated exactly: every disc's angle is
+``T q`` with ``T`` (``System.gear_basis``) a basis of the constraints' null space, one column per
+set of discs joined by rigid meshes (its first disc with inertia is the set's coordinate, scaled
+1 there), so chains and branches of stages are one column each; a loop of stages whose ratios do
+not multiply to 1 locks its discs (warned). The eigenproblem, the junction condensation and the
+direct solves work on ``q`` (``M_q = T^T M T`` stays diagonal, the sets being disjoint); the
+other discs' motion is recovered through ``recovery``, as junction motion is.
 """
 
 from __future__ import annotations
@@ -87,6 +103,25 @@ class System:
     #: spring, or per condensed combination of springs; see solver/factor.py). It keeps what
     #: forming K loses to rounding (a soft spring beside a very stiff one).
     K_factor: object = field(default=None, repr=False)
+    #: (n_springs, 2, 2 nd) coefficients of each spring's axial (row 0) and transverse (row 1)
+    #: stretch on the DOFs ``spring_dofs`` (nd = DOFs per node: 1, 2, or 3 with rigid bodies)
+    spring_coef: np.ndarray = field(default=None, repr=False)
+    #: (n_mesh, n_all) sparse geometry rows of gear meshes with a stiffness
+    #: (``theta_a - n theta_b``) and their weights sqrt(k_mesh); empty without such gears
+    mesh_rows: object = field(default=None, repr=False)
+    mesh_weights: np.ndarray = field(default=None, repr=False)
+    #: (n_all, n_q) sparse: every disc's angle from the coordinates rigid gear meshes leave
+    #: (None without rigid meshes: q is all_dofs). ``loose`` is then on q, ``solve_dofs``.
+    gear_basis: object = field(default=None, repr=False)
+    solve_dofs: tuple = field(default=None, repr=False)
+
+    @property
+    def node_directions(self) -> tuple[str, ...]:
+        """The directions of ``spring_dofs``/``mass_dofs`` per node (theta added when the
+        model has a rigid body)."""
+        if self.model.bodies:
+            return ("x", "y", "theta")
+        return self.model.directions
 
     @property
     def n_dof(self) -> int:
@@ -94,7 +129,9 @@ class System:
 
     @property
     def directions(self) -> tuple[str, ...]:
-        return self.model.directions
+        """Directions of motion in the model: the kind's, and theta in a planar model with a
+        rigid body (the effective-mass keys)."""
+        return self.node_directions
 
     def dof_index(self, mass_id: str, direction: str) -> int:
         """Row of ``(mass_id, direction)`` in ``dofs`` (raises ModelError if it is not a DOF)."""
@@ -126,6 +163,24 @@ class System:
         return mat.toarray() if sp.issparse(mat) else np.asarray(mat)
 
 
+def spring_stretch(system: System, V_all) -> tuple[np.ndarray, np.ndarray]:
+    """(axial, transverse) stretch of every spring, (n_springs, n_cols) each, under motions
+    ``V_all`` (n_all, n_cols) on ``all_dofs``: end b against end a at the attachment points,
+    along the spring's line and across it (zero on a line or a shaft)."""
+    V_all = np.asarray(V_all)
+    cols = V_all.shape[1] if V_all.ndim == 2 else 1
+    V = np.vstack([V_all.reshape(-1, cols), np.zeros((1, cols), V_all.dtype)])  # -1: ground
+    idx = system.spring_dofs
+    coef = system.spring_coef
+    if idx is None or len(idx) == 0:
+        z = np.zeros((0, cols))
+        return z, z
+    U = V[idx]                                  # (n_s, 2 nd, n_cols)
+    axial = np.einsum("si,sim->sm", coef[:, 0, :], U)
+    trans = np.einsum("si,sim->sm", coef[:, 1, :], U)
+    return axial, trans
+
+
 def _no_dof_message(model: Model, mass_id: str, direction: str) -> str:
     try:
         node = model.node(mass_id)
@@ -133,11 +188,17 @@ def _no_dof_message(model: Model, mass_id: str, direction: str) -> str:
         return f"{quoted_id(model, mass_id)} is not a mass in the model"
     if not hasattr(node, "mass"):
         return f"{quoted_id(model, mass_id)} is an anchor; it has no degrees of freedom"
-    if direction not in model.directions:
+    own = model.directions_of(node)
+    if direction not in own:
+        extra = (" (theta is a rigid body's rotation: give the mass an inertia > 0)"
+                 if direction == "theta" and model.kind == "planar" else "")
         return (f'{named(node)}: direction "{direction}" does not exist in this model'
-                f' (allowed: {", ".join(model.directions)})')
+                f' (allowed: {", ".join(own)}){extra}')
     if direction in node.fixed:
         return f"{named(node)} is locked in {direction}"
+    if model.gears and node.mass > 0:
+        return (f"{named(node, 'disc')} turns with the disc its rigid gear mesh ties it to; its"
+                " theta is recovered from that disc's, not a coordinate of its own")
     return f"{named(node)} is massless; its {direction} motion is condensed out"
 
 
@@ -154,22 +215,23 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
     """
     if not isinstance(model, Model):
         raise ModelError(f"assemble: expected a Model, got {type(model).__name__}")
-    directions = model.directions
+    node_dirs = ("x", "y", "theta") if model.bodies else model.directions
     all_dofs = []
     mass_of_dof = []
     mass_dofs: dict = {}
     for m in model.masses:
         idx = []
-        for d in directions:
-            if d in m.fixed:
+        own = model.directions_of(m)
+        for d in node_dirs:
+            if d not in own or d in m.fixed:
                 idx.append(-1)
                 continue
             idx.append(len(all_dofs))
             all_dofs.append((m.id, d))
-            mass_of_dof.append(m.mass)
+            mass_of_dof.append(m.inertia if d == "theta" and model.kind == "planar" else m.mass)
         mass_dofs[m.id] = idx
     n_all = len(all_dofs)
-    nd = len(directions)
+    nd = len(node_dirs)
     ground = [-1] * nd
     node_dofs = dict(mass_dofs)
     positions = {el.id: (el.x, el.y) for el in model.masses + model.anchors}
@@ -177,56 +239,72 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
         node_dofs[a.id] = ground
     warnings = []
 
-    def element_arrays(elements, value_name):
+    def element_arrays(elements):
+        """DOF indices (count, 2 nd), unit axes (count, 2) between the attachment points and
+        stretch coefficients (count, 2, 2 nd): axial row, transverse row."""
         count = len(elements)
         dofs = np.full((count, 2 * nd), -1, dtype=np.int64)
         axis = np.zeros((count, 2))
+        coef = np.zeros((count, 2, 2 * nd))
         for i, el in enumerate(elements):
             dofs[i, :nd] = node_dofs[el.a]
             dofs[i, nd:] = node_dofs[el.b]
-            if model.kind == "planar":
-                (xa, ya), (xb, yb) = positions[el.a], positions[el.b]
-                dx, dy = xb - xa, yb - ya
-                length = np.hypot(dx, dy)
-                axis[i] = (dx / length, dy / length)
-        return dofs, axis
+        if model.kind != "planar":
+            coef[:, 0, 0], coef[:, 0, 1] = -1.0, 1.0
+            return dofs, axis, coef
+        pa = np.array([positions[el.a] for el in elements], float).reshape(count, 2)
+        pb = np.array([positions[el.b] for el in elements], float).reshape(count, 2)
+        oa = np.array([el.a_offset for el in elements], float).reshape(count, 2)
+        ob = np.array([el.b_offset for el in elements], float).reshape(count, 2)
+        delta = (pb + ob) - (pa + oa)
+        length = np.hypot(delta[:, 0], delta[:, 1])
+        axis = delta / np.where(length > 0, length, 1.0)[:, None]
+        nvec = np.stack([-axis[:, 1], axis[:, 0]], axis=1)
+        for row, u in ((0, axis), (1, nvec)):
+            coef[:, row, 0:2] = -u
+            coef[:, row, nd:nd + 2] = u
+            if nd == 3:
+                # an end at offset o moves by theta (-oy, ox): along u that is theta (o x u)
+                coef[:, row, 2] = -(oa[:, 0] * u[:, 1] - oa[:, 1] * u[:, 0])
+                coef[:, row, 5] = ob[:, 0] * u[:, 1] - ob[:, 1] * u[:, 0]
+        return dofs, axis, coef
 
-    def stiffness_coo(dofs, axis, values, transverse=None):
+    def stiffness_coo(dofs, coef, values, transverse=None):
         count = len(values)
         if count == 0:
             return np.zeros(0, np.int64), np.zeros(0, np.int64), np.zeros(0)
-        if nd == 1:
-            S = np.asarray(values, float).reshape(count, 1, 1)
-        else:
-            e = axis
-            nvec = np.stack([-e[:, 1], e[:, 0]], axis=1)
-            S = np.asarray(values, float)[:, None, None] * np.einsum("ni,nj->nij", e, e)
-            if transverse is not None:
-                S = S + np.asarray(transverse, float)[:, None, None] * np.einsum(
-                    "ni,nj->nij", nvec, nvec)
-        local = np.block([[S, -S], [-S, S]])
+        c0 = coef[:, 0, :]
+        local = np.asarray(values, float)[:, None, None] * np.einsum("ni,nj->nij", c0, c0)
+        if transverse is not None:
+            c1 = coef[:, 1, :]
+            local = local + np.asarray(transverse, float)[:, None, None] * np.einsum(
+                "ni,nj->nij", c1, c1)
         rows = np.repeat(dofs[:, :, None], 2 * nd, axis=2)
         cols = np.repeat(dofs[:, None, :], 2 * nd, axis=1)
         keep = (rows >= 0) & (cols >= 0)
         return rows[keep], cols[keep], local[keep]
 
     springs = model.springs
-    s_dofs, s_axis = element_arrays(springs, "k")
+    s_dofs, s_axis, s_coef = element_arrays(springs)
     k_vals = [s.k for s in springs]
     kt_vals = [s.k_t for s in springs] if model.kind == "planar" else None
-    r, c, v = stiffness_coo(s_dofs, s_axis, k_vals, kt_vals)
+    r, c, v = stiffness_coo(s_dofs, s_coef, k_vals, kt_vals)
     K_full = sp.coo_matrix((v, (r, c)), shape=(n_all, n_all)).tocsr()
-    d_dofs, d_axis = element_arrays(model.dampers, "c")
-    r, c, v = stiffness_coo(d_dofs, d_axis, [d.c for d in model.dampers])
+    d_dofs, _d_axis, d_coef = element_arrays(model.dampers)
+    r, c, v = stiffness_coo(d_dofs, d_coef, [d.c for d in model.dampers])
     C_full = sp.coo_matrix((v, (r, c)), shape=(n_all, n_all)).tocsr()
     masses = np.asarray(mass_of_dof, float)
     M_full = sp.diags(masses, format="csr") if n_all else sp.csr_matrix((0, 0))
+    mesh_rows, mesh_w = _mesh_rows(model, mass_dofs, n_all)
+    if mesh_rows.shape[0]:
+        K_full = (K_full + mesh_rows.T @ sp.diags(mesh_w ** 2) @ mesh_rows).tocsr()
 
     for m in model.masses:
-        extra = [d for d in m.fixed if d not in directions]
+        extra = [d for d in m.fixed if d not in model.directions_of(m)]
         if extra:
+            own = model.directions_of(m)
             warnings.append(f'{named(m)}: locked direction {", ".join(extra)} does not exist'
-                            f' in this model (it moves in {", ".join(directions)}); ignored')
+                            f' in this model (it moves in {", ".join(own)}); ignored')
     for s in springs:
         if s.a in node_dofs and s.b in node_dofs and all(i < 0 for i in node_dofs[s.a]) and all(
                 i < 0 for i in node_dofs[s.b]):
@@ -240,25 +318,43 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
                         " layout with k_t springs has fewer than three rigid-body modes")
 
     use_sparse = (n_all > SPARSE_DOF_LIMIT) if sparse is None else bool(sparse)
-    retained = np.flatnonzero(masses > 0)
-    slaves = np.flatnonzero(masses == 0)
-    dofs = tuple(all_dofs[i] for i in retained)
-    loose = np.zeros((n_all, 0))
-    B, w = factor.spring_rows(s_dofs, s_axis, k_vals, kt_vals, n_all)
-    if len(slaves) == 0:
-        recovery = sp.identity(n_all, format="csr")
-        M, K, C = M_full, K_full, C_full
-        K_factor = sp.diags(w) @ B
+    B, w = factor.spring_rows(s_dofs, s_coef, k_vals, kt_vals, n_all)
+    if mesh_rows.shape[0]:
+        B = sp.vstack([B, mesh_rows], format="csr")
+        w = np.concatenate([w, mesh_w])
+    T, q_dofs, msg = _gear_basis(model, all_dofs, masses)
+    warnings.extend(msg)
+    if T is not None:
+        # the rigid meshes eliminated: everything below works on q (all_dofs = T q)
+        Bq = sp.csr_matrix(B @ T)
+        keep = np.flatnonzero(np.diff(Bq.indptr) > 0)
+        Bq, wq = Bq[keep], w[keep]
+        mq = np.asarray(T.multiply(T).T @ masses).ravel()
+        Kq = sp.csr_matrix(T.T @ K_full @ T)
+        Cq = sp.csr_matrix(T.T @ C_full @ T)
     else:
-        K, C, recovery, msg, loose, K_factor = _condense(K_full, C_full, retained, slaves,
-                                                         all_dofs, B, w, model)
-        M = sp.diags(masses[retained], format="csr")
+        Bq, wq, mq, Kq, Cq, q_dofs = B, w, masses, K_full, C_full, tuple(all_dofs)
+    n_q = len(q_dofs)
+    retained = np.flatnonzero(mq > 0)
+    slaves = np.flatnonzero(mq == 0)
+    dofs = tuple(q_dofs[i] for i in retained)
+    loose = np.zeros((n_q, 0))
+    if len(slaves) == 0:
+        recovery = sp.identity(n_q, format="csr")
+        M, K, C = sp.diags(mq, format="csr") if n_q else sp.csr_matrix((0, 0)), Kq, Cq
+        K_factor = sp.diags(wq) @ Bq
+    else:
+        K, C, recovery, msg, loose, K_factor = _condense(Kq, Cq, retained, slaves,
+                                                         list(q_dofs), Bq, wq, model)
+        M = sp.diags(mq[retained], format="csr")
         warnings.extend(msg)
-        if model.dampers and C_full[slaves][:, :].nnz:
+        if model.dampers and Cq[slaves][:, :].nnz:
             warnings.append("a dashpot is attached to a massless junction; free response,"
                             " damped modes and frequency responses solve the junction's creep"
                             " exactly, but the condensed damping matrix C of assemble() only"
                             " approximates it")
+    if T is not None:
+        recovery = sp.csr_matrix(T @ recovery)
     if not use_sparse:
         M, K, C = (np.asarray(x.toarray()) for x in (M, K, C))
         recovery = np.asarray(recovery.toarray()) if sp.issparse(recovery) else recovery
@@ -271,7 +367,102 @@ def assemble(model: Model, sparse: bool | None = None) -> System:
                   recovery=recovery, M_full=M_full, K_full=K_full, C_full=C_full,
                   sparse=use_sparse, warnings=tuple(warnings), spring_dofs=s_dofs,
                   spring_axis=s_axis, mass_dofs=mass_dofs, loose=loose,
-                  K_factor=None if K_factor is None else sp.csr_matrix(K_factor))
+                  K_factor=None if K_factor is None else sp.csr_matrix(K_factor),
+                  spring_coef=s_coef, mesh_rows=mesh_rows, mesh_weights=mesh_w,
+                  gear_basis=T, solve_dofs=tuple(q_dofs))
+
+
+def _mesh_rows(model: Model, mass_dofs: dict, n_all: int):
+    """Rows ``theta_a - n theta_b`` (sparse (n_mesh, n_all)) of the gear stages with a mesh
+    stiffness, and their weights sqrt(k_mesh); a locked disc contributes nothing."""
+    rows, cols, vals, w = [], [], [], []
+    for g in model.gears:
+        if g.k_mesh is None:
+            continue
+        for node, value in ((g.a, 1.0), (g.b, -g.ratio)):
+            i = mass_dofs[node][0]
+            if i >= 0:
+                rows.append(len(w))
+                cols.append(i)
+                vals.append(value)
+        w.append(np.sqrt(g.k_mesh))
+    B = sp.csr_matrix((vals, (rows, cols)), shape=(len(w), n_all))
+    return B, np.asarray(w, float)
+
+
+def _gear_basis(model: Model, all_dofs, masses):
+    """(T, q_dofs, warnings) for the rigid gear meshes: T (n_all, n_q) sparse with every disc's
+    angle = T q, or None when there is no rigid mesh.
+
+    Each set of discs joined by rigid meshes gets the null space of its constraints
+    ``theta_a - n theta_b = 0`` (one vector for a chain, a branch or a consistent loop), scaled
+    to 1 on its first disc with inertia, which names the coordinate; a loop whose ratios
+    disagree, or a set holding a locked disc, has none: its discs cannot turn.
+    """
+    rigid = [g for g in model.gears if g.k_mesh is None]
+    if not rigid:
+        return None, tuple(all_dofs), []
+    from scipy.sparse.csgraph import connected_components
+
+    n_all = len(all_dofs)
+    index = {mid: i for i, (mid, _d) in enumerate(all_dofs)}
+    # a locked disc is a node of its own (no DOF): constraints on it hold the other disc still
+    ids = [m.id for m in model.masses]
+    node = {mid: i for i, mid in enumerate(ids)}
+    a = [node[g.a] for g in rigid]
+    b = [node[g.b] for g in rigid]
+    graph = sp.coo_matrix((np.ones(len(a)), (a, b)), shape=(len(ids), len(ids)))
+    n_c, label = connected_components(graph, directed=False)
+    cols, rows, vals, q_dofs, warnings = [], [], [], [], []
+    grouped = {}
+    for g in rigid:
+        grouped.setdefault(label[node[g.a]], []).append(g)
+    done = set()
+    for i, (mid, d) in enumerate(all_dofs):
+        lab = label[node[mid]]
+        if lab not in grouped:
+            rows.append(i)
+            cols.append(len(q_dofs))
+            vals.append(1.0)
+            q_dofs.append((mid, d))
+            continue
+        if lab in done:
+            continue
+        done.add(lab)
+        members = [m for m in ids if label[node[m]] == lab]
+        free = [m for m in members if m in index]
+        local = {m: j for j, m in enumerate(free)}
+        C = np.zeros((len(grouped[lab]), len(free)))
+        for r, g in enumerate(grouped[lab]):
+            if g.a in local:
+                C[r, local[g.a]] += 1.0
+            if g.b in local:
+                C[r, local[g.b]] -= g.ratio
+        _u, sv, vt = np.linalg.svd(C, full_matrices=True)
+        scale = max(sv.max(initial=0.0), 1.0)
+        rank = int(np.sum(sv > 1e-10 * scale))
+        null = vt[rank:].T
+        if null.shape[1] == 0:
+            if len(free) == len(members):
+                warnings.append(
+                    "the gear stages joining discs "
+                    + ", ".join(quoted_id(model, m) for m in members[:4])
+                    + " form a loop whose speed ratios do not multiply to 1; the mesh locks"
+                    " them (they cannot turn)")
+            continue
+        # one vector (a connected set of constraints leaves at most one motion)
+        v = null[:, 0]
+        weight = [masses[index[m]] for m in free]
+        lead = next((j for j, m in enumerate(free) if weight[j] > 0), 0)
+        v = v / v[lead]
+        for j, m in enumerate(free):
+            if abs(v[j]) > 0:
+                rows.append(index[m])
+                cols.append(len(q_dofs))
+                vals.append(float(v[j]))
+        q_dofs.append((free[lead], "theta"))
+    T = sp.csr_matrix((vals, (rows, cols)), shape=(n_all, len(q_dofs)))
+    return T, tuple(q_dofs), warnings
 
 
 #: Modal damping needs every mode to build C; above this many DOFs it is left out of C (warned).

@@ -116,6 +116,12 @@ class StateSpace:
 
 
 def _junction_rows(system: System) -> np.ndarray:
+    """Rows of ``all_dofs`` that are massless junctions (a disc tied by a rigid gear mesh to
+    another moves with that one's coordinate: not a junction)."""
+    if getattr(system, "gear_basis", None) is not None:
+        from .frequency import _junction_mask
+
+        return np.flatnonzero(_junction_mask(system)).astype(np.int64)
     retained = set(system.dofs)
     return np.array([i for i, d in enumerate(system.all_dofs) if d not in retained], dtype=np.int64)
 
@@ -160,6 +166,9 @@ def state_space(model_or_system, damped: bool = True) -> StateSpace:
                                           if sp.issparse(system.C_full)
                                           else np.asarray(system.C_full)[np.ix_(slaves, slaves)])
     m = np.asarray(system.M.diagonal()).ravel() if sp.issparse(system.M) else np.diag(system.M)
+    if basis.shape[1] and getattr(system, "gear_basis", None) is not None:
+        raise ModelError("a dashpot on a massless disc of a geared drive train is not"
+                         " supported by the exact damped solution; give the disc an inertia")
     if basis.shape[1] == 0:
         K = _dense(system.K)
         C = _dense(system.C) if damped else np.zeros((n, n))

@@ -49,13 +49,30 @@ def spring_rows(spring_dofs: np.ndarray, axis: np.ndarray, k, k_t, n_all: int):
     """Geometry ``B`` (sparse, (n_rows, n_all)) and weights ``sqrt(stiffness)`` (n_rows,).
 
     ``spring_dofs`` (n_springs, 2 nd): DOF indices of end a then end b (-1: ground or locked);
-    ``axis`` (n_springs, 2): unit vectors from a to b (planar); ``k_t`` None outside planar
-    models. One row per spring along its axis, and one across it where ``k_t > 0``. Rows with
-    no free DOF are dropped (they strain nothing that moves).
+    ``axis`` (n_springs, 2): unit vectors from a to b (planar), or (n_springs, 2, 2 nd) the
+    stretch coefficients of ``System.spring_coef`` (axial row, transverse row: rigid bodies'
+    rotations included); ``k_t`` None outside planar models. One row per spring along its
+    axis, and one across it where ``k_t > 0``. Rows with no free DOF are dropped (they strain
+    nothing that moves).
     """
     n_s = spring_dofs.shape[0]
     nd = spring_dofs.shape[1] // 2
     k = np.asarray(k, float).reshape(n_s)
+    if np.ndim(axis) == 3:
+        coef = np.asarray(axis, float).reshape(n_s, 2, 2 * nd)
+        if k_t is None:
+            vals, weights = coef[:, :1, :], k[:, None]
+        else:
+            vals = coef
+            weights = np.stack([k, np.asarray(k_t, float).reshape(n_s)], axis=1)
+        n_kind = vals.shape[1]
+        cols = np.broadcast_to(spring_dofs[:, None, :], vals.shape)
+        rows = np.broadcast_to(np.arange(n_s * n_kind).reshape(n_s, n_kind, 1), vals.shape)
+        keep = (cols >= 0) & (vals != 0.0) & (weights[:, :, None] > 0)
+        B = sp.csr_matrix((vals[keep], (rows[keep], cols[keep])), shape=(n_s * n_kind, n_all))
+        B.sum_duplicates()
+        used = np.flatnonzero(np.diff(B.indptr) > 0)
+        return B[used], np.sqrt(weights.reshape(-1)[used])
     if nd == 1:
         dirs = np.ones((n_s, 1, 1))            # (spring, row kind, component)
         weights = k[:, None]

@@ -74,6 +74,21 @@ def _dynamic_solve(system: System, f: np.ndarray, rhs_fn) -> np.ndarray:
     """Solve (K - w^2 M + i w C) X = rhs(w) on all DOFs for each frequency: (n_freq, n_all)."""
     K, M = system.K_full, system.M_full
     C = damping_matrix_full(system)
+    T = getattr(system, "gear_basis", None)
+    if T is not None:
+        # rigid gear meshes: solve on the coordinates they leave (every disc = T q), then
+        # recover every disc; forces are taken to q by T^T (virtual work)
+        T = sp.csr_matrix(T)
+        K, M = sp.csr_matrix(T.T @ sp.csr_matrix(K) @ T), sp.csr_matrix(T.T @ sp.csr_matrix(M) @ T)
+        C = sp.csr_matrix(T.T @ sp.csr_matrix(C) @ T)
+        outer = rhs_fn
+        rhs_fn = lambda wi: np.asarray(T.T @ outer(wi))  # noqa: E731
+        Y = _dynamic_solve_q(system, f, K, M, C, rhs_fn)
+        return np.asarray((T @ Y.T).T)
+    return _dynamic_solve_q(system, f, K, M, C, rhs_fn)
+
+
+def _dynamic_solve_q(system: System, f: np.ndarray, K, M, C, rhs_fn) -> np.ndarray:
     n_total = K.shape[0]
     w = 2 * np.pi * f
     if n_total == 0:
@@ -176,11 +191,31 @@ def _modal_solve(system: System, f: np.ndarray, F_all: np.ndarray, result=None,
 
 
 def _junction_mask(system: System) -> np.ndarray:
+    """DOFs of ``all_dofs`` condensed as massless junctions (a disc a rigid gear mesh ties to
+    another is not one: it moves with its coordinate)."""
+    T = getattr(system, "gear_basis", None)
+    if T is None:
+        retained = set(system.dofs)
+        return np.array([d not in retained for d in system.all_dofs])
     retained = set(system.dofs)
-    return np.array([d not in retained for d in system.all_dofs])
+    slave_q = np.array([d not in retained for d in system.solve_dofs])
+    T = sp.csr_matrix(T)
+    to_slave = np.asarray(abs(T[:, slave_q]).sum(axis=1)).ravel() > 0
+    return to_slave
 
 
 def _junction_static(system: System, F_all: np.ndarray) -> np.ndarray:
+    T = getattr(system, "gear_basis", None)
+    if T is not None:
+        # on the coordinates the rigid meshes leave, then back to every disc
+        T = sp.csr_matrix(T)
+        retained = set(system.dofs)
+        mask = np.array([d not in retained for d in system.solve_dofs])
+        Kq = sp.csr_matrix(T.T @ sp.csr_matrix(system.K_full) @ T).toarray()
+        Fq = np.asarray(T.T @ F_all).ravel()
+        xq = np.zeros(len(Fq), complex)
+        xq[mask] = np.linalg.pinv(Kq[np.ix_(mask, mask)]) @ Fq[mask]
+        return np.asarray(T @ xq).ravel()
     mask = _junction_mask(system)
     K = system.K_full.toarray() if sp.issparse(system.K_full) else system.K_full
     Kss = K[np.ix_(mask, mask)]
@@ -264,6 +299,11 @@ def base_transmissibility(model, freqs_hz, direction: str, relative: bool = Fals
     if direction not in system.model.directions:
         raise ModelError(f'base excitation: direction must be one of'
                          f' {", ".join(system.model.directions)}, got "{direction}"')
+    if any(g.ratio != 1.0 for g in system.model.gears):
+        raise ModelError("base excitation: a geared torsion model has no single base rotation"
+                         " (the anchors of shafts turning at different speeds cannot turn"
+                         " together); apply a harmonic moment to a disc instead"
+                         " (harmonic_response)")
     f = _freqs(freqs_hz)
     r = np.array([1.0 if d == direction else 0.0 for _, d in system.all_dofs])
     Mr = np.asarray(system.M_full @ r).ravel()

@@ -36,6 +36,7 @@ from scipy.sparse.csgraph import connected_components
 
 from . import factor
 from .errors import ModelError, checked_arguments, mode_number, shown
+from .assemble import spring_stretch
 from .modes import ModalResult
 
 
@@ -125,17 +126,11 @@ def strain_vectors(system, spring_index: int) -> tuple[np.ndarray, np.ndarray]:
     n_all = len(system.all_dofs)
     axial, trans = np.zeros(n_all), np.zeros(n_all)
     idx = system.spring_dofs[spring_index]
-    nd = idx.shape[0] // 2
-    if system.model.kind == "planar":
-        e = system.spring_axis[spring_index]
-        ce, cn = (e[0], e[1]), (-e[1], e[0])
-    else:
-        ce, cn = (1.0,) * nd, (0.0,) * nd
-    for d in range(nd):
-        for i, sign in ((idx[d], -1.0), (idx[nd + d], 1.0)):
-            if i >= 0:
-                axial[i] += sign * ce[d]
-                trans[i] += sign * cn[d]
+    coef = system.spring_coef[spring_index]
+    for j, i in enumerate(idx):
+        if i >= 0:
+            axial[i] += coef[0, j]
+            trans[i] += coef[1, j]
     return axial, trans
 
 
@@ -160,7 +155,7 @@ def unheld_junction_directions(system, near=None) -> np.ndarray:
         labels[i] for i in np.flatnonzero(np.isin(slaves, np.asarray(list(near), int)))}
     model = system.model
     planar = model.kind == "planar"
-    B, _w = factor.spring_rows(system.spring_dofs, system.spring_axis,
+    B, _w = factor.spring_rows(system.spring_dofs, system.spring_coef,
                                [s_.k for s_ in model.springs],
                                [s_.k_t for s_ in model.springs] if planar else None, n_all)
     Bs = sp.csc_matrix(sp.csr_matrix(B)[:, slaves])
@@ -186,35 +181,25 @@ def _relative_motion(result: ModalResult):
     """(n_modes, n_springs) axial and transverse relative displacement of each spring's ends."""
     system = result.system
     model = system.model
-    shapes = np.vstack([result.all_shapes, np.zeros((1, result.n_modes))])  # row -1 = ground
-    idx = system.spring_dofs
-    nd = idx.shape[1] // 2 if idx.size else len(model.directions)
     if len(model.springs) == 0:
         z = np.zeros((result.n_modes, 0))
         return z, z
-    ua = shapes[idx[:, :nd]]  # (n_s, nd, n_modes)
-    ub = shapes[idx[:, nd:]]
-    delta = ub - ua
-    if model.kind == "planar":
-        e = system.spring_axis
-        axial = np.einsum("si,sim->ms", e, delta)
-        n = np.stack([-e[:, 1], e[:, 0]], axis=1)
-        trans = np.einsum("si,sim->ms", n, delta)
-    else:
-        axial = delta[:, 0, :].T
-        trans = np.zeros_like(axial)
-    return axial, trans
+    axial, trans = spring_stretch(system, result.all_shapes)
+    return axial.T, trans.T
 
 
-def _mass_motion_squared(result: ModalResult):
-    """(n_modes, n_masses) |phi_j|^2 summed over each mass's free directions (junctions too)."""
+def _mass_motion_squared(result: ModalResult, rotation: bool = False):
+    """(n_modes, n_masses) |phi_j|^2 summed over each mass's free directions (junctions too):
+    its translations, or with ``rotation`` a planar rigid body's theta alone."""
     system = result.system
     model = system.model
     shapes = np.vstack([result.all_shapes, np.zeros((1, result.n_modes))])
     out = np.zeros((result.n_modes, len(model.masses)))
+    body_dir = (system.node_directions.index("theta") if model.kind == "planar"
+                and "theta" in system.node_directions else -1)
     for j, m in enumerate(model.masses):
-        for i in system.mass_dofs[m.id]:
-            if i >= 0:
+        for c, i in enumerate(system.mass_dofs[m.id]):
+            if i >= 0 and (c == body_dir) == rotation:
                 out[:, j] += shapes[i] ** 2
     return out
 
@@ -232,6 +217,9 @@ def energy_fractions(result: ModalResult) -> EnergyResult:
     strain = np.where(elastic, strain / np.where(total > 0, total, 1.0), 0.0)
     mass = np.array([m.mass for m in model.masses])
     kin = mass[None, :] * _mass_motion_squared(result)
+    if model.bodies:   # the kinetic energy of rotation, 1/2 J theta'^2
+        inertia = np.array([m.inertia for m in model.masses])
+        kin = kin + inertia[None, :] * _mass_motion_squared(result, rotation=True)
     ktot = kin.sum(axis=1, keepdims=True)
     kin = np.where(ktot > 0, kin / np.where(ktot > 0, ktot, 1.0), 0.0)
     return EnergyResult(spring_ids=tuple(s.id for s in model.springs),

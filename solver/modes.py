@@ -32,7 +32,7 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from . import factor
-from .assemble import System, assemble
+from .assemble import System, assemble, spring_stretch
 from .errors import ModelError, checked_arguments, mode_number, shown
 from .model import Model
 from .naming import named, named_id, quoted_id
@@ -629,19 +629,19 @@ def _geometric_strain(system: System, V_all: np.ndarray) -> np.ndarray:
     the relative end motion along the spring (and across it where k_t > 0), (n_rows, n_cols).
     No stiffness enters, so a soft spring beside a stiff one counts as much (geometry only)."""
     model = system.model
-    V = np.vstack([np.asarray(V_all, float), np.zeros((1, V_all.shape[1]))])  # row -1: ground
-    idx = system.spring_dofs
     if len(model.springs) == 0:
-        return np.zeros((0, V_all.shape[1]))
-    if idx.shape[1] == 2:   # line and torsion: one component per node
-        return V[idx[:, 1]] - V[idx[:, 0]]
-    delta = V[idx[:, 2:]] - V[idx[:, :2]]  # (n_s, 2, n_cols)
-    e = system.spring_axis
-    n = np.stack([-e[:, 1], e[:, 0]], axis=1)
-    axial = np.einsum("si,sim->sm", e, delta)
-    trans = np.einsum("si,sim->sm", n, delta)
-    has_kt = np.array([sp_.k_t > 0 for sp_ in model.springs])
-    return np.vstack([axial, trans[has_kt]])
+        rows = np.zeros((0, V_all.shape[1]))
+    else:
+        axial, trans = spring_stretch(system, np.asarray(V_all, float))
+        if model.kind == "planar":
+            has_kt = np.array([sp_.k_t > 0 for sp_ in model.springs])
+            rows = np.vstack([axial, trans[has_kt]])
+        else:
+            rows = axial
+    M = system.mesh_rows
+    if M is not None and M.shape[0]:
+        rows = np.vstack([rows, np.asarray(M @ np.asarray(V_all, float))])
+    return rows
 
 
 def _strain_free_count(system: System, Z: np.ndarray, rtol: float = 1e-6) -> int:
@@ -712,8 +712,10 @@ def _components(model: Model):
 
     ids = [el.id for el in model.masses + model.anchors]
     index = {n: i for i, n in enumerate(ids)}
-    a = np.array([index[sp_.a] for sp_ in model.springs], dtype=np.int64)
-    b = np.array([index[sp_.b] for sp_ in model.springs], dtype=np.int64)
+    # gear stages join their discs as springs do (a rigid mesh or a mesh stiffness)
+    links = list(model.springs) + list(model.gears)
+    a = np.array([index[sp_.a] for sp_ in links], dtype=np.int64)
+    b = np.array([index[sp_.b] for sp_ in links], dtype=np.int64)
     graph = sp.coo_matrix((np.ones(len(a)), (a, b)), shape=(len(ids), len(ids)))
     _, labels = connected_components(graph, directed=False)
     groups: dict = {}
@@ -728,6 +730,8 @@ _VERB = {"x": "slide along x", "y": "slide along y", "theta": "spin freely about
 def _rigid_body_basis(system: System, M_diag):
     """Rigid-body motions allowed by the model, on ``system.dofs``, with a cause for each."""
     model = system.model
+    if model.gears:
+        return _geared_rigid_basis(system, M_diag)
     anchors = {a.id for a in model.anchors}
     masses = {m.id: m for m in model.masses}
     lookup = {d: i for i, d in enumerate(system.all_dofs)}
@@ -744,10 +748,16 @@ def _rigid_body_basis(system: System, M_diag):
             tot = sum(m.mass for m in gm)
             cx = sum(m.mass * m.x for m in gm) / tot
             cy = sum(m.mass * m.y for m in gm) / tot
-            cand = {"x": lambda m: (1.0, 0.0), "y": lambda m: (0.0, 1.0),
-                    "rot": lambda m: (-(m.y - cy), m.x - cx)}
+            cand = {"x": lambda m: (1.0, 0.0, 0.0), "y": lambda m: (0.0, 1.0, 0.0),
+                    "rot": lambda m, cx=cx, cy=cy: (-(m.y - cy), m.x - cx, 1.0)}
             names = ["x", "y", "rot"]
-            comps = ("x", "y")
+            # a rigid body may also turn on its own about its centre
+            for body in gm:
+                if body.inertia > 0:
+                    names.append("spin " + body.id)
+                    cand[names[-1]] = (lambda m, bid=body.id:
+                                       (0.0, 0.0, 1.0 if m.id == bid else 0.0))
+            comps = ("x", "y", "theta")
         else:
             d0 = model.directions[0]
             cand = {d0: lambda m: (1.0,)}
@@ -757,7 +767,10 @@ def _rigid_body_basis(system: System, M_diag):
         free_rows, locked_rows = [], []
         for m in gm:
             vals = [cand[nm](m) for nm in names]
+            own = model.directions_of(m)
             for ci, d in enumerate(comps):
+                if d not in own:
+                    continue
                 row = [v[ci] for v in vals]
                 (locked_rows if d in m.fixed else free_rows).append(((m.id, d), row))
         A_lock = np.array([r for _, r in locked_rows]).reshape(len(locked_rows), len(names))
@@ -795,6 +808,52 @@ def _rigid_body_basis(system: System, M_diag):
     if basis.shape[1] < V.shape[1]:
         info = info[: basis.shape[1]]
     return basis, info
+
+
+def _geared_rigid_basis(system: System, M_diag):
+    """Rigid-body motions of a torsion model with gear stages: in each group of discs joined by
+    springs and gears and held by no anchor, the turning of the whole train that twists no
+    spring and strains no mesh (each disc at its own speed), on ``system.dofs``."""
+    model = system.model
+    anchors = {a.id for a in model.anchors}
+    masses = {m.id: m for m in model.masses}
+    T = system.gear_basis
+    n_all = len(system.all_dofs)
+    T = sp.identity(n_all, format="csr") if T is None else sp.csr_matrix(T)
+    q_look = {d: i for i, d in enumerate(system.solve_dofs)}
+    retained = [q_look[d] for d in system.dofs]
+    vectors, info = [], []
+    groups = _components(model)
+    moving = [g for g in groups if not (set(g) & anchors)]
+    for g in moving:
+        gm = [masses[i] for i in g]
+        if not any(m.mass > 0 for m in gm):
+            continue
+        cols = sorted({q_look[(mid, "theta")] for mid in g if (mid, "theta") in q_look})
+        if not cols:
+            continue
+        V = np.asarray(T[:, cols].toarray())
+        S = _geometric_strain(system, V)
+        scale = max(np.abs(V).max(), 1e-300)
+        ok = _null_space(S, 1e-9, scale) if S.size else np.eye(len(cols))
+        ids = tuple(sorted(m.id for m in gm if m.mass > 0))
+        whole = len(gm) == len(model.masses)
+        for j in range(ok.shape[1]):
+            vq = np.zeros(len(system.solve_dofs))
+            vq[cols] = ok[:, j]
+            vec = vq[retained]
+            if not np.any(np.abs(vec) > 1e-12):
+                continue
+            vectors.append(vec / np.abs(vec).max())
+            info.append((_rigid_cause(model, (1.0,), ["theta"], whole, ids, gm)
+                         .replace("spin freely as a rigid body",
+                                  "spin freely as a rigid body, each disc at its gear's speed"),
+                         ids))
+    if not vectors:
+        return np.zeros((system.n_dof, 0)), []
+    V = np.array(vectors).T
+    basis = _m_orthonormalise(V, M_diag)
+    return basis, info[: basis.shape[1]]
 
 
 def _null_space(A, rtol, scale=None):
@@ -872,7 +931,15 @@ def _rigid_cause(model, coef, names, whole, ids, gm, held=False):
         verb = "spin freely" if torsion else _VERB[names[0]]
         strain = "no spring is twisted" if torsion else "no spring is stretched"
         return f"{who} can {verb} as a rigid body{why}; {strain})"
-    a, b, c = coef
+    spins = [(nm[5:], v) for nm, v in zip(names[3:], coef[3:]) if abs(v) > 1e-12]
+    if spins and np.all(np.abs(coef[:3]) < 1e-12):
+        if len(spins) == 1:
+            return (f"{named_id(model, spins[0][0], 'mass')} can rotate freely about its centre"
+                    " (no spring or attachment resists its rotation: its springs act through"
+                    " its centre; no spring is strained)")
+        return ("masses " + ", ".join(quoted_id(model, i) for i, _ in spins[:4])
+                + " can rotate together about their centres (no spring is strained)")
+    a, b, c = coef[:3]
     if abs(c) < 1e-12:
         if abs(b) < 1e-12:
             verb = "slide along x"

@@ -69,6 +69,7 @@ def initial_vectors(system: System, x0=None, v0=None):
     model = system.model
     warnings = []
     lookup = {d: i for i, d in enumerate(system.dofs)}
+    masses = {m.id: m for m in model.masses}
     n = system.n_dof
 
     def build(given, what):
@@ -93,7 +94,7 @@ def initial_vectors(system: System, x0=None, v0=None):
             value = number(value, f"initial {what} of {quoted_id(model, key[0])} in {key[1]}")
             if key in lookup:
                 vec[lookup[key]] = value
-            elif key[0] not in {m.id for m in model.masses} or key[1] not in model.directions:
+            elif key[0] not in masses or key[1] not in model.directions_of(masses[key[0]]):
                 from .assemble import _no_dof_message
 
                 raise ModelError(f"free response: initial {what}: "
@@ -101,7 +102,9 @@ def initial_vectors(system: System, x0=None, v0=None):
             elif value:
                 warnings.append(f"initial {what} of {quoted_id(model, key[0])} in {key[1]} is"
                                 " ignored: that direction is locked or belongs to a massless"
-                                " junction")
+                                " junction" + (", or the disc turns with the disc a rigid gear"
+                                               " mesh ties it to (give the value on that one)"
+                                               if model.gears else ""))
         return vec
 
     return build(x0, "displacement"), build(v0, "velocity"), warnings

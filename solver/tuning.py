@@ -88,6 +88,9 @@ def _field_for(model: Model, element_id: str, field: str | None):
             raise ModelError(f"{named(el)}: k_t acts only in planar models")
     elif isinstance(el, Mass):
         f = field or "mass"
+        if f == "inertia" and model.kind == "planar":
+            raise ModelError(f'{named(el)}: retuning a rigid body\'s rotary inertia is not'
+                             ' available; retune its mass or a mount\'s stiffness')
         if f == "inertia":
             f = "mass"
         if f != "mass":
@@ -264,11 +267,11 @@ def _limit_pencil(model, system, el, f, toward):
             kt[j] = 0.0
         if toward == "infinity":
             one, none = np.ones(1), np.zeros(1)
-            Bc, _w = factor.spring_rows(system.spring_dofs[j:j + 1], system.spring_axis[j:j + 1],
+            Bc, _w = factor.spring_rows(system.spring_dofs[j:j + 1], system.spring_coef[j:j + 1],
                                         one if f == "k" else none,
                                         (none if f == "k" else one) if planar else None, n_all)
             c = Bc.toarray().ravel() if Bc.shape[0] else None
-    B, w = factor.spring_rows(system.spring_dofs, system.spring_axis, k, kt, n_all)
+    B, w = factor.spring_rows(system.spring_dofs, system.spring_coef, k, kt, n_all)
     extra_zeros = 0
     if isinstance(el, Mass):
         own = [i for i in system.mass_dofs[el.id] if i >= 0]
@@ -310,6 +313,10 @@ def limit_spectrum(model: Model, element_id: str, field: str | None, toward: str
 def _limit_spectrum(model, element_id, field, toward, n_zero=None, count=None, system=None):
     """:func:`limit_spectrum`, and the estimated relative error of each limit's frequency."""
     el, f = _field_for(model, element_id, field)
+    if model.gears:
+        raise ModelError("limit_spectrum: the exact limits are built from springs alone and are"
+                         " not available for a model with gear stages (retune and"
+                         " reachable_range estimate them by solving the model)")
     if toward not in ("zero", "infinity"):
         raise ModelError(f'limit: toward must be "zero" or "infinity", got "{toward}"')
     if getattr(el, f) <= 0:
@@ -371,7 +378,9 @@ def _limits(model, element_id, f, mode, n_zero=None, system=None, who="retune"):
     ``mode`` in Hz."""
     system = assemble(model) if system is None else system
     mode_number(mode, system.n_dof, who)   # before any count is handed to an eigensolver
-    if len(system.all_dofs) <= LIMIT_DENSE_DOF:
+    # the exact limits are built from the springs' rows alone; a gear stage (a mesh row or a
+    # constraint) takes the estimated path, which solves the model itself
+    if len(system.all_dofs) <= LIMIT_DENSE_DOF and not model.gears:
         at0, e0 = _limit_spectrum(model, element_id, f, "zero", n_zero, mode, system)
         atinf, einf = _limit_spectrum(model, element_id, f, "infinity", n_zero, mode, system)
         exact = True
@@ -425,14 +434,14 @@ def _count_below(system, omega2: float) -> int | None:
     values are read: the count never uses the condensation or the eigen-solver)."""
     model = system.model
     n_all = len(system.all_dofs)
-    if n_all > COUNT_DENSE_DOF:
+    if n_all > COUNT_DENSE_DOF or model.gears:   # the count reads springs only
         return None
     if n_all == 0:
         return 0
     planar = model.kind == "planar"
     k = np.array([s_.k for s_ in model.springs], float)
     kt = np.array([s_.k_t for s_ in model.springs], float) if planar else None
-    B, w = factor.spring_rows(system.spring_dofs, system.spring_axis, k, kt, n_all)
+    B, w = factor.spring_rows(system.spring_dofs, system.spring_coef, k, kt, n_all)
     n_r = B.shape[0]
     m_all = np.asarray(system.M_full.diagonal(), float).ravel()
     A = np.zeros((n_r + n_all, n_r + n_all))
