@@ -131,7 +131,7 @@ def elastic_centre(model, body_id: str) -> tuple[float, float] | None:
     """The body's elastic centre relative to its centre of mass (m, body frame), None when
     it is not a finite point."""
     c = coupling(model).get(body_id)
-    e = getattr(c, "elastic_centre", None) if c is not None else None
+    e = getattr(c, "offset_m", None) if c is not None else None
     if e is None:
         return None
     try:

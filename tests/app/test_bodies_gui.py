@@ -243,3 +243,55 @@ def test_gear_tool_only_in_torsion_models(qtbot, window):
     _open(window, _geared())
     window.scene.set_mode(Mode.PLACE_BODY)
     assert window.scene.mode == Mode.SELECT
+
+
+def _wait(qtbot, window):
+    window.solver.wait()
+    qtbot.waitUntil(lambda: window.analysis is not None
+                    and window.analysis.model is window.document.model, timeout=8000)
+
+
+def test_body_turns_on_the_canvas_by_theta_times_the_magnification(qtbot, window):
+    """Math (rigid-body kinematics): a body displaced by (u_x, u_y) and turned by theta moves
+    an attachment point at r to c + u + R(theta) r. On the canvas a mode is drawn magnified by
+    g: the box is translated by g u and turned by theta g / px_per_m (the same true-size
+    factor), and each spring ends on its mount point so moved. The mode itself comes from
+    solver.modes, checked here only for having a turn to show."""
+    import solver
+
+    _open(window, _skid())
+    _wait(qtbot, window)
+    modal = window.analysis.modal
+    j = modal.dofs.index(("m1", "theta"))
+    n = 1 + max(range(modal.n_modes), key=lambda i: abs(modal.shapes[j, i]))
+    panel = window.motion_panel
+    panel.pause()
+    panel.canvas_box.setChecked(True)
+    panel.show_mode(n)
+    panel.pause()
+    panel.step()
+    frame = panel.displayed_positions()["m1"]
+    assert abs(frame["theta"]) > 0
+    motion = window.canvas_motion
+    item = window.scene.nodes["m1"]
+    ppm = window.scene.mapper.px_per_m
+    turn = frame["theta"] * motion.magnification / ppm
+    assert motion.drawn_turn("m1") == pytest.approx(turn, rel=1e-12)
+    t = item.transform()
+    # Qt's y points down: a counter-clockwise turn on the page is a clockwise matrix
+    assert math.atan2(t.m12(), t.m11()) == pytest.approx(-turn, abs=1e-9)
+    assert t.dx() == pytest.approx(frame["x"] * motion.magnification, rel=1e-9, abs=1e-9)
+    assert t.dy() == pytest.approx(-frame.get("y", 0.0) * motion.magnification, abs=1e-9)
+    assert abs(turn) <= math.radians(55) + 1e-12
+    # spring s2's end on its mount point (0.6, -0.2): c + g u + R(turn) r, in scene units
+    (ox, oy) = (0.6, -0.2)
+    c, s_ = math.cos(turn), math.sin(turn)
+    x = 0.0 + frame["x"] * motion.magnification / ppm + (c * ox - s_ * oy)
+    y = 0.5 + frame.get("y", 0.0) * motion.magnification / ppm + (s_ * ox + c * oy)
+    expected = window.scene.mapper.to_scene(x, y)
+    end = window.scene.links["s2"].endpoints()[1]
+    assert end.x() == pytest.approx(expected.x(), abs=1e-6)
+    assert end.y() == pytest.approx(expected.y(), abs=1e-6)
+    assert solver.modes(window.document.model).n_modes == modal.n_modes
+    panel.canvas_box.setChecked(False)
+    assert window.scene.nodes["m1"].transform().isIdentity()
