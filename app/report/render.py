@@ -3,7 +3,8 @@
 :func:`render_report` paints onto a QImage (works with ``QT_QPA_PLATFORM=offscreen``): a title
 block, the model sketch, the mode table, a thumbnail of each reported mode shape over the
 undeformed layout in grey, the notes on zero-frequency and repeated modes, the solver's warnings and
-the cautions; with excitation sources the margin check and its table, and with a shaft speed the
+the cautions; with rigid bodies or gear stages, how each body's motions couple on its mounts and
+the geared system referred to one shaft; with excitation sources the margin check and its table, and with a shaft speed the
 interference diagram. The page is A4 portrait (210 x 297 mm); a model with very long notes makes it
 taller rather than cramming the text. Each section is a module of this package.
 """
@@ -65,6 +66,12 @@ def render_report(model, analysis, path, dpi: int = 200, date: str | None = None
         if n_shown:
             pg.heading("Mode shapes")
             _thumbnails(pg, model, analysis, n_shown, n_total)
+        from app.report.bodies import paint_bodies, section_title
+
+        title = section_title(model)
+        if title:
+            pg.heading(title)
+            paint_bodies(pg, model)
         if response is None:
             from app.results.response_data import default_report_response
 

@@ -57,11 +57,17 @@ def _thumbnails(pg: _Page, model, analysis, n_shown: int, n_total: int):
         title = f"Mode {n}: " + (f"0 Hz ({z.kind})" if z is not None else hz(f))
         if modal.repeated_group(n):
             title += ", repeated"
-        eff = "  ".join(f"{dd} {percent(pct[dd][i])} %" for dd in dirs)
+        eff = "  ".join(f"{'θ' if dd == 'theta' else dd} {percent(pct[dd][i])} %"
+                        for dd in dirs)
+        fm = QFontMetricsF(pg.font(cap_pt))
+        eff = "eff. mass " + eff
+        if fm.horizontalAdvance(eff) > tw:   # three directions (a body's turn): one line
+            eff = fm.elidedText(eff.replace("eff. mass ", "eff. ").replace(" %", "%"),
+                                Qt.TextElideMode.ElideRight, tw)
         pg.text(QRectF(x, y + th + 0.02 * d, tw, cap_h), title, cap_pt, True,
                 st.warning if z is not None else st.ink)
-        pg.text(QRectF(x, y + th + 0.02 * d + cap_h / 3.3, tw, cap_h), "eff. mass " + eff,
-                cap_pt, False, st.ink_soft)
+        pg.text(QRectF(x, y + th + 0.02 * d + cap_h / 3.3, tw, cap_h / 3.3), eff,
+                cap_pt, False, st.ink_soft, Qt.AlignmentFlag.AlignLeft)
         dominant = analysis.energy.dominant_spring(n)
         if dominant is not None:
             share = analysis.energy.strain[i, analysis.energy.spring_ids.index(dominant)]
