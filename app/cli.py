@@ -185,7 +185,50 @@ def solve_json(analysis) -> dict:
         # "margins" (the margin table), "interference"; a separation from a source at 0 Hz
         # is infinite, which JSON writes as null
         **_finite_json(solve_json_keys(model, modal)),
+        **_finite_json(_bodies_and_gears_json(model, modal)),
     }
+
+
+def _reference_disc(model) -> str:
+    """The shaft a geared model is referred to: its first disc (the driver, as drawn)."""
+    return model.masses[0].id
+
+
+def _bodies_and_gears_json(model, modal) -> dict:
+    """``bodies`` (rigid bodies' coupling) and ``gears_referred`` (the equivalent system on one
+    shaft, and every disc's motion), present only when the model has bodies or gears."""
+    from solver import ModelError
+    from solver.bodies import body_coupling, referred_system
+
+    out = {}
+    if model.bodies:
+        out["bodies"] = [{"id": c.body_id, "label": c.label, "coupled": c.coupled,
+                          "coupling": c.coefficients,
+                          "elastic_centre_m": (list(c.elastic_centre_m)
+                                               if c.elastic_centre_m is not None else None),
+                          "offset_m": list(c.offset_m) if c.offset_m is not None else None,
+                          "stiffness": [_nums(row) for row in c.stiffness],
+                          "statement": c.statement}
+                         for c in body_coupling(model)]
+    if model.gears:
+        try:
+            ref = referred_system(model, _reference_disc(model))
+        except ModelError as exc:   # a loop of disagreeing ratios: said, the modes stand
+            out["gears_referred"] = {"error": str(exc)}
+            return out
+        eq = ref.model
+        out["gears_referred"] = {
+            "reference": ref.reference,
+            "speed_ratios": ref.speed_ratios,
+            "inertias_kg_m2": {m.id: m.mass for m in eq.masses},
+            "merged": {k: list(v) for k, v in ref.merged.items()},
+            "stiffnesses_n_m_rad": {s.id: s.k for s in eq.springs},
+            "statements": list(ref.statements),
+            # every disc's angle in each mode (a disc tied by a rigid mesh is not in "dofs")
+            "all_dofs": [[mid, d] for mid, d in modal.all_dofs],
+            "all_shapes": [_nums(modal.all_shapes[:, i]) for i in range(modal.n_modes)],
+        }
+    return out
 
 
 def solve_table(analysis) -> str:
@@ -244,7 +287,9 @@ def solve_table(analysis) -> str:
         lines.append(row)
     lines.append("")
     lines.append("total mass free to move: " + ", ".join(
-        f"{d} {quantity(modal.total_mass[d], unit)}" for d in dirs))
+        f"{d} {quantity(modal.total_mass[d], 'kg m^2' if d == 'theta' else unit)}"
+        for d in dirs))
+    lines += _bodies_and_gears_lines(model)
     for w in analysis.warnings:
         lines.append(f"warning: {w}")
     for v in said:
@@ -255,6 +300,24 @@ def solve_table(analysis) -> str:
     lines.append("")
     lines.append(CAUTION)
     return _lines_text(lines)
+
+
+def _bodies_and_gears_lines(model) -> list:
+    """Coupling of each rigid body, and the geared model's equivalent on one shaft."""
+    from solver import ModelError
+    from solver.bodies import body_coupling, referred_system
+
+    lines = []
+    for c in body_coupling(model):
+        lines.append(f"body: {c.statement}")
+    if model.gears:
+        try:
+            ref = referred_system(model, _reference_disc(model))
+        except ModelError as exc:   # a loop of disagreeing ratios: said, the table stands
+            lines.append(f"gears: {exc}")
+        else:
+            lines += [f"gears: {line}" for line in ref.statements]
+    return lines
 
 
 def _lines_text(lines) -> str:

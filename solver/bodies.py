@@ -136,7 +136,7 @@ def _coupling_of(model, body: Mass, K: np.ndarray, size: float) -> BodyCoupling:
     where = _where(dx, dy, tol)
     pairs = [k.split("-")[0] for k, c in coef.items() if c > COUPLING_RTOL]
     if coupled:
-        head = " and ".join(pairs) + " and rock are coupled"
+        head = ", ".join(pairs) + " and rock are coupled"
         statement = f"{who}: {head}: the elastic centre lies {where}"
     else:
         statement = (f"{who}: bounce, sway and rock are uncoupled: the elastic centre lies"
@@ -264,7 +264,7 @@ def referred_system(model: Model, disc_id: str) -> ReferredSystem:
             f" {quoted_id(model, g.b)} are multiplied by {side ** 2:.4g} (speed ratio"
             f" {_ratio_text(side)} squared); {mesh}")
     lines.append(f"equivalent system on the shaft of {ref}: "
-                 + ", ".join(f"{quoted_id(model, h)} {m.mass:.4g} kg m^2"
+                 + ", ".join(f"{quoted_id(equivalent, h)} {m.mass:.4g} kg m^2"
                              for h, m in zip(merged, masses))
                  + ("; " + ", ".join(f"{quoted_id(equivalent, s.id)} {s.k:.4g} N m/rad"
                                      for s in springs) if springs else ""))

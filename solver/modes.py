@@ -737,9 +737,14 @@ def _rigid_body_basis(system: System, M_diag):
     lookup = {d: i for i, d in enumerate(system.all_dofs)}
     vectors, info = [], []
     groups = _components(model)
-    moving_groups = [g for g in groups if not (set(g) & anchors)]
+    # a group held by an anchor cannot move as a whole, but a rigid body in it may still turn
+    # about its own centre (its springs all act through the centre)
+    moving_groups = [g for g in groups if not (set(g) & anchors)
+                     or any(masses[i].inertia > 0 for i in g if i in masses)]
     n_mass_total = len(model.masses)
     for g in moving_groups:
+        grounded = bool(set(g) & anchors)
+        g = [i for i in g if i in masses]
         gm = [masses[i] for i in g]
         if not any(m.mass > 0 for m in gm):
             continue
@@ -773,6 +778,9 @@ def _rigid_body_basis(system: System, M_diag):
                     continue
                 row = [v[ci] for v in vals]
                 (locked_rows if d in m.fixed else free_rows).append(((m.id, d), row))
+        if grounded:   # the group itself is held: only the bodies' own turning is left
+            locked_rows += [(None, [1.0 if j == i else 0.0 for j in range(len(names))])
+                            for i in range(3)]
         A_lock = np.array([r for _, r in locked_rows]).reshape(len(locked_rows), len(names))
         coeffs = _null_space(A_lock, 1e-12) if len(locked_rows) else np.eye(len(names))
         if coeffs.shape[1] == 0:
