@@ -244,13 +244,20 @@ class ModelScene(QGraphicsScene):
             if _stale(item, key):   # unchanged items are left alone (a slider step on 200 masses)
                 item.update_from(m, model, reference_mass=reference)
                 _synced(item, key)
-        neighbours: dict[str, str] = {}
+        neighbours: dict[str, tuple] = {}
         for link in model.springs + model.dampers:
-            neighbours.setdefault(link.a, link.b)
-            neighbours.setdefault(link.b, link.a)
+            # the point the anchor holds: a mount point of a body, else the node itself
+            neighbours.setdefault(link.a, (link.b, bodies.offset_of(link, "b")))
+            neighbours.setdefault(link.b, (link.a, bodies.offset_of(link, "a")))
         for a in model.anchors:
             other = neighbours.get(a.id)
-            normal = normal_towards(a, model.node(other)) if other else None
+            if other:
+                node, (ox, oy) = model.node(other[0]), other[1]
+                normal = normal_towards(a, dataclasses.replace(node, x=node.x + ox,
+                                                               y=node.y + oy)
+                                        if (ox, oy) != bodies.ORIGIN else node)
+            else:
+                normal = None
             item = self.nodes.get(a.id)
             if not isinstance(item, AnchorItem):
                 if item is not None:

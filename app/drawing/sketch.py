@@ -338,7 +338,8 @@ class SketchLayout:
             other = el.b if el.a == anchor_id else el.a if el.b == anchor_id else None
             if other is None:
                 continue
-            p = self.point(other)
+            # towards the point held: a mount point of a body, not the body's centre
+            p = self.attach(other, _bodies.offset_of(el, "b" if other == el.b else "a"))
             dx, dy = p.x() - a.x(), p.y() - a.y()
             d = math.hypot(dx, dy)
             if d > 1e-9:
@@ -628,7 +629,10 @@ def symbol_rects(lay: SketchLayout, displacements: dict | None = None,
     for m in lay.model.masses:
         c = lay.point(m.id, displacements, scale)
         h = _symbol_half(lay, m)
-        out.append(QRectF(c.x() - h, c.y() - h, 2 * h, 2 * h))
+        if lay.is_body(m.id) and not lay.turn(m.id, displacements, scale):
+            out.append(lay.mass_rect(m, c))      # a body's box as drawn (turned: its circle)
+        else:
+            out.append(QRectF(c.x() - h, c.y() - h, 2 * h, 2 * h))
     return out
 
 
@@ -936,6 +940,8 @@ def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
         c = lay.point(m.id)
         half = _symbol_half(lay, m)
         box = QRectF(c.x() - half, c.y() - half, 2 * half, 2 * half)
+        if lay.is_body(m.id):
+            box = lay.mass_rect(m, c)        # a body's box is rarely square
         if m.fixed:
             box = box.adjusted(-0.4 * base, 0, 0, 0.4 * base)     # the lock marks
         mass_box[m.id] = box
