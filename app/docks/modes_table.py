@@ -17,6 +17,8 @@ from app.results.mode_rows import (_modal, mode_table_cells, mode_table_csv, mod
 
 #: The notes column is never narrower than this (px); longer notes wrap.
 MIN_NOTES = 120
+#: Narrowest the notes column gets when the number columns leave less than MIN_NOTES (px).
+NOTES_FLOOR = 40
 
 
 def _two_lines(text: str) -> str:
@@ -265,7 +267,10 @@ class ModesTable(QWidget):
             hdr = self.view.horizontalHeader()
             notes = len(header) - 1
             others = sum(hdr.sectionSize(c) for c in range(len(header)) if c != notes)
-            width = max(MIN_NOTES, self.view.viewport().width() - others)
+            room = self.view.viewport().width() - others
+            # a rigid body adds two columns (theta): the notes then wrap narrower rather than
+            # push a column out of sight, down to a floor where a word still fits a line
+            width = max(MIN_NOTES if room >= MIN_NOTES else NOTES_FLOOR, room)
             if width != hdr.sectionSize(notes):
                 hdr.resizeSection(notes, width)
             want = self.view.sizeHintForColumn(notes) if self._model.rowCount() else 0

@@ -198,6 +198,23 @@ def model_counts(model) -> str:
     return ", ".join(parts)
 
 
+def _gear_note(model, gear_id: str) -> tuple[str, str]:
+    """(the referred-system line of this gear stage, every line for the tooltip): the whole
+    equivalent system is longer than the panel has room for; the report states it all."""
+    lines = bodies.referred_statements(model)
+    mine = [s for s in lines if f'({gear_id})' in s or f'"{gear_id}"' in s]
+    text = _without_name(mine[0]) if mine else ""
+    return text, "\n".join(lines)
+
+
+def _without_name(statement: str) -> str:
+    """A body's statement without its leading ``mass "name" (id): `` (the panel's title names
+    the body already), capitalised."""
+    head, sep, rest = statement.partition("): ")
+    text = rest if sep and head.count('"') >= 2 else statement
+    return text[:1].upper() + text[1:]
+
+
 def _body_ends(model, el) -> tuple[str, ...]:
     """The ends (``"a"``, ``"b"``) of a spring or dashpot that sit on a rigid body."""
     if not isinstance(el, (Spring, Damper)) or model.kind != "planar":
@@ -353,7 +370,9 @@ class PropertyPanel(QWidget):
                     w.setChecked(bool(getter(model)))
                 elif isinstance(w, QLabel):
                     text = getter(model)
+                    text, tip = text if isinstance(text, tuple) else (text, text)
                     w.setText(text)
+                    w.setToolTip(tip)
                     w.setVisible(bool(text))
 
     def _rebuild(self, model, elements):
@@ -445,15 +464,28 @@ class PropertyPanel(QWidget):
         self._widgets["label"] = edit
         self._text_getters["label"] = (edit, lambda m, i=el.id: m.element(i).label)
 
-    def _build_node_common(self, el):
+    def _build_node_common(self, el, pair: bool = False):
         self._build_label(el)
-        for axis in ("x", "y"):
-            self._add_quantity(axis, "length", f"Position {axis}",
-                               lambda m, i=el.id, a=axis: getattr(m.element(i), a),
-                               lambda v, i=el.id, a=axis: self.document.set_element(i, **{a: v}))
+        fields = [self._add_quantity(axis, "length", f"Position {axis}",
+                                     lambda m, i=el.id, a=axis: getattr(m.element(i), a),
+                                     lambda v, i=el.id, a=axis: self.document.set_element(
+                                         i, **{a: v}), row=not pair)
+                  for axis in ("x", "y")]
+        if pair:
+            self._pair_row("Position x, y", *fields)
+
+    def _pair_row(self, label, first, second):
+        """Two fields side by side on one row (a body's rows: they must fit without scrolling)."""
+        box = QWidget()
+        row = QHBoxLayout(box)
+        row.setContentsMargins(0, 0, 0, 0)
+        row.setSpacing(4)
+        row.addWidget(first, 1)
+        row.addWidget(second, 1)
+        self.form.addRow(label, box)
 
     def _build_mass(self, model, el):
-        self._build_node_common(el)
+        self._build_node_common(el, pair=el.inertia > 0)
         kind = _mass_kind(model)
         self._add_quantity("mass", kind, "Inertia" if kind == "inertia" else "Mass",
                            lambda m, i=el.id: m.element(i).mass,
@@ -468,7 +500,7 @@ class PropertyPanel(QWidget):
                 + self.field("inertia")._hint)
             if el.inertia > 0:
                 self._add_note("coupling", "Coupling",
-                               lambda m, i=el.id: bodies.coupling_statement(m, i))
+                               lambda m, i=el.id: _without_name(bodies.coupling_statement(m, i)))
         directions = model.directions_of(el)
         row = QHBoxLayout()
         box = QWidget()
@@ -484,16 +516,23 @@ class PropertyPanel(QWidget):
             self._text_getters[f"fixed_{d}"] = (cb, lambda m, i=el.id, d=d: d in m.element(i).fixed)
         row.addStretch(1)
         self.form.addRow("Locked", box)
+        # a body has three directions: each direction's displacement and velocity share a row,
+        # so its fifteen fields fit the panel's first height without scrolling
+        pair = el.inertia > 0 and len(directions) > 2
         for d in directions:
             rot = d == "theta"
-            self._add_quantity(f"init_{d}", "angle" if rot else "length", f"Initial {d}",
-                               lambda m, i=el.id, d=d: self._initial(m, i, "displacement", d),
-                               lambda v, i=el.id, d=d: self.document.set_initial(
-                                   i, d, displacement=v))
-            self._add_quantity(f"init_v{d}", "angular velocity" if rot else "velocity",
-                               f"Initial v{d}",
-                               lambda m, i=el.id, d=d: self._initial(m, i, "velocity", d),
-                               lambda v, i=el.id, d=d: self.document.set_initial(i, d, velocity=v))
+            disp = self._add_quantity(
+                f"init_{d}", "angle" if rot else "length", f"Initial {d}",
+                lambda m, i=el.id, d=d: self._initial(m, i, "displacement", d),
+                lambda v, i=el.id, d=d: self.document.set_initial(i, d, displacement=v),
+                row=not pair)
+            vel = self._add_quantity(
+                f"init_v{d}", "angular velocity" if rot else "velocity", f"Initial v{d}",
+                lambda m, i=el.id, d=d: self._initial(m, i, "velocity", d),
+                lambda v, i=el.id, d=d: self.document.set_initial(i, d, velocity=v),
+                row=not pair)
+            if pair:
+                self._pair_row(f"Initial {d}, v{d}", disp, vel)
 
     def _add_note(self, name: str, label: str, getter) -> None:
         """A line of text from the model (a body's coupling, a geared system referred to one
@@ -543,8 +582,7 @@ class PropertyPanel(QWidget):
             lambda: self.document.set_element(i, k_mesh=None), f))
         self.form.addRow("Mesh stiffness", mesh)
         self._fields["k_mesh"] = (mesh, lambda m, i=el.id: m.element(i).k_mesh)
-        self._add_note("referred", "Referred",
-                       lambda m: "\n".join(bodies.referred_statements(m)))
+        self._add_note("referred", "Referred", lambda m, i=el.id: _gear_note(m, i))
 
     @staticmethod
     def _initial(model, mass_id, what, direction):
@@ -624,13 +662,17 @@ class PropertyPanel(QWidget):
         self.form.addRow(self.damping_editor)
         self._widgets["damping"] = self.damping_editor
 
-    def _add_quantity(self, name, kind, label, getter, setter):
+    def _add_quantity(self, name, kind, label, getter, setter, row: bool = True):
         field = QuantityField(kind, self.unit_system)
         field.setObjectName(f"field_{name}")
         field.edit.setObjectName(f"edit_{name}")
         field.value_entered.connect(lambda v, f=field: self._try(lambda: setter(v), f))
-        self.form.addRow(label, field)
+        if row:
+            self.form.addRow(label, field)
+        else:
+            field.edit.setToolTip(f"{label}: {field._hint}")
         self._fields[name] = (field, getter)
+        return field
 
     def _try(self, edit, field: QuantityField | None):
         """Run an edit; a refusal by the model is shown in place and the model stays as it was."""
