@@ -165,6 +165,19 @@ def referred_statements(model) -> list[str]:
     return lines
 
 
-__all__ = ["is_body", "offset_of", "mount_points", "mount_extent", "rotated",
-           "attachment_point", "link_key", "body_radius", "coupling", "coupling_statement",
-           "elastic_centre", "referred_statements", "ORIGIN", "links_of"]
+__all__ = [
+    "ORIGIN",
+    "attachment_point",
+    "body_radius",
+    "coupling",
+    "coupling_statement",
+    "elastic_centre",
+    "is_body",
+    "link_key",
+    "links_of",
+    "mount_extent",
+    "mount_points",
+    "offset_of",
+    "referred_statements",
+    "rotated",
+]

@@ -4,10 +4,10 @@ import math
 
 import pytest
 from PySide6.QtCore import QPoint, Qt
+from test_no_clipping import default_window  # noqa: F401 (a fixture)
 
 from app.canvas import Mode
 from solver.model import Anchor, Mass, Model, Spring
-from test_no_clipping import default_window  # noqa: F401 (fixture)
 
 #: NIST SP 811 (appendix B), exact: 1 lb = 0.45359237 kg, 1 in = 0.0254 m.
 LB_IN2 = 0.45359237 * 0.0254 ** 2        # = 2.9264e-4 kg m^2 (SP 811 lists 2.926397e-4)
@@ -149,7 +149,6 @@ def test_spring_attached_at_a_point_of_the_body_by_dragging(qtbot, window):
     body attaches there, on the grid, measured from the body's centre."""
     _open(window, _skid())
     model = window.document.model
-    window.scene.addItem  # the scene is live
     window.scene.set_mode(Mode.CONNECT_SPRING)
     g = window.scene.mapper.grid_m
     window.document.add_anchor(0.0, -0.5)
@@ -162,7 +161,7 @@ def test_spring_attached_at_a_point_of_the_body_by_dragging(qtbot, window):
     assert s.b_offset == pytest.approx((0.2, -0.2), abs=1e-9)
     assert (0.2, -0.2) in window.scene.nodes["m1"].mounts
     link = window.scene.links[s.id]
-    p1, p2 = link.endpoints()
+    _p1, p2 = link.endpoints()
     ring = window.scene.nodes["m1"].attach_scene_point((0.2, -0.2))
     assert (p2 - ring).manhattanLength() < 1e-6
     # a second spring started on that ring shares the mount point exactly
@@ -299,7 +298,7 @@ def test_body_turns_on_the_canvas_by_theta_times_the_magnification(qtbot, window
 
 
 @pytest.mark.parametrize("name", ["pump_skid.json", "geared_fan_drive.json"])
-def test_new_examples_nothing_clipped_at_the_first_size(qtbot, default_window, name):
+def test_new_examples_nothing_clipped_at_the_first_size(qtbot, default_window, name):  # noqa: F811
     """Common practice (a screen that reads true): the skid on isolators and the geared fan at
     the window's first size, with the body, a mount's spring and the gear stage selected in
     turn (Properties then shows the coupling statement, the offsets, the referred system):
