@@ -23,6 +23,7 @@ class MassItem(NodeItem):
         self.axis = model.axis
         self.reference_mass = reference_mass
         self._path = self._symbol(element)
+        self._arrow_path = None          # made once per symbol: paints and label keys reuse it
         super().update_from(element, model)
 
     def _symbol(self, element) -> QPainterPath:
@@ -38,6 +39,11 @@ class MassItem(NodeItem):
         return path
 
     def _arrow(self) -> QPainterPath:
+        if getattr(self, "_arrow_path", None) is None:
+            self._arrow_path = self._make_arrow()
+        return self._arrow_path
+
+    def _make_arrow(self) -> QPainterPath:
         r = self._path.boundingRect()
         if self.axis == "x":
             return shapes.axis_arrow_path(QPointF(r.left(), r.bottom() + 8), QPointF(1, 0),
