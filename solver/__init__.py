@@ -12,6 +12,8 @@ Pure numpy/scipy; no Qt. The public API (stable, used by scripts and the command
 - :func:`retune` (:func:`retune_result` with the details), :func:`sweep`, :func:`rank_elements`, :func:`margin_check`
 - :func:`margin_table` (every mode against every source, with separations) and
   :func:`interference` (order lines against natural frequencies, their crossing speeds)
+- :func:`body_coupling` (rigid bodies on mounts: coupling, elastic centre) and
+  :func:`referred_system` (a geared model's equivalent on one shaft)
 - :class:`ModelError`, :class:`ModelFileError`
 """
 
@@ -28,6 +30,7 @@ from importlib.util import module_from_spec as _module_from_spec
 _EXPORTS = {name: module for module, names in {
     "analysis": ("Analysis", "analyse"),
     "assemble": ("System", "assemble"),
+    "bodies": ("BodyCoupling", "ReferredSystem", "body_coupling", "referred_system"),
     "errors": ("ModelError", "ModelFileError"),
     "io": ("dumps_model", "load_model", "model_from_dict", "model_to_dict", "save_model", "schema"),
     "metrics": ("EnergyResult", "Sensitivity", "energy_fractions", "sensitivities"),
@@ -98,5 +101,5 @@ __all__ = [
     "MarginResult", "margin_check", "source_bands", "SweepResult", "rank_elements", "retune",
     "sweep", "with_value", "RetuneResult", "retune_result", "limit_spectrum", "reachable_range", "DampedModes", "damped_modes", "rayleigh_coefficients",
     "MarginRow", "MarginTable", "margin_table", "Crossing", "Interference", "OrderLine",
-    "interference",
+    "interference", "BodyCoupling", "ReferredSystem", "body_coupling", "referred_system",
 ]

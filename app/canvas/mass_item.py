@@ -36,6 +36,7 @@ class MassItem(NodeItem):
         self.coupling_text = bodies.coupling_statement(model, element.id) if self.is_body else ""
         self._path = self._symbol(element)
         self._sync_mounts()
+        self._arrow_path = None          # made once per symbol: paints and label keys reuse it
         super().update_from(element, model)
 
     def _sync_mounts(self) -> None:
@@ -106,6 +107,11 @@ class MassItem(NodeItem):
         return path
 
     def _arrow(self) -> QPainterPath:
+        if getattr(self, "_arrow_path", None) is None:
+            self._arrow_path = self._make_arrow()
+        return self._arrow_path
+
+    def _make_arrow(self) -> QPainterPath:
         r = self._path.boundingRect()
         if self.axis == "x":
             return shapes.axis_arrow_path(QPointF(r.left(), r.bottom() + 8), QPointF(1, 0),

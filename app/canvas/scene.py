@@ -178,9 +178,26 @@ class ModelScene(QGraphicsScene):
                           i.label_item.pos().x(), i.label_item.pos().y(),
                           i.symbol_rect().width()) for i in nodes + links)
 
-        if state() == getattr(self, "_labels_key", None):
+        now = state()
+        if now == getattr(self, "_labels_key", None):
             return
-        self._place_labels(nodes, links)
+        # the drawing without the labels' own places (an item left alone keeps the place it
+        # was given, one refreshed puts its label back where it likes it: either way the same
+        # drawing, and a place found for it before is as good)
+        drawing = tuple(s[:4] + s[6:] for s in now)
+        memos = self.__dict__.setdefault("_labels_memo", [])
+        found = next((places for key, places in memos if key == drawing), None)
+        if found is not None:
+            # a drawing placed before (a value edited, a move undone): the same places,
+            # without the search
+            for item, (visible, pos) in zip(nodes + links, found):
+                item.label_item.setVisible(visible)
+                item.label_item.setPos(pos)
+        else:
+            self._place_labels(nodes, links)
+            memos.insert(0, (drawing, [(i.label_item.isVisible(), QPointF(i.label_item.pos()))
+                                   for i in nodes + links]))
+            del memos[4:]
         self._labels_key = state()
 
     def _place_labels(self, nodes, links) -> None:

@@ -375,7 +375,7 @@ class ResponsePanel(QWidget):
     def held(self) -> bool:
         """True when the curves shown are older than the model (held during a drag, or being
         computed in the worker)."""
-        return self._held or self._computing
+        return self._held or self._computing or self._due
 
     def shutdown(self) -> None:
         """Drop queued work and wait for a running one (the window is closing)."""
@@ -384,11 +384,15 @@ class ResponsePanel(QWidget):
         self._pool.waitForDone(5000)
 
     def wait(self, msecs: int = 30000) -> bool:
-        """Block until no curves are being computed (tests, export). True when idle."""
+        """Block until the curves are those of the current model (tests, export: a report
+        made while the panel is behind another tab must not show an earlier model's response).
+        True when idle."""
         from PySide6.QtCore import QCoreApplication, QElapsedTimer
 
         clock = QElapsedTimer()
         clock.start()
+        if self._due and not self._live:
+            self.catch_up()
         while self._computing and clock.elapsed() < msecs:
             self._pool.waitForDone(20)
             QCoreApplication.processEvents()
@@ -844,6 +848,7 @@ class ResponsePanel(QWidget):
         """Write the two plots as a PNG (no dialog). Raises OSError when it cannot."""
         import pyqtgraph.exporters as pgx
 
+        self.wait()                      # the current model's curves, even from a hidden tab
         exp = pgx.ImageExporter(self.plots.scene())
         exp.parameters()["width"] = int(width)
         # columns as many as the image has, not the screen
@@ -861,6 +866,7 @@ class ResponsePanel(QWidget):
 
     def export_csv(self, path) -> None:
         """Write the plotted curves as CSV: frequency, then magnitude and phase of each output."""
+        self.wait()                      # the current model's curves, even from a hidden tab
         if self.response is None:
             raise OSError("no response to export" + (f": {self.error}" if self.error else ""))
         self.response.write_csv(path, self.unit_system)

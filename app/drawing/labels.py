@@ -130,6 +130,10 @@ def segment_boxes(p1: QPointF, p2: QPointF, half_width: float, pieces: int = 8) 
     not blocked by its whole bounding rectangle)."""
     out = []
     n = max(1, pieces)
+    if min(abs(p2.x() - p1.x()), abs(p2.y() - p1.y())) <= 0.25 * half_width:
+        # a link along an axis is covered by one box as well as by eight (a chain's links: one
+        # eighth of the overlap tests)
+        n = 1
     for i in range(n):
         a = QPointF(p1.x() + (p2.x() - p1.x()) * i / n, p1.y() + (p2.y() - p1.y()) * i / n)
         b = QPointF(p1.x() + (p2.x() - p1.x()) * (i + 1) / n,

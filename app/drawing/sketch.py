@@ -636,6 +636,10 @@ def symbol_rects(lay: SketchLayout, displacements: dict | None = None,
     return out
 
 
+#: The label places of the last few drawings: (everything the placement reads, places).
+_PLACED: list = []
+
+
 def _paint_labels(painter, lay: SketchLayout, st: Style, labels, energy, motion_px: float):
     """Place the labels once per layout (on the drawing at rest) and draw them."""
     font = QFont(painter.font())
@@ -644,7 +648,16 @@ def _paint_labels(painter, lay: SketchLayout, st: Style, labels, energy, motion_
     key = (labels, tuple(t for _k, _e, t in texts), round(motion_px, 1), font.pixelSize())
     if getattr(lay, "_labels_key", None) != key:
         lay._labels_key = key
-        lay._labels = _place_labels(lay, st, texts, QFontMetricsF(font), motion_px)
+        # a new layout of the same drawing (a value edited, an edit undone) takes the places
+        # found before: the search is the costly part of a repaint of a large model
+        full = (key, lay._geometry, tuple(m.fixed for m in lay.model.masses), lay.model.axis,
+                lay.rect.getRect(), lay.base, st.label.rgba(), st.ink_soft.rgba())
+        found = next((places for k, places in _PLACED if k == full), None)
+        if found is None:
+            found = _place_labels(lay, st, texts, QFontMetricsF(font), motion_px)
+            _PLACED.insert(0, (full, found))
+            del _PLACED[4:]
+        lay._labels = found
         lay.placed_labels = [(t, r) for t, r, _c in lay._labels]
     painter.setFont(font)
     fm = QFontMetricsF(font)

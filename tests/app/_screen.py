@@ -101,6 +101,26 @@ def _shown(w, window) -> bool:
     return not seen.visibleRegion().isEmpty()
 
 
+def on_screen_now(widget) -> bool:
+    """The widget is shown and not behind another dock tab."""
+    from app.docks.on_screen import behind_tab
+
+    return widget.isVisible() and not behind_tab(widget)
+
+
+def click_tab(qtbot, window, text: str) -> None:
+    """Click the visible dock tab titled ``text`` (as a user brings a panel to the front)."""
+    from PySide6.QtWidgets import QTabBar
+
+    for bar in window.findChildren(QTabBar):
+        for i in range(bar.count()):
+            if bar.tabText(i) == text and bar.isVisible():
+                qtbot.mouseClick(bar, Qt.MouseButton.LeftButton, pos=bar.tabRect(i).center())
+                qtbot.wait(10)
+                return
+    raise AssertionError(f"no visible tab {text!r}")
+
+
 def _cut_by_parent(w) -> bool:
     """Part of the widget lies outside an ancestor's rectangle (a scroll area's viewport, a dock
     too narrow for its row of controls)."""

@@ -78,8 +78,10 @@ def test_hidden_response_panel_computes_only_when_shown(qtbot, window):
     drawn); clicking its tab draws the edited model's transmissibility, which is the closed
     form of the undamped one-mass oscillator."""
     window.document.new(model=_one_mass(k=4000.0))
+    _click_tab(qtbot, window, "Response")        # Tune is in front on a first start
     _settle(qtbot, window)
     rp = window.response_panel
+    rp.wait()
     before = rp.plotted_data()
     assert before and on_screen(rp)
     _click_tab(qtbot, window, "Tune")
@@ -115,3 +117,38 @@ def test_hidden_sensitivity_table_fills_when_shown(qtbot, window):
     _click_tab(qtbot, window, "Sensitivity")
     assert table.model._freqs[0] == pytest.approx(_f_hz(16000.0, 1.0), rel=1e-12)
     assert table.cell_value("s1", "k", 1) == pytest.approx(0.5, rel=1e-9)
+
+
+def test_report_from_the_window_shows_the_current_models_response_when_the_tab_is_hidden(
+        qtbot, window, tmp_path):
+    """A damped model's report takes the Response panel's curves: with the Response tab behind
+    Tune, an edit then Export report must report the edited model, not the curves drawn for
+    the one before. The peak of the displacement transmissibility of the one-mass oscillator
+    lies at f_n sqrt(sqrt(1 + 8 zeta^2) - 1) / (2 zeta) (Rao, Mechanical Vibrations, 9.2,
+    from memory; ~f_n for light damping) with f_n = sqrt(k/m) / 2 pi (math)."""
+    zeta = 0.05
+    model = _one_mass(k=4000.0).with_changes(damping=solver.Damping(model="modal", ratio=zeta))
+    window.document.new(model=model)
+    _click_tab(qtbot, window, "Response")
+    _settle(qtbot, window)
+    window.response_panel.wait()
+    _click_tab(qtbot, window, "Tune")
+    assert not on_screen(window.response_panel)
+    window.document.set_element("s1", k=16000.0)
+    _settle(qtbot, window)
+    assert window.export_report(str(tmp_path / "r.png"))
+    resp = window.response_panel.response
+    curve = resp.curves[0]
+    mag = curve.magnitude
+    f_peak = resp.freqs_hz[int(np.argmax(mag))]
+    f_n = math.sqrt(16000.0) / (2 * math.pi)
+    expect = f_n * math.sqrt(math.sqrt(1 + 8 * zeta ** 2) - 1) / (2 * zeta)
+    assert f_peak == pytest.approx(expect, rel=0.02)
+    assert abs(f_peak - math.sqrt(4000.0) / (2 * math.pi)) > 0.3 * f_n   # not the old model
+    # the same for the Response CSV export from the menu, after another edit
+    window.document.set_element("s1", k=36000.0)
+    _settle(qtbot, window)
+    window.response_panel.export_csv(str(tmp_path / "r.csv"))
+    resp = window.response_panel.response
+    f_peak = resp.freqs_hz[int(np.argmax(resp.curves[0].magnitude))]
+    assert f_peak == pytest.approx(expect * 1.5, rel=0.02)       # f_n ~ sqrt(k): x1.5

@@ -164,7 +164,10 @@ def test_undamped_report_same_from_window_and_command_line(qtbot, window, tmp_pa
     src = EXAMPLES / "rod_chain.json"
     assert window.open_path(src)
     _wait(qtbot, window)
-    qtbot.wait(300)                      # the Response panel has its curves
+    from _screen import click_tab
+
+    click_tab(qtbot, window, "Response")
+    window.response_panel.wait()         # the Response panel has its curves
     assert window.response_panel.response is not None
     from_window = tmp_path / "window.png"
     _run_save_dialog(qtbot, _action(window, "Export &report (PNG)…").trigger, from_window)

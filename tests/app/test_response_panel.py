@@ -24,8 +24,13 @@ def _sdof(zeta=0.05):
 
 
 def _settle(qtbot, window):
+    from _screen import click_tab, on_screen_now
+
     window.solver.wait()
     panel = window.response_panel
+    if not on_screen_now(panel):
+        click_tab(qtbot, window, "Response")    # Tune is in front on a first start
+    panel.wait()
     qtbot.waitUntil(lambda: not panel._timer.isActive(), timeout=3000)
     return panel
 

@@ -409,3 +409,37 @@ def test_coupling_threshold_is_relative():
     b = body_coupling(bar_on_springs(5.0, 1.0, 1e6, 1.01e6))[0]
     assert a.coefficients == pytest.approx(b.coefficients, rel=1e-12)
     assert a.coefficients["bounce-rock"] < COUPLING_RTOL and not a.coupled
+
+
+def test_cli_json_states_bodies_and_gears():
+    """DESIGN.md section 5 (keys added, none renamed): solve --json of the two new examples
+    gives "bodies" with the coupling and "gears_referred" with the equivalent system, shapes
+    with the theta components, and the existing keys unchanged."""
+    import subprocess
+    import sys
+
+    def run(name):
+        out = subprocess.run([sys.executable, "-m", "app.cli", "solve", "--json",
+                              str(ROOT / "assets" / "examples" / name)],
+                             capture_output=True, text=True, cwd=ROOT, timeout=300)
+        assert out.returncode == 0, out.stderr
+        return json.loads(out.stdout)
+
+    skid = run("pump_skid.json")
+    assert skid["dofs"] == [["skid", "x"], ["skid", "y"], ["skid", "theta"]]
+    for key in ("model", "dofs", "modes", "warnings"):
+        assert key in skid
+    (body,) = skid["bodies"]
+    assert body["id"] == "skid" and body["coupled"] is True
+    assert len(body["elastic_centre_m"]) == 2 and "rock are coupled" in body["statement"]
+    assert all(len(m["shape"]) == 3 and "theta" in m["effective_mass_kg"] for m in skid["modes"])
+    fan = run("geared_fan_drive.json")
+    geared = fan["gears_referred"]
+    assert geared["reference"] == "motor"
+    assert geared["speed_ratios"]["fan"] == pytest.approx(1 / 3.2)
+    assert ["wheel", "theta"] in geared["all_dofs"] and ["wheel", "theta"] not in fan["dofs"]
+    # the referred frequencies equal the geared model's (referred_system's model, solved)
+    eq = solver.bodies.referred_system(solver.load_model(
+        ROOT / "assets" / "examples" / "geared_fan_drive.json"), "motor").model
+    np.testing.assert_allclose([m["frequency_hz"] for m in fan["modes"]],
+                               solver.modes(eq).frequencies_hz, rtol=1e-10, atol=1e-9)
