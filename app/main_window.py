@@ -261,6 +261,19 @@ class MainWindow(QMainWindow):
             docks["dock_tune"].raise_()
         QTimer.singleShot(0, self.view.fit)   # the canvas has its final size now
 
+    def _widen_modes(self, want: int) -> None:
+        """Give the modes table the width its columns need (a model with rigid bodies has two
+        more), taken from the Tune tabs beside it, up to 60 % of the window."""
+        modes = self.findChild(QDockWidget, "dock_modes")
+        tune = self.findChild(QDockWidget, "dock_tune")
+        if modes is None or tune is None or modes.isFloating() or tune.isFloating() \
+                or not (modes.isVisible() and tune.isVisible()):
+            return
+        target = min(want + modes.width() - self.modes_table.width(), int(0.6 * self.width()))
+        if target > modes.width():
+            total = modes.width() + tune.width()
+            self.resizeDocks([modes, tune], [target, total - target], Qt.Horizontal)
+
     def _dock(self, title, widget, area, name):
         dock = QDockWidget(title, self)
         dock.setObjectName(name)
@@ -458,6 +471,8 @@ class MainWindow(QMainWindow):
         modes_dock = self.findChild(QDockWidget, "dock_modes")
         if modes_dock is not None:
             self.splitDockWidget(modes_dock, tune_dock, Qt.Horizontal)
+            self.modes_table.needs_width.connect(
+                lambda want: QTimer.singleShot(0, lambda: self._widen_modes(want)))
         self.sensitivity_table = SensitivityTable(self.solver)
         sens_dock = self._dock("Sensitivity", self.sensitivity_table, Qt.BottomDockWidgetArea,
                                "dock_sensitivity")

@@ -124,6 +124,8 @@ class ModesTable(QWidget):
     """
 
     mode_selected = Signal(int)
+    #: width (px) the table needs to show every column with readable notes, when it has less
+    needs_width = Signal(int)
 
     def __init__(self, parent=None):
         super().__init__(parent)
@@ -147,6 +149,7 @@ class ModesTable(QWidget):
         self._col_chars: list[int] = []
         self._wrapped = False
         self._sharing = False
+        self._ask_room = False
         self.view.setWordWrap(True)
         self.view.installEventFilter(self)
         self.view.viewport().installEventFilter(self)
@@ -245,6 +248,7 @@ class ModesTable(QWidget):
         if not in_place or len(chars) != len(self._col_chars) or \
                 any(a > b for a, b in zip(chars, self._col_chars)):
             self._measure_numbers()
+            self._ask_room = self._ask_room or len(chars) != len(self._col_chars)
             self._col_chars = chars
             self._share_width()
 
@@ -271,6 +275,12 @@ class ModesTable(QWidget):
             # a rigid body adds two columns (theta): the notes then wrap narrower rather than
             # push a column out of sight, down to a floor where a word still fits a line
             width = max(MIN_NOTES if room >= MIN_NOTES else NOTES_FLOOR, room)
+            if room < MIN_NOTES and self._ask_room:
+                # the window may give the dock more room (a model with rigid bodies has two
+                # columns more); the narrow wrap above is the fallback when it cannot
+                # (asked once per new table shape: a dock the user narrows stays narrow)
+                self._ask_room = False
+                self.needs_width.emit(self.width() + MIN_NOTES - room)
             if width != hdr.sectionSize(notes):
                 hdr.resizeSection(notes, width)
             want = self.view.sizeHintForColumn(notes) if self._model.rowCount() else 0

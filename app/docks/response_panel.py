@@ -28,8 +28,8 @@ from PySide6.QtCore import (QAbstractTableModel, QModelIndex, QObject, QRunnable
                             Qt, QThreadPool, QTimer, Signal)
 from PySide6.QtWidgets import (QAbstractItemView, QCheckBox, QComboBox, QFileDialog, QHBoxLayout,
                                QHeaderView, QLabel, QLineEdit, QListWidget, QListWidgetItem,
-                               QPushButton, QSizePolicy, QSplitter, QTableView, QVBoxLayout,
-                               QWidget)
+                               QPushButton, QSizePolicy, QSplitter, QStyledItemDelegate,
+                               QTableView, QVBoxLayout, QWidget)
 
 from solver.errors import ModelError
 
@@ -322,6 +322,10 @@ class ResponsePanel(QWidget):
         self._peaks = _PeaksModel(self)
         self.peaks_table.setModel(self._peaks)
         self.peaks_table.horizontalHeader().setSectionResizeMode(QHeaderView.Stretch)
+        # the output's name as wide as it is (a body's label with its direction is long); the
+        # numbers share the rest
+        self.peaks_table.horizontalHeader().setSectionResizeMode(0, QHeaderView.ResizeToContents)
+        self.peaks_table.setItemDelegateForColumn(0, _RoomyDelegate(self.peaks_table))
         self.peaks_table.verticalHeader().hide()
         self.peaks_table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
         self.peaks_table.setToolTip("Damping ratio from the half-power bandwidth / (2 f)"
@@ -890,6 +894,16 @@ class ResponsePanel(QWidget):
 
     def export_csv_dialog(self):
         self._export_dialog("csv", self.export_csv, "CSV (*.csv)")
+
+
+class _RoomyDelegate(QStyledItemDelegate):
+    """A cell's size hint with the whole text margin on both sides: Qt's own hint leaves a
+    few pixels less than painting needs, and a name sized to it is cut by its last letter."""
+
+    def sizeHint(self, option, index):  # noqa: N802
+        hint = super().sizeHint(option, index)
+        hint.setWidth(hint.width() + 4)
+        return hint
 
 
 def _work(model, modal, n_points: int) -> float:

@@ -325,12 +325,7 @@ def test_new_examples_nothing_clipped_at_the_first_size(qtbot, default_window, n
     for state, show in states:
         show()
         qtbot.wait(120)
-        problems += [f"{state}: {p}" for p in clipped_texts(window)
-                     # left to their owners (reported): the modes table's two more columns
-                     # of a body (theta) at the first dock width, the Response peaks table's
-                     # first column under the example's long body label
-                     if "QTableView(modes_table)" not in p and "QTableView(response_peaks)"
-                     not in p]
+        problems += [f"{state}: {p}" for p in clipped_texts(window)]
     assert not problems, "\n".join(problems)
     if model.bodies:
         window.scene.select_ids([model.bodies[0].id])
