@@ -60,8 +60,13 @@ select an area. Delete removes the selection (a mass goes with its springs).</td
 <tr><td><b>M</b></td><td>Place mass: click on the canvas. A mass of 0 kg is a massless
 junction.</td></tr>
 <tr><td><b>A</b></td><td>Place anchor: a fixed point (ground).</td></tr>
+<tr><td><b>B</b></td><td>Place rigid body (planar models): a mass with an inertia that bounces,
+sways and rocks. Springs attach where you press on the body (a mount point, drawn as a ring;
+drag a ring to move it).</td></tr>
 <tr><td><b>K</b></td><td>Connect spring: drag from one node to another.</td></tr>
 <tr><td><b>D</b></td><td>Connect dashpot: drag from one node to another.</td></tr>
+<tr><td><b>R</b></td><td>Connect gear stage (torsion models): drag from the disc on the faster
+shaft to the disc it drives; the speed ratio is edited in Properties.</td></tr>
 <tr><td><b>Esc</b></td><td>Back to Select (or cancel a connection).</td></tr>
 <tr><td><b>Arrows, Tab, Enter</b></td><td>Without a mouse: in a place or connect tool the
 arrows move a cross-hair one grid step (Shift: five), Tab jumps it from node to node, Enter
