@@ -20,7 +20,7 @@ from PySide6.QtWidgets import (QComboBox, QFormLayout, QLabel, QLineEdit, QPushB
 from solver.errors import ModelError
 from solver.model import Damping
 
-from app.drawing.style import current_style
+from app.docks.field_error import InPlaceError
 
 MODELS = (("none", "none (dashpots only)"), ("modal", "modal ratio"),
           ("rayleigh", "Rayleigh (α M + β K)"))
@@ -71,7 +71,7 @@ def format_ratio(v: float) -> str:
     return f"{v * 100:.4g} %"
 
 
-class _Entry(QWidget):
+class _Entry(InPlaceError, QWidget):
     """A line edit with its refusal reason beneath (same look as a property field)."""
 
     def __init__(self, name: str, tip: str, placeholder: str = "", parent=None):
@@ -80,7 +80,7 @@ class _Entry(QWidget):
         self.edit.setObjectName(f"damping_{name}")
         self.edit.setToolTip(tip)
         self.edit.setPlaceholderText(placeholder)
-        self._tip = tip
+        self._hint = tip
         self.error_label = QLabel(self)
         self.error_label.setWordWrap(True)
         self.error_label.hide()
@@ -96,20 +96,6 @@ class _Entry(QWidget):
             self.edit.setText(text)
         self.clear_error()
 
-    def show_error(self, message: str) -> None:
-        self.error = message
-        c = current_style().error.name()
-        self.edit.setStyleSheet(f"QLineEdit {{ border: 2px solid {c}; }}")
-        self.error_label.setStyleSheet(f"color: {c};")
-        self.error_label.setText(message)
-        self.error_label.show()
-        self.edit.setToolTip(message)
-
-    def clear_error(self) -> None:
-        self.error = ""
-        self.edit.setStyleSheet("")
-        self.error_label.hide()
-        self.edit.setToolTip(self._tip)
 
 
 class DampingEditor(QWidget):

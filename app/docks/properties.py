@@ -22,12 +22,13 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QHBoxLayout, Q
 from solver.errors import ModelError
 from solver.model import Anchor, Damper, Gear, Mass, Spring
 
+from app.docks.field_error import InPlaceError
 from app.drawing import bodies
 from app.text import units
 from app.drawing.style import current_style
 
 
-class QuantityField(QWidget):
+class QuantityField(InPlaceError, QWidget):
     """A line edit for one physical quantity (SI inside), with the refusal reason shown beneath.
 
     ``value_entered(float)`` carries the SI value of an accepted entry; the owner applies it and
@@ -84,20 +85,6 @@ class QuantityField(QWidget):
     def _blank_text(self) -> str:
         return f"different values ({self._unit()})"
 
-    def show_error(self, message: str) -> None:
-        self.error = message
-        c = current_style().error.name()
-        self.edit.setStyleSheet(f"QLineEdit {{ border: 2px solid {c}; }}")
-        self.error_label.setStyleSheet(f"color: {c};")
-        self.error_label.setText(message)
-        self.error_label.show()
-        self.edit.setToolTip(message)
-
-    def clear_error(self) -> None:
-        self.error = ""
-        self.edit.setStyleSheet("")
-        self.error_label.hide()
-        self.edit.setToolTip(self._hint)
 
     def keyPressEvent(self, event):  # noqa: N802
         if event.key() == Qt.Key_Escape and self.value_si is not None:

@@ -29,6 +29,7 @@ from solver.errors import ModelError
 from solver.margin_table import margin_table
 from solver.model import Excitation
 
+from app.docks.field_error import InPlaceError
 from app.docks.on_screen import on_screen
 from app.docks.properties import QuantityField
 from app.drawing.style import current_style
@@ -64,7 +65,7 @@ def parse_orders(text: str) -> tuple[float, ...]:
     return tuple(out)
 
 
-class CheckedLine(QWidget):
+class CheckedLine(InPlaceError, QWidget):
     """A line edit whose text ``parse`` turns into a value, with the refusal reason beneath.
 
     ``value_entered(object)`` carries the parsed value; the owner applies it and calls
@@ -97,20 +98,6 @@ class CheckedLine(QWidget):
             self.edit.setText(text)
         self.clear_error()
 
-    def show_error(self, message: str) -> None:
-        self.error = message
-        c = current_style().error.name()
-        self.edit.setStyleSheet(f"QLineEdit {{ border: 2px solid {c}; }}")
-        self.error_label.setStyleSheet(f"color: {c};")
-        self.error_label.setText(message)
-        self.error_label.show()
-        self.edit.setToolTip(message)
-
-    def clear_error(self) -> None:
-        self.error = ""
-        self.edit.setStyleSheet("")
-        self.error_label.hide()
-        self.edit.setToolTip(self._hint)
 
     def keyPressEvent(self, event):  # noqa: N802
         if event.key() == Qt.Key.Key_Escape:

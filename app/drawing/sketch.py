@@ -260,29 +260,6 @@ class SketchLayout:
         two nodes are drawn side by side). Ends are trimmed to the edges of mass blocks; an end
         with an attachment offset (m, on a body) ends exactly on its attachment point.
         """
-        if a_offset != _bodies.ORIGIN or b_offset != _bodies.ORIGIN:
-            return self._attached_ends(a, b, lane, displacements, scale, a_offset, b_offset)
-        pa = self.point(a, displacements, scale)
-        pb = self.point(b, displacements, scale)
-        dx, dy = pb.x() - pa.x(), pb.y() - pa.y()
-        length = math.hypot(dx, dy)
-        if length < 1e-9:
-            return pa, pb
-        u = QPointF(dx / length, dy / length)
-        n = QPointF(-u.y(), u.x())
-        sa = QPointF(pa.x() + n.x() * lane, pa.y() + n.y() * lane)
-        sb = QPointF(pb.x() + n.x() * lane, pb.y() + n.y() * lane)
-        ta = self._exit_distance(a, pa, sa, u, self.turn(a, displacements, scale))
-        tb = self._exit_distance(b, pb, sb, QPointF(-u.x(), -u.y()),
-                                 self.turn(b, displacements, scale))
-        if ta + tb >= length - 2.0:   # blocks overlap: keep a stub rather than reverse
-            return sa, sb
-        return (QPointF(sa.x() + u.x() * ta, sa.y() + u.y() * ta),
-                QPointF(sb.x() - u.x() * tb, sb.y() - u.y() * tb))
-
-    def _attached_ends(self, a, b, lane, displacements, scale, a_offset, b_offset):
-        """:meth:`link_ends` with an attachment point on at least one end: that end is the
-        point itself; a centre end is trimmed to its block's edge as usual."""
         pa = self.attach(a, a_offset, displacements, scale)
         pb = self.attach(b, b_offset, displacements, scale)
         dx, dy = pb.x() - pa.x(), pb.y() - pa.y()
@@ -298,7 +275,7 @@ class SketchLayout:
         tb = 0.0 if b_offset != _bodies.ORIGIN else \
             self._exit_distance(b, pb, sb, QPointF(-u.x(), -u.y()),
                                 self.turn(b, displacements, scale))
-        if ta + tb >= length - 2.0:
+        if ta + tb >= length - 2.0:   # blocks overlap: keep a stub rather than reverse
             return sa, sb
         return (QPointF(sa.x() + u.x() * ta, sa.y() + u.y() * ta),
                 QPointF(sb.x() - u.x() * tb, sb.y() - u.y() * tb))

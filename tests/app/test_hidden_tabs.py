@@ -13,8 +13,6 @@ import math
 
 import numpy as np
 import pytest
-from PySide6.QtCore import Qt
-from PySide6.QtWidgets import QTabBar
 
 import solver
 from app.docks.on_screen import on_screen
@@ -27,13 +25,9 @@ def _one_mass(k: float = 4000.0, m: float = 1.0) -> Model:
 
 
 def _click_tab(qtbot, window, text: str) -> None:
-    for bar in window.findChildren(QTabBar):
-        for i in range(bar.count()):
-            if bar.tabText(i) == text and bar.isVisible():
-                qtbot.mouseClick(bar, Qt.MouseButton.LeftButton, pos=bar.tabRect(i).center())
-                qtbot.wait(10)
-                return
-    raise AssertionError(f"no visible tab {text!r}")
+    from _screen import click_tab
+
+    click_tab(qtbot, window, text)
 
 
 def _settle(qtbot, window):
