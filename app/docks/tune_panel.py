@@ -981,10 +981,11 @@ class TunePanel(QWidget):
                                                                  style=Qt.PenStyle.DashLine))
                 line.setZValue(-2)      # under the mode curves (z -1), over the bands
                 pi.addItem(line)
-            name = labels.get(sid, sid)
-            text = pg.TextItem(f"{name}" + (f" ×{order:g}" if order is not None else ""),
-                               color=warn, anchor=(0, 1))
-            text.setPos(lx0, hi_w)
+        # one label per run of overlapping bands (close orders of one speed, a band over an
+        # order line): labels at the tops of overlapping bands were drawn over each other
+        for top, words in _band_label_groups(bands, labels):
+            text = pg.TextItem(words, color=warn, anchor=(0, 1))
+            text.setPos(lx0, top)
             text.setZValue(-2)
             pi.addItem(text)
         self._sweep_curves = []           # filled by _draw_sweep, a group of modes each
@@ -1043,3 +1044,28 @@ class TunePanel(QWidget):
 
 __all__ = ["TunePanel", "tunable_elements", "band_crossings", "source_texts", "DECADES",
            "SLIDER_STEPS", "SWEEP_POINTS", "SYNC_DOF_LIMIT"]
+
+
+def _band_label_groups(bands, labels) -> list[tuple[float, str]]:
+    """``[(top_hz, text)]``: the bands (``solver.source_bands`` rows) whose widened intervals
+    overlap gathered into one label at the group's top, each source named once with its
+    orders (``"Motor speed ×1.875, ×2"``)."""
+    rows = sorted(bands, key=lambda b: b[4])
+    groups: list[list] = []
+    for row in rows:
+        if groups and row[4] <= max(r[5] for r in groups[-1]):
+            groups[-1].append(row)
+        else:
+            groups.append([row])
+    out = []
+    for group in groups:
+        parts: dict[str, list] = {}
+        for sid, order, *_ in group:
+            parts.setdefault(sid, [])
+            if order is not None:
+                parts[sid].append(order)
+        words = "; ".join(labels.get(sid, sid) + (" " + ", ".join(f"×{o:g}" for o in sorted(set(
+            orders))) if orders else "") for sid, orders in parts.items())
+        out.append((max(r[5] for r in group), words))
+    return out
+

@@ -276,3 +276,26 @@ def test_tune_panel_follows_the_display_unit_system(qtbot, window, two_mass_mode
     shown = float(text.split("=")[1].split()[0])
     assert shown == pytest.approx(1000.0 / 175.126835, rel=1e-4)
     assert window.document.model.element("s1").k == 1000.0
+
+
+def test_overlapping_bands_share_one_label(qtbot, window, two_mass_model):
+    """math: at 1450 rpm the orders 1.875 and 2 lie at 45.3 and 48.3 Hz (order x rpm / 60);
+    widened by the 15 % margin ([f (1 - 0.15), f (1 + 0.15)]) they overlap, so the sweep plot
+    names them once, at the top of the pair (55.58 Hz), and order 1 (24.17 Hz, up to 27.79 Hz)
+    on its own: no two band labels are drawn over each other."""
+    import dataclasses
+
+    import pyqtgraph as pg
+
+    from solver.model import Excitation
+
+    model = dataclasses.replace(two_mass_model, margin_percent=15.0, excitations=(
+        Excitation("mot", "speed", label="Motor speed", rpm=1450.0, orders=(1.0, 1.875, 2.0)),))
+    panel = _open(window, model)
+    panel.select_element("s1", "k")
+    assert panel.wait_sweep()
+    items = [it for it in panel.plot.getPlotItem().items if isinstance(it, pg.TextItem)]
+    found = sorted((it.pos().y(), it.toPlainText()) for it in items)
+    f = [o * 1450.0 / 60.0 for o in (1.0, 1.875, 2.0)]
+    assert [t for _y, t in found] == ["Motor speed ×1", "Motor speed ×1.875, ×2"]
+    assert [y for y, _t in found] == pytest.approx([f[0] * 1.15, f[2] * 1.15], rel=1e-9)
