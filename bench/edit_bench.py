@@ -17,10 +17,12 @@ panel: canvas, properties, modes table, motion view, tune plot, response plots):
 
 Nothing is skipped: the solve service's debounce, its worker thread and Qt's own update timer are
 all inside the time. In the same run, the baselines: bare ``solver.modes(model)``, bare
-``solver.analyse(model)`` (modes + energy shares + sensitivities: what the window needs), and a
-bare repaint of an empty QMainWindow of the same size, both ``repaint()`` and ``update()`` through
-the event loop to the paint. The ratio printed is edit time / (bare analyse + bare update-to-paint);
-the goal is <= 2 (and <= 50 ms) up to 200 masses.
+``solver.analyse(model)`` (modes + energy shares + sensitivities: what the window needs), a bare
+``repaint()`` of this same window with the same model and no edit (every visible panel painted
+once: the paint an edit cannot avoid), and, for reference, a repaint of an empty QMainWindow of
+the same size. The ratio printed is edit time / (bare analyse + the window's bare repaint); the
+goal is <= 2 (and <= 50 ms) up to 200 masses. The ratio to bare analyse + the empty window's
+update-to-paint is printed too.
 
 For the largest size an event-loop latency probe runs during the edits: a 5 ms QTimer records how
 late each tick fires; the worst lateness is how long the UI thread was blocked.
@@ -85,6 +87,9 @@ def time_edits(win, model, repeats: int, probe: LatencyProbe | None = None) -> d
     worst = 0.0
 
     clock = gc.ResultsClock(win)
+    # the unavoidable paint: this window, as it is, repainted whole with no edit (every visible
+    # panel drawn once; Qt's raster painting of a 1400x880 window of plots, tables and text)
+    out["window_repaint"] = gc.median_time(win.repaint, 7)
 
     def timed(action) -> tuple[float, float]:
         nonlocal worst
@@ -188,20 +193,25 @@ def main(argv=None):
                  f" {repaint_loop * 1e3:.2f} ms")
     print(f"Edit to every visible panel painted, whole window, offscreen, {args.kind}, medians")
     print(base_note)
-    print(f"{'masses':>6} | {'modes':>8} {'analyse':>8} | " +
+    print(f"{'masses':>6} | {'modes':>8} {'analyse':>8} {'repaint':>9} | " +
           " | ".join(f"{k + ' shown':>14} {'x':>5} {'complete':>9}" for k in EDITS)
           + " | UI block")
     print("-" * 128)
     for n, nm, bm, ba, res in rows:
-        budget = ba + repaint_loop
+        budget = ba + res["window_repaint"]
         cells = " | ".join(f"{res[k][0] * 1e3:12.1f}ms {res[k][0] / budget:5.1f}"
                            f" {res[k][1] * 1e3:7.0f}ms" for k in EDITS)
         block = f"{res['worst_block_ms']:.0f} ms" if "worst_block_ms" in res else ""
-        print(f"{nm:>6} | {bm * 1e3:6.2f}ms {ba * 1e3:6.2f}ms | {cells} | {block}")
+        print(f"{nm:>6} | {bm * 1e3:6.2f}ms {ba * 1e3:6.2f}ms {res['window_repaint'] * 1e3:7.2f}ms"
+              f" | {cells} | {block}")
     print("shown: edit to the first paint with the new results (every view current, or dimmed"
           " and marked updating); complete: to the last paint (sweep and response curves too)")
-    print("x = shown / (bare analyse + bare update-to-paint); goal <= 2 and <= 50 ms up to"
+    print("repaint: this window with the same model repainted whole, no edit (median of"
+          " repaint()); x = shown / (bare analyse + repaint); goal <= 2 and <= 50 ms up to"
           " 200 masses; at 1000: edit < 300 ms, UI never blocked > 100 ms")
+    print("ratio to bare analyse + the empty window's update-to-paint (shown): " + "; ".join(
+        f"{nm}: " + ", ".join(f"{res[k][0] / (ba + repaint_loop):.1f}" for k in EDITS)
+        for n, nm, bm, ba, res in rows))
     print("ratio to bare solver.modes alone (shown, complete): " + "; ".join(
         f"{nm}: " + ", ".join(f"{res[k][0] / bm:.0f}/{res[k][1] / bm:.0f}" for k in EDITS)
         for n, nm, bm, ba, res in rows))

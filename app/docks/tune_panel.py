@@ -112,16 +112,20 @@ class _SweepJob(QRunnable):
         base, eid, f, values = self.key
         # beyond a tiny model the solves go to the worker process: scipy's eigensolver keeps the
         # interpreter lock, and in this thread it would stall the window for each point
+        # Never solve in this thread: the solver is mostly Python (assembly, checks) and holds
+        # the interpreter lock, so even a 10-mass sweep (~50 ms) stalled the window's paint of
+        # the edit that started it (bench/edit_bench.py). A small model's sweep goes to the
+        # worker process in one call; a large one a value at a time, so a newer edit stops it
+        # after the solve it is in.
         far = dof_count(base) > SWEEP_SYNC_DOF_LIMIT
         rows = []
         try:
-            for v in values:
+            if not far:
+                rows = list(offload.run(offload.sweep, base, eid, values, f, lane="sweep"))
+            for v in values if far else ():
                 if self.latest() != self.generation:
                     return
-                if far:
-                    rows.append(offload.run(offload.sweep_point, base, eid, v, f, lane="sweep"))
-                else:
-                    rows.append(solver.sweep(base, eid, [v], field=f).frequencies_hz[0])
+                rows.append(offload.run(offload.sweep_point, base, eid, v, f, lane="sweep"))
         except ModelError as exc:
             self.relay.done.emit(self.generation, None, str(exc))
             return

@@ -85,4 +85,12 @@ def sweep_point(model, element_id: str, value: float, field: str):
     return solver.sweep(model, element_id, [value], field=field).frequencies_hz[0]
 
 
+def sweep(model, element_id: str, values, field: str):
+    """Frequencies (Hz) of every mode at each of ``values`` (``solver.sweep``), shape
+    (len(values), n_modes)."""
+    import solver
+
+    return solver.sweep(model, element_id, list(values), field=field).frequencies_hz
+
+
 atexit.register(shutdown)

@@ -15,6 +15,7 @@ import numpy as np
 import pytest
 
 import solver
+from app.results import offload
 from app.docks.on_screen import on_screen
 from solver.model import Anchor, Mass, Model, Spring
 
@@ -53,9 +54,12 @@ def test_hidden_tune_panel_sweeps_only_when_shown(qtbot, window, monkeypatch):
     other = "s2" if picked == "s1" else "s1"
     _click_tab(qtbot, window, "Response")
     assert not on_screen(tp)
-    calls = []
-    real = solver.sweep
+    calls = []    # the models swept, in this process or handed to the sweep worker process
+    real, real_run = solver.sweep, offload.run
     monkeypatch.setattr(solver, "sweep", lambda *a, **k: calls.append(a) or real(*a, **k))
+    monkeypatch.setattr(offload, "run", lambda fn, *a, **k: (
+        calls.append(a) if fn in (offload.sweep, offload.sweep_point) else None)
+        or real_run(fn, *a, **k))
     window.document.set_element(other, k=9000.0)
     _settle(qtbot, window)
     assert calls == [] and not tp.sweep_pending
