@@ -34,7 +34,8 @@ import pyqtgraph as pg
 
 from app.drawing.plot_axes import true_value_axes
 from app.drawing.sketch import (SketchLayout, can_paint_fast, fit_scale, paint_deformed_layer,
-                                paint_moving_layer, paint_sketch, paint_static_layer)
+                                paint_labels_layer, paint_moving_layer, paint_sketch,
+                                paint_static_layer)
 from app.drawing.style import current_style
 from app.text.numbers import hz
 
@@ -254,9 +255,11 @@ class MotionView(QWidget):
                 # an animation frame: the layout at rest from a pixmap painted once, then what
                 # moves (without labels or tint: every element at once)
                 fast = can_paint_fast(self.model, disp, labels, self.energy, highlight)
-                p.drawPixmap(0, 0, self._static_pixmap(lay, st, anchors=fast))
+                p.drawPixmap(0, 0, self._static_pixmap(lay, st, anchors=fast,
+                                                       labels=labels if fast else False))
                 if fast:
-                    paint_moving_layer(p, lay, disp, self.scale, st)
+                    paint_moving_layer(p, lay, disp, self.scale, st, energy=self.energy,
+                                       highlight=highlight)
                 else:
                     paint_deformed_layer(p, lay, disp, self.scale, st, energy=self.energy,
                                          labels=labels, highlight=highlight,
@@ -282,10 +285,14 @@ class MotionView(QWidget):
         finally:
             p.end()
 
-    def _static_pixmap(self, lay, st, anchors: bool) -> QPixmap:
-        """Background, the layout at rest (and the anchors), painted once per layout and size."""
+    def _static_pixmap(self, lay, st, anchors: bool, labels=False) -> QPixmap:
+        """Background, the layout at rest (and the anchors, and the labels: they are placed
+        clear of the room the symbols sweep, so they never move), painted once per layout,
+        size, label texts and sweep."""
         ratio = self.devicePixelRatioF()
-        key = (lay, lay._geometry, st.name, self.width(), self.height(), ratio, anchors)
+        label_key = ((labels, self.energy, round(self.motion_px, 1)) if labels else None)
+        key = (lay, lay._geometry, st.name, self.width(), self.height(), ratio, anchors,
+               label_key)
         if self._static is not None and self._static[0] == key:
             return self._static[1]
         pix = QPixmap(max(1, round(self.width() * ratio)), max(1, round(self.height() * ratio)))
@@ -294,6 +301,9 @@ class MotionView(QWidget):
         p = QPainter(pix)
         try:
             paint_static_layer(p, lay, st, anchors=anchors)
+            if labels:
+                p.setFont(self.font())
+                paint_labels_layer(p, lay, labels, st, self.energy, self.motion_px)
         finally:
             p.end()
         self._static = (key, pix)

@@ -535,13 +535,17 @@ def _paint_layer(painter, lay: SketchLayout, st: Style, disp, scale, lw, grey, e
         painter.setBrush(Qt.BrushStyle.NoBrush)
 
     if labels and not grey and model.kind == "line":
-        # a small arrow saying which way the masses move
-        o = _axis_origin(lay)
-        direction = QPointF(1, 0) if model.axis == "x" else QPointF(0, -1)
-        painter.setPen(QPen(st.ink_soft, lw))
-        painter.setBrush(QBrush(st.ink_soft))
-        painter.drawPath(shapes.axis_arrow_path(o, direction, 1.2 * base, 0.3 * base))
-        painter.setBrush(Qt.BrushStyle.NoBrush)
+        _paint_axis_arrow(painter, lay, st, lw)
+
+
+def _paint_axis_arrow(painter, lay: SketchLayout, st: Style, lw: float) -> None:
+    """A small arrow saying which way the masses of a line model move."""
+    o = _axis_origin(lay)
+    direction = QPointF(1, 0) if lay.model.axis == "x" else QPointF(0, -1)
+    painter.setPen(QPen(st.ink_soft, lw))
+    painter.setBrush(QBrush(st.ink_soft))
+    painter.drawPath(shapes.axis_arrow_path(o, direction, 1.2 * lay.base, 0.3 * lay.base))
+    painter.setBrush(Qt.BrushStyle.NoBrush)
 
 
 def _paint_body(painter, lay, st, m, c: QPointF, turn: float, lw: float, grey: bool, edge):
@@ -700,11 +704,29 @@ def _label_texts(lay, labels, energy) -> list[tuple[str, object, str]]:
 
 
 def can_paint_fast(model, displacements, labels=False, energy=None, highlight=None) -> bool:
-    """True when :func:`paint_static_layer` + :func:`paint_moving_layer` draw what
-    :func:`paint_sketch` would (translation models, moving, no labels, tint or highlight)."""
+    """True when :func:`paint_static_layer` (with :func:`paint_labels_layer` for ``labels``) +
+    :func:`paint_moving_layer` draw what :func:`paint_sketch` would: translation models without
+    mount points, moving. The energy tint and highlighted elements are drawn by the moving layer;
+    the labels, placed clear of the room every symbol sweeps, stay put under it."""
     return (model is not None and model.kind != "torsion" and bool(displacements)
-            and not labels and not energy and not highlight
             and not (model.kind == "planar" and _bodies.mount_points(model)))
+
+
+def paint_labels_layer(painter: QPainter, lay: SketchLayout, labels, style: Style | None = None,
+                       energy=None, motion_px: float = 0.0) -> None:
+    """The labels of a frame alone (and a line model's axis arrow), as :func:`paint_sketch`
+    draws them (placed once per layout,
+    clear of the room each symbol sweeps: ``motion_px``), for a picture that is kept from frame
+    to frame."""
+    st = style or current_style()
+    painter.save()
+    painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+    try:
+        if lay.model.kind == "line":
+            _paint_axis_arrow(painter, lay, st, max(1.0, lay.base / 18.0))
+        _paint_labels(painter, lay, st, labels, energy, motion_px)
+    finally:
+        painter.restore()
 
 
 def paint_static_layer(painter: QPainter, lay: SketchLayout, style: Style | None = None,
@@ -773,6 +795,7 @@ def _frame_arrays(lay: SketchLayout) -> dict:
 
     fd = {"geometry": lay._geometry, "n_masses": len(model.masses),
           "mass_ids": [m.id for m in model.masses], "rest": rest, "half": half,
+          "spring_ids": [sp.id for sp in model.springs],
           "springs": links(model.springs), "dampers": links(model.dampers),
           "turns": np.array([lay.turns(s.id) for s in model.springs], int)}
     lay._frame_arrays = fd
@@ -839,10 +862,25 @@ def _coils(p1, p2, turns, width):
     return sorted(xs, key=lambda item: item[0])
 
 
+def _spring_pen(st: Style, sid: str, lw: float, energy, highlight, default: QPen) -> QPen:
+    """The pen of a spring in a deformed layer, as :func:`_paint_layer` chooses it."""
+    if sid in highlight:
+        return QPen(st.accent, lw * 1.6)
+    f = energy.get(sid) if energy else None
+    if f is None:
+        return default
+    if f < 0.005:
+        return QPen(st.ink_soft, lw)
+    return QPen(st.energy_color(0.25 + 0.75 * f), lw * (1.2 + 2.0 * f))
+
+
 def paint_moving_layer(painter: QPainter, lay: SketchLayout, displacements: dict,
-                       scale: float = 1.0, style: Style | None = None) -> None:
+                       scale: float = 1.0, style: Style | None = None, energy=None,
+                       highlight=()) -> None:
     """The moving part of a frame (see :func:`can_paint_fast`): springs, dashpots and masses
-    displaced by ``displacements`` x ``scale``, over :func:`paint_static_layer`."""
+    displaced by ``displacements`` x ``scale``, over :func:`paint_static_layer`; springs and
+    masses tinted by ``energy`` ({id: share}) and ``highlight`` ids in the accent colour, as
+    :func:`paint_sketch` draws them."""
     # numpy straight into a QPolygonF's memory (the motion view has pyqtgraph loaded already)
     from pyqtgraph.functions import create_qpolygonf, ndarray_from_qpolygonf
 
@@ -870,31 +908,48 @@ def paint_moving_layer(painter: QPainter, lay: SketchLayout, displacements: dict
             p1, p2 = _link_ends(fd, points, fd["springs"])
             # one stroke per spring, as paint_sketch: a single path of every spring is faster
             # to build but far slower to fill where the zig-zags overlap
-            for _i, verts in _coils(p1, p2, fd["turns"], 0.42 * base):
+            styled = bool(energy) or bool(highlight)
+            sids = fd["spring_ids"]
+            for i, verts in _coils(p1, p2, fd["turns"], 0.42 * base):
+                if styled:
+                    painter.setPen(_spring_pen(st, sids[i], lw, energy, highlight, pen))
                 poly = create_qpolygonf(len(verts))
                 ndarray_from_qpolygonf(poly)[:] = verts
                 painter.drawPolyline(poly)
+            painter.setPen(pen)
         if len(fd["dampers"][0]):
             p1, p2 = _link_ends(fd, points, fd["dampers"])
             for q1, q2 in zip(p1, p2):
                 painter.drawPath(shapes.dashpot_path(QPointF(*q1), QPointF(*q2), 0.42 * base))
         half = fd["half"][:n_m]
         pts = points[:n_m]
-        painter.setPen(QPen(st.mass_edge, lw))
-        painter.setBrush(QBrush(st.mass_fill))
+        edge_pen = QPen(st.mass_edge, lw)
+        painter.setPen(edge_pen)
         fill, edge = QBrush(st.mass_fill), QBrush(st.mass_edge)
-        for (x, y), h in zip(pts.tolist(), half.tolist()):   # in order: blocks may overlap
+        brushes = []      # each mass's brush, for its lock too
+        for j, ((x, y), h) in enumerate(zip(pts.tolist(), half.tolist())):
+            mid = fd["mass_ids"][j]
+            lit = mid in highlight
+            if lit:
+                painter.setPen(QPen(st.accent, lw * 1.6))
+            f = energy.get(mid) if energy else None
+            # in order: blocks may overlap
             if h > 0:
-                painter.setBrush(fill)
+                brush = fill if f is None else QBrush(st.energy_color(f))
+                painter.setBrush(brush)
                 painter.drawRect(QRectF(x - h, y - h, 2 * h, 2 * h))
             else:
-                painter.setBrush(edge)
+                brush = QBrush(st.accent) if lit else edge
+                painter.setBrush(brush)
                 painter.drawEllipse(QPointF(x, y), 0.14 * base, 0.14 * base)
+            brushes.append(brush)
+            if lit:
+                painter.setPen(edge_pen)
         for j, m in enumerate(model.masses):
             if m.fixed:
                 below = half[j] if half[j] > 0 else 0.14 * base
                 # the lock is drawn with the mass's own brush, as paint_sketch does
-                painter.setBrush(QBrush(st.mass_fill if half[j] > 0 else st.mass_edge))
+                painter.setBrush(brushes[j])
                 painter.setPen(QPen(st.ink_soft, lw))
                 _paint_locks(painter, lay, QPointF(*pts[j]), below, m.fixed)
         painter.setBrush(Qt.BrushStyle.NoBrush)
@@ -1063,4 +1118,4 @@ def _paint_locks(painter, lay, c: QPointF, below: float, fixed):
 
 
 __all__ = ["SketchLayout", "paint_sketch", "fit_scale", "symbol_rects", "LIGHT", "can_paint_fast",
-           "paint_static_layer", "paint_moving_layer", "paint_deformed_layer"]
+           "paint_static_layer", "paint_moving_layer", "paint_deformed_layer", "paint_labels_layer"]

@@ -81,6 +81,55 @@ def test_frame_matches_reference_painter(qtbot, model):
     assert (np.abs(a - _pixels(_blank(shown, st))).max(axis=2) > 64).sum() > 500
 
 
+@pytest.mark.parametrize("model", [_chain(12), _lattice()], ids=["12 masses", "planar lattice"])
+def test_tinted_frame_with_labels_matches_reference_painter(qtbot, model):
+    """common practice: the cached-and-vectorised frame draws the energy tint (springs by strain
+    energy, masses by kinetic energy, shares below 0.5 % in the soft ink), a highlighted mass
+    and spring, and the labels exactly where paint_sketch draws them: every pixel within 8 of
+    255 levels."""
+    rng = np.random.default_rng(4)
+    ids = [el.id for el in model.springs + model.masses]
+    energy = {i: float(f) for i, f in zip(ids, rng.uniform(0.0, 1.0, len(ids)))}
+    energy[model.springs[1].id] = 0.001
+    highlight = {model.springs[2].id}
+    view = MotionView()
+    qtbot.addWidget(view)
+    view.resize(620, 400)
+    view.set_model(model)
+    lay = view.layout_()
+    shape = solver.modes(model).node_displacement(2)
+    view.displacements, view.scale = shape, fit_scale(lay, shape, 0.12)
+    view.energy = energy
+    view.caption = view.hint = ""
+    st = current_style(view.palette())
+    labels = len(model.masses) <= LABEL_LIMIT
+    from app.drawing.sketch import can_paint_fast, paint_labels_layer, paint_moving_layer
+    assert can_paint_fast(model, shape, labels, energy, highlight)
+    shown = view.grab().toImage()
+    # the same frame with the highlight, drawn the fast way by hand
+    fast = QImage(shown.size(), QImage.Format.Format_ARGB32_Premultiplied)
+    fast.fill(st.background)
+    p = QPainter(fast)
+    from app.drawing.sketch import paint_static_layer
+    paint_static_layer(p, lay, st)
+    paint_labels_layer(p, lay, labels, st, energy)
+    paint_moving_layer(p, lay, shape, view.scale, st, energy=energy, highlight=highlight)
+    p.end()
+    for picture, lit in ((shown, None), (fast, highlight)):
+        ref = QImage(shown.size(), QImage.Format.Format_ARGB32_Premultiplied)
+        ref.fill(st.background)
+        p = QPainter(ref)
+        paint_sketch(p, model, lay.rect, shape, view.scale, st, undeformed=True, energy=energy,
+                     labels=labels, layout=lay, highlight=lit)
+        p.end()
+        a, b = _pixels(picture), _pixels(ref)
+        assert np.abs(a - b).max(axis=2).max() <= 8
+    # the tint is drawn: the tinted frame differs from the untinted one
+    view.energy = None
+    plain = _pixels(view.grab().toImage())
+    assert (np.abs(_pixels(shown) - plain).max(axis=2) > 32).sum() > 200
+
+
 def _blank(like: QImage, st) -> QImage:
     img = QImage(like.size(), QImage.Format.Format_ARGB32_Premultiplied)
     img.fill(st.background)
