@@ -122,6 +122,7 @@ class ModelScene(QGraphicsScene):
     def _on_open(self, model) -> None:
         """A different model: choose its scale and draw it afresh."""
         self._cancel_connect()
+        self._synced_model = None
         for item in list(self.nodes.values()) + list(self.links.values()):
             self.removeItem(item)
         self.nodes.clear()
@@ -156,14 +157,110 @@ class ModelScene(QGraphicsScene):
         self._syncing = True
         try:
             selected = set(self.selected_ids())
-            self._sync(model)
+            touched = self._sync_changed_only(model)
+            if touched is None:
+                self._sync(model)
             for eid, item in list(self.nodes.items()) + list(self.links.items()):
-                item.setSelected(eid in selected)
+                if item.isSelected() != (eid in selected):
+                    item.setSelected(eid in selected)
         finally:
             self._syncing = False
-        self.place_labels()
-        self._update_scene_rect()
+        if touched is None or touched:
+            # a value edit that moved nothing and renamed nothing leaves every label where it is
+            self.place_labels()
+            self._update_scene_rect()
         self._on_selection_change()
+
+    #: At most this many changed elements take the fast path of :meth:`_sync_changed_only`.
+    FAST_SYNC_LIMIT = 16
+
+    def _sync_changed_only(self, model):
+        """Refresh only the items whose element changed since the last sync, when the model kept
+        its structure (the same elements in the same order, links between the same points, no
+        rigid bodies, the same reference mass): a typed value, an undo of it, a dragged mass on
+        1000 masses touches a few items, not all (bench/edit_bench.py). Returns the items whose
+        position, label or symbol size changed (empty: no label needs placing again), or None
+        when the full :meth:`_sync` must run."""
+        prev = getattr(self, "_synced_model", None)
+        if prev is None or prev.kind != model.kind or prev.axis != model.axis:
+            return None
+        diffs = {}
+        for group in ("masses", "anchors", "springs", "dampers", "gears"):
+            old, new = getattr(prev, group), getattr(model, group)
+            if len(old) != len(new):
+                return None
+            diff = [(o, n) for o, n in zip(old, new) if o is not n]
+            if len(diff) > self.FAST_SYNC_LIMIT or any(o.id != n.id for o, n in diff):
+                return None
+            diffs[group] = diff
+        if model.kind == "planar" and any(m.inertia > 0 for m in model.masses):
+            return None     # mount points and elastic centres depend on every spring
+        for o, n in diffs["springs"] + diffs["dampers"] + diffs["gears"]:
+            if bodies.link_key(o) != bodies.link_key(n) or (o.a, o.b) != (n.a, n.b):
+                return None  # reconnected: lanes of parallel links change
+        if any(o.mass != n.mass for o, n in diffs["masses"]):
+            return None      # the reference mass (block sizes) may change
+        if any(item.pos() != item._sync_pos for item in self.nodes.values()):
+            return None      # a drag preview the model refused: put every item back
+        moved = {n.id for o, n in diffs["masses"] + diffs["anchors"]}
+        adjacency = self._adjacency
+        links = {n.id: n for o, n in diffs["springs"] + diffs["dampers"] + diffs["gears"]}
+        for nid in moved:
+            for lid in adjacency.get(nid, ()):
+                links.setdefault(lid, model.element(lid))
+        anchors = {n.id: n for o, n in diffs["anchors"]}
+        for nid in moved:
+            for other in self._anchor_of.get(nid, ()):
+                anchors.setdefault(other, model.element(other))
+        touched = []
+
+        def drawing(item):
+            if item.element_id in self.links:
+                return (item.label_item.text(), item.endpoints())
+            return (item.pos(), item.label_item.text(), item.symbol_rect().width())
+
+        def refreshed(item, refresh):
+            # an item refreshed puts its label back where it likes it; when its drawing is the
+            # same, the place found among the others stays right: put the label back there
+            was, label = drawing(item), item.label_item
+            place, visible = label.pos(), label.isVisible()
+            refresh()
+            if drawing(item) != was:
+                touched.append(item)
+            else:
+                label.setPos(place)
+                label.setVisible(visible)
+
+        for o, m in diffs["masses"]:
+            item = self.nodes[m.id]
+            reference = item._sync_key[3]
+            refreshed(item, lambda: item.update_from(m, model, reference_mass=reference))
+            _synced(item, (m, model.kind, model.axis, reference))
+        for a in anchors.values():
+            item = self.nodes[a.id]
+            normal = self._anchor_normal(model, a)
+            refreshed(item, lambda: item.update_from(a, model, normal=normal))
+            _synced(item, (a, model.kind, model.axis, normal))
+        for link in links.values():
+            item = self.links[link.id]
+            a_item, b_item = self.nodes[link.a], self.nodes[link.b]
+            refreshed(item, lambda: item.set_element(link, a_item, b_item))
+            item._sync_key = (link, item.offset, id(a_item), a_item._sync_serial, id(b_item),
+                              b_item._sync_serial)
+        self._synced_model = model
+        return touched
+
+    def _anchor_normal(self, model, a):
+        """The direction an anchor's hatching faces: towards the point its first link holds."""
+        neighbour = self._anchor_link.get(a.id)
+        if neighbour is None:
+            return None
+        link = model.element(neighbour)
+        other, off = ((link.b, bodies.offset_of(link, "b")) if link.a == a.id
+                      else (link.a, bodies.offset_of(link, "a")))
+        node, (ox, oy) = model.find(other), off
+        return normal_towards(a, dataclasses.replace(node, x=node.x + ox, y=node.y + oy)
+                              if (ox, oy) != bodies.ORIGIN else node)
 
     def place_labels(self) -> None:
         """Put every label clear of the symbols and of the labels placed before it (masses,
@@ -262,10 +359,25 @@ class ModelScene(QGraphicsScene):
                 item.update_from(m, model, reference_mass=reference)
                 _synced(item, key)
         neighbours: dict[str, tuple] = {}
+        first_link: dict[str, str] = {}
         for link in model.springs + model.dampers:
             # the point the anchor holds: a mount point of a body, else the node itself
             neighbours.setdefault(link.a, (link.b, bodies.offset_of(link, "b")))
             neighbours.setdefault(link.b, (link.a, bodies.offset_of(link, "a")))
+            first_link.setdefault(link.a, link.id)
+            first_link.setdefault(link.b, link.id)
+        # for the fast path (_sync_changed_only): the links at each node, the anchor whose
+        # hatching faces each node, the link that sets each anchor's facing
+        anchor_ids = {a.id for a in model.anchors}
+        self._anchor_link = {a: first_link[a] for a in anchor_ids if a in first_link}
+        self._anchor_of = {}
+        for a, (other, _off) in neighbours.items():
+            if a in anchor_ids:
+                self._anchor_of.setdefault(other, []).append(a)
+        self._adjacency = {}
+        for link in model.springs + model.dampers + model.gears:
+            self._adjacency.setdefault(link.a, []).append(link.id)
+            self._adjacency.setdefault(link.b, []).append(link.id)
         for a in model.anchors:
             other = neighbours.get(a.id)
             if other:
@@ -314,11 +426,13 @@ class ModelScene(QGraphicsScene):
                 item.offset = offset
                 item.set_element(link, a_item, b_item)
                 item._sync_key = key
+        self._synced_model = model
 
     def restyle(self) -> None:
         """Redraw every item with the current palette (a light/dark switch)."""
         for item in list(self.nodes.values()) + list(self.links.values()):
             item._sync_key = None
+        self._synced_model = None
         self._on_model_change(self.document.model)
         if self._kb_cursor is not None:
             pen = self._kb_cursor.pen()

@@ -42,10 +42,11 @@ CACHE_SIZE = 8
 
 
 def analyse(model):
-    """``solver.analyse(model)``: the bundle of results the views take."""
-    import solver
+    """The bundle of results the views take (:func:`app.results.offload.analyse`: every mode
+    of a model up to a few hundred DOFs, the lowest ones of a larger model)."""
+    from app.results import offload
 
-    return solver.analyse(model)
+    return offload.analyse(model)
 
 
 def dof_count(model) -> int:

@@ -17,6 +17,7 @@ without holding the interpreter lock for long.
 from __future__ import annotations
 
 import atexit
+import math
 import pickle
 import threading
 
@@ -70,19 +71,78 @@ def shutdown() -> None:
         pool.join()
 
 
-def analyse(model):
-    """``solver.analyse(model)`` (module-level, so the worker process can import it)."""
-    import solver
+#: Above this many DOFs the window computes the lowest modes only: every mode of a 1000-DOF
+#: model by dense LAPACK took 0.4-0.5 s on one core, the lowest 40 by shift-invert Lanczos
+#: 20-60 ms (bench/edit_bench.py). The command line and the solver API still give every mode.
+FULL_SPECTRUM_DOF = 400
+#: At least this many of the lowest modes, ...
+LOWEST_MODES = 40
+#: ... and every mode below this factor times the top edge of the highest source band (its
+#: margin included), so the margin check sees every mode that can come near a source.
+COVER_FACTOR = 1.5
 
-    return solver.analyse(model)
+
+def mode_count(system) -> tuple[int | None, float]:
+    """How many of the lowest modes the window computes for ``system`` (None: all of them),
+    and the frequency (Hz) below which it must have every mode (0 when no source asks)."""
+    from solver.margins import source_bands
+
+    n = system.n_dof
+    if n <= FULL_SPECTRUM_DOF:
+        return None, 0.0
+    tops = [hi_w for *_rest, hi_w in source_bands(system.model)]
+    cover = COVER_FACTOR * max(tops) if tops else 0.0
+    want = LOWEST_MODES
+    if cover > 0:
+        from solver.modes import _count_below
+
+        below = _count_below(system.K, system.M, (2 * math.pi * cover) ** 2)
+        if below is None:
+            return None, cover       # the count is not to be trusted: every mode
+        want = max(want, below + 1)
+    return (None if 3 * want > n else want), cover
+
+
+def analyse(model):
+    """The window's analysis of ``model`` (module-level, so the worker process can import it):
+    ``solver.analyse`` with every mode up to :data:`FULL_SPECTRUM_DOF` DOFs; above, the lowest
+    modes (:func:`mode_count`) and a note saying how many of how many."""
+    import solver
+    from solver.analysis import Analysis
+    from solver.metrics import energy_fractions, sensitivities
+
+    system = solver.assemble(model)
+    count, cover = mode_count(system)
+    if count is None:
+        return solver.analyse(model)
+    modal = solver.modes(system, count=count)
+    warnings = list(modal.warnings)
+    if modal.message:
+        warnings.insert(0, modal.message)
+    if modal.n_modes < system.n_dof:
+        top = float(modal.frequencies_hz[-1]) if modal.n_modes else 0.0
+        warnings.append(
+            f"the lowest {modal.n_modes} of {system.n_dof:,} modes are computed (up to"
+            f" {top:.4g} Hz" + (f"; every source band and its margin lies below {cover:.4g} Hz"
+                               if cover > 0 else "") + "); the command line gives every mode")
+    return Analysis(model=model, system=system, modal=modal, energy=energy_fractions(modal),
+                    sensitivity=sensitivities(modal), warnings=tuple(dict.fromkeys(warnings)))
 
 
 def sweep_point(model, element_id: str, value: float, field: str):
     """Frequencies (Hz) of every mode with one element at ``value`` (``solver.sweep`` of one
-    value), shape (n_modes,)."""
+    value), shape (n_modes,); of the lowest :data:`LOWEST_MODES` above
+    :data:`FULL_SPECTRUM_DOF` DOFs, as the window's analysis."""
     import solver
 
-    return solver.sweep(model, element_id, [value], field=field).frequencies_hz[0]
+    count = LOWEST_MODES if _dofs(model) > FULL_SPECTRUM_DOF else None
+    return solver.sweep(model, element_id, [value], field=field,
+                        count=count).frequencies_hz[0]
+
+
+def _dofs(model) -> int:
+    n_dir = len(model.directions)
+    return sum(n_dir - len(m.fixed) for m in model.masses)
 
 
 def sweep(model, element_id: str, values, field: str):
