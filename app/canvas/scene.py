@@ -200,9 +200,10 @@ class ModelScene(QGraphicsScene):
                 return None  # reconnected: lanes of parallel links change
         if any(o.mass != n.mass for o, n in diffs["masses"]):
             return None      # the reference mass (block sizes) may change
-        if any(item.pos() != item._sync_pos for item in self.nodes.values()):
-            return None      # a drag preview the model refused: put every item back
         moved = {n.id for o, n in diffs["masses"] + diffs["anchors"]}
+        if any(item.pos() != item._sync_pos for eid, item in self.nodes.items()
+               if eid not in moved):
+            return None      # a drag preview the model refused: put every item back
         adjacency = self._adjacency
         links = {n.id: n for o, n in diffs["springs"] + diffs["dampers"] + diffs["gears"]}
         for nid in moved:

@@ -739,8 +739,11 @@ def paint_static_layer(painter: QPainter, lay: SketchLayout, style: Style | None
     painter.save()
     painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
     try:
-        _paint_layer(painter, lay, st, None, 1.0, lw * 0.9, grey=True, energy=None,
-                     labels=False, highlight=set())
+        if _paint_rest_fast(lay):
+            _paint_arrays(painter, lay, _frame_arrays(lay)["rest"], st, grey=True)
+        else:
+            _paint_layer(painter, lay, st, None, 1.0, lw * 0.9, grey=True, energy=None,
+                         labels=False, highlight=set())
         painter.setBrush(Qt.BrushStyle.NoBrush)
         for a in (model.anchors if anchors else ()):
             painter.setPen(QPen(st.anchor, lw))
@@ -881,14 +884,7 @@ def paint_moving_layer(painter: QPainter, lay: SketchLayout, displacements: dict
     displaced by ``displacements`` x ``scale``, over :func:`paint_static_layer`; springs and
     masses tinted by ``energy`` ({id: share}) and ``highlight`` ids in the accent colour, as
     :func:`paint_sketch` draws them."""
-    # numpy straight into a QPolygonF's memory (the motion view has pyqtgraph loaded already)
-    from pyqtgraph.functions import create_qpolygonf, ndarray_from_qpolygonf
-
-    st = style or current_style()
-    model = lay.model
     fd = _frame_arrays(lay)
-    base, n_m = lay.base, fd["n_masses"]
-    lw = max(1.0, base / 18.0)
     points = fd["rest"].copy()
     k = scale * lay.px_per_m
     for j, mid in enumerate(fd["mass_ids"]):
@@ -896,19 +892,49 @@ def paint_moving_layer(painter: QPainter, lay: SketchLayout, displacements: dict
         if dd:
             points[j, 0] += dd.get("x", 0.0) * k
             points[j, 1] -= dd.get("y", 0.0) * k
+    _paint_arrays(painter, lay, points, style or current_style(), False, energy, highlight)
+
+
+def _paint_rest_fast(lay: SketchLayout) -> bool:
+    """True when :func:`_paint_arrays` draws the layout at rest in grey as ``_paint_layer``
+    does: translation models without rigid bodies."""
+    model = lay.model
+    return model.kind != "torsion" and not any(lay.is_body(m.id) for m in model.masses)
+
+
+def _paint_arrays(painter: QPainter, lay: SketchLayout, points, st: Style, grey: bool,
+                  energy=None, highlight=()) -> None:
+    """Springs, dashpots and masses at ``points`` (rows of :func:`_frame_arrays`' nodes, device
+    units) from arrays: the deformed layer (``grey`` False: tint, highlight, locks) or the
+    layout at rest in grey (its anchors too), each exactly as :func:`_paint_layer` draws it."""
+    # numpy straight into a QPolygonF's memory (pyqtgraph is loaded with the first plot)
+    from pyqtgraph.functions import create_qpolygonf, ndarray_from_qpolygonf
+
+    model = lay.model
+    fd = _frame_arrays(lay)
+    base, n_m = lay.base, fd["n_masses"]
+    lw = max(1.0, base / 18.0) * (0.9 if grey else 1.0)
     painter.save()
     painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
     try:
-        pen = QPen(st.ink, lw)
-        pen.setCapStyle(Qt.PenCapStyle.RoundCap)
-        pen.setJoinStyle(Qt.PenJoinStyle.RoundJoin)
+        if grey:
+            pen = QPen(st.undeformed, lw)
+            painter.setBrush(Qt.BrushStyle.NoBrush)
+            painter.setPen(pen)
+            for a in model.anchors:
+                painter.drawPath(shapes.anchor_path(lay.point(a.id), 1.5 * base,
+                                                    lay.anchor_normal(a.id)))
+        else:
+            pen = QPen(st.ink, lw)
+            pen.setCapStyle(Qt.PenCapStyle.RoundCap)
+            pen.setJoinStyle(Qt.PenJoinStyle.RoundJoin)
         painter.setBrush(Qt.BrushStyle.NoBrush)
         painter.setPen(pen)
         if len(fd["springs"][0]):
             p1, p2 = _link_ends(fd, points, fd["springs"])
             # one stroke per spring, as paint_sketch: a single path of every spring is faster
             # to build but far slower to fill where the zig-zags overlap
-            styled = bool(energy) or bool(highlight)
+            styled = not grey and (bool(energy) or bool(highlight))
             sids = fd["spring_ids"]
             for i, verts in _coils(p1, p2, fd["turns"], 0.42 * base):
                 if styled:
@@ -923,16 +949,17 @@ def paint_moving_layer(painter: QPainter, lay: SketchLayout, displacements: dict
                 painter.drawPath(shapes.dashpot_path(QPointF(*q1), QPointF(*q2), 0.42 * base))
         half = fd["half"][:n_m]
         pts = points[:n_m]
-        edge_pen = QPen(st.mass_edge, lw)
+        edge_pen = QPen(st.undeformed if grey else st.mass_edge, lw)
         painter.setPen(edge_pen)
-        fill, edge = QBrush(st.mass_fill), QBrush(st.mass_edge)
+        fill = Qt.BrushStyle.NoBrush if grey else QBrush(st.mass_fill)
+        edge = QBrush(st.undeformed if grey else st.mass_edge)
         brushes = []      # each mass's brush, for its lock too
         for j, ((x, y), h) in enumerate(zip(pts.tolist(), half.tolist())):
             mid = fd["mass_ids"][j]
-            lit = mid in highlight
+            lit = not grey and mid in highlight
             if lit:
                 painter.setPen(QPen(st.accent, lw * 1.6))
-            f = energy.get(mid) if energy else None
+            f = energy.get(mid) if energy and not grey else None
             # in order: blocks may overlap
             if h > 0:
                 brush = fill if f is None else QBrush(st.energy_color(f))
@@ -945,7 +972,7 @@ def paint_moving_layer(painter: QPainter, lay: SketchLayout, displacements: dict
             brushes.append(brush)
             if lit:
                 painter.setPen(edge_pen)
-        for j, m in enumerate(model.masses):
+        for j, m in enumerate(model.masses if not grey else ()):
             if m.fixed:
                 below = half[j] if half[j] > 0 else 0.14 * base
                 # the lock is drawn with the mass's own brush, as paint_sketch does

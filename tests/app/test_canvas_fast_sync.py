@@ -126,3 +126,28 @@ def test_a_changed_mass_value_or_a_new_element_takes_the_full_path(qtbot):
     doc.move_nodes({"m11": (doc.model.element("g2").x + 0.5, last.y)})
     assert taken[-1] is not None
     assert _state(scene) == _state(ModelScene(Document(doc.model)))
+
+
+def test_a_dragged_mass_takes_the_fast_path_and_a_refused_drag_is_put_back(qtbot):
+    """A drag moves the item before the edit (its preview): the edit at the release refreshes
+    the few items it touches. A preview the model refuses puts the item back where the model
+    has it (common practice: a refused edit leaves the model and the picture unchanged)."""
+    from PySide6.QtCore import QPointF
+
+    doc = Document(_model())
+    scene = ModelScene(doc)
+    taken = []
+    real = scene._sync_changed_only
+    scene._sync_changed_only = lambda model: taken.append(real(model)) or taken[-1]
+    item = scene.nodes["m4"]
+    start = QPointF(item.pos())
+    item.setPos(start + QPointF(14.0, 0.0))           # the preview while dragging
+    target = scene.mapper.snapped_model(item.pos(), snap=False)
+    doc.move_nodes({"m4": target})
+    assert taken[-1] is not None
+    assert _state(scene) == _state(ModelScene(Document(doc.model)))
+    before = _state(scene)
+    item.setPos(item.pos() + QPointF(0.0, 30.0))       # a preview the model will not take
+    scene._on_model_change(doc.model)                  # as _finish_move does on a refusal
+    assert taken[-1] is None
+    assert _state(scene) == before
