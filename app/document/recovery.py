@@ -64,9 +64,12 @@ class Recovery(QObject):
         """Write the recovery file if there are unsaved edits. True when written."""
         if not self.document.dirty:
             return False
+        model = self.document.model
+        if getattr(self, "_written", None) is model and self.model_path.exists():
+            return True       # this very model is on disk already (the periodic tick)
         try:
             self.folder.mkdir(parents=True, exist_ok=True)
-            save_model(self.document.model, self.model_path)
+            save_model(model, self.model_path)
             path = self.document.path
             write_atomic(self.meta_path, json.dumps({"path": str(path) if path else None,
                                                      "time": time.time()}))
@@ -81,9 +84,11 @@ class Recovery(QObject):
                 self.status_message.emit(message)
             return False
         self._told = None
+        self._written = model
         return True
 
     def clear(self) -> None:
+        self._written = None
         for p in (self.model_path, self.meta_path):
             try:
                 p.unlink()
