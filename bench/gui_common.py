@@ -98,11 +98,12 @@ def median_time(fn, repeats: int) -> float:
     return statistics.median(times)
 
 
-def bare_solve(model, repeats: int = 9) -> tuple[float, float]:
-    """Median seconds of bare ``solver.modes(model)`` and of ``solver.analyse(model)`` (modes,
-    energy shares and sensitivities: what the window needs)."""
-    return (median_time(lambda: solver.modes(model), repeats),
-            median_time(lambda: solver.analyse(model), repeats))
+def bare_solve(model, repeats: int = 9, count=None) -> tuple[float, float]:
+    """Median seconds of bare ``solver.modes(model, count)`` and of
+    ``solver.analyse(model, count)`` (modes, energy shares and sensitivities: what the window
+    needs; ``count`` the window's number of modes, None for all)."""
+    return (median_time(lambda: solver.modes(model, count=count), repeats),
+            median_time(lambda: solver.analyse(model, count=count), repeats))
 
 
 class PaintWatch(QObject):
