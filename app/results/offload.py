@@ -124,7 +124,7 @@ def analyse(model):
         warnings.append(
             f"the lowest {modal.n_modes} of {system.n_dof:,} modes are computed (up to"
             f" {top:.4g} Hz" + (f"; every source band and its margin lies below {cover:.4g} Hz"
-                               if cover > 0 else "") + "); the command line gives every mode")
+                               if cover > 0 else "") + "); springwright solve FILE lists every mode")
     return Analysis(model=model, system=system, modal=modal, energy=energy_fractions(modal),
                     sensitivity=sensitivities(modal), warnings=tuple(dict.fromkeys(warnings)))
 
