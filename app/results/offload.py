@@ -121,10 +121,10 @@ def analyse(model):
         warnings.insert(0, modal.message)
     if modal.n_modes < system.n_dof:
         top = float(modal.frequencies_hz[-1]) if modal.n_modes else 0.0
-        warnings.append(
-            f"the lowest {modal.n_modes} of {system.n_dof:,} modes are computed (up to"
-            f" {top:.4g} Hz" + (f"; every source band and its margin lies below {cover:.4g} Hz"
-                               if cover > 0 else "") + "); springwright solve FILE lists every mode")
+        covered = (f"; every source band and its margin lies below {cover:.4g} Hz"
+                   if cover > 0 else "")
+        warnings.append(f"the lowest {modal.n_modes} of {system.n_dof:,} modes are computed (up"
+                        f" to {top:.4g} Hz{covered}); springwright solve FILE lists every mode")
     return Analysis(model=model, system=system, modal=modal, energy=energy_fractions(modal),
                     sensitivity=sensitivities(modal), warnings=tuple(dict.fromkeys(warnings)))
 

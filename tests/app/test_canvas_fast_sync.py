@@ -3,8 +3,8 @@ it then shows must equal a canvas drawn afresh from the same model.
 
 Common practice (a cache must never change the picture): after each edit of a random sequence
 (values typed, masses and anchors moved, labels renamed, undo and redo), every item of the
-canvas has the same position, label text, tooltip, end points and drawn symbol as on a second canvas of the
-same document that refreshes every item after every edit, and as on a canvas built from
+canvas has the same position, label text, tooltip, end points and drawn symbol as on a second
+canvas of the same document that refreshes every item after every edit, and as on one built from
 scratch for the edited model; and no two labels shown overlap. (Where a label sits depends on
 where the labels were before, on every canvas: places found earlier are reused, so places are
 not compared.)
