@@ -44,6 +44,11 @@ def _leads(length: float, width: float, lead: float | None) -> float:
     return max(0.0, min(lead, 0.35 * length))
 
 
+#: A spring whose zig-zag has half-waves shorter than this (device units) is drawn straight: a
+#: finer zig-zag cannot be seen, and stroking it cost ~40 us a spring (1000-mass motion frames).
+MIN_PITCH = 1.0
+
+
 def coil_path(p1: QPointF, p2: QPointF, turns: int = 6, width: float = 10.0,
               lead: float | None = None) -> QPainterPath:
     """A spring from ``p1`` to ``p2``: straight leads, then a zig-zag of ``turns`` full waves.
@@ -59,8 +64,11 @@ def coil_path(p1: QPointF, p2: QPointF, turns: int = 6, width: float = 10.0,
     turns = max(1, int(turns))
     lead = _leads(length, width, lead)
     body = length - 2 * lead
-    path.lineTo(_at(p1, u, n, lead))
     peaks = 2 * turns
+    if body < MIN_PITCH * peaks:
+        path.lineTo(p2)        # a zig-zag finer than a pixel cannot be seen: a straight line
+        return path
+    path.lineTo(_at(p1, u, n, lead))
     half = 0.5 * width
     for i in range(peaks):
         s = lead + body * (i + 0.5) / peaks

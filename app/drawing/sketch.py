@@ -861,7 +861,11 @@ def _coils(p1, p2, turns, width):
         x = q1[:, 0:1] + u[:, 0:1] * along + nrm[:, 0:1] * side[None, :]
         y = q1[:, 1:2] + u[:, 1:2] * along + nrm[:, 1:2] * side[None, :]
         x[:, -1], y[:, -1] = p2[sel, 0], p2[sel, 1]       # the end exactly on p2
-        xs.extend(zip(np.flatnonzero(sel), np.stack([x, y], axis=2)))
+        verts = np.stack([x, y], axis=2)
+        # finer than shapes.MIN_PITCH: a straight line, as shapes.coil_path draws it
+        flat = body < shapes.MIN_PITCH * peaks
+        for i, v, f in zip(np.flatnonzero(sel), verts, flat):
+            xs.append((i, v[[0, -1]] if f else v))
     return sorted(xs, key=lambda item: item[0])
 
 

@@ -25,6 +25,21 @@ def test_coil_path_degenerate_is_a_point():
     assert p.elementCount() == 1
 
 
+def test_coil_finer_than_a_pixel_is_drawn_straight():
+    """common practice (level of detail): a zig-zag whose half-waves are shorter than
+    shapes.MIN_PITCH device units cannot be seen, so the spring is a straight line between its
+    ends; one just coarser keeps its zig-zag."""
+    turns, width = 6, 4.0
+    fine = shapes.coil_path(QPointF(0, 0), QPointF(8, 0), turns=turns, width=width)
+    assert fine.elementCount() == 2
+    assert (fine.elementAt(1).x, fine.elementAt(1).y) == pytest.approx((8, 0))
+    # half-waves of (L - 2 lead) / 12, lead = min(0.2 L, max(width, 0.12 L)): above the limit
+    coarse_len = shapes.MIN_PITCH * 2 * turns / 0.6 * 1.05
+    coarse = shapes.coil_path(QPointF(0, 0), QPointF(coarse_len, 0), turns=turns, width=width)
+    assert coarse.elementCount() == 2 * turns + 4
+    assert coarse.boundingRect().height() == pytest.approx(width)
+
+
 def test_mass_block_grows_by_cube_root_and_is_clamped():
     """common practice: block side ~ cbrt(mass) (constant density), clamped to stay on the page."""
     a = shapes.mass_block_rect(QPointF(0, 0), 1.0, base=20).width()
