@@ -77,7 +77,9 @@ KEYS = ["format", "version", "name", "kind", "axis", "masses", "anchors", "sprin
         "damping", "excitations", "margin_percent", "initial", "id", "label", "x", "y", "mass",
         "inertia", "fixed", "a", "b", "k", "k_t", "c", "model", "ratio", "alpha", "beta",
         "mode_ratios", "type", "rpm", "orders", "f_min_hz", "f_max_hz", "vx", "vy", "theta",
-        "vtheta", "gears", "a_offset", "b_offset", "k_mesh", "colour", "", "\n", "1", "0"]
+        "vtheta", "gears", "a_offset", "b_offset", "k_mesh", "colour", "", "\n", "1", "0",
+        "loads", "direction", "random", "asd", "shock", "shape", "peak_g", "duration_s",
+        "rise_s", "fall_s", "spectrum", "abscissa", "points", "srs_q"]
 
 
 def dumps(tree) -> str:
