@@ -425,6 +425,15 @@ def _march(A, b, pieces, z0):
     ends = [0]
     z = z0
     for h, n, G, g0, hv in pieces:
+        if not np.any(G) and not np.any(hv) and n > 1:
+            # after the pulse the motion is free: in closed form, every sample at once
+            wz = _free(A, z, np.asarray(h, float) * np.ones(nb), n)
+            if wz is not None:
+                z = wz[-1]
+                ends.append(ends[-1] + n)
+                Zs.append(wz)
+                As.append(np.zeros((n, nb)))
+                continue
         aug = np.zeros((nb, s + 2, s + 2))
         aug[:, :s, :s] = A
         aug[:, :s, s:] = b[:, :, None] * hv[None, None, :]
@@ -447,6 +456,28 @@ def _march(A, b, pieces, z0):
     # the input at each piece's first sample is its own start value (the previous piece's end
     # value where they meet): the samples above are the ends of each step
     return np.concatenate(Zs), np.concatenate(As), ends
+
+
+def _free(A, z0, h, n):
+    """Samples k h (k = 1..n) of the free motion ``z' = A z`` from z0, (n, nb, s), or None.
+
+    Two-state modal blocks ``[[0, 1], [-lam, -c]]``: the closed form of every damping case
+    (response._modal_coordinate, written in the block's own time unit h so that each block may
+    have its own step). One block of a state model: the eigen-decomposition when it is well
+    conditioned (response._eig_propagate); otherwise None (the caller steps it).
+    """
+    from .response import _eig_propagate, _modal_coordinate
+
+    nb, s = z0.shape
+    k = np.arange(1, n + 1, dtype=float)
+    if s == 2 and np.all(A[:, 0, 0] == 0) and np.all(A[:, 0, 1] == 1):
+        lam, c = -A[:, 1, 0] * h * h, -A[:, 1, 1] * h
+        q, qd = _modal_coordinate(z0[:, 0], z0[:, 1] * h, c, lam, k)
+        return np.stack([q.T, qd.T / h[None, :]], axis=2)
+    if nb == 1:
+        Z = _eig_propagate(A[0], z0[0], h[0] * k)
+        return None if Z is None else Z.T[:, None, :]
+    return None
 
 
 def _refined_peak(t: np.ndarray, v: np.ndarray, kinks=()):
