@@ -882,7 +882,10 @@ def load_results(model, loads: Loads | None = None) -> LoadResults:
     if loads.shock is not None:
         shock = shock_response(model, loads.shock, d)
         T = loads.shock.duration_s
-        fr = np.geomspace(0.1 / T, min(1000 / T, 1e5), 121)
+        fn = shock.mode_frequencies_hz[shock.mode_frequencies_hz > 0]
+        lo = min(0.1 / T, fn.min() / 2) if len(fn) else 0.1 / T
+        hi = max(min(100 / T, 1e5), 2 * fn.max()) if len(fn) else 100 / T
+        fr = np.geomspace(lo, hi, 121)
         srs = shock_response_spectrum(loads.shock, fr, loads.srs_q)
     spec = spectrum_response(model, loads.spectrum, d) if loads.spectrum is not None else None
     return LoadResults(loads=loads, random=rnd, shock=shock, srs=srs, spectrum=spec)

@@ -294,5 +294,34 @@ def load_json(model, results) -> dict:
     return out
 
 
-__all__ = ["load_json", "load_text_lines", "random_rows", "shock_rows", "spectrum_rows",
+def parse_table_text(text: str, what: str = "table") -> list[tuple[float, float]]:
+    """Rows of two numbers from pasted or CSV text: one row a line, the numbers separated by a
+    comma, semicolon, tab or spaces; lines that hold no number (a header, a blank line) are
+    skipped. Raises ValueError with a one-line message naming the line for a line with one
+    number, three, or a word beside a number. The values themselves are checked by the load's
+    own definition (rows increasing, values positive)."""
+    import re
+
+    rows = []
+    for n, line in enumerate(text.splitlines(), start=1):
+        parts = [p for p in re.split(r"[,;\t ]+", line.strip()) if p]
+        if not parts:
+            continue
+        values = []
+        for p in parts:
+            try:
+                values.append(float(p))
+            except ValueError:
+                values.append(None)
+        if all(v is None for v in values):
+            continue    # a header
+        if len(values) != 2 or any(v is None for v in values):
+            raise ValueError(f"{what}: line {n} must hold two numbers, got {line.strip()[:60]!r}")
+        rows.append((values[0], values[1]))
+    if not rows:
+        raise ValueError(f"{what}: no rows of two numbers found")
+    return rows
+
+
+__all__ = ["parse_table_text", "load_json", "load_text_lines", "random_rows", "shock_rows", "spectrum_rows",
            "srs_at_modes", "modes_for_90_text", "pulse_text", "notes", "heading"]
