@@ -88,8 +88,7 @@ def _fill(table: QTableWidget, rows) -> None:
     for r, row in enumerate(rows):
         for c, text in enumerate(row):
             item = QTableWidgetItem(text)
-            item.setTextAlignment(int((Qt.AlignLeft if c == 0 else Qt.AlignRight)
-                                      | Qt.AlignVCenter))
+            item.setTextAlignment((Qt.AlignLeft if c == 0 else Qt.AlignRight) | Qt.AlignVCenter)
             table.setItem(r, c, item)
     table.resizeColumnsToContents()
 
@@ -154,7 +153,7 @@ def _plot(name: str, x_title: str, y_title: str, log=(True, True)) -> pg.PlotWid
     w.showGrid(x=True, y=True, alpha=0.25)
     w.setLabel("bottom", x_title)
     w.setLabel("left", y_title)
-    w.setMinimumHeight(120)
+    w.setMinimumHeight(160)
     return w
 
 
@@ -387,18 +386,18 @@ class LoadsPanel(QWidget):
         self.random_output.setSizeAdjustPolicy(QComboBox.SizeAdjustPolicy.AdjustToContents)
         self.random_output.currentIndexChanged.connect(lambda _i: self._draw_random())
         row.addWidget(self.random_output)
-        self.random_key = QLabel("solid: response; dashed: input ASD")
-        row.addWidget(self.random_key)
         row.addStretch(1)
-        self.random_plot = _plot("loads_random_plot", "frequency (Hz)",
-                                 "spectral density (g²/Hz)")
+        self.random_key = QLabel("solid: the response; dashed: the input ASD")
+        self.random_key.setObjectName("loads_random_key")
+        self.random_key.setWordWrap(True)
+        self.random_plot = _plot("loads_random_plot", "frequency (Hz)", "PSD (g²/Hz)")
         self.random_mass_table = _table_widget("loads_random_masses", lr.RANDOM_MASS_COLUMNS)
         self.random_spring_table = _table_widget("loads_random_springs",
                                                  lr.RANDOM_SPRING_COLUMNS)
         self.miles_table = _table_widget("loads_miles", lr.MILES_COLUMNS)
         self.miles_table.setToolTip("Miles' equation g RMS = sqrt(pi/2 f Q ASD(f)) per dominant"
                                     " mode (the trade's hand check) beside the exact integral")
-        right = _results_side([row, self.random_plot], [
+        right = _results_side([row, self.random_key, self.random_plot], [
             ("Masses", self.random_mass_table), ("Springs", self.random_spring_table),
             ("Miles' check", self.miles_table)])
         return self._split(left, right)
@@ -439,20 +438,24 @@ class LoadsPanel(QWidget):
         self.shock_output.setSizeAdjustPolicy(QComboBox.SizeAdjustPolicy.AdjustToContents)
         self.shock_output.currentIndexChanged.connect(lambda _i: self._draw_shock())
         row.addWidget(self.shock_output)
-        self.shock_key = QLabel("solid: response; dashed: base. SRS: dotted lines mark the modes")
+        row.addStretch(1)
+        self.shock_key = QLabel("solid: the response; dashed: the base. Shock response spectrum"
+                                " of the base pulse (maximax): dotted lines mark the modes")
+        self.shock_key.setObjectName("loads_shock_key")
         self.shock_key.setWordWrap(True)
-        row.addWidget(self.shock_key, 1)
         plots = QWidget()
         pl = QHBoxLayout(plots)
         pl.setContentsMargins(0, 0, 0, 0)
         self.time_plot = _plot("loads_time_plot", "time (s)", "acceleration (g)", (False, False))
-        self.srs_plot = _plot("loads_srs_plot", "natural frequency (Hz)",
-                              "SRS, maximax acceleration (g)")
+        self.srs_plot = _plot("loads_srs_plot", "natural frequency (Hz)", "SRS (g)")
+        self.srs_plot.setToolTip("Shock response spectrum of the base pulse: the largest absolute"
+                                 " acceleration of a single-DOF system of each natural frequency"
+                                 " and the chosen Q (maximax)")
         pl.addWidget(self.time_plot, 1)
         pl.addWidget(self.srs_plot, 1)
         self.shock_mass_table = _table_widget("loads_shock_masses", lr.SHOCK_MASS_COLUMNS)
         self.shock_spring_table = _table_widget("loads_shock_springs", lr.SHOCK_SPRING_COLUMNS)
-        right = _results_side([row, plots], [("Masses", self.shock_mass_table),
+        right = _results_side([row, self.shock_key, plots], [("Masses", self.shock_mass_table),
                                              ("Springs", self.shock_spring_table)])
         return self._split(left, right)
 
@@ -474,8 +477,9 @@ class LoadsPanel(QWidget):
                                             "design spectrum")
         self.spectrum_editor.edited.connect(lambda _r: self._on_spectrum())
         ll.addWidget(self.spectrum_editor, 1)
-        self.spectrum_plot = _plot("loads_spectrum_plot", "period (s)",
-                                   "pseudo-acceleration (g)")
+        self.spectrum_plot = _plot("loads_spectrum_plot", "period (s)", "Sa (g)")
+        self.spectrum_plot.setToolTip("The design spectrum: pseudo-acceleration Sa; dotted lines"
+                                      " mark the modes")
         self.mass90_label = QLabel()
         self.mass90_label.setObjectName("loads_mass90")
         self.mass90_label.setWordWrap(True)
@@ -512,10 +516,8 @@ class LoadsPanel(QWidget):
         except ModelError as exc:
             self.show_problem(str(exc))
             return False
-        if loads == Loads(direction=loads.direction, srs_q=loads.srs_q) and loads.empty \
-                and self.model.loads is not None and loads.srs_q == 10.0 \
-                and loads.direction == "x":
-            loads = None     # nothing left defined: the file is as it was
+        if loads.empty and loads.srs_q == Loads().srs_q:
+            loads = None     # nothing left defined: the file is as it was before
         self.show_problem("")
         return self.document.set_top(text=text, loads=loads)
 
@@ -573,8 +575,8 @@ class LoadsPanel(QWidget):
         values = {}
         for key, e in self.pulse_edits.items():
             text = e.text().strip()
-            if key in ("rise_ms", "fall_ms") and shape != "trapezoid":
-                continue
+            if key in ("rise_ms", "fall_ms") and (shape != "trapezoid" or not text):
+                continue     # not used, or a trapezoid just chosen: a quarter of the duration
             try:
                 values[key] = float(text)
             except ValueError:
@@ -802,7 +804,7 @@ class LoadsPanel(QWidget):
         data = {"acceleration": r.acceleration_psd, "displacement": r.displacement_psd,
                 "deflection": r.deflection_psd, "force": r.force_psd}[what]
         f = r.frequencies_hz
-        p.setLabel("left", f"spectral density ({self._PSD_UNIT[what]})")
+        p.setLabel("left", f"PSD ({self._PSD_UNIT[what]})")
         if what == "acceleration":
             keep = r.input_asd > 0
             p.plot(f[keep], r.input_asd[keep], pen=pg.mkPen(st.ink, width=1,
