@@ -452,7 +452,8 @@ def main(argv=None) -> int:
     parser = _Parser(prog="springwright",
                      description="Open the Springwright desktop program (on a built-in example"
                                  " when no FILE is given). Also: springwright solve FILE [--json],"
-                                 " springwright report FILE -o OUT.png, springwright loads FILE [--json]")
+                                 " springwright report FILE -o OUT.png, springwright loads FILE"
+                                 " [--json]")
     parser.add_argument("file", nargs="?")
     parser.argv = ("", *argv)
     args = parser.parse_args(argv)

@@ -27,7 +27,8 @@ import numpy as np
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
 import solver  # noqa: E402
-from solver import Anchor, Damper, Damping, Mass, Model, RandomVibration, ShockPulse, Spring  # noqa: E402
+from solver import (Anchor, Damper, Damping, Mass, Model, RandomVibration,  # noqa: E402
+                    ShockPulse, Spring)
 from solver.load_cases import G0  # noqa: E402
 
 

@@ -378,7 +378,8 @@ def random_response(model, asd, direction: str = "x", freqs_hz=None) -> RandomRe
     if outside:
         warnings.append(f"mode{'s' if len(outside) > 1 else ''}"
                         f" {', '.join(map(str, outside))} (at least {DOMINANT_FRACTION:.0%} of the"
-                        " mass) lie outside the spectrum's frequency range, where the input is zero")
+                        " mass) lie outside the spectrum's frequency range, where the input is"
+                        " zero")
     return RandomResult(direction=direction, input_grms=asd_grms(asd), frequencies_hz=f,
                         input_asd=S, mass_outputs=setup.mass_outputs, springs=setup.springs,
                         acceleration_grms=rms(acc_psd), displacement_rms_m=rms(disp_psd),

@@ -323,5 +323,6 @@ def parse_table_text(text: str, what: str = "table") -> list[tuple[float, float]
     return rows
 
 
-__all__ = ["parse_table_text", "load_json", "load_text_lines", "random_rows", "shock_rows", "spectrum_rows",
+__all__ = ["parse_table_text", "load_json", "load_text_lines", "random_rows", "shock_rows",
+           "spectrum_rows",
            "srs_at_modes", "modes_for_90_text", "pulse_text", "notes", "heading"]
