@@ -36,6 +36,9 @@ from app.text.numbers import number
 DEBOUNCE_MS = 80
 #: above this many DOFs the loads are computed in a worker thread
 THREAD_DOF_LIMIT = 40
+#: above this many the thread hands them to a worker process: scipy's eigensolver keeps the
+#: interpreter lock, so a large solve in a thread would freeze the window (app.results.offload)
+PROCESS_DOF_LIMIT = 250
 CAUTION_SHORT = ("Estimates from a linear lumped model: confirm by test or detailed analysis."
                  " Qualification and seismic design follow the applicable standards, local codes"
                  " and licensed engineering practice.")
@@ -51,23 +54,31 @@ class _Relay(QObject):
 
 
 class _Job(QRunnable):
-    def __init__(self, generation, model, relay):
+    def __init__(self, generation, model, relay, in_process: bool = False):
         super().__init__()
         self.generation, self.model, self.relay = generation, model, relay
+        self.in_process = in_process
         self.setAutoDelete(True)
 
     def run(self):
+        if self.in_process:
+            from app.results import offload
+
+            try:
+                out = offload.run(lr.solve_loads, self.model, lane="loads")
+            except RuntimeError:      # the window is closing
+                return
+            except Exception:  # a bug: shown in the panel, never a dead worker
+                out = None, "internal error:\n" + traceback.format_exc(limit=4)
+            self.relay.done.emit(self.generation, *out)
+            return
         self.relay.done.emit(self.generation, *_compute(self.model))
 
 
 def _compute(model):
     """(LoadResults or None, error text)."""
-    from solver.loads import load_results
-
     try:
-        return load_results(model), ""
-    except ModelError as exc:
-        return None, str(exc)
+        return lr.solve_loads(model)
     except Exception:  # a bug: shown in the panel, never a dead worker
         return None, "internal error:\n" + traceback.format_exc(limit=4)
 
@@ -703,7 +714,8 @@ class LoadsPanel(QWidget):
             self._computing = True
             self._set_dim(True)
             self.status_label.setText("computing…")
-            self._pool.start(_Job(gen, model, self._relay))
+            self._pool.start(_Job(gen, model, self._relay,
+                                  in_process=self._dofs() > PROCESS_DOF_LIMIT))
         else:
             self._on_done(gen, *_compute(model))
 

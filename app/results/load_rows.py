@@ -294,6 +294,18 @@ def load_json(model, results) -> dict:
     return out
 
 
+def solve_loads(model):
+    """(LoadResults, "") or (None, the one-line reason): the model's loads solved, for the
+    Loads panel's worker (thread or process; no Qt here, so the process imports little)."""
+    from solver.errors import ModelError
+    from solver.loads import load_results
+
+    try:
+        return load_results(model), ""
+    except ModelError as exc:
+        return None, str(exc)
+
+
 def parse_table_text(text: str, what: str = "table") -> list[tuple[float, float]]:
     """Rows of two numbers from pasted or CSV text: one row a line, the numbers separated by a
     comma, semicolon, tab or spaces; lines that hold no number (a header, a blank line) are
