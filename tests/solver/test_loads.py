@@ -433,3 +433,33 @@ def test_load_results_of_the_example_rack():
     assert out.srs.maximax_g.shape == out.srs.frequencies_hz.shape
     with pytest.raises(ModelError, match="defines no loads"):
         solver.load_results(model.with_changes(loads=None))
+
+
+def test_shock_with_a_maxwell_element_against_solve_ivp():
+    """scipy's solve_ivp on the equations written out here: a mass m on a spring k to the base and
+    on a spring k_j to a massless junction, the junction on a dashpot c to the base (a Maxwell
+    element: the junction creeps, a first-order state). In motion relative to the base,
+    m y'' + k y + k_j (y - u) = -m a(t) and c u' = k_j (y - u). The exact state-space response
+    agrees to 1e-6 of the peak, the junction spring's force k_j (u - y) too."""
+    from solver import Mass, Model, Anchor, Spring
+
+    m, k, kj, c = 2.0, 1e5, 5e4, 30.0
+    model = Model(kind="line", masses=(Mass("m", 1, 0, m), Mass("j", 2, 0, 0.0)),
+                  anchors=(Anchor("g", 0, 0),),
+                  springs=(Spring("s", "g", "m", k), Spring("sj", "m", "j", kj)),
+                  dampers=(Damper("d", "j", "g", c),))
+    pulse = ShockPulse("sawtooth", 25.0, 0.008)
+    s = solver.shock_response(model, pulse, duration_s=0.06, n_steps=3000)
+    assert s.method == "state-space"
+
+    def rhs(t, z):
+        y, v, u = z
+        a = pulse.acceleration_g(t) * G0
+        return [v, (-k * y - kj * (y - u)) / m - a, kj * (y - u) / c]
+
+    sol = scipy.integrate.solve_ivp(rhs, (0, 0.06), [0, 0, 0], t_eval=s.times, rtol=1e-11,
+                                    atol=1e-15, max_step=2e-5)
+    y, u = sol.y[0], sol.y[2]
+    np.testing.assert_allclose(s.displacement_m[:, 0], y, atol=1e-6 * np.abs(y).max())
+    f = kj * (u - y)
+    np.testing.assert_allclose(s.force_n[:, 1], f, atol=1e-6 * np.abs(f).max())
