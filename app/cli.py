@@ -4,6 +4,7 @@
     springwright FILE                open a model file
     springwright solve FILE [--json] print the mode table (or JSON)
     springwright report FILE -o OUT.png   write the PNG report with no window
+    springwright loads FILE [--json] print the responses to the loads the file defines
 
 Bad input is one line on stderr naming the file and the problem, exit code 2, no traceback.
 """
@@ -393,21 +394,53 @@ def cmd_report(args) -> int:
     return 0
 
 
+def cmd_loads(args) -> int:
+    from solver import ModelError
+    from solver.loads import load_results
+
+    from app.results.load_rows import load_json, load_text_lines
+
+    model, err = _load(args.file)
+    if err:
+        return _fail(err)
+    if model.loads is None or model.loads.empty:
+        return _fail(f"{args.file}: the model defines no loads (add a \"loads\" key with"
+                     " random, shock or spectrum; see README)")
+    try:
+        results = load_results(model)
+    except ModelError as exc:
+        return _fail(f"{args.file}: {exc}")
+    if args.json:
+        text = json.dumps(_finite_json(load_json(model, results)), indent=2, allow_nan=False)
+    else:
+        text = _lines_text(load_text_lines(model, results))
+    try:
+        print(text)
+        sys.stdout.flush()
+    except BrokenPipeError:
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+    return 0
+
+
 def main(argv=None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
-    if argv and argv[0] in ("solve", "report"):
+    if argv and argv[0] in ("solve", "report", "loads"):
         parser = _Parser(prog="springwright", description="Lumped spring-mass vibration tool")
         sub = parser.add_subparsers(dest="command", required=True)
         p = sub.add_parser("solve", help="print the mode table of a model file")
         p.add_argument("file")
         p.add_argument("--json", action="store_true", help="print JSON instead of a table")
+        p = sub.add_parser("loads", help="print the responses to the loads a model file defines")
+        p.add_argument("file")
+        p.add_argument("--json", action="store_true", help="print JSON instead of tables")
         p = sub.add_parser("report", help="write the PNG report of a model file")
         p.add_argument("file")
         p.add_argument("-o", "--output", required=True, help="PNG file to write")
         parser.argv = sub.choices[argv[0]].argv = tuple(argv)
         args = parser.parse_args(argv)
         try:
-            return cmd_solve(args) if args.command == "solve" else cmd_report(args)
+            return {"solve": cmd_solve, "report": cmd_report,
+                    "loads": cmd_loads}[args.command](args)
         except Exception as exc:   # a bug, not the user's input: one line, the details on request
             if os.environ.get("SPRINGWRIGHT_DEBUG"):
                 raise
@@ -419,7 +452,8 @@ def main(argv=None) -> int:
     parser = _Parser(prog="springwright",
                      description="Open the Springwright desktop program (on a built-in example"
                                  " when no FILE is given). Also: springwright solve FILE [--json],"
-                                 " springwright report FILE -o OUT.png")
+                                 " springwright report FILE -o OUT.png, springwright loads FILE"
+                                 " [--json]")
     parser.add_argument("file", nargs="?")
     parser.argv = ("", *argv)
     args = parser.parse_args(argv)

@@ -216,6 +216,7 @@ class MainWindow(QMainWindow):
         self._make_actions()
         self._add_tune_panels()
         self._add_source_panels()
+        self._add_loads_panel()
         # after every panel's own handler: it clears what the panels show of the last model and
         # then hands them the new model's results if they are already in
         self.document.opened.connect(self._on_opened)
@@ -527,6 +528,18 @@ class MainWindow(QMainWindow):
                             ("dock_interference", self.interference_panel)):
             self.findChild(QDockWidget, name).visibilityChanged.connect(
                 lambda shown, p=panel: shown and p.catch_up())
+
+    def _add_loads_panel(self):
+        """Loads (random vibration, shock, design spectrum), tabbed with Response; it computes
+        only when shown and clears itself when another model is opened."""
+        from app.docks.loads_panel import LoadsPanel
+
+        self.loads_panel = LoadsPanel(self.document)
+        self.loads_panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+        dock = self._dock("Loads", self.loads_panel, Qt.BottomDockWidgetArea, "dock_loads")
+        self.tabifyDockWidget(self.findChild(QDockWidget, "dock_interference"), dock)
+        dock.visibilityChanged.connect(lambda shown: shown and self.loads_panel.catch_up())
+        self.document.opened.connect(self.loads_panel.reset)
 
     def show_guide(self):
         """A non-modal window with the tools, their keys, the main loop and the cautions."""
@@ -889,6 +902,8 @@ class MainWindow(QMainWindow):
         offload.shutdown()          # first: a worker thread waiting on it returns at once
         self.solver.shutdown()
         self.response_panel.shutdown()
+        if hasattr(self, "loads_panel"):
+            self.loads_panel.shutdown()
         self.tune_panel.shutdown()
         self.recovery.mark_clean_exit()
         event.accept()

@@ -14,6 +14,10 @@ Pure numpy/scipy; no Qt. The public API (stable, used by scripts and the command
   :func:`interference` (order lines against natural frequencies, their crossing speeds)
 - :func:`body_coupling` (rigid bodies on mounts: coupling, elastic centre) and
   :func:`referred_system` (a geared model's equivalent on one shaft)
+- :func:`random_response`, :func:`shock_response`, :func:`shock_response_spectrum`,
+  :func:`spectrum_response`, :func:`load_results` (random vibration, shock and design response
+  spectra as base motion; the definitions :class:`Loads`, :class:`RandomVibration`,
+  :class:`ShockPulse`, :class:`DesignSpectrum`)
 - :class:`ModelError`, :class:`ModelFileError`
 """
 
@@ -46,6 +50,10 @@ _EXPORTS = {name: module for module, names in {
     "interference": ("Crossing", "Interference", "OrderLine", "interference"),
     "tuning": ("RetuneResult", "SweepResult", "limit_spectrum", "rank_elements",
                "reachable_range", "retune", "retune_result", "sweep", "with_value"),
+    "load_cases": ("DesignSpectrum", "Loads", "RandomVibration", "ShockPulse"),
+    "loads": ("LoadResults", "MilesCheck", "RandomResult", "SRS", "ShockResult", "SpectrumResult",
+              "cqc_correlation", "load_results", "random_response", "shock_response",
+              "shock_response_spectrum", "spectrum_response"),
 }.items() for name in names}
 
 
@@ -102,4 +110,7 @@ __all__ = [
     "sweep", "with_value", "RetuneResult", "retune_result", "limit_spectrum", "reachable_range", "DampedModes", "damped_modes", "rayleigh_coefficients",
     "MarginRow", "MarginTable", "margin_table", "Crossing", "Interference", "OrderLine",
     "interference", "BodyCoupling", "ReferredSystem", "body_coupling", "referred_system",
+    "DesignSpectrum", "Loads", "RandomVibration", "ShockPulse", "LoadResults", "MilesCheck",
+    "RandomResult", "SRS", "ShockResult", "SpectrumResult", "cqc_correlation", "load_results",
+    "random_response", "shock_response", "shock_response_spectrum", "spectrum_response",
 ]

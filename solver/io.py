@@ -326,7 +326,60 @@ def _build(data: dict) -> Model:
     return Model(kind=kind, name=data.get("name", ""), axis=axis, masses=masses, anchors=anchors,
                  springs=springs, dampers=dampers, damping=damping,
                  excitations=excitations, gears=gears,
-                 margin_percent=data.get("margin_percent", 15.0), initial=tuple(initial))
+                 margin_percent=data.get("margin_percent", 15.0), initial=tuple(initial),
+                 loads=_loads_from(data["loads"]) if "loads" in data else None)
+
+
+def _loads_from(d: dict):
+    """solver.load_cases.Loads from the file's ``loads`` object (schema-checked already); a
+    refusal gets its JSON path (the file's ``asd`` is the definition's ``points``)."""
+    from .load_cases import DesignSpectrum, Loads, RandomVibration, ShockPulse
+
+    def part(key, make):
+        if key not in d:
+            return None
+        try:
+            return make(d[key])
+        except ModelError as exc:
+            inner = exc.path
+            if key == "random" and inner[:1] == ("points",):
+                inner = ("asd",) + inner[1:]
+            raise ModelError(str(exc), ("loads", key) + inner) from None
+
+    random = part("random", lambda r: RandomVibration(points=tuple(map(tuple, r["asd"]))))
+    shock = part("shock", lambda p: ShockPulse(shape=p["shape"], peak_g=p["peak_g"],
+                                               duration_s=p["duration_s"],
+                                               rise_s=p.get("rise_s", 0.0),
+                                               fall_s=p.get("fall_s", 0.0)))
+    spectrum = part("spectrum", lambda p: DesignSpectrum(abscissa=p["abscissa"],
+                                                         points=tuple(map(tuple, p["points"]))))
+    try:
+        return Loads(direction=d.get("direction", "x"), random=random, shock=shock,
+                     spectrum=spectrum, srs_q=d.get("srs_q", 10.0))
+    except ModelError as exc:
+        raise ModelError(str(exc), ("loads",) + exc.path) from None
+
+
+def _loads_to(loads, minimal: bool) -> dict:
+    """The file's ``loads`` object; ``minimal`` leaves out direction "x" and Q 10."""
+    out: dict = {}
+    if not (minimal and loads.direction == "x"):
+        out["direction"] = loads.direction
+    if loads.random is not None:
+        out["random"] = {"asd": [list(p) for p in loads.random.points]}
+    if loads.shock is not None:
+        p = loads.shock
+        out["shock"] = {"shape": p.shape, "peak_g": p.peak_g, "duration_s": p.duration_s}
+        if p.shape == "trapezoid":
+            out["shock"].update({"rise_s": p.rise_s, "fall_s": p.fall_s})
+    if loads.spectrum is not None:
+        out["spectrum"] = {"abscissa": loads.spectrum.abscissa,
+                           "points": [list(p) for p in loads.spectrum.points]}
+    if not (minimal and loads.srs_q == 10.0):
+        out["srs_q"] = loads.srs_q
+    if not out:   # an empty definition is kept as one (it differs from none)
+        out["direction"] = loads.direction
+    return out
 
 
 _ORIGIN = (0.0, 0.0)
@@ -407,6 +460,8 @@ def model_to_dict(model: Model, minimal: bool = False) -> dict:
         values = {d: v for d, v in ic.displacement}
         values.update({_VELOCITY_KEY[d]: v for d, v in ic.velocity})
         out["initial"][ic.mass_id] = values
+    if model.loads is not None:   # written only when defined, so older files keep their text
+        out["loads"] = _loads_to(model.loads, minimal)
     if minimal:
         defaults = {"name": "", "axis": "x", "damping": {"model": "none"}, "margin_percent": 15.0}
         for key in list(out):

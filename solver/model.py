@@ -592,6 +592,8 @@ class Model:
     initial: tuple[Initial, ...] = ()
     #: gear stages (torsion models only)
     gears: tuple[Gear, ...] = ()
+    #: the load cases defined with the model (solver.load_cases.Loads), or None
+    loads: object = None
 
     def __post_init__(self):
         for name, cls in (("masses", Mass), ("anchors", Anchor), ("springs", Spring),
@@ -609,6 +611,12 @@ class Model:
             raise ModelError(f"model: {count:,} elements (masses, anchors, springs, dashpots,"
                              f" excitations and gears); a model may have at most"
                              f" {MAX_ELEMENTS:,}")
+        if self.loads is not None:
+            from .load_cases import Loads
+
+            if type(self.loads) is not Loads:
+                raise ModelError(f"model: loads must be a Loads or None, got {shown(self.loads)}",
+                                 ("loads",))
         if not isinstance(self.damping, Damping):
             raise ModelError(f"model: damping must be a Damping, got {shown(self.damping)}",
                              ("damping",))

@@ -77,7 +77,9 @@ KEYS = ["format", "version", "name", "kind", "axis", "masses", "anchors", "sprin
         "damping", "excitations", "margin_percent", "initial", "id", "label", "x", "y", "mass",
         "inertia", "fixed", "a", "b", "k", "k_t", "c", "model", "ratio", "alpha", "beta",
         "mode_ratios", "type", "rpm", "orders", "f_min_hz", "f_max_hz", "vx", "vy", "theta",
-        "vtheta", "gears", "a_offset", "b_offset", "k_mesh", "colour", "", "\n", "1", "0"]
+        "vtheta", "gears", "a_offset", "b_offset", "k_mesh", "colour", "", "\n", "1", "0",
+        "loads", "direction", "random", "asd", "shock", "shape", "peak_g", "duration_s",
+        "rise_s", "fall_s", "spectrum", "abscissa", "points", "srs_q"]
 
 
 def dumps(tree) -> str:
@@ -614,15 +616,15 @@ def check_api(path: str, cap: float, scratch: Path, loaded: list | None = None) 
         return f"api: {type(exc).__name__}"
 
 
-def check_cli(path: str, cap: float, argv_extra=()) -> str:
-    """Outcome of ``springwright solve FILE`` in-process."""
+def check_cli(path: str, cap: float, argv_extra=(), command: str = "solve") -> str:
+    """Outcome of ``springwright solve FILE`` (or another command) in-process."""
     from app import cli
 
     out, err = io.StringIO(), io.StringIO()
     try:
         with time_cap(cap), contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
             try:
-                rc = cli.main(["solve", path, *argv_extra])
+                rc = cli.main([command, path, *argv_extra])
             except SystemExit as exc:
                 rc = exc.code
     except Timeout:
@@ -726,6 +728,13 @@ def run(seed: int, count: int, cap: float, n_subprocess: int, specials: bool = T
                     failures.append((name, outcome, data if data is not None else path))
                     if verbose:
                         log(f"  {name}: {outcome}")
+            if loaded and loaded[0].loads is not None:
+                # `springwright loads`: results, or a one-line refusal (no loads, a torsion
+                # model, a model the base cannot carry)
+                outcome = check_cli(path, cap, ("--json",) if i % 2 else (), "loads")
+                results["cli"][outcome] += 1
+                if outcome not in ("loaded", "refused"):
+                    failures.append((name, "loads " + outcome, data if data is not None else path))
             if loaded:
                 with time_cap(cap):
                     problem = check_api_calls(loaded[0], other)

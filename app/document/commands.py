@@ -20,7 +20,7 @@ from PySide6.QtGui import QUndoCommand
 from solver.model import Model
 
 _COLLECTIONS = ("masses", "anchors", "springs", "dampers", "excitations", "initial", "gears")
-_TOP = ("kind", "name", "axis", "damping", "margin_percent")
+_TOP = ("kind", "name", "axis", "damping", "margin_percent", "loads")
 
 
 @dataclasses.dataclass(frozen=True)

@@ -5,7 +5,7 @@ block, the model sketch, the mode table, a thumbnail of each reported mode shape
 undeformed layout in grey, the notes on zero-frequency and repeated modes, the solver's warnings and
 the cautions; with rigid bodies or gear stages, how each body's motions couple on its mounts and
 the geared system referred to one shaft; with excitation sources the margin check and its table, and with a shaft speed the
-interference diagram. The page is A4 portrait (210 x 297 mm); a model with very long notes makes it
+interference diagram; with loads defined, the responses to them (app.report.loads). The page is A4 portrait (210 x 297 mm); a model with very long notes makes it
 taller rather than cramming the text. Each section is a module of this package.
 """
 
@@ -44,7 +44,11 @@ def render_report(model, analysis, path, dpi: int = 200, date: str | None = None
     st = LIGHT
     width = round(A4_MM[0] / 25.4 * dpi)
     a4_height = round(A4_MM[1] / 25.4 * dpi)
-    canvas = QImage(width, int(a4_height * 2.5), QImage.Format.Format_RGB32)
+    loads = getattr(model, "loads", None)
+    has_loads = loads is not None and not loads.empty
+    # a loads section adds up to about two pages (plots and tables per load)
+    canvas = QImage(width, int(a4_height * (4.5 if has_loads else 2.5)),
+                    QImage.Format.Format_RGB32)
     canvas.fill(QColor("#ffffff"))
     dpm = round(dpi / 0.0254)
     canvas.setDotsPerMeterX(dpm)
@@ -94,6 +98,11 @@ def render_report(model, analysis, path, dpi: int = 200, date: str | None = None
 
             pg.heading("Interference diagram")
             paint_interference(pg, model, analysis)
+        if has_loads:
+            from app.report.loads import paint_loads
+
+            pg.heading("Loads: random vibration, shock and design spectrum")
+            paint_loads(pg, model)
         pg.heading("Notes")
         _notes(pg, model, analysis, n_shown)
         pg.heading("Cautions")

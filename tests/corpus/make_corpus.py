@@ -201,6 +201,30 @@ CASES = {
                    ("line 1, column 1", ["byte-order mark"], ["utf-8-sig"])),
     "nul-in-text": (TEXT.encode().replace(b'"m1"', b'"m\x001"', 1),
                     ("line", ["U+0000", "control character"], ["character at"])),
+    # ---- load cases (the loads key)
+    "loads-all-three": (minimal(loads={
+        "direction": "x", "random": {"asd": [[10, 0.01], [100, 0.04], [1000, 0.01]]},
+        "shock": {"shape": "trapezoid", "peak_g": 20, "duration_s": 0.01, "rise_s": 0.002,
+                  "fall_s": 0.002},
+        "spectrum": {"abscissa": "frequency", "points": [[0.1, 0.1], [1, 0.5], [30, 0.3]]}}),
+        "solve"),
+    "loads-asd-not-increasing": (minimal(loads={"random": {"asd": [[10, 0.01], [100, 0.04],
+                                                                  [50, 0.01]]}}),
+                                 ("loads.random.asd[2][0]", ["row 3", "frequency", "above",
+                                                             "100 Hz"])),
+    "loads-asd-zero-value": (minimal(loads={"random": {"asd": [[10, 0.0], [100, 0.04]]}}),
+                             ("loads.random.asd[0][1]", ["> 0", "0"])),
+    "loads-trapezoid-too-long-edges": (minimal(loads={"shock": {
+        "shape": "trapezoid", "peak_g": 20, "duration_s": 0.01, "rise_s": 0.006,
+        "fall_s": 0.006}}), ("loads.shock.rise_s", ["rise time", "fall time", "duration"])),
+    "loads-rise-on-half-sine": (minimal(loads={"shock": {
+        "shape": "half-sine", "peak_g": 20, "duration_s": 0.01, "rise_s": 0.001}}),
+        ("loads.shock.rise_s", ["trapezoid only"])),
+    "loads-spectrum-one-row": (minimal(loads={"spectrum": {"abscissa": "period",
+                                                          "points": [[1, 0.5]]}}),
+                               ("loads.spectrum.points", ["at least 2"])),
+    "loads-unknown-key": (minimal(loads={"random": {"asd": [[1, 1], [2, 1]]}, "seismic": {}}),
+                          ("loads", ['unknown key "seismic"', "spectrum"])),
 }
 
 

@@ -573,7 +573,33 @@ def any_models(draw):
     return Model(kind=kind, name=draw(_TEXT), axis=axis,
                  masses=masses, anchors=anchors, springs=springs, damping=damping,
                  excitations=excitations, margin_percent=draw(st.floats(0, 99.9)),
-                 initial=initial)
+                 initial=initial, loads=draw(st.one_of(st.none(), _loads())))
+
+
+_TABLE_VALUE = st.one_of(st.floats(1e-12, 1e12), st.sampled_from([1e-12, 1e12, 5e-324, 2e12]))
+
+
+@st.composite
+def _loads(draw):
+    """Load definitions (solver.load_cases) across their accepted ranges, now and then just past
+    them (refused with a ModelError)."""
+    def table():
+        xs = draw(st.lists(_TABLE_VALUE, min_size=1, max_size=5, unique=True))
+        xs = sorted(xs) if draw(st.integers(0, 9)) else xs   # now and then out of order
+        return tuple((x, draw(_TABLE_VALUE)) for x in xs)
+
+    shape = draw(st.sampled_from(["half-sine", "sawtooth", "trapezoid"]))
+    duration = draw(st.floats(1e-7, 1e3))
+    edges = (draw(st.floats(1e-9, duration / 2)), draw(st.floats(1e-9, duration / 2))) \
+        if shape == "trapezoid" else (0.0, 0.0)
+    return solver.Loads(
+        direction=draw(st.sampled_from(["x", "y"])),
+        random=draw(st.one_of(st.none(), st.builds(solver.RandomVibration, st.just(table())))),
+        shock=draw(st.one_of(st.none(), st.just(solver.ShockPulse(
+            shape, draw(st.floats(1e-9, 1e7)), duration, *edges)))),
+        spectrum=draw(st.one_of(st.none(), st.builds(
+            solver.DesignSpectrum, st.sampled_from(["frequency", "period"]), st.just(table())))),
+        srs_q=draw(st.floats(0.5, 1000)))
 
 
 def _attempt(data):
