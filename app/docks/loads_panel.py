@@ -34,11 +34,10 @@ from app.results import load_rows as lr
 from app.text.numbers import number
 
 DEBOUNCE_MS = 80
-#: above this many DOFs the loads are computed in a worker thread
+#: above this many DOFs the loads are computed off the UI thread: a worker thread hands them to
+#: a worker process (never computed in the thread itself: the solver is mostly Python and keeps
+#: the interpreter lock, which stalls the window's paints, app.results.offload)
 THREAD_DOF_LIMIT = 40
-#: above this many the thread hands them to a worker process: scipy's eigensolver keeps the
-#: interpreter lock, so a large solve in a thread would freeze the window (app.results.offload)
-PROCESS_DOF_LIMIT = 250
 CAUTION_SHORT = ("Estimates from a linear lumped model: confirm by test or detailed analysis."
                  " Qualification and seismic design follow the applicable standards, local codes"
                  " and licensed engineering practice.")
@@ -715,7 +714,7 @@ class LoadsPanel(QWidget):
             self._set_dim(True)
             self.status_label.setText("computing…")
             self._pool.start(_Job(gen, model, self._relay,
-                                  in_process=self._dofs() > PROCESS_DOF_LIMIT))
+                                  in_process=True))
         else:
             self._on_done(gen, *_compute(model))
 
