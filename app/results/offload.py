@@ -111,10 +111,10 @@ def analyse(model):
     from solver.analysis import Analysis
     from solver.metrics import energy_fractions, sensitivities
 
+    if _dofs(model) <= FULL_SPECTRUM_DOF:
+        return solver.analyse(model)
     system = solver.assemble(model)
     count, cover = mode_count(system)
-    if count is None:
-        return solver.analyse(model)
     modal = solver.modes(system, count=count)
     warnings = list(modal.warnings)
     if modal.message:
