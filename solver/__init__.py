@@ -47,6 +47,8 @@ _EXPORTS = {name: module for module, names in {
     "tuning": ("RetuneResult", "SweepResult", "limit_spectrum", "rank_elements",
                "reachable_range", "retune", "retune_result", "sweep", "with_value"),
 }.items() for name in names}
+# tolerance studies and tuned-absorber sizing (issue 15)
+_EXPORTS.update({"Tolerance": "model"})
 
 
 class _Package(_types.ModuleType):
@@ -103,3 +105,4 @@ __all__ = [
     "MarginRow", "MarginTable", "margin_table", "Crossing", "Interference", "OrderLine",
     "interference", "BodyCoupling", "ReferredSystem", "body_coupling", "referred_system",
 ]
+__all__ += ["Tolerance"]
