@@ -48,7 +48,8 @@ _EXPORTS = {name: module for module, names in {
                "reachable_range", "retune", "retune_result", "sweep", "with_value"),
 }.items() for name in names}
 # tolerance studies and tuned-absorber sizing (issue 15)
-_EXPORTS.update({"Tolerance": "model"})
+_EXPORTS.update({"Tolerance": "model", "ModeStudy": "study", "StudyResult": "study",
+                 "tolerance_study": "study"})
 
 
 class _Package(_types.ModuleType):
@@ -105,4 +106,4 @@ __all__ = [
     "MarginRow", "MarginTable", "margin_table", "Crossing", "Interference", "OrderLine",
     "interference", "BodyCoupling", "ReferredSystem", "body_coupling", "referred_system",
 ]
-__all__ += ["Tolerance"]
+__all__ += ["Tolerance", "ModeStudy", "StudyResult", "tolerance_study"]
