@@ -50,6 +50,7 @@ import math
 from dataclasses import dataclass, field, replace
 
 import numpy as np
+import scipy.sparse as sp
 
 from .errors import ModelError, shown
 from .model import Model
@@ -172,7 +173,7 @@ class _Plan:
     spring_params: np.ndarray  # indices into params of toleranced springs, in P's row order
     mass_params: np.ndarray   # indices into params of toleranced masses
     K_base: np.ndarray        # (n_all, n_all) the untoleranced springs' stiffness
-    P: np.ndarray             # (n_tol_springs, n_all * n_all) their contributions
+    P_T: object               # (n_all * n_all, n_tol_springs) sparse: their contributions
     m_base: np.ndarray        # (n_all,) mass of each DOF
     dof_param: np.ndarray     # (n_all,) column in the mass factors of each DOF, -1 none
     retained: np.ndarray
@@ -234,7 +235,8 @@ def _solve_batch(plan: _Plan, factors: np.ndarray):
     n_all = plan.m_base.shape[0]
     K = np.broadcast_to(plan.K_base, (size, n_all, n_all)).copy()
     if len(plan.spring_params):
-        K += (factors[:, plan.spring_params] @ plan.P).reshape(size, n_all, n_all)
+        # P^T is sparse (a spring touches at most 2 x 3 DOFs): size x nnz work, not x n_all^2
+        K += np.asarray(plan.P_T @ factors[:, plan.spring_params].T).T.reshape(size, n_all, n_all)
     m = np.broadcast_to(plan.m_base, (size, n_all)).copy()
     if len(plan.mass_params):
         scale = np.ones((size, len(plan.mass_params) + 1))
@@ -465,7 +467,8 @@ def tolerance_study(model: Model, n: int, seed: int = 0, chunk: int | None = Non
             idx = [system.all_dofs.index(d) for d in system.dofs]
             u0 = nominal.all_shapes[idx] * np.sqrt(m_base[idx])[:, None]
     plan = _Plan(n_modes=nm, n_zero=n_zero, percents=percents, dist_codes=dist_codes,
-                 spring_params=spring_params, mass_params=mass_params, K_base=K_base, P=P,
+                 spring_params=spring_params, mass_params=mass_params, K_base=K_base,
+                 P_T=sp.csr_matrix(P.T),
                  m_base=m_base, dof_param=dof_param, retained=retained, slaves=slaves,
                  edges=edges, bands=bands, n_sources=len(source_ids), u0=u0,
                  trackable=trackable, keep=keep)
