@@ -49,7 +49,8 @@ _EXPORTS = {name: module for module, names in {
 }.items() for name in names}
 # tolerance studies and tuned-absorber sizing (issue 15)
 _EXPORTS.update({"Tolerance": "model", "ModeStudy": "study", "StudyResult": "study",
-                 "tolerance_study": "study"})
+                 "tolerance_study": "study", "AbsorberDesign": "absorber",
+                 "size_absorber": "absorber"})
 
 
 class _Package(_types.ModuleType):
@@ -106,4 +107,5 @@ __all__ = [
     "MarginRow", "MarginTable", "margin_table", "Crossing", "Interference", "OrderLine",
     "interference", "BodyCoupling", "ReferredSystem", "body_coupling", "referred_system",
 ]
-__all__ += ["Tolerance", "ModeStudy", "StudyResult", "tolerance_study"]
+__all__ += ["Tolerance", "ModeStudy", "StudyResult", "tolerance_study", "AbsorberDesign",
+            "size_absorber"]
