@@ -657,7 +657,7 @@ def _run_all(plan, seed, sizes, scheduler, progress, cancel, n):
                          ' "springwright[dask]" or "dask[distributed]")') from None
     own = not isinstance(scheduler, Client)
     try:
-        client = Client(scheduler, timeout=20) if own else scheduler
+        client = Client(scheduler, timeout=10) if own else scheduler
     except (OSError, TimeoutError, ValueError) as exc:
         raise ModelError(f"tolerance study: cannot reach the Dask scheduler {shown(scheduler)}:"
                          f" {exc}") from None
