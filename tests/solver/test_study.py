@@ -266,3 +266,22 @@ def test_dask_result_equals_the_local_one():
     for a, b in zip(local.modes, remote.modes):
         assert np.array_equal(a.histogram[0], b.histogram[0])
     assert np.array_equal(by_address.frequencies_hz, local.frequencies_hz[:1000])
+
+
+def test_crossing_modes_are_flagged_by_mac():
+    """Two uncoupled masses on their own springs (math: f_i = sqrt(k_i / m_i) / 2 pi) with
+    nominal frequencies 2 % apart and a 20 % tolerance on each spring: the order swaps exactly
+    when sqrt(k_a x_a / m_a) > sqrt(k_b x_b / m_b); the flagged fraction equals that fraction of
+    the drawn factors, and the tracked frequencies are still the sorted ones."""
+    model = Model(kind="line", masses=(Mass("a", 1.0, 0.0, 1.0), Mass("b", 2.0, 1.0, 1.0)),
+                  anchors=(Anchor("g", 0.0, 0.0),),
+                  springs=(Spring("sa", "g", "a", 1000.0, tolerance=Tolerance(20)),
+                           Spring("sb", "g", "b", 1000.0 * 1.02 ** 2, tolerance=Tolerance(20))))
+    res = tolerance_study(model, 4000, seed=6, chunk=1000, keep_samples=True)
+    X = sample_factors(model, 4000, seed=6, chunk=1000)
+    swapped = np.mean(1000.0 * X[:, 0] > 1000.0 * 1.02 ** 2 * X[:, 1])
+    assert 0.2 < swapped < 0.5
+    assert res.mode(1).crossed_fraction == pytest.approx(swapped, abs=1e-12)
+    fa = np.sqrt(1000.0 * X[:, 0]) / (2 * np.pi)
+    fb = np.sqrt(1000.0 * 1.02 ** 2 * X[:, 1]) / (2 * np.pi)
+    np.testing.assert_allclose(res.frequencies_hz, np.sort(np.c_[fa, fb], axis=1), rtol=1e-12)
