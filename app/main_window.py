@@ -216,6 +216,7 @@ class MainWindow(QMainWindow):
         self._make_actions()
         self._add_tune_panels()
         self._add_source_panels()
+        self._add_study_panels()
         # after every panel's own handler: it clears what the panels show of the last model and
         # then hands them the new model's results if they are already in
         self.document.opened.connect(self._on_opened)
@@ -527,6 +528,25 @@ class MainWindow(QMainWindow):
                             ("dock_interference", self.interference_panel)):
             self.findChild(QDockWidget, name).visibilityChanged.connect(
                 lambda shown, p=panel: shown and p.catch_up())
+
+    def _add_study_panels(self):
+        """Study (tolerance scatter) and Absorber (tuned absorber assistant), tabbed with the
+        Response plots (issue 15)."""
+        from app.docks.absorber_panel import AbsorberPanel
+        from app.docks.study_panel import StudyPanel
+
+        self.study_panel = StudyPanel(self.document)
+        self.absorber_panel = AbsorberPanel(self.document)
+        last = self.findChild(QDockWidget, "dock_interference") or self.response_dock
+        for title, panel, name in (("Study", self.study_panel, "dock_study"),
+                                   ("Absorber", self.absorber_panel, "dock_absorber")):
+            panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+            dock = self._dock(title, panel, Qt.BottomDockWidgetArea, name)
+            self.tabifyDockWidget(last, dock)
+            last = dock
+        self.solver.results_ready.connect(self.absorber_panel.set_analysis)
+        self.findChild(QDockWidget, "dock_absorber").visibilityChanged.connect(
+            lambda shown: shown and self.absorber_panel.catch_up())
 
     def show_guide(self):
         """A non-modal window with the tools, their keys, the main loop and the cautions."""
@@ -885,5 +905,6 @@ class MainWindow(QMainWindow):
         self.solver.shutdown()
         self.response_panel.shutdown()
         self.tune_panel.shutdown()
+        self.study_panel.shutdown()
         self.recovery.mark_clean_exit()
         event.accept()
