@@ -15,7 +15,10 @@ def _f(value) -> str:
 def _pct(p) -> str:
     if p is None:
         return "-"
-    return f"{100 * p:.1f} %" if 0.001 <= p <= 0.999 or p in (0.0, 1.0) else f"{100 * p:.2g} %"
+    v = 100 * p
+    if v in (0.0, 100.0) or 1 <= v <= 99:
+        return f"{v:.1f} %"
+    return f"{v:.2g} %" if v < 1 else f"{v:.2f} %"   # small shares keep two digits
 
 
 def parameter_lines(result) -> list[str]:
@@ -55,9 +58,17 @@ def clearing_lines(result) -> list[str]:
         if m.zero:
             continue
         for sid, p in m.clear_probability.items():
+            n = result.n_samples
+            if p in (0.0, 1.0):
+                # rule of three (common practice): none in N seen still allows up to ~3/N
+                err = (f"{'all' if p == 1.0 else 'none'} of {n:,}; the true share"
+                       f" {'failing' if p == 1.0 else 'clearing'} may still be up to"
+                       f" {_pct(min(1.0, 3.0 / n))}")
+            else:
+                err = f"+-{_pct(result.probability_error(p))}"
             out.append(f"mode {m.mode} clears {table.get(sid, sid)} with the"
                        f" {number(result.model.margin_percent)} % margin in {_pct(p)} of"
-                       f" samples (+-{_pct(result.probability_error(p))})")
+                       f" samples ({err})")
     return out
 
 
