@@ -23,7 +23,7 @@ def sdof(tol=True):
                                          f_max_hz=40.0),))
 
 
-def test_report_study_states_n_and_seed_and_follows_sqrt_k():
+def test_report_study_states_n_and_seed_and_follows_sqrt_k(qapp):
     """math: the report's modest study (N and seed fixed and stated) gives the SDOF's median
     f0 sqrt(1 + 0.1 (2 x 0.5 - 1)) = f0 to the sampling error of 2,000 samples (rtol 5e-3)."""
     res = report_study(sdof())
@@ -36,7 +36,7 @@ def test_report_study_states_n_and_seed_and_follows_sqrt_k():
     assert "all of 2,000" in clearing_lines(res)[0] and "0.15 %" in clearing_lines(res)[0]
 
 
-def test_report_carries_the_section_only_with_tolerances(tmp_path):
+def test_report_carries_the_section_only_with_tolerances(qapp, tmp_path):
     """A model with a tolerance gets the study section (a taller page than the same model
     without one)."""
     a = render_report(sdof(True), None, tmp_path / "a.png", dpi=100, date="2026-01-01")
