@@ -287,7 +287,7 @@ def run_chunk(plan: _Plan, seed: int, index: int, size: int) -> dict:
     else:
         f, vec = _solve_batch(plan, factors)
     nm = plan.n_modes
-    counts = np.zeros((nm, HIST_BINS), np.int64)
+    counts = np.zeros((nm, HIST_BINS), np.int32)   # a chunk holds < 2^31 samples
     for j in range(nm):
         e = plan.edges[j]
         b = np.clip(np.searchsorted(e, f[:, j], side="right") - 1, 0, HIST_BINS - 1)
@@ -505,23 +505,15 @@ def tolerance_study(model: Model, n: int, seed: int = 0, chunk: int | None = Non
 
     # -- run ----------------------------------------------------------------------------------
     sizes = [min(chunk, n - i * chunk) for i in range((n + chunk - 1) // chunk)]
-    summaries = _run_all(plan, seed, sizes, scheduler, progress, cancel, n)
-    done = sum(s["n"] for s in summaries)
+    acc = _Totals()
+    _run_all(plan, seed, sizes, scheduler, progress, cancel, n, acc)
+    done = acc.n
     if done == 0:
         raise StudyCancelled("tolerance study cancelled before any sample was solved")
-
-    # -- combine, in chunk order --------------------------------------------------------------
-    counts = sum(s["counts"] for s in summaries)
-    clear = sum(s["clear"] for s in summaries)
-    clear_all = sum(s["clear_all"] for s in summaries)
-    crossed = sum(s["crossed"] for s in summaries)
-    total = np.zeros(nm)
-    for s in summaries:
-        total = total + s["sum"]
-    mean = total / done
-    fmin = np.min([s["min"] for s in summaries], axis=0)
-    fmax = np.max([s["max"] for s in summaries], axis=0)
-    F = np.concatenate([s["f"] for s in summaries]) if keep else None
+    counts, clear, clear_all, crossed = acc.counts, acc.clear, acc.clear_all, acc.crossed
+    mean = acc.sum / done
+    fmin, fmax = acc.min, acc.max
+    F = np.concatenate(acc.f) if keep else None
     if F is not None:
         pct = np.percentile(F, [5, 50, 95], axis=0)
         std = F.std(axis=0, ddof=1) if done > 1 else np.zeros(nm)
@@ -642,6 +634,36 @@ def _stiffness_parts(system, tol_springs):
     return K_base, P
 
 
+class _Totals:
+    """Chunk summaries folded in chunk order as they come (a 1e6-sample study of 200 modes has
+    10,000 chunks of 3 MB of counts each: they are never all held). Folding in order makes the
+    floating-point sums the same however the chunks were scheduled."""
+
+    def __init__(self):
+        self.n = 0
+        self.counts = self.clear = self.clear_all = self.crossed = None
+        self.sum = self.min = self.max = None
+        self.f = []
+
+    def add(self, s: dict) -> None:
+        if self.n == 0:
+            self.counts = s["counts"].astype(np.int64)
+            self.clear, self.clear_all = s["clear"].copy(), s["clear_all"].copy()
+            self.crossed, self.sum = s["crossed"].copy(), s["sum"].copy()
+            self.min, self.max = s["min"].copy(), s["max"].copy()
+        else:
+            self.counts += s["counts"]
+            self.clear += s["clear"]
+            self.clear_all += s["clear_all"]
+            self.crossed += s["crossed"]
+            self.sum = self.sum + s["sum"]
+            self.min = np.minimum(self.min, s["min"])
+            self.max = np.maximum(self.max, s["max"])
+        if s["f"] is not None:
+            self.f.append(s["f"])
+        self.n += s["n"]
+
+
 def _should_stop(cancel) -> bool:
     if cancel is None:
         return False
@@ -650,18 +672,15 @@ def _should_stop(cancel) -> bool:
     return bool(cancel())
 
 
-def _run_all(plan, seed, sizes, scheduler, progress, cancel, n):
-    out = []
+def _run_all(plan, seed, sizes, scheduler, progress, cancel, n, acc: _Totals) -> None:
     if scheduler is None:
-        done = 0
         for i, size in enumerate(sizes):
             if _should_stop(cancel):
                 break
-            out.append(run_chunk(plan, seed, i, size))
-            done += size
+            acc.add(run_chunk(plan, seed, i, size))
             if progress is not None:
-                progress(done, n)
-        return out
+                progress(acc.n, n)
+        return
     try:
         from distributed import Client, as_completed
     except ImportError:
@@ -677,23 +696,24 @@ def _run_all(plan, seed, sizes, scheduler, progress, cancel, n):
         plan_f = client.scatter(plan, broadcast=True)
         futures = [client.submit(run_chunk, plan_f, seed, i, size, pure=False)
                    for i, size in enumerate(sizes)]
-        results = {}
-        done = 0
         order = {f.key: i for i, f in enumerate(futures)}
+        pending: dict = {}
+        folded = 0
+        solved = 0
         for fut in as_completed(futures):
-            results[order[fut.key]] = fut.result()
-            done += results[order[fut.key]]["n"]
+            i = order[fut.key]
+            pending[i] = fut.result()
+            solved += pending[i]["n"]
+            fut.release()
+            # fold the finished run at the front, in chunk order; a cancel keeps that run
+            while folded in pending:
+                acc.add(pending.pop(folded))
+                folded += 1
             if progress is not None:
-                progress(done, n)
+                progress(solved, n)
             if _should_stop(cancel):
                 client.cancel(futures)
                 break
-        # combined in chunk order; a cancel keeps the leading run of finished chunks
-        i = 0
-        while i in results:
-            out.append(results[i])
-            i += 1
-        return out
     finally:
         if own:
             client.close()
