@@ -475,7 +475,8 @@ def main(argv=None) -> int:
     parser = _Parser(prog="springwright",
                      description="Open the Springwright desktop program (on a built-in example"
                                  " when no FILE is given). Also: springwright solve FILE [--json],"
-                                 " springwright report FILE -o OUT.png")
+                                 " springwright report FILE -o OUT.png,"
+                                 " springwright study FILE -n N")
     parser.add_argument("file", nargs="?")
     parser.argv = ("", *argv)
     args = parser.parse_args(argv)

@@ -103,6 +103,13 @@ variable-speed drive, run-up), and lists its orders (<i>1, 2, 4.5</i>). The Marg
 gives every mode's separation from every source, pass or fail, and the nearest frequency clear
 of all of them. The Interference diagram plots each order line against shaft speed with the
 natural frequencies across it; a dot marks where they meet inside the operating range.</p>
+<h3>Tolerances and absorbers</h3>
+<p>Give a spring, dashpot or mass a <i>Tolerance (±%)</i> in Properties (uniform, normal or
+triangular). The Study tab samples that many models (the seed makes it repeatable) and shows each
+mode's spread, its 5/50/95 percentiles, the chance of clearing every source and the worst-case
+corners; <i>Cancel</i> keeps what was solved. The Absorber tab sizes a tuned absorber for a mode
+at the mass you protect (Den Hartog's optimum) and <i>Add absorber</i> puts it in (one undo
+step).</p>
 <h3>Cautions</h3>
 <p>""" + CAUTION_TEXT + """</p>
 """
