@@ -285,3 +285,18 @@ def test_crossing_modes_are_flagged_by_mac():
     fa = np.sqrt(1000.0 * X[:, 0]) / (2 * np.pi)
     fb = np.sqrt(1000.0 * 1.02 ** 2 * X[:, 1]) / (2 * np.pi)
     np.testing.assert_allclose(res.frequencies_hz, np.sort(np.c_[fa, fb], axis=1), rtol=1e-12)
+
+
+def test_dask_worker_processes_give_the_same_result():
+    """Issue 15: with chunks solved in separate worker processes (the plan pickled to them),
+    the result still equals the local run bit for bit (same seed and chunk)."""
+    distributed = pytest.importorskip("distributed")
+    model = chain(4, junction=True)
+    local = tolerance_study(model, 1200, seed=5, chunk=200, keep_samples=True)
+    with distributed.LocalCluster(n_workers=1, threads_per_worker=1, processes=True,
+                                  dashboard_address=None) as cluster, \
+            distributed.Client(cluster) as client:
+        remote = tolerance_study(model, 1200, seed=5, chunk=200, keep_samples=True,
+                                 scheduler=client)
+    assert np.array_equal(local.frequencies_hz, remote.frequencies_hz)
+    assert local.modes == remote.modes
