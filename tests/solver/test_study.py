@@ -300,3 +300,31 @@ def test_dask_worker_processes_give_the_same_result():
                                  scheduler=client)
     assert np.array_equal(local.frequencies_hz, remote.frequencies_hz)
     assert local.modes == remote.modes
+
+
+def test_planar_rigid_body_samples_equal_modes():
+    """A planar rigid body on two mounts at attachment points (k and k_t scaled together,
+    mass and inertia scaled together) plus a point mass: each sample of the batched path
+    equals solver.modes on the scaled model (the general solver, its own assembly), to 1e-9;
+    the first-order estimate there uses the body's rotary inertia too (delta method, common
+    practice: within 3 % of the sampled standard deviation for 1 % tolerances)."""
+    from solver.study import scaled_model
+    body = Mass("b", 0.0, 0.0, 20.0, inertia=1.5, tolerance=Tolerance(1))
+    model = Model(kind="planar",
+                  masses=(body, Mass("p", 1.0, 0.6, 2.0)),
+                  anchors=(Anchor("g1", -0.5, -1.0), Anchor("g2", 0.6, -1.0)),
+                  springs=(Spring("s1", "g1", "b", 8e4, k_t=2e4, b_offset=(-0.4, -0.2),
+                                  tolerance=Tolerance(1)),
+                           Spring("s2", "g2", "b", 6e4, k_t=1e4, b_offset=(0.5, -0.2),
+                                  tolerance=Tolerance(1, "triangular")),
+                           Spring("s3", "b", "p", 3e4, k_t=3e4, a_offset=(0.3, 0.1))))
+    res = tolerance_study(model, 20_000, seed=3, keep_samples=True)
+    assert res.method == "batched eigh"
+    X = sample_factors(model, 20_000, seed=3)
+    params = tolerance_parameters(model)
+    assert [p.field for p in params] == ["k, k_t", "k, k_t", "mass, inertia"]
+    for row, got in zip(X[::4001], res.frequencies_hz[::4001]):
+        want = solver.modes(scaled_model(model, params, row)).frequencies_hz
+        np.testing.assert_allclose(got, want, rtol=1e-9)
+    for ms in res.modes:
+        assert ms.first_order_std_hz == pytest.approx(ms.std_hz, rel=0.03)
