@@ -84,12 +84,17 @@ class AbsorberPanel(QWidget):
         self.plots.setObjectName("absorber_plots")
         self.plots.setMinimumHeight(90)
         self.plot_item = self.plots.addPlot(row=0, col=0, axisItems=true_value_axes())
+        st = current_style()
+        self.plots.setBackground(st.background)   # the window's colours, as the other plots
         pi = self.plot_item
+        for ax in ("left", "bottom"):
+            pi.getAxis(ax).setTextPen(st.ink)
+            pi.getAxis(ax).setPen(st.ink_soft)
         pi.setLabel("bottom", "frequency (Hz)")
         pi.setLabel("left", "receptance at the protected mass")
         pi.setLogMode(x=False, y=True)
         pi.showGrid(x=True, y=True, alpha=0.2)
-        self.legend = pg.LegendItem(labelTextSize="8pt", frame=False)
+        self.legend = pg.LegendItem(labelTextSize="8pt", frame=False, labelTextColor=st.ink)
         self.legend.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Maximum)
         key = self.plots.ci.addLayout(row=0, col=1)
         key.addItem(self.legend, row=0, col=0)

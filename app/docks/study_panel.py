@@ -112,11 +112,23 @@ class StudyPanel(QWidget):
         self.plot = pg.PlotWidget(axisItems=true_value_axes())
         self.plot.setObjectName("study_histogram")
         self.plot.setMinimumHeight(90)
+        st = current_style()
+        self.plot.setBackground(st.background)   # the window's colours, as the other plots
         pi = self.plot.getPlotItem()
+        for ax in ("left", "bottom"):
+            pi.getAxis(ax).setTextPen(st.ink)
+            pi.getAxis(ax).setPen(st.ink_soft)
+        pi.titleLabel.setAttr("color", st.ink.name())
         pi.setLabel("bottom", "natural frequency (Hz)")
         pi.setLabel("left", "samples")
         pi.showGrid(x=True, y=True, alpha=0.2)
         ll.addWidget(self.plot, 1)
+        key = QLabel("Thin line: nominal; dashed: 5 and 95 %; dotted: worst-case corners;"
+                     " shaded: each source widened by the margin (its own frequency a bold"
+                     " line or a darker band).")
+        key.setObjectName("study_key")
+        key.setWordWrap(True)
+        ll.addWidget(key)
         split.addWidget(left)
         right = QWidget()
         rl = QVBoxLayout(right)
@@ -303,6 +315,16 @@ class StudyPanel(QWidget):
                                          pen=pg.mkPen(warn, width=0.5))
             region.setZValue(-10)
             pi.addItem(region)
+            if hi <= lo:   # a speed's order: the excitation frequency itself
+                pi.addItem(pg.InfiniteLine(pos=lo, angle=90, pen=pg.mkPen(warn, width=1.5)))
+            else:
+                core = pg.mkColor(warn)
+                core.setAlpha(90)
+                inner = pg.LinearRegionItem(values=(max(lo, x_lo), min(hi, x_hi)),
+                                            movable=False, brush=pg.mkBrush(core),
+                                            pen=pg.mkPen(None))
+                inner.setZValue(-9)
+                pi.addItem(inner)
         for x, style_ in ((ms.percentiles_hz[0], Qt.PenStyle.DashLine),
                           (ms.percentiles_hz[2], Qt.PenStyle.DashLine),
                           (ms.nominal_hz, Qt.PenStyle.SolidLine)):
@@ -313,8 +335,7 @@ class StudyPanel(QWidget):
                                        pen=pg.mkPen(st.error, width=1,
                                                     style=Qt.PenStyle.DotLine)))
         pi.setTitle(f"Mode {ms.mode}: 5-95 % {ms.percentiles_hz[0]:.4g} to"
-                    f" {ms.percentiles_hz[2]:.4g} Hz; corners dotted; sources shaded",
-                    size="9pt")
+                    f" {ms.percentiles_hz[2]:.4g} Hz", size="9pt")
         pi.setXRange(x_lo, x_hi, padding=0)
         pi.setYRange(0, float(c.max()) * 1.1, padding=0)
 
