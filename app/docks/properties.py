@@ -413,7 +413,7 @@ class PropertyPanel(QWidget):
             else:
                 self.title.setText(f"{el.id}")
             if isinstance(el, (Spring, Damper)) or (isinstance(el, Mass) and el.mass > 0):
-                self._build_tolerance(el)
+                self._build_tolerance([el])
 
     def _build_several(self, model, elements):
         """Fields every selected element has (all springs, all dashpots or all masses): a value
@@ -449,6 +449,7 @@ class PropertyPanel(QWidget):
                                lambda m, n=name: common(m, n),
                                lambda v, n=name, ids=tuple(ids):
                                    self.document.set_elements(ids, **{n: v}))
+        self._build_tolerance(elements)   # one tolerance for all of them, one undo step
 
     def _build_label(self, el):
         edit = QLineEdit()
@@ -692,13 +693,15 @@ class PropertyPanel(QWidget):
                 self.status_message.emit(f"Refused: {exc}")
 
     # -- tolerance (issue 15): percent and distribution, one undo step per edit ----------------
-    def _build_tolerance(self, el):
-        """A ``Tolerance (+-%)`` row: a percent (blank: none) and its distribution."""
+    def _build_tolerance(self, els):
+        """A ``Tolerance (±%)`` row for one element, or for several of one kind (the same
+        tolerance for all, one undo step): a percent (blank: none) and its distribution."""
         from solver.model import TOLERANCE_DISTRIBUTIONS, Tolerance
 
         percent = QLineEdit()
         percent.setObjectName("field_tolerance_percent")
-        what = {Spring: "k (and k_t)", Damper: "c"}.get(type(el), "the mass (and inertia)")
+        ids = tuple(e.id for e in els)
+        what = {Spring: "k (and k_t)", Damper: "c"}.get(type(els[0]), "the mass (and inertia)")
         percent.setToolTip(f"Tolerance on {what} for a tolerance study: the value lies within"
                            " +-this % of nominal (normal: this is the 3-sigma bound, truncated"
                            " there); leave blank for none")
@@ -715,7 +718,7 @@ class PropertyPanel(QWidget):
         error.setStyleSheet(f"color: {current_style().error.name()};")
         error.hide()
 
-        def apply(i=el.id):
+        def apply():
             text = percent.text().replace("%", "").replace("±", "").replace("+-", "").strip()
             try:
                 if not text:
@@ -728,8 +731,12 @@ class PropertyPanel(QWidget):
                                          f' "{percent.text()}"') from None
                     tol = Tolerance(value, dist.currentData())
                 error.hide()   # before the edit: the model's change may rebuild this form
-                if self.document.model.element(i).tolerance != tol:
-                    self.document.set_element(i, tolerance=tol)
+                model = self.document.model
+                if any(model.element(i).tolerance != tol for i in ids):
+                    if len(ids) == 1:
+                        self.document.set_element(ids[0], tolerance=tol)
+                    else:
+                        self.document.set_elements(ids, tolerance=tol)
             except ModelError as exc:
                 error.setText(str(exc))
                 error.show()
@@ -749,12 +756,22 @@ class PropertyPanel(QWidget):
         h.addWidget(dist)
         v.addLayout(h)
         v.addWidget(error)   # the refusal in place, under the entry (no height while hidden)
-        self.form.addRow("Tolerance (±%)", row)
+        self.form.addRow("Tolerance (±%)" if len(ids) == 1 else "Tolerance (±%, all)", row)
         self._widgets["tolerance_percent"] = percent
         self._widgets["tolerance_distribution"] = dist
-        self._text_getters["tolerance_percent"] = (
-            percent, lambda m, i=el.id: "" if m.element(i).tolerance is None
-            else f"{m.element(i).tolerance.percent:g}")
+
+        def common(m):
+            tols = {m.element(i).tolerance for i in ids if i in m.ids()}
+            return tols.pop() if len(tols) == 1 else "differ"
+
+        def percent_text(m):
+            tol = common(m)
+            percent.setPlaceholderText("differ" if tol == "differ" else "none")
+            if tol == "differ" or tol is None:
+                return ""
+            return f"{tol.percent:g}"
+
+        self._text_getters["tolerance_percent"] = (percent, percent_text)
         self._text_getters["tolerance_distribution"] = (
-            dist, lambda m, i=el.id: "uniform" if m.element(i).tolerance is None
-            else m.element(i).tolerance.distribution)
+            dist, lambda m: common(m).distribution if common(m) not in (None, "differ")
+            else "uniform")

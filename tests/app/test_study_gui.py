@@ -168,3 +168,18 @@ def test_absorber_assistant_adds_one_undo_step(window, qtbot):
     assert problems == [], problems
     window.document.undo_stack.undo()
     assert len(window.document.model.masses) == 2 and not window.document.model.dampers
+
+
+def test_one_tolerance_for_several_springs_is_one_undo_step(window, qtbot):
+    """Selecting both springs, typing 10 gives each the same tolerance in one undo step."""
+    _open(window, qtbot, skid())
+    window.scene.select_ids(["s1", "s2"])
+    percent = window.properties.widget("tolerance_percent")
+    assert percent.text() == "" and percent.placeholderText() == "differ"
+    before = window.document.undo_stack.count()
+    percent.setText("10")
+    percent.editingFinished.emit()
+    model = window.document.model
+    assert model.find("s1").tolerance == model.find("s2").tolerance == Tolerance(10)
+    assert window.document.undo_stack.count() == before + 1
+    assert window.properties.widget("tolerance_percent").text() == "10"
