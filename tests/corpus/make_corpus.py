@@ -201,6 +201,18 @@ CASES = {
                    ("line 1, column 1", ["byte-order mark"], ["utf-8-sig"])),
     "nul-in-text": (TEXT.encode().replace(b'"m1"', b'"m\x001"', 1),
                     ("line", ["U+0000", "control character"], ["character at"])),
+    # ---- tolerances (issue 15): percent strictly between 0 and 100, a known distribution
+    "tolerance-ok": (changed(set_(["springs", 0, "tolerance"],
+                                  {"percent": 20, "distribution": "normal"})), "solve"),
+    "tolerance-100-percent": (changed(set_(["springs", 0, "tolerance"], {"percent": 100})),
+                              ("springs[0].tolerance.percent", ['"s1"', "< 100"])),
+    "tolerance-negative": (changed(set_(["masses", 1, "tolerance"], {"percent": -5})),
+                           ("masses[1].tolerance.percent", ['"m2"', "> 0"])),
+    "tolerance-unknown-distribution": (
+        changed(set_(["springs", 1, "tolerance"], {"percent": 5, "distribution": "gauss"})),
+        ("springs[1].tolerance.distribution", ['"gauss"', '"uniform", "normal", "triangular"'])),
+    "tolerance-as-number": (changed(set_(["springs", 0, "tolerance"], 10)),
+                            ("springs[0].tolerance", ["object"])),
 }
 
 
