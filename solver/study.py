@@ -443,7 +443,7 @@ def tolerance_study(model: Model, n: int, seed: int = 0, chunk: int | None = Non
     spring_params = np.array([i for i, p in enumerate(params) if p.kind == "spring"], np.int64)
     mass_params = np.array([i for i, p in enumerate(params) if p.kind == "mass"], np.int64)
     tol_springs = [params[i].index for i in spring_params]
-    K_base, P = _stiffness_parts(system, tol_springs)
+    K_base, P_T = _stiffness_parts(system, tol_springs)
     m_base = np.asarray(system.M_full.diagonal()).ravel().astype(float)
     dof_param = np.full(n_all, -1, np.int64)
     for col, i in enumerate(mass_params):
@@ -480,7 +480,7 @@ def tolerance_study(model: Model, n: int, seed: int = 0, chunk: int | None = Non
             u0 = nominal.all_shapes[idx] * np.sqrt(m_base[idx])[:, None]
     plan = _Plan(n_modes=nm, n_zero=n_zero, percents=percents, dist_codes=dist_codes,
                  spring_params=spring_params, mass_params=mass_params, K_base=K_base,
-                 P_T=sp.csr_matrix(P.T),
+                 P_T=P_T,
                  m_base=m_base, dof_param=dof_param, retained=retained, slaves=slaves,
                  edges=edges, bands=bands, n_sources=len(source_ids), u0=u0,
                  trackable=trackable, keep=keep)
@@ -608,16 +608,18 @@ def _hist_percentile(counts, edges, qs):
 
 
 def _stiffness_parts(system, tol_springs):
-    """(K_base, P): the stiffness of the untoleranced springs on all DOFs (dense, before
-    condensation) and one flattened row per toleranced spring (k c0 c0^T + k_t c1 c1^T)."""
+    """(K_base, P_T): the stiffness of the untoleranced springs on all DOFs (dense, before
+    condensation), and a sparse (n_all * n_all, n_toleranced) matrix whose column j is the
+    flattened contribution k c0 c0^T + k_t c1 c1^T of the j-th toleranced spring (at most
+    (2 x 3)^2 entries each: never dense, whatever the model's size)."""
     model = system.model
     n_all = len(system.all_dofs)
     idx = system.spring_dofs
     coef = system.spring_coef
     planar = model.kind == "planar"
     K_base = np.zeros((n_all, n_all))
-    P = np.zeros((len(tol_springs), n_all * n_all))
-    row_of = {j: r for r, j in enumerate(tol_springs)}
+    col_of = {j: c for c, j in enumerate(tol_springs)}
+    rows, cols, vals = [], [], []
     for j, s in enumerate(model.springs):
         local = s.k * np.outer(coef[j, 0], coef[j, 0])
         if planar and s.k_t:
@@ -625,13 +627,22 @@ def _stiffness_parts(system, tol_springs):
         keep = idx[j] >= 0
         d = idx[j][keep]
         block = local[np.ix_(keep, keep)]
-        if j in row_of:
-            target = np.zeros((n_all, n_all))
-            np.add.at(target, np.ix_(d, d), block)
-            P[row_of[j]] = target.ravel()
+        if j in col_of:
+            flat = (d[:, None] * n_all + d[None, :]).ravel()
+            rows.append(flat)
+            cols.append(np.full(flat.size, col_of[j]))
+            vals.append(block.ravel())
         else:
             np.add.at(K_base, np.ix_(d, d), block)
-    return K_base, P
+    if rows:
+        # duplicate entries (one DOF at both ends of a spring cannot happen, but stay safe)
+        # are summed by the conversion
+        P_T = sp.csr_matrix((np.concatenate(vals), (np.concatenate(rows),
+                                                    np.concatenate(cols))),
+                            shape=(n_all * n_all, len(tol_springs)))
+    else:
+        P_T = sp.csr_matrix((n_all * n_all, 0))
+    return K_base, P_T
 
 
 class _Totals:
