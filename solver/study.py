@@ -371,8 +371,10 @@ def _check_int(value, what: str, lo: int, hi: int) -> int:
 
 
 def default_chunk(n_all: int) -> int:
-    """Samples per chunk for a model of ``n_all`` DOFs: about 32 MB of stacked matrices."""
-    return int(min(10_000, max(1, 4_000_000 // max(n_all * n_all, 1))))
+    """Samples per chunk for a model of ``n_all`` DOFs: about 32 MB of stacked matrices, and
+    at least 4 samples (a chunk's summary holds n_modes x HIST_BINS counts however few samples
+    it has)."""
+    return int(min(10_000, max(4, 4_000_000 // max(n_all * n_all, 1))))
 
 
 def tolerance_study(model: Model, n: int, seed: int = 0, chunk: int | None = None,
