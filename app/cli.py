@@ -5,6 +5,8 @@
     springwright solve FILE [--json] print the mode table (or JSON)
     springwright report FILE -o OUT.png   write the PNG report with no window
     springwright loads FILE [--json] print the responses to the loads the file defines
+    springwright study FILE -n N [--seed S] [--chunk C] [--scheduler ADDRESS] [--json]
+                                     tolerance study of the natural frequencies
 
 Bad input is one line on stderr naming the file and the problem, exit code 2, no traceback.
 """
@@ -422,8 +424,62 @@ def cmd_loads(args) -> int:
     return 0
 
 
+def cmd_study(argv) -> int:
+    """``springwright study FILE -n N ...``: the tolerance study as a table or JSON."""
+    parser = _Parser(prog="springwright study",
+                     description="Tolerance study: sample the toleranced springs, dashpots and"
+                                 " masses, solve every sample, print per mode the percentiles,"
+                                 " the probability of clearing each source, the first-order"
+                                 " estimate and the worst-case corners")
+    parser.add_argument("file")
+    parser.add_argument("-n", "--samples", type=int, default=10_000,
+                        help="number of samples (default 10,000)")
+    parser.add_argument("--seed", type=int, default=0, help="random seed (default 0)")
+    parser.add_argument("--chunk", type=int, default=None,
+                        help="samples per chunk (the same seed and chunk give the same result)")
+    parser.add_argument("--scheduler", default=None,
+                        help="Dask scheduler address (tcp://host:8786): run on that cluster")
+    parser.add_argument("--json", action="store_true", help="print JSON instead of a table")
+    parser.argv = ("study", *argv[1:])
+    args = parser.parse_args(argv[1:])
+    from solver import ModelError
+    from solver.study import tolerance_study
+
+    model, err = _load(args.file)
+    if err:
+        return _fail(err)
+    try:
+        result = tolerance_study(model, args.samples, seed=args.seed, chunk=args.chunk,
+                                 scheduler=args.scheduler)
+    except ModelError as exc:
+        return _fail(f"{args.file}: {exc}")
+    from app.results.study_rows import study_json, study_text
+
+    if args.json:
+        text = json.dumps(_finite_json(study_json(result)), indent=2, allow_nan=False)
+    else:
+        text = _lines_text(study_text(result).splitlines())
+    try:
+        print(text)
+        sys.stdout.flush()
+    except BrokenPipeError:
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+    return 0
+
+
 def main(argv=None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
+    if argv and argv[0] == "study":
+        try:
+            return cmd_study(argv)
+        except Exception as exc:   # a bug, not the user's input
+            if os.environ.get("SPRINGWRIGHT_DEBUG"):
+                raise
+            from solver.errors import shown
+
+            return _fail(f"internal error in study: {type(exc).__name__}:"
+                         f" {shown(str(exc), 200)} (set SPRINGWRIGHT_DEBUG=1 for the traceback;"
+                         " please report it)", code=1)
     if argv and argv[0] in ("solve", "report", "loads"):
         parser = _Parser(prog="springwright", description="Lumped spring-mass vibration tool")
         sub = parser.add_subparsers(dest="command", required=True)
@@ -453,7 +509,7 @@ def main(argv=None) -> int:
                      description="Open the Springwright desktop program (on a built-in example"
                                  " when no FILE is given). Also: springwright solve FILE [--json],"
                                  " springwright report FILE -o OUT.png, springwright loads FILE"
-                                 " [--json]")
+                                 " [--json], springwright study FILE -n N")
     parser.add_argument("file", nargs="?")
     parser.argv = ("", *argv)
     args = parser.parse_args(argv)

@@ -103,6 +103,13 @@ variable-speed drive, run-up), and lists its orders (<i>1, 2, 4.5</i>). The Marg
 gives every mode's separation from every source, pass or fail, and the nearest frequency clear
 of all of them. The Interference diagram plots each order line against shaft speed with the
 natural frequencies across it; a dot marks where they meet inside the operating range.</p>
+<h3>Tolerances and absorbers</h3>
+<p>Give a spring, dashpot or mass a <i>Tolerance (±%)</i> in Properties (uniform, normal or
+triangular). The Study tab samples that many models (the seed makes it repeatable) and shows each
+mode's spread, its 5/50/95 percentiles, the chance of clearing every source and the worst-case
+corners; <i>Cancel</i> keeps what was solved. The Absorber tab sizes a tuned absorber for a mode
+at the mass you protect (Den Hartog's optimum) and <i>Add absorber</i> puts it in (one undo
+step).</p>
 <h3>Cautions</h3>
 <p>""" + CAUTION_TEXT + """</p>
 """
@@ -217,6 +224,7 @@ class MainWindow(QMainWindow):
         self._add_tune_panels()
         self._add_source_panels()
         self._add_loads_panel()
+        self._add_study_panels()
         # after every panel's own handler: it clears what the panels show of the last model and
         # then hands them the new model's results if they are already in
         self.document.opened.connect(self._on_opened)
@@ -540,6 +548,25 @@ class MainWindow(QMainWindow):
         self.tabifyDockWidget(self.findChild(QDockWidget, "dock_interference"), dock)
         dock.visibilityChanged.connect(lambda shown: shown and self.loads_panel.catch_up())
         self.document.opened.connect(self.loads_panel.reset)
+
+    def _add_study_panels(self):
+        """Study (tolerance scatter) and Absorber (tuned absorber assistant), tabbed with the
+        Response plots."""
+        from app.docks.absorber_panel import AbsorberPanel
+        from app.docks.study_panel import StudyPanel
+
+        self.study_panel = StudyPanel(self.document)
+        self.absorber_panel = AbsorberPanel(self.document)
+        last = self.findChild(QDockWidget, "dock_interference") or self.response_dock
+        for title, panel, name in (("Study", self.study_panel, "dock_study"),
+                                   ("Absorber", self.absorber_panel, "dock_absorber")):
+            panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+            dock = self._dock(title, panel, Qt.BottomDockWidgetArea, name)
+            self.tabifyDockWidget(last, dock)
+            last = dock
+        self.solver.results_ready.connect(self.absorber_panel.set_analysis)
+        self.findChild(QDockWidget, "dock_absorber").visibilityChanged.connect(
+            lambda shown: shown and self.absorber_panel.catch_up())
 
     def show_guide(self):
         """A non-modal window with the tools, their keys, the main loop and the cautions."""
@@ -905,5 +932,6 @@ class MainWindow(QMainWindow):
         if hasattr(self, "loads_panel"):
             self.loads_panel.shutdown()
         self.tune_panel.shutdown()
+        self.study_panel.shutdown()
         self.recovery.mark_clean_exit()
         event.accept()

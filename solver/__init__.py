@@ -55,6 +55,10 @@ _EXPORTS = {name: module for module, names in {
               "cqc_correlation", "load_results", "random_response", "shock_response",
               "shock_response_spectrum", "spectrum_response"),
 }.items() for name in names}
+# tolerance studies and tuned-absorber sizing (issue 15)
+_EXPORTS.update({"Tolerance": "model", "ModeStudy": "study", "StudyResult": "study",
+                 "tolerance_study": "study", "AbsorberDesign": "absorber",
+                 "size_absorber": "absorber"})
 
 
 class _Package(_types.ModuleType):
@@ -114,3 +118,5 @@ __all__ = [
     "RandomResult", "SRS", "ShockResult", "SpectrumResult", "cqc_correlation", "load_results",
     "random_response", "shock_response", "shock_response_spectrum", "spectrum_response",
 ]
+__all__ += ["Tolerance", "ModeStudy", "StudyResult", "tolerance_study", "AbsorberDesign",
+            "size_absorber"]

@@ -277,7 +277,8 @@ def _build(data: dict) -> Model:
         try:
             return Mass(id=m["id"], x=m["x"], y=m["y"], mass=m[mass_key],
                         label=m.get("label", ""), fixed=tuple(m.get("fixed", ())),
-                        inertia=0.0 if kind == "torsion" else m.get("inertia", 0.0))
+                        inertia=0.0 if kind == "torsion" else m.get("inertia", 0.0),
+                        tolerance=m.get("tolerance"))
         except ModelError as exc:   # the Mass calls it "mass" whatever the kind
             if exc.path == ("mass",):
                 exc.path = (mass_key,)
@@ -296,10 +297,12 @@ def _build(data: dict) -> Model:
                                                       label=a.get("label", "")))
     springs = _each(data, "springs", lambda s: Spring(
         id=s["id"], a=s["a"], b=s["b"], k=s["k"], k_t=s.get("k_t", 0.0), label=s.get("label", ""),
-        a_offset=_pair(s, "a_offset"), b_offset=_pair(s, "b_offset")))
+        a_offset=_pair(s, "a_offset"), b_offset=_pair(s, "b_offset"),
+        tolerance=s.get("tolerance")))
     dampers = _each(data, "dampers", lambda d: Damper(
         id=d["id"], a=d["a"], b=d["b"], c=d["c"], label=d.get("label", ""),
-        a_offset=_pair(d, "a_offset"), b_offset=_pair(d, "b_offset")))
+        a_offset=_pair(d, "a_offset"), b_offset=_pair(d, "b_offset"),
+        tolerance=d.get("tolerance")))
     gears = _each(data, "gears", lambda g: Gear(
         id=g["id"], a=g["a"], b=g["b"], ratio=g["ratio"], label=g.get("label", ""),
         k_mesh=g.get("k_mesh")))
@@ -416,15 +419,16 @@ def model_to_dict(model: Model, minimal: bool = False) -> dict:
             d["inertia"] = m.inertia
         if m.fixed:
             d["fixed"] = list(m.fixed)
-        out["masses"].append(d)
+        out["masses"].append(_tolerance(m, d))
     out["anchors"] = [labelled(a, {"id": a.id}) | {"x": a.x, "y": a.y} for a in model.anchors]
     out["springs"] = []
     for s in model.springs:
         d = labelled(s, {"id": s.id}) | {"a": s.a, "b": s.b, "k": s.k}
         if s.k_t:
             d["k_t"] = s.k_t
-        out["springs"].append(_offsets(s, d))
-    out["dampers"] = [_offsets(d, labelled(d, {"id": d.id}) | {"a": d.a, "b": d.b, "c": d.c})
+        out["springs"].append(_tolerance(s, _offsets(s, d)))
+    out["dampers"] = [_tolerance(d, _offsets(d, labelled(d, {"id": d.id})
+                                            | {"a": d.a, "b": d.b, "c": d.c}))
                       for d in model.dampers]
     if model.gears:   # written only when there are any, so older files keep their text
         out["gears"] = []
@@ -470,7 +474,19 @@ def model_to_dict(model: Model, minimal: bool = False) -> dict:
         for key in ("ratio", "alpha", "beta"):
             if out.get("damping", {}).get(key) == 0:
                 del out["damping"][key]
+        for key in ("masses", "springs", "dampers"):
+            for d in out.get(key, ()):
+                if d.get("tolerance", {}).get("distribution") == "uniform":
+                    del d["tolerance"]["distribution"]
     return out
+
+
+def _tolerance(el, d: dict) -> dict:
+    """``d`` with the element's tolerance, where it has one (older files keep their text)."""
+    if el.tolerance is not None:
+        d["tolerance"] = {"percent": el.tolerance.percent,
+                          "distribution": el.tolerance.distribution}
+    return d
 
 
 def _offsets(el, d: dict) -> dict:

@@ -23,6 +23,8 @@ AXES = ("x", "y")
 DIRECTIONS = ("x", "y", "theta")
 DAMPING_MODELS = ("none", "modal", "rayleigh")
 EXCITATION_TYPES = ("speed", "band")
+#: Distributions a tolerance may name (see :class:`Tolerance`).
+TOLERANCE_DISTRIBUTIONS = ("uniform", "normal", "triangular")
 
 #: Most elements (masses, anchors, springs, dashpots, excitations together) a model may have:
 #: ten times the largest model the sparse solver is benchmarked on, small enough that a model
@@ -210,6 +212,56 @@ def _offset(owner: str, name: str, value) -> tuple[float, float]:
 
 
 @dataclass(frozen=True)
+class Tolerance:
+    """A manufacturing tolerance on one element's physical value, for a tolerance study.
+
+    ``percent`` (0 < percent < 100) is the bound: the value lies within nominal x (1 +- percent/100).
+    ``distribution`` says how values spread inside that bound:
+
+    - ``"uniform"``: every value in the bound equally likely;
+    - ``"triangular"``: symmetric, most likely at nominal, zero at the bounds;
+    - ``"normal"``: a normal distribution whose 3-sigma is the bound (sigma = percent / 3),
+      truncated at the bound, so a stiffness or mass never goes negative (a truncated normal
+      at +-3 sigma drops 0.27 % of the tail).
+
+    Which value it scatters: a spring's k (and k_t with the same factor), a dashpot's c, a
+    mass's mass (and a rigid body's inertia with the same factor).
+    """
+
+    percent: float
+    distribution: str = "uniform"
+
+    def __post_init__(self):
+        p = _finite("tolerance", "percent", self.percent, " in %")
+        if not 0 < p < 100:
+            raise ModelError(f"tolerance: percent must be above 0 and below 100 (the bound"
+                             f" +-percent of the nominal value), got {_fmt(p)} %", ("percent",))
+        _set(self, "percent", p)
+        if not isinstance(self.distribution, str) or \
+                self.distribution not in TOLERANCE_DISTRIBUTIONS:
+            raise ModelError(f"tolerance: distribution must be one of"
+                             f" {', '.join(TOLERANCE_DISTRIBUTIONS)}, got"
+                             f" {shown(self.distribution)}", ("distribution",))
+
+
+def _tolerance(owner: str, value) -> "Tolerance | None":
+    """None, or a :class:`Tolerance` (given as one or as a mapping with ``percent`` and an
+    optional ``distribution``); a refusal names the element."""
+    if value is None or isinstance(value, Tolerance):
+        return value
+    if not isinstance(value, Mapping) or "percent" not in value or \
+            set(value) - {"percent", "distribution"}:
+        raise ModelError(f'{owner}: tolerance must be {{"percent": p, "distribution":'
+                         f' "uniform" | "normal" | "triangular"}}, got {shown(value)}',
+                         ("tolerance",))
+    try:
+        return Tolerance(value["percent"], value.get("distribution", "uniform"))
+    except ModelError as exc:
+        text = str(exc).replace("tolerance: ", "tolerance ", 1)
+        raise ModelError(f"{owner}: {text}", ("tolerance",) + exc.path) from None
+
+
+@dataclass(frozen=True)
 class Mass:
     """A lumped mass (or, in a torsion model, a disc), or in a planar model a rigid body.
 
@@ -230,6 +282,7 @@ class Mass:
     label: str = ""
     fixed: tuple[str, ...] = ()
     inertia: float = 0.0
+    tolerance: Tolerance | None = None
 
     def __post_init__(self):
         _check_id("mass", self.id)
@@ -255,6 +308,8 @@ class Mass:
                 raise ModelError(f"{owner}: inertia = {_fmt(self.inertia)} kg m^2 needs a mass"
                                  " > 0 (a rigid body has both; a massless junction has neither)",
                                  ("inertia",))
+        if self.tolerance is not None:
+            _set(self, "tolerance", _tolerance(owner, self.tolerance))
 
     @property
     def is_body(self) -> bool:
@@ -301,6 +356,7 @@ class Spring:
     k_t: float = 0.0
     a_offset: tuple[float, float] = (0.0, 0.0)
     b_offset: tuple[float, float] = (0.0, 0.0)
+    tolerance: Tolerance | None = None
 
     def __post_init__(self):
         _check_id("spring", self.id)
@@ -314,6 +370,8 @@ class Spring:
                                       ranged=True, field="k_t"))
         _set(self, "a_offset", _offset(owner, "a_offset", self.a_offset))
         _set(self, "b_offset", _offset(owner, "b_offset", self.b_offset))
+        if self.tolerance is not None:
+            _set(self, "tolerance", _tolerance(owner, self.tolerance))
 
 
 @dataclass(frozen=True)
@@ -330,6 +388,7 @@ class Damper:
     label: str = ""
     a_offset: tuple[float, float] = (0.0, 0.0)
     b_offset: tuple[float, float] = (0.0, 0.0)
+    tolerance: Tolerance | None = None
 
     def __post_init__(self):
         _check_id("dashpot", self.id)
@@ -342,6 +401,8 @@ class Damper:
                                     ranged=True, field="c"))
         _set(self, "a_offset", _offset(owner, "a_offset", self.a_offset))
         _set(self, "b_offset", _offset(owner, "b_offset", self.b_offset))
+        if self.tolerance is not None:
+            _set(self, "tolerance", _tolerance(owner, self.tolerance))
 
 
 @dataclass(frozen=True)
@@ -901,5 +962,5 @@ def element_kind(el) -> str:
 
 
 __all__ = ["Model", "Mass", "Anchor", "Spring", "Damper", "Damping", "Excitation", "Initial",
-           "Gear",
+           "Gear", "Tolerance", "TOLERANCE_DISTRIBUTIONS",
            "KINDS", "AXES", "DIRECTIONS", "directions_for", "element_kind", "fields"]

@@ -72,12 +72,14 @@ RAW = [
 PY_VALUES = [0, -1, 1, 2.5, -0.0, True, False, None, "", " ", "x", "1.0", "m1", "A", "s1",
              "x" * 100_000, "\n", "a\r\nb", "é", "日本", [], [1], ["x", "x"], ["x", "q"], {},
              {"model": "modal"}, {"x": 1}, 10 ** 20, 10 ** 400, 1e-300, 1e300, "theta",
-             [0.1, -0.2], [0, 0], [1, "x"], [[0, 0]]]
+             [0.1, -0.2], [0, 0], [1, "x"], [[0, 0]], {"percent": 10}, "triangular",
+             {"percent": 99.9, "distribution": "normal"}]
 KEYS = ["format", "version", "name", "kind", "axis", "masses", "anchors", "springs", "dampers",
         "damping", "excitations", "margin_percent", "initial", "id", "label", "x", "y", "mass",
         "inertia", "fixed", "a", "b", "k", "k_t", "c", "model", "ratio", "alpha", "beta",
         "mode_ratios", "type", "rpm", "orders", "f_min_hz", "f_max_hz", "vx", "vy", "theta",
-        "vtheta", "gears", "a_offset", "b_offset", "k_mesh", "colour", "", "\n", "1", "0",
+        "vtheta", "gears", "a_offset", "b_offset", "k_mesh", "tolerance", "percent",
+        "distribution", "colour", "", "\n", "1", "0",
         "loads", "direction", "random", "asd", "shock", "shape", "peak_g", "duration_s",
         "rise_s", "fall_s", "spectrum", "abscissa", "points", "srs_q"]
 
@@ -366,6 +368,10 @@ def extreme_valid(rng: random.Random) -> str:
     anchors = [{"id": "g", "x": -1.0, "y": -0.5}]
     springs = [{"id": f"s{i}", "a": "g" if i == 0 else f"m{i - 1}", "b": f"m{i}",
                 "k": tiny_or_huge(), "label": rng.choice(ODD_TEXT)} for i in range(n)]
+    for el in masses + springs:   # tolerances at the edges of their range now and then
+        if rng.random() < 0.3:
+            el["tolerance"] = {"percent": rng.choice([5e-324, 1e-30, 20.0, 99.99999]),
+                               "distribution": rng.choice(["uniform", "normal", "triangular"])}
     ex = []
     for j in range(rng.randint(0, 3)):
         r = rng.random()

@@ -338,8 +338,16 @@ class PropertyPanel(QWidget):
             self.title.setText(f"{units.count(len(elements), *what)} selected")
 
     def _clear(self):
+        # rows are taken out and their widgets deleted later, not at once: the edit that
+        # rebuilds the form may still be running inside a signal of one of them (a Locked
+        # box's toggle), and deleting a widget inside its own signal is a use after free
         while self.form.rowCount():
-            self.form.removeRow(0)
+            row = self.form.takeRow(0)
+            for item in (row.labelItem, row.fieldItem):
+                w = item.widget() if item is not None else None
+                if w is not None:
+                    w.hide()
+                    w.deleteLater()
         self._fields.clear()
         self._widgets.clear()
 
@@ -404,6 +412,8 @@ class PropertyPanel(QWidget):
                 self._build_gear(model, el)
             else:
                 self.title.setText(f"{el.id}")
+            if isinstance(el, (Spring, Damper)) or (isinstance(el, Mass) and el.mass > 0):
+                self._build_tolerance([el])
 
     def _build_several(self, model, elements):
         """Fields every selected element has (all springs, all dashpots or all masses): a value
@@ -439,6 +449,7 @@ class PropertyPanel(QWidget):
                                lambda m, n=name: common(m, n),
                                lambda v, n=name, ids=tuple(ids):
                                    self.document.set_elements(ids, **{n: v}))
+        self._build_tolerance(elements)   # one tolerance for all of them, one undo step
 
     def _build_label(self, el):
         edit = QLineEdit()
@@ -474,13 +485,17 @@ class PropertyPanel(QWidget):
     def _build_mass(self, model, el):
         self._build_node_common(el, pair=el.inertia > 0)
         kind = _mass_kind(model)
-        self._add_quantity("mass", kind, "Inertia" if kind == "inertia" else "Mass",
-                           lambda m, i=el.id: m.element(i).mass,
-                           lambda v, i=el.id: self.document.set_element(i, mass=v))
+        body = el.inertia > 0   # a body's mass and inertia share a row (room for its tolerance)
+        mass_field = self._add_quantity("mass", kind, "Inertia" if kind == "inertia" else "Mass",
+                                        lambda m, i=el.id: m.element(i).mass,
+                                        lambda v, i=el.id: self.document.set_element(i, mass=v),
+                                        row=not body)
         if model.kind == "planar":
-            self._add_quantity("inertia", "inertia", "Inertia",
-                               lambda m, i=el.id: m.element(i).inertia,
-                               lambda v, i=el.id: self.document.set_element(i, inertia=v))
+            inertia_field = self._add_quantity(
+                "inertia", "inertia", "Inertia", lambda m, i=el.id: m.element(i).inertia,
+                lambda v, i=el.id: self.document.set_element(i, inertia=v), row=not body)
+            if body:
+                self._pair_row("Mass, inertia", mass_field, inertia_field)
             self.field("inertia").edit.setToolTip(
                 "Rotary inertia about the centre of mass; 0: a point mass, above 0: a rigid"
                 " body that turns (theta) and takes springs at mount points. "
@@ -676,3 +691,87 @@ class PropertyPanel(QWidget):
                     self._kind_error.setText(str(exc))
                     self._kind_error.show()
                 self.status_message.emit(f"Refused: {exc}")
+
+    # -- tolerance (issue 15): percent and distribution, one undo step per edit ----------------
+    def _build_tolerance(self, els):
+        """A ``Tolerance (±%)`` row for one element, or for several of one kind (the same
+        tolerance for all, one undo step): a percent (blank: none) and its distribution."""
+        from solver.model import TOLERANCE_DISTRIBUTIONS, Tolerance
+
+        percent = QLineEdit()
+        percent.setObjectName("field_tolerance_percent")
+        ids = tuple(e.id for e in els)
+        what = {Spring: "k (and k_t)", Damper: "c"}.get(type(els[0]), "the mass (and inertia)")
+        percent.setToolTip(f"Tolerance on {what} for a tolerance study: the value lies within"
+                           " +-this % of nominal (normal: this is the 3-sigma bound, truncated"
+                           " there); leave blank for none")
+        percent.setPlaceholderText("none")
+        dist = QComboBox()
+        dist.setObjectName("field_tolerance_distribution")
+        for d in TOLERANCE_DISTRIBUTIONS:
+            dist.addItem(d, d)
+        dist.setToolTip("How values spread inside the bound: uniform, normal (3-sigma at the"
+                        " bound, truncated) or triangular (most likely at nominal)")
+        error = QLabel()
+        error.setObjectName("tolerance_error")
+        error.setWordWrap(True)
+        error.setStyleSheet(f"color: {current_style().error.name()};")
+        error.hide()
+
+        def apply():
+            text = percent.text().replace("%", "").replace("±", "").replace("+-", "").strip()
+            try:
+                if not text:
+                    tol = None
+                else:
+                    try:
+                        value = float(text)
+                    except ValueError:
+                        raise ModelError(f'tolerance: give a number of %, e.g. 20; got'
+                                         f' "{percent.text()}"') from None
+                    tol = Tolerance(value, dist.currentData())
+                error.hide()   # before the edit: the model's change may rebuild this form
+                model = self.document.model
+                if any(model.element(i).tolerance != tol for i in ids):
+                    if len(ids) == 1:
+                        self.document.set_element(ids[0], tolerance=tol)
+                    else:
+                        self.document.set_elements(ids, tolerance=tol)
+            except ModelError as exc:
+                error.setText(str(exc))
+                error.show()
+                percent.setToolTip(str(exc))
+                self.status_message.emit(f"Refused: {exc}")
+
+        percent.editingFinished.connect(apply)
+        # activated: a user's choice only (a combo being destroyed changes its index too)
+        dist.activated.connect(lambda _i: percent.text().strip() and apply())
+        row = QWidget()
+        v = QVBoxLayout(row)
+        v.setContentsMargins(0, 0, 0, 0)
+        v.setSpacing(1)
+        h = QHBoxLayout()
+        h.setContentsMargins(0, 0, 0, 0)
+        h.addWidget(percent, 1)
+        h.addWidget(dist)
+        v.addLayout(h)
+        v.addWidget(error)   # the refusal in place, under the entry (no height while hidden)
+        self.form.addRow("Tolerance (±%)" if len(ids) == 1 else "Tolerance (±%, all)", row)
+        self._widgets["tolerance_percent"] = percent
+        self._widgets["tolerance_distribution"] = dist
+
+        def common(m):
+            tols = {m.element(i).tolerance for i in ids if i in m.ids()}
+            return tols.pop() if len(tols) == 1 else "differ"
+
+        def percent_text(m):
+            tol = common(m)
+            percent.setPlaceholderText("differ" if tol == "differ" else "none")
+            if tol == "differ" or tol is None:
+                return ""
+            return f"{tol.percent:g}"
+
+        self._text_getters["tolerance_percent"] = (percent, percent_text)
+        self._text_getters["tolerance_distribution"] = (
+            dist, lambda m: common(m).distribution if common(m) not in (None, "differ")
+            else "uniform")

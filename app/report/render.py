@@ -103,6 +103,11 @@ def render_report(model, analysis, path, dpi: int = 200, date: str | None = None
 
             pg.heading("Loads: random vibration, shock and design spectrum")
             paint_loads(pg, model)
+        from app.report.study import has_tolerances, paint_study
+
+        if has_tolerances(model):
+            pg.heading("Tolerance study")
+            paint_study(pg, model)
         pg.heading("Notes")
         _notes(pg, model, analysis, n_shown)
         pg.heading("Cautions")

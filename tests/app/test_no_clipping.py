@@ -50,6 +50,8 @@ def _states(window):
     return [("Tune tab", raise_dock("dock_tune")),
             ("Sensitivity tab", raise_dock("dock_sensitivity")),
             ("Response tab", raise_dock("dock_response")),
+            ("Study tab", raise_dock("dock_study")),
+            ("Absorber tab", raise_dock("dock_absorber")),
             ("Tune tab again", raise_dock("dock_tune")),
             ("free response", window.motion_panel.show_free_response),
             ("a mass selected", lambda: window.scene.select_ids([model.masses[0].id])),

@@ -225,6 +225,18 @@ CASES = {
                                ("loads.spectrum.points", ["at least 2"])),
     "loads-unknown-key": (minimal(loads={"random": {"asd": [[1, 1], [2, 1]]}, "seismic": {}}),
                           ("loads", ['unknown key "seismic"', "spectrum"])),
+    # ---- tolerances: percent strictly between 0 and 100, a known distribution
+    "tolerance-ok": (changed(set_(["springs", 0, "tolerance"],
+                                  {"percent": 20, "distribution": "normal"})), "solve"),
+    "tolerance-100-percent": (changed(set_(["springs", 0, "tolerance"], {"percent": 100})),
+                              ("springs[0].tolerance.percent", ['"s1"', "< 100"])),
+    "tolerance-negative": (changed(set_(["masses", 1, "tolerance"], {"percent": -5})),
+                           ("masses[1].tolerance.percent", ['"m2"', "> 0"])),
+    "tolerance-unknown-distribution": (
+        changed(set_(["springs", 1, "tolerance"], {"percent": 5, "distribution": "gauss"})),
+        ("springs[1].tolerance.distribution", ['"gauss"', '"uniform", "normal", "triangular"'])),
+    "tolerance-as-number": (changed(set_(["springs", 0, "tolerance"], 10)),
+                            ("springs[0].tolerance", ["object"])),
 }
 
 

@@ -521,6 +521,13 @@ _ID = _mostly(st.text(st.characters(blacklist_categories=("Cc", "Cf", "Cs", "Co"
               st.sampled_from([" m ", "Ø", "x" * 200, "\U0001F600"]),
               st.sampled_from(["\n", "a\tb", "x" * 201, " "]))
 _RANGED = st.one_of(st.just(0.0), st.floats(TINY, HUGE), st.sampled_from([TINY, HUGE]))
+# a tolerance or none; now and then one out of range (refused with a ModelError)
+_TOLERANCE = _mostly(st.one_of(st.none(), st.builds(
+                         dict, percent=st.floats(1e-300, 99.999),
+                         distribution=st.sampled_from(["uniform", "normal", "triangular"]))),
+                     st.sampled_from([{"percent": 5e-324}, {"percent": 99.99999999999999}]),
+                     st.sampled_from([{"percent": 100}, {"percent": 0.0},
+                                      {"percent": 5, "distribution": "Normal"}]))
 _COORD = st.one_of(st.floats(-HUGE, HUGE), st.sampled_from([-0.0, 1e-300, -HUGE]))
 
 
@@ -544,7 +551,8 @@ def any_models(draw):
     ids = draw(st.lists(_ID, min_size=2, max_size=7, unique=True))
     n_mass = draw(st.integers(1, len(ids) - 1))
     masses = [Mass(ids[i], draw(_COORD), draw(_COORD), draw(_RANGED), label=draw(_TEXT),
-                   fixed=tuple(draw(st.lists(st.sampled_from(["x", "y", "theta"]), unique=True))))
+                   fixed=tuple(draw(st.lists(st.sampled_from(["x", "y", "theta"]), unique=True))),
+                   tolerance=draw(_TOLERANCE))
               for i in range(n_mass)]
     anchors = [Anchor(ids[i], draw(_COORD), draw(_COORD), label=draw(_TEXT))
                for i in range(n_mass, len(ids) - 1)]
@@ -556,7 +564,7 @@ def any_models(draw):
                                                           st.sampled_from(nodes)))
         b = b or draw(st.sampled_from([n for n in nodes if n != a] or nodes))
         springs.append(Spring(f"{ids[-1]}{j}", a, b, draw(st.floats(TINY, HUGE)),
-                              k_t=draw(_RANGED), label=draw(_TEXT)))
+                              k_t=draw(_RANGED), label=draw(_TEXT), tolerance=draw(_TOLERANCE)))
     damping = draw(st.sampled_from([
         Damping(), Damping("modal", ratio=draw(st.floats(0, 10)),
                            mode_ratios=tuple(draw(st.dictionaries(
