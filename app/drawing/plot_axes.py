@@ -33,6 +33,12 @@ _GAP = 2
 _MIN_TITLE_PT = 7.0
 
 
+def _leading(log_value: float) -> int:
+    """The leading digit of 10 ** ``log_value`` (1..9)."""
+    mantissa = 10.0 ** (log_value - np.floor(log_value + 1e-9))
+    return int(round(mantissa)) if abs(mantissa - round(mantissa)) < 1e-6 else 0
+
+
 class TrueValueAxis(pg.AxisItem):
     """An axis whose tick labels are the plotted values themselves (no hidden scale factor).
 
@@ -49,7 +55,10 @@ class TrueValueAxis(pg.AxisItem):
 
     def tickStrings(self, values, scale, spacing):  # noqa: N802 (pyqtgraph's name)
         if self.logMode:
-            return [number(10.0 ** float(v), 3) for v in values]
+            # pyqtgraph ticks every 1..9 x 10^k on a short log axis: labelled all, the upper
+            # ones of a decade run into each other; 1, 2 and 5 are labelled, the rest are ticks
+            return [number(10.0 ** float(v), 3) if _leading(float(v)) in (1, 2, 5) else ""
+                    for v in values]
         return tick_texts([v * scale for v in values], spacing * scale)
 
     # -- room for the ticks and the title ----------------------------------------------------
