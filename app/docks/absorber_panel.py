@@ -10,17 +10,58 @@ current model and pushes one command that adds the mass, spring and dashpot.
 from __future__ import annotations
 
 import pyqtgraph as pg
-from PySide6.QtCore import QSignalBlocker, Qt, Signal
+from PySide6.QtCore import QObject, QRunnable, QSignalBlocker, Qt, QThreadPool, Signal
 from PySide6.QtWidgets import (QComboBox, QDoubleSpinBox, QHBoxLayout, QLabel, QPushButton,
                                QSizePolicy, QVBoxLayout, QWidget)
 
 from solver.errors import ModelError
 
+from app.docks.on_screen import on_screen
 from app.document import commands
 from app.drawing.plot_axes import true_value_axes
 from app.drawing.style import current_style
 from app.results.names import names
 from app.text.numbers import number
+
+
+#: Above this many DOFs a design is sized in the worker process (four frequency sweeps by
+#: direct solves: ~2 s at 200 DOFs), a worker thread waiting for it; the panel keeps the window
+#: live and shows "sizing…" meanwhile.
+PROCESS_DOF_LIMIT = 40
+
+
+def _size(model, mode, mass_id, ratio):
+    """(AbsorberDesign or None, error text); module-level for the worker process."""
+    from solver.absorber import size_absorber
+
+    try:
+        return size_absorber(model, mode, mass_id, ratio), ""
+    except ModelError as exc:
+        return None, str(exc)
+
+
+class _Relay(QObject):
+    done = Signal(int, object, str)
+
+
+class _SizeJob(QRunnable):
+    def __init__(self, generation, args, relay, latest):
+        super().__init__()
+        self.generation, self.args, self.relay, self.latest = generation, args, relay, latest
+        self.setAutoDelete(True)
+
+    def run(self):
+        if self.latest() != self.generation:
+            return        # overtaken by a newer edit while queued
+        from app.results import offload
+
+        try:
+            design, error = offload.run(_size, *self.args, lane="absorber")
+        except RuntimeError:      # the window is closing
+            return
+        except Exception as exc:  # a bug: said in the panel, never a dead worker
+            design, error = None, f"internal error: {exc!r}"
+        self.relay.done.emit(self.generation, design, error)
 
 
 class AbsorberPanel(QWidget):
@@ -33,6 +74,11 @@ class AbsorberPanel(QWidget):
         self.document = document
         self.design = None
         self._analysis = None
+        self._generation = 0
+        self._pool = QThreadPool(self)     # before the relay: destroyed first
+        self._pool.setMaxThreadCount(1)
+        self._relay = _Relay(self)
+        self._relay.done.connect(self._on_sized)
         self._build_ui()
         document.model_changed.connect(self._on_model_change)
         self._on_model_change(document.model)
@@ -129,7 +175,7 @@ class AbsorberPanel(QWidget):
             self.mode_combo.setCurrentIndex(j if j >= 0 else 0)
         # four frequency sweeps per design: done when the panel is seen, not on every edit
         self._due = True
-        if self.isVisible():
+        if on_screen(self):        # a tab behind another is "visible" to Qt, not on screen
             self.catch_up()
 
     def catch_up(self) -> None:
@@ -149,21 +195,48 @@ class AbsorberPanel(QWidget):
             self.mass_combo.setCurrentIndex(j if j >= 0 else 0)
 
     # -- design -------------------------------------------------------------------------------
-    def resize_design(self) -> None:
-        """Size the absorber for the current choices (shown, not added)."""
-        from solver.absorber import size_absorber
-
+    def resize_design(self, sync: bool = False) -> None:
+        """Size the absorber for the current choices (shown, not added); a large model in the
+        worker process unless ``sync``."""
         mode, mass_id = self.mode_combo.currentData(), self.mass_combo.currentData()
+        self._generation += 1
         self.design = None
         self.plot_item.clear()
         if mode is None or mass_id is None:
             self.design_label.setText("Pick a mode and the mass to protect.")
             self.add_button.setEnabled(False)
             return
-        try:
-            d = size_absorber(self.document.model, int(mode), mass_id, self.ratio_spin.value())
-        except ModelError as exc:
-            self.design_label.setText(str(exc))
+        model = self.document.model
+        args = (model, int(mode), mass_id, self.ratio_spin.value())
+        n_dir = len(model.directions)
+        dofs = sum(n_dir - len(m.fixed) for m in model.masses)
+        if not sync and dofs > PROCESS_DOF_LIMIT:
+            self.add_button.setEnabled(False)
+            self.design_label.setText("Sizing the absorber for the edited model…")
+            self._pool.start(_SizeJob(self._generation, args, self._relay,
+                                      lambda: self._generation))
+            return
+        self._show(*_size(*args))
+
+    def _on_sized(self, generation, design, error):
+        if generation == self._generation:
+            self._show(design, error)
+
+    def wait(self, msecs: int = 60000) -> bool:
+        """Block until no design is being sized (tests). True when idle."""
+        from PySide6.QtCore import QCoreApplication, QElapsedTimer
+
+        clock = QElapsedTimer()
+        clock.start()
+        while self._pool.activeThreadCount() and clock.elapsed() < msecs:
+            self._pool.waitForDone(20)
+            QCoreApplication.processEvents()
+        QCoreApplication.processEvents()
+        return not self._pool.activeThreadCount()
+
+    def _show(self, d, error: str) -> None:
+        if d is None:
+            self.design_label.setText(error)
             self.add_button.setEnabled(False)
             return
         self.design = d
@@ -174,7 +247,7 @@ class AbsorberPanel(QWidget):
         ku = "N m/rad" if torsion else "N/m"
         cu = "N m s/rad" if torsion else "N s/m"
         self.design_label.setText(
-            f"Modal mass at {names(model).get(mass_id, mass_id)} ({d.direction}):"
+            f"Modal mass at {names(model).get(d.mass_id, d.mass_id)} ({d.direction}):"
             f" {number(d.primary_mass)} {mu}. Absorber: mass {number(d.absorber_mass)} {mu},"
             f" spring {number(d.stiffness)} {ku}, dashpot {number(d.damping)} {cu}; tuned to"
             f" {d.absorber_hz:.4g} Hz (f = 1/(1+μ) = {d.tuning_ratio:.4g} of"
@@ -207,7 +280,7 @@ class AbsorberPanel(QWidget):
 
     def add_absorber(self) -> bool:
         """Size on the current model and add the absorber as one undo step."""
-        self.resize_design()
+        self.resize_design(sync=True)
         d = self.design
         if d is None:
             return False

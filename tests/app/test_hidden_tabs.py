@@ -150,3 +150,31 @@ def test_report_from_the_window_shows_the_current_models_response_when_the_tab_i
     resp = window.response_panel.response
     f_peak = resp.freqs_hz[int(np.argmax(resp.curves[0].magnitude))]
     assert f_peak == pytest.approx(expect * 1.5, rel=0.02)       # f_n ~ sqrt(k): x1.5
+
+
+def test_hidden_absorber_panel_sizes_only_when_shown(qtbot, window, monkeypatch):
+    """The Absorber tab behind another sizes nothing after an edit (four frequency sweeps a
+    design); clicking its tab sizes the edited model, and the design follows Den Hartog's
+    tuning on the one-mass oscillator: the modal mass is the mass itself and the absorber is
+    tuned to f_n / (1 + mu) with f_n = sqrt(k/m) / 2 pi (REFERENCES.md section 5; math)."""
+    import solver.absorber as absorber
+
+    window.document.new(model=_one_mass(k=4000.0, m=2.0))
+    _settle(qtbot, window)
+    _click_tab(qtbot, window, "Absorber")
+    panel = window.absorber_panel
+    assert panel.wait() and panel.design is not None
+    _click_tab(qtbot, window, "Response")
+    assert not on_screen(panel)
+    calls = []
+    real = absorber.size_absorber
+    monkeypatch.setattr(absorber, "size_absorber", lambda *a, **k: calls.append(a) or real(*a, **k))
+    window.document.set_element("s1", k=9000.0)
+    _settle(qtbot, window)
+    assert calls == []
+    _click_tab(qtbot, window, "Absorber")
+    assert panel.wait() and calls and calls[-1][0].element("s1").k == 9000.0
+    d = panel.design
+    assert d.primary_mass == pytest.approx(2.0, rel=1e-9)
+    mu = d.mass_ratio
+    assert d.absorber_hz == pytest.approx(_f_hz(9000.0, 2.0) / (1 + mu), rel=1e-9)
