@@ -24,7 +24,8 @@ def paint_margin_table(pg, model, analysis, max_modes: int = MAX_REPORTED_MODES)
     table = margin_table(model, analysis.modal)
     all_rows = margin_rows.cells(model, table)
     rows = [r for r in all_rows if r.mode <= max_modes][:MAX_ROWS]
-    pg.paragraph(margin_rows.summary(model, table), 8.5, st.ink if table.ok else st.error)
+    if not table.ok:      # when every mode clears, the margin check above has just said so
+        pg.paragraph(margin_rows.summary(model, table), 8.5, st.error)
     if not rows:
         return
     header = margin_rows.HEADERS
