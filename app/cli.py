@@ -342,6 +342,26 @@ def _finite_json(value):
     return value
 
 
+def _print_text(text: str) -> int:
+    """Print a command's output; exit status 0."""
+    try:
+        print(text)
+        sys.stdout.flush()
+    except BrokenPipeError:   # `springwright solve FILE | head`: the reader has what it wanted
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+    return 0
+
+
+def _internal_error(exc, where: str) -> int:
+    """A bug, not the user's input: one line, the details on request (exit 1)."""
+    if os.environ.get("SPRINGWRIGHT_DEBUG"):
+        raise exc
+    from solver.errors import shown
+
+    return _fail(f"internal error {where}: {type(exc).__name__}: {shown(str(exc), 200)} (set"
+                 " SPRINGWRIGHT_DEBUG=1 for the traceback; please report it)", code=1)
+
+
 def cmd_solve(args) -> int:
     from solver import ModelError, analyse
 
@@ -358,12 +378,7 @@ def cmd_solve(args) -> int:
         text = json.dumps(solve_json(analysis), indent=None if big else 2, allow_nan=False)
     else:
         text = solve_table(analysis)
-    try:
-        print(text)
-        sys.stdout.flush()
-    except BrokenPipeError:   # `springwright solve FILE | head`: the reader has what it wanted
-        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
-    return 0
+    return _print_text(text)
 
 
 def cmd_report(args) -> int:
@@ -416,12 +431,7 @@ def cmd_loads(args) -> int:
         text = json.dumps(_finite_json(load_json(model, results)), indent=2, allow_nan=False)
     else:
         text = _lines_text(load_text_lines(model, results))
-    try:
-        print(text)
-        sys.stdout.flush()
-    except BrokenPipeError:
-        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
-    return 0
+    return _print_text(text)
 
 
 def cmd_study(argv) -> int:
@@ -459,12 +469,7 @@ def cmd_study(argv) -> int:
         text = json.dumps(_finite_json(study_json(result)), indent=2, allow_nan=False)
     else:
         text = _lines_text(study_text(result).splitlines())
-    try:
-        print(text)
-        sys.stdout.flush()
-    except BrokenPipeError:
-        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
-    return 0
+    return _print_text(text)
 
 
 def main(argv=None) -> int:
@@ -473,13 +478,7 @@ def main(argv=None) -> int:
         try:
             return cmd_study(argv)
         except Exception as exc:   # a bug, not the user's input
-            if os.environ.get("SPRINGWRIGHT_DEBUG"):
-                raise
-            from solver.errors import shown
-
-            return _fail(f"internal error in study: {type(exc).__name__}:"
-                         f" {shown(str(exc), 200)} (set SPRINGWRIGHT_DEBUG=1 for the traceback;"
-                         " please report it)", code=1)
+            return _internal_error(exc, "in study")
     if argv and argv[0] in ("solve", "report", "loads"):
         parser = _Parser(prog="springwright", description="Lumped spring-mass vibration tool")
         sub = parser.add_subparsers(dest="command", required=True)
@@ -497,14 +496,8 @@ def main(argv=None) -> int:
         try:
             return {"solve": cmd_solve, "report": cmd_report,
                     "loads": cmd_loads}[args.command](args)
-        except Exception as exc:   # a bug, not the user's input: one line, the details on request
-            if os.environ.get("SPRINGWRIGHT_DEBUG"):
-                raise
-            from solver.errors import shown
-
-            return _fail(f"internal error on {args.file}: {type(exc).__name__}:"
-                         f" {shown(str(exc), 200)} (set SPRINGWRIGHT_DEBUG=1 for the traceback;"
-                         " please report it)", code=1)
+        except Exception as exc:   # a bug, not the user's input
+            return _internal_error(exc, f"on {args.file}")
     parser = _Parser(prog="springwright",
                      description="Open the Springwright desktop program (on a built-in example"
                                  " when no FILE is given). Also: springwright solve FILE [--json],"
