@@ -21,6 +21,7 @@ from app.document import commands
 from app.drawing.plot_axes import true_value_axes
 from app.drawing.style import current_style
 from app.results.names import names
+from app.results.offload import dof_count
 from app.text.numbers import number
 
 
@@ -208,9 +209,7 @@ class AbsorberPanel(QWidget):
             return
         model = self.document.model
         args = (model, int(mode), mass_id, self.ratio_spin.value())
-        n_dir = len(model.directions)
-        dofs = sum(n_dir - len(m.fixed) for m in model.masses)
-        if not sync and dofs > PROCESS_DOF_LIMIT:
+        if not sync and dof_count(model) > PROCESS_DOF_LIMIT:
             self.add_button.setEnabled(False)
             self.design_label.setText("Sizing the absorber for the edited model…")
             self._pool.start(_SizeJob(self._generation, args, self._relay,

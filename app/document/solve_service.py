@@ -30,6 +30,7 @@ from collections import OrderedDict
 from PySide6.QtCore import QObject, QRunnable, QThreadPool, QTimer, Signal
 
 from solver.errors import ModelError
+from app.results.offload import dof_count
 
 #: Above this many degrees of freedom the solve runs in the worker process (a dense solve of
 #: this size takes ~10-30 ms on a loaded machine; beyond it the UI thread would stall visibly).
@@ -49,10 +50,6 @@ def analyse(model):
     return offload.analyse(model)
 
 
-def dof_count(model) -> int:
-    """Upper estimate of the DOFs of a model (unlocked directions of every mass)."""
-    n_dir = len(model.directions)
-    return sum(n_dir - len(m.fixed) for m in model.masses)
 
 
 class _Relay(QObject):

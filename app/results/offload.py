@@ -111,7 +111,7 @@ def analyse(model):
     from solver.analysis import Analysis
     from solver.metrics import energy_fractions, sensitivities
 
-    if _dofs(model) <= FULL_SPECTRUM_DOF:
+    if dof_count(model) <= FULL_SPECTRUM_DOF:
         return solver.analyse(model)
     system = solver.assemble(model)
     count, cover = mode_count(system)
@@ -135,12 +135,13 @@ def sweep_point(model, element_id: str, value: float, field: str):
     :data:`FULL_SPECTRUM_DOF` DOFs, as the window's analysis."""
     import solver
 
-    count = LOWEST_MODES if _dofs(model) > FULL_SPECTRUM_DOF else None
+    count = LOWEST_MODES if dof_count(model) > FULL_SPECTRUM_DOF else None
     return solver.sweep(model, element_id, [value], field=field,
                         count=count).frequencies_hz[0]
 
 
-def _dofs(model) -> int:
+def dof_count(model) -> int:
+    """Upper estimate of the DOFs of a model (unlocked directions of every mass)."""
     n_dir = len(model.directions)
     return sum(n_dir - len(m.fixed) for m in model.masses)
 
