@@ -194,16 +194,16 @@ def test_a_long_axis_title_wraps_to_fit_a_short_axis(qtbot):
     plot.resize(400, 120)
     plot.show()
     qtbot.waitExposed(plot)
-    qtbot.wait(100)
     ax = plot.getAxis("left")
+    # the axis learns its tick labels' width when it first draws them and widens on the next
+    # layout pass (pyqtgraph's order); on a slow machine that pass can come after 100 ms
+    qtbot.waitUntil(lambda: not _axis_problems("plot", ax), timeout=3000)
     one_line = QFontMetrics(ax.label.font()).horizontalAdvance(ax.labelText)
     assert one_line > ax.height()
-    assert not _axis_problems("plot", ax)
     assert "<br>" in ax.labelString()
     plot.resize(400, 500)
-    qtbot.wait(100)
-    assert "<br>" not in ax.labelString()
-    assert not _axis_problems("plot", ax)
+    qtbot.waitUntil(lambda: "<br>" not in ax.labelString(), timeout=3000)
+    qtbot.waitUntil(lambda: not _axis_problems("plot", ax), timeout=3000)
 
 
 # -- 2. the motion view's caption: whole, never elided ---------------------------------------------
