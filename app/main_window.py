@@ -228,6 +228,7 @@ class MainWindow(QMainWindow):
         # after every panel's own handler: it clears what the panels show of the last model and
         # then hands them the new model's results if they are already in
         self.document.opened.connect(self._on_opened)
+        self._opened_wired = True
         self.setAcceptDrops(True)
         self.recovery = Recovery(self.document, self.settings, folder=recovery_folder, parent=self)
         self.recovery.status_message.connect(lambda m: self.statusBar().showMessage(m, 12000))
@@ -242,6 +243,7 @@ class MainWindow(QMainWindow):
             self.restoreState(state)
         else:
             self._first_layout_due = True    # on the first show: the window has its real size
+            self._first_layout_pending = True
         self._update_title()
         self._on_mode_change(self.scene.mode)
         # last: a small model's edit is then solved after every view has taken the new model,
@@ -273,6 +275,9 @@ class MainWindow(QMainWindow):
         # and left whichever tab Qt put in front. A saved layout brings back the user's tab.
         if "dock_tune" in docks:
             docks["dock_tune"].raise_()
+        self._first_layout_pending = False
+        for name in list(getattr(self, "_builders", {})):
+            self._build_if_shown(name)
         QTimer.singleShot(0, self.view.fit)   # the canvas has its final size now
 
     def _widen_modes(self, want: int) -> None:
@@ -513,60 +518,140 @@ class MainWindow(QMainWindow):
     def _add_source_panels(self):
         """Sources (editor and margin table) tabbed with Tune; the interference diagram tabbed
         with Response. Both follow the solve service's results; each clears itself when another
-        model is opened."""
-        from app.docks.interference_panel import InterferencePanel
-        from app.docks.sources_panel import SourcesPanel
-
-        self.sources_panel = SourcesPanel(self.document)
-        self.sources_panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
-        sources_dock = self._dock("Sources", self.sources_panel, Qt.BottomDockWidgetArea,
-                                  "dock_sources")
-        self.tabifyDockWidget(self.findChild(QDockWidget, "dock_sensitivity"), sources_dock)
-        self.interference_panel = InterferencePanel(self.document)
-        diagram_dock = self._dock("Interference diagram", self.interference_panel,
-                                  Qt.BottomDockWidgetArea, "dock_interference")
-        self.tabifyDockWidget(self.response_dock, diagram_dock)
-        self.solver.results_ready.connect(self.sources_panel.set_analysis)
-        self.solver.results_ready.connect(self.interference_panel.set_analysis)
-        self.solver.live_changed.connect(self.interference_panel.set_live)
+        model is opened. Both are built when their tab is first shown (see :meth:`_lazy_dock`)."""
+        self._lazy_dock("Sources", "dock_sources", self._build_sources,
+                        self.findChild(QDockWidget, "dock_sensitivity"))
+        self._lazy_dock("Interference diagram", "dock_interference", self._build_interference,
+                        self.response_dock)
         # a panel behind another tab does no work on an edit; its tab shown, it catches up
         for name, panel in (("dock_tune", self.tune_panel), ("dock_response", self.response_panel),
-                            ("dock_sensitivity", self.sensitivity_table),
-                            ("dock_sources", self.sources_panel),
-                            ("dock_interference", self.interference_panel)):
+                            ("dock_sensitivity", self.sensitivity_table)):
             self.findChild(QDockWidget, name).visibilityChanged.connect(
                 lambda shown, p=panel: shown and p.catch_up())
+
+    def _build_sources(self):
+        from app.docks.sources_panel import SourcesPanel
+
+        panel = SourcesPanel(self.document)
+        panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+        self.solver.results_ready.connect(panel.set_analysis)
+        return panel
+
+    def _build_interference(self):
+        from app.docks.interference_panel import InterferencePanel
+
+        panel = InterferencePanel(self.document)
+        self.solver.results_ready.connect(panel.set_analysis)
+        self.solver.live_changed.connect(panel.set_live)
+        panel.set_live(self.solver.live)
+        return panel
 
     def _add_loads_panel(self):
         """Loads (random vibration, shock, design spectrum), tabbed with Response; it computes
         only when shown and clears itself when another model is opened."""
+        self._lazy_dock("Loads", "dock_loads", self._build_loads,
+                        self.findChild(QDockWidget, "dock_interference"))
+
+    def _build_loads(self):
         from app.docks.loads_panel import LoadsPanel
 
-        self.loads_panel = LoadsPanel(self.document)
-        self.loads_panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
-        dock = self._dock("Loads", self.loads_panel, Qt.BottomDockWidgetArea, "dock_loads")
-        self.tabifyDockWidget(self.findChild(QDockWidget, "dock_interference"), dock)
-        dock.visibilityChanged.connect(lambda shown: shown and self.loads_panel.catch_up())
-        self.document.opened.connect(self.loads_panel.reset)
+        panel = LoadsPanel(self.document)
+        panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+        self.document.opened.connect(panel.reset)
+        return panel
 
     def _add_study_panels(self):
         """Study (tolerance scatter) and Absorber (tuned absorber assistant), tabbed with the
         Response plots."""
-        from app.docks.absorber_panel import AbsorberPanel
+        self._lazy_dock("Study", "dock_study", self._build_study,
+                        self.findChild(QDockWidget, "dock_loads"))
+        self._lazy_dock("Absorber", "dock_absorber", self._build_absorber,
+                        self.findChild(QDockWidget, "dock_study"))
+
+    def _build_study(self):
         from app.docks.study_panel import StudyPanel
 
-        self.study_panel = StudyPanel(self.document)
-        self.absorber_panel = AbsorberPanel(self.document)
-        last = self.findChild(QDockWidget, "dock_interference") or self.response_dock
-        for title, panel, name in (("Study", self.study_panel, "dock_study"),
-                                   ("Absorber", self.absorber_panel, "dock_absorber")):
-            panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
-            dock = self._dock(title, panel, Qt.BottomDockWidgetArea, name)
-            self.tabifyDockWidget(last, dock)
-            last = dock
-        self.solver.results_ready.connect(self.absorber_panel.set_analysis)
-        self.findChild(QDockWidget, "dock_absorber").visibilityChanged.connect(
-            lambda shown: shown and self.absorber_panel.catch_up())
+        panel = StudyPanel(self.document)
+        panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+        return panel
+
+    def _build_absorber(self):
+        from app.docks.absorber_panel import AbsorberPanel
+
+        panel = AbsorberPanel(self.document)
+        panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+        self.solver.results_ready.connect(panel.set_analysis)
+        return panel
+
+    # -- panels built on first show ------------------------------------------------------------
+    # Behind their tabs at the start, these panels cost the first paint a third of the window's
+    # construction (their plots, tables and imports); each is built the first time its tab is
+    # shown, or when the program asks for it (``window.loads_panel``), and is then the same
+    # panel it would have been from the start: wired to the document and the solve service,
+    # handed the current results.
+    sources_panel = property(lambda self: self._panel("dock_sources"))
+    interference_panel = property(lambda self: self._panel("dock_interference"))
+    loads_panel = property(lambda self: self._panel("dock_loads"))
+    study_panel = property(lambda self: self._panel("dock_study"))
+    absorber_panel = property(lambda self: self._panel("dock_absorber"))
+
+    def _lazy_dock(self, title, name, build, tab_with) -> QDockWidget:
+        """A dock tabbed with ``tab_with`` whose panel ``build()`` makes on its first showing."""
+        if not hasattr(self, "_builders"):
+            self._builders, self._panels = {}, {}
+        placeholder = QWidget()
+        placeholder.setObjectName(f"{name}_placeholder")
+        dock = self._dock(title, placeholder, Qt.BottomDockWidgetArea, name)
+        if tab_with is not None:
+            self.tabifyDockWidget(tab_with, dock)
+        self._builders[name] = build
+        # Qt reports a tab "shown" while the window lays out its tab group (the last tab added
+        # is in front until the first layout raises Tune): the build waits for the event loop
+        # and happens only if the tab is still on screen then
+        dock.visibilityChanged.connect(
+            lambda shown: shown and QTimer.singleShot(0, lambda: self._build_if_shown(name)))
+        return dock
+
+    def _build_if_shown(self, name: str) -> None:
+        from app.docks.on_screen import on_screen
+
+        dock = self.findChild(QDockWidget, name)
+        if dock is None:
+            return
+        if name in self._builders:
+            # before the first layout the front tab is not yet the one the user will see
+            if not on_screen(dock.widget()) or getattr(self, "_first_layout_pending", False):
+                return
+            self._panel(name)
+        catch_up = getattr(self._panels[name], "catch_up", None)
+        if catch_up is not None:
+            catch_up()
+
+    def _panel(self, name: str):
+        """The panel of dock ``name``, built now if it has not been."""
+        build = self._builders.pop(name, None)
+        if build is None:
+            return self._panels[name]
+        panel = build()
+        self._panels[name] = panel
+        dock = self.findChild(QDockWidget, name)
+        placeholder = dock.widget()
+        dock.setWidget(panel)
+        if placeholder is not None:
+            placeholder.deleteLater()
+        # the window's own handler of another model stays the last one (see __init__)
+        if getattr(self, "_opened_wired", False):
+            self.document.opened.disconnect(self._on_opened)
+            self.document.opened.connect(self._on_opened)
+        analysis = self.solver.last_analysis
+        if analysis is not None and analysis.model is self.document.model and \
+                hasattr(panel, "set_analysis"):
+            panel.set_analysis(analysis)
+        return panel
+
+    def built_panels(self) -> list:
+        """The panels built on first show that have been built (for shutdown and tests)."""
+        return list(getattr(self, "_panels", {}).values())
 
     def show_guide(self):
         """A non-modal window with the tools, their keys, the main loop and the cautions."""
@@ -929,9 +1014,9 @@ class MainWindow(QMainWindow):
         offload.shutdown()          # first: a worker thread waiting on it returns at once
         self.solver.shutdown()
         self.response_panel.shutdown()
-        if hasattr(self, "loads_panel"):
-            self.loads_panel.shutdown()
         self.tune_panel.shutdown()
-        self.study_panel.shutdown()
+        for panel in self.built_panels():
+            if hasattr(panel, "shutdown"):
+                panel.shutdown()
         self.recovery.mark_clean_exit()
         event.accept()

@@ -44,7 +44,6 @@ from dataclasses import dataclass, replace
 import numpy as np
 import scipy.linalg
 import scipy.sparse as sp
-from scipy.optimize import brentq
 
 from . import factor
 from .assemble import assemble
@@ -661,6 +660,8 @@ def retune_result(model: Model, element_id: str, mode: int, target_hz: float,
         # log f against log value is nearly straight (f ~ sqrt(k) for a spring that governs
         # the mode), so Brent's interpolation lands in a few steps
         return math.log(max(fu, 1e-300) / target) if fu is not None else math.nan
+
+    from scipy.optimize import brentq   # ~0.3 s to import: only when a retune needs it
 
     try:
         root = brentq(g, min(bracket), max(bracket), xtol=1e-13, rtol=4 * np.finfo(float).eps,

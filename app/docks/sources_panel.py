@@ -246,7 +246,11 @@ class SourcesPanel(QWidget):
 
         document.model_changed.connect(self._on_model_change)
         document.opened.connect(self._on_opened)
-        self._on_model_change(document.model)
+        # made on a model already open (the window builds this panel when its tab is first
+        # shown): its first source is ready to edit, as after opening it
+        model = document.model
+        self.current_id = model.excitations[0].id if model.excitations else None
+        self._on_model_change(model)
 
     # -- public -------------------------------------------------------------------------------
     def field(self, name: str) -> QWidget:
