@@ -19,7 +19,7 @@ from solver.errors import ModelError
 from app.docks.on_screen import on_screen
 from app.document import commands
 from app.drawing.plot_axes import true_value_axes
-from app.drawing.style import current_style
+from app.drawing.style import CURVE_WIDTH, current_style
 from app.results.names import names
 from app.results.offload import dof_count
 from app.text.numbers import number
@@ -268,8 +268,8 @@ class AbsorberPanel(QWidget):
         pi.setLabel("left", f"receptance at the protected mass ({unit})")
         f = d.freqs_hz
         for y, name, pen in (
-                (d.before, "without absorber", pg.mkPen(st.ink_soft, width=1.5)),
-                (d.after, "with absorber", pg.mkPen(st.accent, width=2)),
+                (d.before, "without absorber", pg.mkPen(st.ink_soft, width=CURVE_WIDTH)),
+                (d.after, "with absorber", pg.mkPen(st.accent, width=CURVE_WIDTH)),
                 (d.after_low, "absorber 5 % low", pg.mkPen(st.warning, width=1,
                                                             style=Qt.PenStyle.DashLine)),
                 (d.after_high, "absorber 5 % high", pg.mkPen(st.error, width=1,

@@ -36,7 +36,7 @@ from app.drawing.plot_axes import true_value_axes
 from app.drawing.sketch import (SketchLayout, can_paint_fast, fit_scale, paint_deformed_layer,
                                 paint_labels_layer, paint_moving_layer, paint_sketch,
                                 paint_static_layer)
-from app.drawing.style import current_style
+from app.drawing.style import CURVE_WIDTH, current_style
 from app.text.numbers import hz
 
 #: One press of Step advances the animation by 1/FPS s (of animation time).
@@ -905,7 +905,7 @@ class MotionPanel(QWidget):
             colours[dof] = st.trace(k)
             scale = 1.0 if dof[1] == "theta" and not torsion else factor
             curve = self.plot.plot(table.times, table.x[:, j] / scale,
-                                   pen=pg.mkPen(st.trace(k), width=1.5),
+                                   pen=pg.mkPen(st.trace(k), width=CURVE_WIDTH),
                                    name=f"{self._model.node(dof[0]).label} {dof[1]}")
             # drawn once into a pixmap: the time cursor moves every frame and would otherwise
             # restroke thousands of samples under it

@@ -37,7 +37,7 @@ from app.docks.on_screen import behind_tab
 from app.results import response_data as rd
 from app.results.names import dof_name, names
 from app.drawing.plot_axes import log_ticks, true_value_axes
-from app.drawing.style import current_style
+from app.drawing.style import CURVE_WIDTH, current_style
 from app.text.numbers import FREQ_SIG, hz, number
 
 DEBOUNCE_MS = 80
@@ -768,7 +768,7 @@ class ResponsePanel(QWidget):
                     line.setZValue(-10)
                     p.addItem(line)
         for i, c in enumerate(resp.curves):
-            pen = pg.mkPen(st.trace(i), width=2)
+            pen = pg.mkPen(st.trace(i), width=CURVE_WIDTH)
             mag = c.magnitude / factor
             mag = np.where(mag > 0, mag, np.nan)  # log axis: a true zero has no place on it
             item = self.mag_plot.plot([], [], pen=pen, name=c.label, connect="finite")

@@ -42,7 +42,7 @@ from solver.model import Mass, Spring
 from app.docks.on_screen import behind_tab
 from app.drawing.plot_axes import log_ticks, true_value_axes
 from app.document.solve_service import dof_count
-from app.drawing.style import current_style
+from app.drawing.style import CURVE_WIDTH, current_style
 from app.results.names import names
 from app.results.source_text import order_frequencies, speed_text
 from app.results.verdicts import all_clear, verdicts
@@ -927,7 +927,7 @@ class TunePanel(QWidget):
             pi = self.plot.getPlotItem()
             for item in self._sweep_curves:
                 pi.removeItem(item)
-            pen = pg.mkPen(st.ink, width=1.4)
+            pen = pg.mkPen(st.ink, width=CURVE_WIDTH)
             self._sweep_curves = [pi.plot([], [], pen=pen, connect="finite") for _g in groups]
             for item in self._sweep_curves:
                 item.setZValue(-1)      # over bands and their labels, under markers and cursor

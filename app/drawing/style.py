@@ -21,6 +21,12 @@ from dataclasses import dataclass
 
 from PySide6.QtGui import QColor, QGuiApplication, QPalette
 
+#: Pen width (px) of the plots' data curves (sweeps, response, loads, absorber). Qt draws an
+#: antialiased line one pixel wide on its fast path and a wider one through its general stroker,
+#: 10-50x slower (``bench/plot_paint_bench.py``), and an edit repaints every curve shown: curves
+#: are told apart by colour and dash, not by width. Short items (cursors, band edges) may be wider.
+CURVE_WIDTH = 1.0
+
 
 def _c(hex_rgb: str, alpha: int = 255) -> QColor:
     c = QColor(hex_rgb)
