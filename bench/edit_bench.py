@@ -175,6 +175,7 @@ def main(argv=None):
         time_edits(win, model, args.repeats or 5)
         prof.disable()
         pstats.Stats(prof).sort_stats("cumulative").print_stats(35)
+        pstats.Stats(prof).sort_stats("tottime").print_stats(25)
         win.solver.shutdown()
         return
 

@@ -19,6 +19,8 @@ from app.results.mode_rows import (_modal, mode_table_cells, mode_table_csv, mod
 MIN_NOTES = 120
 #: Narrowest the notes column gets when the number columns leave less than MIN_NOTES (px).
 NOTES_FLOOR = 40
+#: At most this many of a column's longest cells are measured when the columns are fitted.
+MEASURED_ROWS = 24
 
 
 def _two_lines(text: str) -> str:
@@ -41,6 +43,7 @@ class _ModesModel(QAbstractTableModel):
         self._cells: list[list[str]] = []
         self._header: list[str] = mode_table_header(None)
         self.stale = False
+        self._style = None
 
     def set_analysis(self, analysis) -> bool:
         """Take new results; True when the table kept its shape (updated in place, the view's
@@ -49,6 +52,7 @@ class _ModesModel(QAbstractTableModel):
         cells = mode_table_cells(analysis, rows)
         header = mode_table_header(analysis)
         self._analysis = analysis
+        self._style = current_style()      # data() asks for colours per cell and role
         if cells and len(cells) == len(self._cells) and header == self._header:
             # same modes and columns (a slider step, a property edit): new values only
             self._rows, self._cells = rows, cells
@@ -61,6 +65,7 @@ class _ModesModel(QAbstractTableModel):
 
     def set_stale(self, stale: bool):
         self.stale = bool(stale)
+        self._style = current_style()
         if self._cells:
             self.dataChanged.emit(self.index(0, 0),
                                   self.index(len(self._cells) - 1, len(self._header) - 1))
@@ -97,7 +102,7 @@ class _ModesModel(QAbstractTableModel):
                 return int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter)
             return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
         if role == Qt.ItemDataRole.ForegroundRole:
-            st = current_style()
+            st = self._style or current_style()
             if self.stale:
                 return st.undeformed
             if row["near_excitation"] and c in (0, 1, last):
@@ -107,7 +112,7 @@ class _ModesModel(QAbstractTableModel):
             return None
         if role == Qt.ItemDataRole.BackgroundRole and row["near_excitation"] and not self.stale:
             # the whole row is tinted, so a conflict shows even with the notes scrolled away
-            tint = QColor(current_style().warning)
+            tint = QColor((self._style or current_style()).warning)
             tint.setAlpha(38)
             return tint
         if role == Qt.ItemDataRole.UserRole:
@@ -237,7 +242,9 @@ class ModesTable(QWidget):
     # -- internals ---------------------------------------------------------------------------
     def _fit_columns(self, in_place: bool):
         cells, header = self._model._cells, self._model._header
-        chars = [max([len(header[c])] + [len(r[c]) for r in cells]) for c in range(len(header))]
+        # the cells' lengths alone: a heading longer than its numbers (``Period (s)``, shown on
+        # two lines) hid numbers that grew longer and were then cut
+        chars = [max([0] + [len(r[c]) for r in cells]) for c in range(len(header))]
         if not in_place:
             # the notes (zero-frequency causes, conflicts) read right after the period, before
             # the effective-mass columns, so a narrow dock still shows them (display order only)
@@ -254,10 +261,25 @@ class ModesTable(QWidget):
 
     def _measure_numbers(self):
         """Each number column as wide as its widest cell or header line, in the table's own
-        font (the widths follow the fonts of the desktop it runs on)."""
+        font (the widths follow the fonts of the desktop it runs on).
+
+        Qt's resizeColumnToContents asks every row of every column for its text and size (200
+        modes: ~15 ms an edit); the widest cell is among the longest texts (digits are of one
+        width in UI fonts), so only the rows whose text is at most one character shorter than
+        the longest are measured, as Qt measures them (the delegate's size hint)."""
+        cells = self._model._cells
         notes = len(self._model._header) - 1
+        hdr = self.view.horizontalHeader()
         for c in range(notes):
-            self.view.resizeColumnToContents(c)
+            lengths = [len(r[c]) for r in cells]
+            top = max(lengths, default=0)
+            rows = [i for i, n in enumerate(lengths) if n >= top - 1][:MEASURED_ROWS]
+            cell = max([self.view.sizeHintForIndex(self._model.index(i, c)).width()
+                        for i in rows], default=0)
+            # QTableView adds a pixel for the grid line
+            want = max(cell + (1 if self.view.showGrid() else 0), hdr.sectionSizeHint(c))
+            if hdr.sectionSize(c) != want:
+                hdr.resizeSection(c, want)
 
     def _share_width(self):
         """The notes take exactly the width the number columns leave (at least

@@ -94,3 +94,28 @@ def test_clipboard_is_tab_separated(qtbot):
     assert len(lines) == 1 + a.modal.n_modes
     assert lines[0].split("\t")[:2] == ["mode", "frequency_hz"]
     assert text == mode_table_csv(a, delimiter="\t")
+
+
+@pytest.mark.parametrize("n", [3, 60, 200])
+def test_number_columns_fit_every_row_as_qt_measures_them(qtbot, n):
+    """The number columns are fitted from their longest texts only (speed); each is still at
+    least as wide as Qt's own measure of every row (QTableView.sizeHintForColumn: nothing cut
+    or elided, common practice), on a chain whose numbers differ in length from row to row, and
+    again after an edit made some numbers longer."""
+    table = ModesTable()
+    qtbot.addWidget(table)
+    table.resize(900, 400)
+    table.show()
+    qtbot.waitExposed(table)
+    import dataclasses
+
+    model = chain(n)
+    stiffer = dataclasses.replace(model, springs=tuple(
+        dataclasses.replace(sp, k=sp.k * (1.2345e3 if i % 3 else 1.0))
+        for i, sp in enumerate(model.springs)))
+    for m in (model, stiffer):
+        table.set_analysis(solver.analyse(m))
+        view, hdr = table.view, table.view.horizontalHeader()
+        notes = table._model.columnCount() - 1
+        for c in range(notes):
+            assert hdr.sectionSize(c) >= max(view.sizeHintForColumn(c), hdr.sectionSizeHint(c)), c
