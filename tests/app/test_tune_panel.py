@@ -299,3 +299,49 @@ def test_overlapping_bands_share_one_label(qtbot, window, two_mass_model):
     f = [o * 1450.0 / 60.0 for o in (1.0, 1.875, 2.0)]
     assert [t for _y, t in found] == ["Motor speed ×1", "Motor speed ×1.875, ×2"]
     assert [y for y, _t in found] == pytest.approx([f[0] * 1.15, f[2] * 1.15], rel=1e-9)
+
+
+def _sweep_model():
+    masses = tuple(Mass(f"m{i}", float(i), 0.0, 1.0 + 0.1 * i) for i in range(1, 6))
+    ids = ["g"] + [m.id for m in masses]
+    springs = tuple(Spring(f"s{i}", ids[i - 1], ids[i], 1000.0 * i) for i in range(1, 6))
+    return Model(kind="line", name="five", masses=masses, anchors=(Anchor("g", 0.0, 0.0),),
+                 springs=springs)
+
+
+@pytest.mark.parametrize("edit, expect", [
+    ("same spring k", True), ("same mass value", True), ("nothing", True), ("rebuilt equal", True),
+    ("other spring k", False), ("same spring label", False), ("other mass", False),
+    ("model name", False), ("spring removed", False)])
+def test_sweep_kept_exactly_when_only_the_swept_value_changed(edit, expect):
+    """The Tune panel keeps its sweep when an edit changed only the swept element's swept value.
+    Its fast check (identity first, no model rebuilt) agrees with the definition: the two models
+    are equal once that value is set the same in both (``with_value`` then ``==``, math)."""
+    import dataclasses as dc
+
+    from app.docks.tune_panel import differs_only_in, with_value
+
+    base = _sweep_model()
+    key = ("m2", "mass") if edit == "same mass value" else ("s3", "k")
+    if edit == "same spring k":
+        model = base.with_changes(put=[dc.replace(base.element("s3"), k=1234.5)])
+    elif edit == "same mass value":
+        model = base.with_changes(put=[dc.replace(base.element("m2"), mass=7.5)])
+    elif edit == "nothing":
+        model = base
+    elif edit == "rebuilt equal":
+        model = Model(**{f.name: getattr(base, f.name) for f in dc.fields(base)})
+        model = dc.replace(model, springs=tuple(dc.replace(s) for s in model.springs))
+    elif edit == "other spring k":
+        model = base.with_changes(put=[dc.replace(base.element("s4"), k=99.0)])
+    elif edit == "same spring label":
+        model = base.with_changes(put=[dc.replace(base.element("s3"), label="mount")])
+    elif edit == "other mass":
+        model = base.with_changes(put=[dc.replace(base.element("m5"), mass=9.0)])
+    elif edit == "model name":
+        model = dc.replace(base, name="renamed")
+    else:
+        model = base.with_changes(remove=["s5"])
+    reference = with_value(model, *key[:1], 1.0, key[1]) == with_value(base, *key[:1], 1.0, key[1])
+    assert reference == expect
+    assert differs_only_in(model, base, *key) == expect
