@@ -6,6 +6,7 @@ that ends in "..." is a number or a sentence the user cannot read; a table whose
 behind a scroll bar hides the effective masses a check needs.
 """
 
+import time
 from pathlib import Path
 
 import pyqtgraph as pg
@@ -88,7 +89,8 @@ def test_the_modes_table_shows_every_column_at_the_first_size(qtbot, first_start
     """Every example opened from the command line: the columns' widths add up to no more than
     the table's viewport (no horizontal scroll bar) and the notes wrap into taller rows."""
     window = first_start(name)
-    _assert_columns_fit(window.modes_table)
+    # the window fits the table on a later event-loop turn than the results (late when slow)
+    qtbot.waitUntil(lambda: _assert_columns_fit(window.modes_table), timeout=5000)
 
 
 def test_the_modes_table_refits_for_a_larger_font(qtbot, first_start):
@@ -100,7 +102,9 @@ def test_the_modes_table_refits_for_a_larger_font(qtbot, first_start):
     font.setPointSizeF(font.pointSizeF() * 4 / 3)
     view.setFont(font)
     qtbot.wait(100)
-    _assert_columns_fit(window.modes_table, readable=False)
+    # the columns are measured again on a later event-loop turn (late on a slow machine)
+    qtbot.waitUntil(lambda: _assert_columns_fit(window.modes_table, readable=False),
+                    timeout=5000)
 
 
 # -- 3. plot axes: titles clear of the tick labels and whole ---------------------------------------
@@ -164,20 +168,27 @@ def test_axis_titles_clear_of_tick_labels_and_whole(qtbot, first_start, name):
     traces, the interference diagram): no axis title touches a tick label and none is longer
     than its axis, whatever the tick labels' width (engineering notation: ``100e-12``)."""
     window = first_start(name)
+    response, tune = window.response_panel, window.tune_panel
     problems = []
-    for state, show in [("Response", _raise(window, "dock_response")),
-                        ("Tune", _raise(window, "dock_tune")),
-                        ("Interference", _raise(window, "dock_interference")),
-                        ("free response", window.motion_panel.show_free_response),
-                        ("Response with free response", _raise(window, "dock_response"))]:
+    for state, show, computed in [
+            ("Response", _raise(window, "dock_response"), response.wait),
+            ("Tune", _raise(window, "dock_tune"), tune.wait_sweep),
+            ("Interference", _raise(window, "dock_interference"), None),
+            ("free response", window.motion_panel.show_free_response, None),
+            ("Response with free response", _raise(window, "dock_response"), response.wait)]:
         show()
-        # curves computed off the window's thread arrive a moment later, with new ticks: the
-        # axis has until they are painted to make room
-        for _ in range(15):
-            qtbot.wait(100)
+        qtbot.wait(100)
+        # curves computed off the window's thread (Response in a thread, the Tune sweep in a
+        # worker process) arrive later, with new ticks: check once they are in
+        if computed is not None:
+            assert computed(), f"{state}: the curves never came"
+        # an axis learns its tick labels' width when it first draws them and makes room on the
+        # next layout pass, which a slow machine runs late: the axis has until then
+        found = _plots_problems(window)
+        deadline = time.monotonic() + 8.0
+        while found and time.monotonic() < deadline:
+            qtbot.wait(50)
             found = _plots_problems(window)
-            if not found:
-                break
         problems += [f"{state}: {p}" for p in found]
     assert not problems, "\n".join(problems)
 
@@ -387,11 +398,16 @@ def test_the_tune_element_list_fits_a_long_label(qtbot, first_start):
     qtbot.wait(100)
     combo = window.tune_panel.element_combo
     fm = QFontMetrics(combo.font())
-    for i in range(combo.count()):
-        combo.setCurrentIndex(i)
-        qtbot.wait(10)
-        assert fm.horizontalAdvance(combo.currentText()) <= _combo_room(combo), \
-            combo.currentText()
+
+    def every_entry_fits():
+        for i in range(combo.count()):
+            combo.setCurrentIndex(i)
+            qtbot.wait(10)
+            assert fm.horizontalAdvance(combo.currentText()) <= _combo_room(combo), \
+                combo.currentText()
+
+    # the controls' column grows on a layout pass after the edit (late on a slow machine)
+    qtbot.waitUntil(every_entry_fits, timeout=5000)
 
 
 # -- 7. Properties: every field without scrolling ----------------------------------------------------
@@ -409,8 +425,13 @@ def test_properties_shows_every_field_without_scrolling(qtbot, first_start, name
                       ("spring", [model.springs[0].id])]:
         window.scene.select_ids(ids)
         qtbot.wait(60)
-        assert scroll.verticalScrollBar().maximum() == 0, \
-            (what, scroll.widget().minimumSizeHint().height(), scroll.viewport().height())
+
+        def no_scrolling():
+            assert scroll.verticalScrollBar().maximum() == 0, \
+                (what, scroll.widget().minimumSizeHint().height(), scroll.viewport().height())
+
+        # the scroll range follows the new fields on a layout pass (late on a slow machine)
+        qtbot.waitUntil(no_scrolling, timeout=5000)
 
 
 # -- and the sensitivity table's headings ------------------------------------------------------------
