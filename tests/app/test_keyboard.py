@@ -82,6 +82,7 @@ def test_mode_push_play_by_keys(qtbot, window):
     panel = window.motion_panel
     assert panel.view_kind() == "free" and panel.is_playing()
     qtbot.wait(150)
+    qtbot.waitUntil(lambda: panel.current_time() > 0, timeout=5000)   # a tick came
     _keys(qtbot, window.view, Qt.Key_P)
     assert not panel.is_playing()
     t = panel.current_time()
