@@ -6,7 +6,6 @@ that ends in "..." is a number or a sentence the user cannot read; a table whose
 behind a scroll bar hides the effective masses a check needs.
 """
 
-import time
 from pathlib import Path
 
 import pyqtgraph as pg
@@ -14,6 +13,8 @@ import pytest
 from PySide6.QtCore import QPoint, QSize, Qt
 from PySide6.QtGui import QFont, QFontMetrics, QPainter, QPicture
 from PySide6.QtWidgets import QDockWidget, QStyle, QTabBar
+
+from _screen import settled
 
 EXAMPLES = Path(__file__).resolve().parents[2] / "assets" / "examples"
 ALL_EXAMPLES = sorted(p.name for p in EXAMPLES.glob("*.json"))
@@ -24,6 +25,10 @@ def _settle(qtbot, window):
     qtbot.waitUntil(lambda: window.analysis is not None
                     and window.analysis.model is window.document.model, timeout=8000)
     qtbot.wait(200)
+    # results computed off the window's thread (response curves in a thread, the Tune sweep in
+    # a worker process) are in before the screen is read, however slow the machine
+    assert window.tune_panel.wait_sweep()
+    qtbot.waitUntil(lambda: not window.response_panel._computing, timeout=10000)
 
 
 @pytest.fixture
@@ -184,11 +189,7 @@ def test_axis_titles_clear_of_tick_labels_and_whole(qtbot, first_start, name):
             assert computed(), f"{state}: the curves never came"
         # an axis learns its tick labels' width when it first draws them and makes room on the
         # next layout pass, which a slow machine runs late: the axis has until then
-        found = _plots_problems(window)
-        deadline = time.monotonic() + 8.0
-        while found and time.monotonic() < deadline:
-            qtbot.wait(50)
-            found = _plots_problems(window)
+        found = settled(qtbot, lambda: _plots_problems(window), timeout_s=8.0)
         problems += [f"{state}: {p}" for p in found]
     assert not problems, "\n".join(problems)
 
