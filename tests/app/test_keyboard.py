@@ -152,7 +152,11 @@ def test_light_dark_switch_recolours_every_canvas_label(qtbot, window, two_mass_
     app.setPalette(pal)
     try:
         qtbot.wait(20)
-        for eid in ("m1", "m2"):
-            assert scene.nodes[eid].label_item.brush().color().name() == DARK.label_hex
+
+        def restyled():
+            for eid in ("m1", "m2"):
+                assert scene.nodes[eid].label_item.brush().color().name() == DARK.label_hex
+
+        qtbot.waitUntil(restyled, timeout=5000)   # change events can come a turn later
     finally:
         app.setPalette(old)
