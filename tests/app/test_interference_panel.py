@@ -40,8 +40,8 @@ def _open(qtbot, window, path):
 def _show_diagram(qtbot, window):
     dock = window.findChild(QDockWidget, "dock_interference")
     dock.raise_()
-    qtbot.waitUntil(lambda: window.interference_panel.isVisible(), timeout=3000)
-    qtbot.waitUntil(lambda: window.interference_panel.data is not None, timeout=3000)
+    qtbot.waitUntil(lambda: window.interference_panel.isVisible(), timeout=5000)
+    qtbot.waitUntil(lambda: window.interference_panel.data is not None, timeout=8000)
     return window.interference_panel
 
 
