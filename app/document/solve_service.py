@@ -276,6 +276,10 @@ class SolveService(QObject):
             result, error = None, str(exc)
         except Exception:
             result, error = None, "internal error while solving:\n" + traceback.format_exc(limit=4)
+        # the pause that ends a burst counts from here: edits that queued up while this solve
+        # held the event loop arrive together once it returns (keys held down on a slow
+        # machine), and each would otherwise be solved on its own
+        self._last_request = time.monotonic()
         self._on_done(generation, result, error)
 
     def _on_done(self, generation: int, result, error: str):

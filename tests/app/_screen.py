@@ -293,3 +293,21 @@ def clipped_texts(window) -> list[str]:
                 problems.append(f"Properties scroll: fields out of sight (scrolls by"
                                 f" {w.verticalScrollBar().maximum()} px)")
     return problems
+
+
+def settled(qtbot, find, timeout_s: float = 5.0) -> list[str]:
+    """``find()`` (a list of problems) once it is empty, or as it still is after ``timeout_s``.
+
+    Layout runs on later event-loop turns than the change that calls for it (a pyqtgraph axis
+    learns its tick labels' width when it first draws them and makes room on the next pass;
+    results computed off the window's thread bring new ticks), and a slow machine runs those
+    turns late: a check read once after a fixed pause fails there. A problem that stays is
+    still reported."""
+    import time
+
+    found = find()
+    deadline = time.monotonic() + timeout_s
+    while found and time.monotonic() < deadline:
+        qtbot.wait(50)
+        found = find()
+    return found

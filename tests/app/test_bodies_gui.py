@@ -303,7 +303,7 @@ def test_new_examples_nothing_clipped_at_the_first_size(qtbot, default_window, n
     the window's first size, with the body, a mount's spring and the gear stage selected in
     turn (Properties then shows the coupling statement, the offsets, the referred system):
     no text cut anywhere; the canvas draws the body's rings and the gear stage."""
-    from _screen import clipped_texts
+    from _screen import clipped_texts, settled
     from test_no_clipping import EXAMPLES, _settle, _states
 
     window = default_window
@@ -325,7 +325,7 @@ def test_new_examples_nothing_clipped_at_the_first_size(qtbot, default_window, n
     for state, show in states:
         show()
         qtbot.wait(120)
-        problems += [f"{state}: {p}" for p in clipped_texts(window)]
+        problems += [f"{state}: {p}" for p in settled(qtbot, lambda: clipped_texts(window))]
     assert not problems, "\n".join(problems)
     if model.bodies:
         window.scene.select_ids([model.bodies[0].id])

@@ -82,6 +82,7 @@ def test_mode_push_play_by_keys(qtbot, window):
     panel = window.motion_panel
     assert panel.view_kind() == "free" and panel.is_playing()
     qtbot.wait(150)
+    qtbot.waitUntil(lambda: panel.current_time() > 0, timeout=5000)   # a tick came
     _keys(qtbot, window.view, Qt.Key_P)
     assert not panel.is_playing()
     t = panel.current_time()
@@ -151,7 +152,11 @@ def test_light_dark_switch_recolours_every_canvas_label(qtbot, window, two_mass_
     app.setPalette(pal)
     try:
         qtbot.wait(20)
-        for eid in ("m1", "m2"):
-            assert scene.nodes[eid].label_item.brush().color().name() == DARK.label_hex
+
+        def restyled():
+            for eid in ("m1", "m2"):
+                assert scene.nodes[eid].label_item.brush().color().name() == DARK.label_hex
+
+        qtbot.waitUntil(restyled, timeout=5000)   # change events can come a turn later
     finally:
         app.setPalette(old)

@@ -12,7 +12,7 @@ from PySide6.QtCore import QRectF, QSize
 from PySide6.QtGui import QImage, QPainter
 from PySide6.QtWidgets import QApplication, QDockWidget
 
-from _screen import clipped_texts
+from _screen import clipped_texts, settled
 
 EXAMPLES = Path(__file__).resolve().parents[2] / "assets" / "examples"
 
@@ -38,6 +38,10 @@ def _settle(qtbot, window):
     qtbot.waitUntil(lambda: window.analysis is not None
                     and window.analysis.model is window.document.model, timeout=8000)
     qtbot.wait(200)
+    # results computed off the window's thread (response curves in a thread, the Tune sweep in
+    # a worker process) are in before the screen is read, however slow the machine
+    assert window.tune_panel.wait_sweep()
+    qtbot.waitUntil(lambda: not window.response_panel._computing, timeout=10000)
 
 
 def _states(window):
@@ -73,7 +77,7 @@ def test_nothing_clipped_at_the_first_size(qtbot, default_window, name):
     for state, show in _states(window):
         show()
         qtbot.wait(120)
-        problems += [f"{state}: {p}" for p in clipped_texts(window)]
+        problems += [f"{state}: {p}" for p in settled(qtbot, lambda: clipped_texts(window))]
     assert not problems, "\n".join(problems)
 
 
@@ -85,7 +89,8 @@ def test_the_40_mass_rod_reads_at_the_first_size(qtbot, default_window):
     _settle(qtbot, window)
     window.view.fit()
     QApplication.processEvents()
-    assert not clipped_texts(window), clipped_texts(window)
+    problems = settled(qtbot, lambda: clipped_texts(window))
+    assert not problems, problems
     scene = window.scene
     shown = [it.label_item for it in list(scene.nodes.values()) + list(scene.links.values())
              if it.label_item.isVisible()]
@@ -97,7 +102,8 @@ def test_the_40_mass_rod_reads_at_the_first_size(qtbot, default_window):
         assert not any(r.intersects(s) for s in symbols), shown[i].text()
     window.motion_panel.show_free_response()
     qtbot.wait(120)
-    assert not clipped_texts(window), clipped_texts(window)
+    problems = settled(qtbot, lambda: clipped_texts(window))
+    assert not problems, problems
 
 
 def _frame_rects(view):

@@ -4,6 +4,8 @@ References: the two-mass chain's natural frequencies are the roots of det(K - w^
 with scipy.linalg.eigh(K, M) built by hand (REFERENCES.md section 10), rtol 1e-10.
 """
 
+import time
+
 import numpy as np
 import pytest
 import scipy.linalg
@@ -59,19 +61,49 @@ def test_undo_reuses_the_earlier_analysis(qtbot, two_mass_model, monkeypatch):
 
 def test_burst_of_edits_is_solved_once(qtbot, two_mass_model, monkeypatch):
     """common practice: edits in quick succession (keys held down) are debounced: one solve, of
-    the last model."""
+    the last model. The debounce interval here is longer than the shipped one, so that the four
+    edits fall inside it however slow the machine running the test is."""
+    delay = 400
     doc = Document(two_mass_model)
-    service = SolveService(doc, parent=doc, immediate=True)
+    service = SolveService(doc, parent=doc, immediate=True, delay_ms=delay)
     assert service.wait(5000)
     calls = []
     real = solve_service.analyse
     monkeypatch.setattr(solve_service, "analyse", lambda m: calls.append(m) or real(m))
-    qtbot.wait(2 * solve_service.DEBOUNCE_MS)
+    qtbot.wait(2 * delay)
     for k in (600.0, 700.0, 800.0, 900.0):
         doc.set_element("s2", k=k)
     assert len(calls) <= 1            # the first may go at once; the rest wait for the pause
     assert service.wait(5000)
     assert calls[-1] is doc.model and len(calls) <= 2
+    np.testing.assert_allclose(_frequencies(service.last_analysis), _reference_hz(1000.0, 900.0),
+                               rtol=1e-10)
+
+
+def test_edits_queued_behind_a_slow_solve_are_one_burst(qtbot, two_mass_model, monkeypatch):
+    """common practice: keys held down while a solve inside the edit takes longer than the
+    debounce interval (a few hundred DOFs on a slow machine): the edits that queued up meanwhile
+    arrive together when it returns and are solved once, for the last model, rather than each
+    on its own (the pause is counted from the end of the solve, not from the edit before)."""
+    delay = 200                       # long enough that the edits in a row fall inside it
+    doc = Document(two_mass_model)
+    service = SolveService(doc, parent=doc, immediate=True, delay_ms=delay)
+    assert service.wait(5000)
+    calls = []
+    real = solve_service.analyse
+
+    def slow(m):
+        calls.append(m)
+        time.sleep(3 * delay / 1000.0)
+        return real(m)
+
+    monkeypatch.setattr(solve_service, "analyse", slow)
+    qtbot.wait(2 * delay)
+    for k in (600.0, 700.0, 800.0, 900.0):
+        doc.set_element("s2", k=k)
+    assert len(calls) == 1 and calls[0].element("s2").k == 600.0   # the first, inside its edit
+    assert service.wait(5000)
+    assert len(calls) == 2 and calls[-1] is doc.model
     np.testing.assert_allclose(_frequencies(service.last_analysis), _reference_hz(1000.0, 900.0),
                                rtol=1e-10)
 

@@ -22,6 +22,10 @@ def _wait_results(qtbot, window):
     qtbot.waitUntil(lambda: window.analysis is not None
                     and window.analysis.model is window.document.model, timeout=8000)
     qtbot.wait(150)        # debounced views (response curves) catch up
+    # what is computed off the window's thread (the response curves in a thread, the Tune
+    # sweep in a worker process) is in too, however slow the machine: its text is read next
+    assert window.tune_panel.wait_sweep()
+    qtbot.waitUntil(lambda: not window.response_panel._computing, timeout=10000)
 
 
 def _open(qtbot, window, name):

@@ -10,7 +10,7 @@ from PySide6.QtCore import Qt
 
 from solver.model import Anchor, Excitation, Mass, Model, Spring, Tolerance
 
-from tests.app._screen import click_tab, clipped_texts
+from tests.app._screen import click_tab, clipped_texts, settled
 
 
 def skid():
@@ -75,7 +75,7 @@ def test_study_runs_in_the_background_and_shows_labels(window, qtbot):
     assert pi.getAxis("bottom").labelText == "natural frequency (Hz)"
     assert pi.getAxis("left").labelText == "samples"
     qtbot.wait(50)
-    problems = clipped_texts(window)
+    problems = settled(qtbot, lambda: clipped_texts(window))
     assert problems == [], problems
 
 
@@ -164,7 +164,7 @@ def test_absorber_assistant_adds_one_undo_step(window, qtbot):
     added = [m for m in model.masses if m.label == "Absorber mass"][0]
     assert added.mass == pytest.approx(0.1 * d.primary_mass)
     qtbot.wait(50)
-    problems = clipped_texts(window)
+    problems = settled(qtbot, lambda: clipped_texts(window))
     assert problems == [], problems
     window.document.undo_stack.undo()
     assert len(window.document.model.masses) == 2 and not window.document.model.dampers

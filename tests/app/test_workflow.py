@@ -66,10 +66,12 @@ def test_slow_solve_marks_results_out_of_date_until_they_arrive(qtbot, window, t
     window.document.apply(two_mass_model, "start")
     _wait_results(qtbot, window, window.document.model)
     assert not window.modes_table.is_stale()
-    window.solver._timer.setInterval(STALE_DELAY_MS + 2000)   # a solve that takes its time
+    # a solve that takes its time: long enough that a slow machine's late timers still mark
+    # the results first (solver.wait() below starts it at once)
+    window.solver._timer.setInterval(STALE_DELAY_MS + 10000)
     edited = two_mass_model.with_changes(put=[solver.Spring("s2", "m1", "m2", 4000.0)])
     window.document.apply(edited, "stiffer s2")
-    qtbot.waitUntil(window.modes_table.is_stale, timeout=STALE_DELAY_MS + 1500)
+    qtbot.waitUntil(window.modes_table.is_stale, timeout=STALE_DELAY_MS + 8000)
     assert "out of date" in window.pending_label.text()
     window.solver.wait()
     assert not window.modes_table.is_stale() and window.pending_label.text() == ""
