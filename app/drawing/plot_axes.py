@@ -20,6 +20,7 @@ import html
 
 import numpy as np
 import pyqtgraph as pg
+from PySide6.QtWidgets import QGraphicsItem
 
 from app.results.response_data import decade_ticks
 from app.text.numbers import number, tick_texts
@@ -52,6 +53,10 @@ class TrueValueAxis(pg.AxisItem):
         self._title_form = (False, None)      # (two lines, point size or None)
         super().__init__(orientation, **kw)
         self.enableAutoSIPrefix(False)
+        # pyqtgraph records an axis as a QPicture and replays it, text shaping and all, on every
+        # paint of its plot (~3 ms an axis); a pixmap cache makes an unchanged axis a copy
+        # (bench/plot_paint_bench.py). A new range, size or label repaints it as before.
+        self.setCacheMode(QGraphicsItem.CacheMode.DeviceCoordinateCache)
 
     def tickStrings(self, values, scale, spacing):  # noqa: N802 (pyqtgraph's name)
         if self.logMode:
