@@ -57,6 +57,20 @@ def value_of(model, element_id, field=None):
     return fn(model, element_id, field)
 
 
+#: The sweep plot keeps its frequency axis while the curves' top stays between this fraction of
+#: the axis and the axis (edits move the curves, not the scale the eye reads them against; a new
+#: axis also costs its plot a full redraw of ticks, labels and grid).
+HOLD_FRACTION = 0.75
+
+
+def held_top(current: float, wanted: float) -> float:
+    """The top of the frequency axis: ``current`` while ``wanted`` lies in
+    [HOLD_FRACTION x current, current], else ``wanted``."""
+    if math.isfinite(current) and HOLD_FRACTION * current <= wanted <= current:
+        return current
+    return wanted
+
+
 def differs_only_in(model, base, element_id: str, field: str) -> bool:
     """True when ``model`` equals ``base`` but for ``field`` of element ``element_id`` (the
     sweep of ``base`` over that field is then the sweep of ``model`` too): the same answer as
@@ -977,7 +991,7 @@ class TunePanel(QWidget):
         self.crossings = pts
         band_top = max([b[5] for b in bands if b[5] < 3 * top] + [0.0])
         pi.setXRange(math.log10(values[0]), math.log10(values[-1]), padding=0.02)
-        pi.setYRange(0, max(top, band_top) * 1.05, padding=0)
+        pi.setYRange(0, held_top(pi.viewRange()[1][1], max(top, band_top) * 1.05), padding=0)
         self._set_title(f"every mode against {model.element(eid).label} · {f}")
         self._update_cursor(model)
         self._draw_proposal()

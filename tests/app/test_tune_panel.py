@@ -345,3 +345,48 @@ def test_sweep_kept_exactly_when_only_the_swept_value_changed(edit, expect):
     reference = with_value(model, *key[:1], 1.0, key[1]) == with_value(base, *key[:1], 1.0, key[1])
     assert reference == expect
     assert differs_only_in(model, base, *key) == expect
+
+
+def test_the_frequency_axis_holds_through_small_edits(qtbot, window, two_mass_model):
+    """The sweep's frequency axis stays put while an edit moves the curves' top by a little (the
+    eye reads the curves against a steady scale), always shows every curve, and rescales when
+    the top falls below 3/4 of it or rises past it. Frequencies from scipy.linalg.eigh of the
+    two-mass chain's K and M written out by hand (math)."""
+    import scipy.linalg
+
+    panel = _open(window, two_mass_model)
+    panel.select_element("s1", "k")
+    assert panel.wait_sweep()
+    pi = panel.plot.getPlotItem()
+
+    def top_hz(model):
+        k1, k2 = model.element("s1").k, model.element("s2").k
+        m1, m2 = model.element("m1").mass, model.element("m2").mass
+        K = np.array([[k1 + k2, -k2], [-k2, k2]])
+        w2 = scipy.linalg.eigh(K, np.diag([m1, m2]), eigvals_only=True)
+        return math.sqrt(w2[-1]) / (2 * math.pi)
+
+    def edit(spring_factor, mass_factor=1.0):
+        m = window.document.model
+        window.document.set_element("s2", k=m.element("s2").k * spring_factor)
+        if mass_factor != 1.0:
+            for mid in ("m1", "m2"):
+                window.document.set_element(mid, mass=m.element(mid).mass * mass_factor)
+        window.solver.wait()
+        qtbot.waitUntil(lambda: not panel.sweep_pending, timeout=8000)
+        return pi.viewRange()[1][1]
+
+    first = pi.viewRange()[1][1]
+    held = edit(0.98)                          # the top falls by ~1 %
+    assert held == first
+    sweep_top = float(np.nanmax(panel.sweep_result.frequencies_hz))
+    assert sweep_top <= held
+    assert top_hz(window.document.model) <= held
+    lower = edit(1.0, 4.0)                     # masses x4: every frequency halves
+    assert lower < 0.75 * first
+    assert float(np.nanmax(panel.sweep_result.frequencies_hz)) <= lower
+    higher = edit(1.0, 1 / 16)                 # masses / 16: x4, past the axis
+    assert higher > lower
+    assert float(np.nanmax(panel.sweep_result.frequencies_hz)) <= higher
+    assert top_hz(window.document.model) <= higher
+
