@@ -16,7 +16,9 @@ repeats is printed with its ratio to the same plot with a 1 px pen and to a bare
 PlotWidget of the same size, measured in the same run. ``app.drawing.style.CURVE_WIDTH`` is the
 width the window uses for data curves. Last, a plot with titled axes painted with the axes replayed
 from pyqtgraph's recording and from the pixmap the window's axes keep
-(``app.drawing.plot_axes.TrueValueAxis``): the Tune plot of the whole window, 10-mass chain.
+(``app.drawing.plot_axes.TrueValueAxis``), and an edit's repaint of the changed region only (Qt
+clips every curve) against the whole viewport (``app.drawing.plot_axes.paint_whole``): the Tune
+plot of the whole window, 200-mass chain.
 """
 
 from __future__ import annotations
@@ -81,11 +83,91 @@ def grab_time(curves, width, repeats: int) -> float:
     return statistics.median(times)
 
 
+def window_plot(args) -> list[str]:
+    """The Tune plot of the whole window (run first: the paint timer must be in place before
+    any pyqtgraph view exists)."""
+    import pyqtgraph as pg
+
+    # the window's Tune plot (200-mass chain, every mode swept): (a) the axes replayed from
+    # pyqtgraph's recording against the pixmap the window's axes keep; (b) an edit's paints of
+    # the plot (a spring's k typed anew) when the view repaints the changed region only
+    # (pyqtgraph's default: every curve drawn through the region's clip) against the whole
+    # viewport (app.drawing.plot_axes.paint_whole)
+    from PySide6.QtWidgets import QGraphicsItem, QGraphicsView
+
+    out: list[str] = []
+    painted: list[float] = []
+    original = pg.GraphicsView.paintEvent
+
+    def timed_paint(view, event):
+        t0 = time.perf_counter()
+        try:
+            return original(view, event)
+        finally:
+            if getattr(view, "_bench_timed", False):
+                painted.append(time.perf_counter() - t0)
+
+    pg.GraphicsView.paintEvent = timed_paint
+    win = gc.full_window()
+    win.document.new(model=gc.chain_model(200))
+    gc.settle(win)
+    from PySide6.QtWidgets import QDockWidget
+
+    win.findChild(QDockWidget, "dock_tune").raise_()        # in front, as on a first start
+    gc.settle(win)
+    tp = win.tune_panel
+    plot = tp.plot
+    pi = plot.getPlotItem()
+    plot._bench_timed = True
+    app = gc.app()
+
+    def grabbed(mode) -> float:
+        for side in ("left", "bottom", "top", "right"):
+            pi.getAxis(side).setCacheMode(mode)
+        plot.grab()
+        times = []
+        for _ in range(args.repeats):
+            t0 = time.perf_counter()
+            plot.grab()
+            times.append(time.perf_counter() - t0)
+        return statistics.median(times)
+
+    plain = grabbed(QGraphicsItem.CacheMode.NoCache)
+    cached = grabbed(QGraphicsItem.CacheMode.DeviceCoordinateCache)
+    out.append(f"the window's Tune plot (200-mass chain): axes replayed {plain * 1e3:.2f} ms,"
+               f" axes from their pixmap {cached * 1e3:.2f} ms ({plain / cached:.1f}x)")
+
+    model = win.document.model
+    spring = model.springs[len(model.springs) // 2]
+
+    def edit_paint(mode) -> float:
+        """Paint time of the Tune plot per edit (a spring's k typed anew, as in
+        bench/edit_bench.py), summed over the edit's paints, median over the edits."""
+        plot.setViewportUpdateMode(mode)
+        per_edit = []
+        for i in range(args.repeats):
+            painted.clear()
+            k = spring.k * (1.0 + 0.01 * (i % 2))
+            win.document.set_element(spring.id, k=k)
+            gc.settle(win)
+            per_edit.append(sum(painted))
+        return statistics.median(per_edit)
+
+    whole = edit_paint(QGraphicsView.ViewportUpdateMode.FullViewportUpdate)
+    region = edit_paint(QGraphicsView.ViewportUpdateMode.MinimalViewportUpdate)
+    out.append(f"an edit's paints of it: changed region only {region * 1e3:.2f} ms, whole"
+               f" viewport {whole * 1e3:.2f} ms ({region / whole:.1f}x)")
+    pg.GraphicsView.paintEvent = original
+    win.solver.shutdown()
+    return out
+
+
 def main(argv=None):
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--repeats", type=int, default=15)
     args = ap.parse_args(argv)
     gc.app()
+    window_lines = window_plot(args)
     import pyqtgraph as pg
 
     from app.drawing.style import CURVE_WIDTH
@@ -102,32 +184,9 @@ def main(argv=None):
             print(f"{name:>9} | {wd:4.1f}px | {t * 1e3:6.2f} ms | {t / times[1.0]:7.1f} |"
                   f" {t / empty:8.1f}")
     print(f"the window draws data curves {CURVE_WIDTH:g} px wide (app.drawing.style.CURVE_WIDTH)")
-    # the axes: the window's TrueValueAxis keeps a pixmap of itself (an unchanged axis is a
-    # copy); measured on the Tune plot of the whole window with a 10-mass chain
-    from PySide6.QtWidgets import QGraphicsItem
+    for line in window_lines:
+        print(line)
 
-    win = gc.full_window()
-    win.document.new(model=gc.chain_model(10))
-    gc.settle(win)
-    plot = win.tune_panel.plot
-    pi = plot.getPlotItem()
-
-    def grabbed(mode) -> float:
-        for side in ("left", "bottom", "top", "right"):
-            pi.getAxis(side).setCacheMode(mode)
-        plot.grab()
-        times = []
-        for _ in range(args.repeats):
-            t0 = time.perf_counter()
-            plot.grab()
-            times.append(time.perf_counter() - t0)
-        return statistics.median(times)
-
-    plain = grabbed(QGraphicsItem.CacheMode.NoCache)
-    cached = grabbed(QGraphicsItem.CacheMode.DeviceCoordinateCache)
-    print(f"the window's Tune plot (10-mass chain): axes replayed {plain * 1e3:.2f} ms, axes from"
-          f" their pixmap {cached * 1e3:.2f} ms ({plain / cached:.1f}x)")
-    win.solver.shutdown()
 
 if __name__ == "__main__":
     main()

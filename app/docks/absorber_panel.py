@@ -18,7 +18,7 @@ from solver.errors import ModelError
 
 from app.docks.on_screen import on_screen
 from app.document import commands
-from app.drawing.plot_axes import true_value_axes
+from app.drawing.plot_axes import paint_whole, true_value_axes
 from app.drawing.style import CURVE_WIDTH, current_style
 from app.results.names import names
 from app.results.offload import dof_count
@@ -127,7 +127,7 @@ class AbsorberPanel(QWidget):
         self.design_label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
         lay.addWidget(self.design_label)
         # the plot and, in a column of its own beside it, its key (never over a curve)
-        self.plots = pg.GraphicsLayoutWidget()
+        self.plots = paint_whole(pg.GraphicsLayoutWidget())
         self.plots.setObjectName("absorber_plots")
         self.plots.setMinimumHeight(90)
         self.plot_item = self.plots.addPlot(row=0, col=0, axisItems=true_value_axes())

@@ -22,7 +22,7 @@ from solver.errors import ModelError
 from solver.interference import interference
 
 from app.docks.on_screen import on_screen
-from app.drawing.plot_axes import true_value_axes
+from app.drawing.plot_axes import paint_whole, true_value_axes
 from app.report.interference import spread
 from app.drawing.style import current_style
 from app.results.margin_rows import crossing_sentence
@@ -54,7 +54,7 @@ class InterferencePanel(QWidget):
         self._live = False
         st = current_style()
         pg.setConfigOptions(antialias=True)
-        self.plot = pg.PlotWidget(axisItems=true_value_axes())
+        self.plot = paint_whole(pg.PlotWidget(axisItems=true_value_axes()))
         self.plot.setObjectName("interference_plot")
         self.plot.setBackground(st.background)
         self.plot.setToolTip(TOOLTIP)

@@ -28,7 +28,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QApplication, QCheckBox, QComb
 from solver.errors import ModelError
 
 from app.docks.on_screen import behind_tab
-from app.drawing.plot_axes import log_ticks, true_value_axes
+from app.drawing.plot_axes import log_ticks, paint_whole, true_value_axes
 from app.drawing.style import CURVE_WIDTH, current_style
 from app.results import load_rows as lr
 from app.text.numbers import number
@@ -156,7 +156,7 @@ def _mode_line(pos: float, mode: int, st) -> pg.InfiniteLine:
 
 def _plot(name: str, x_title: str, y_title: str, log=(True, True)) -> pg.PlotWidget:
     st = current_style()
-    w = pg.PlotWidget(axisItems=true_value_axes())
+    w = paint_whole(pg.PlotWidget(axisItems=true_value_axes()))
     w.setObjectName(name)
     w.setBackground(st.background)
     w.setLogMode(x=log[0], y=log[1])

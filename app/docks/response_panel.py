@@ -36,7 +36,7 @@ from solver.errors import ModelError
 from app.docks.on_screen import behind_tab
 from app.results import response_data as rd
 from app.results.names import dof_name, names
-from app.drawing.plot_axes import log_ticks, true_value_axes
+from app.drawing.plot_axes import log_ticks, paint_whole, true_value_axes
 from app.drawing.style import CURVE_WIDTH, current_style
 from app.text.numbers import FREQ_SIG, hz, number
 
@@ -259,7 +259,7 @@ class ResponsePanel(QWidget):
         split.addWidget(left)
 
         pg.setConfigOptions(antialias=True)
-        self.plots = pg.GraphicsLayoutWidget()
+        self.plots = paint_whole(pg.GraphicsLayoutWidget())
         self.plots.setObjectName("response_plots")
         self.plots.setBackground(st.background)
         # true values on every tick, in the unit of the axis title (no hidden x1e6)

@@ -19,7 +19,7 @@ from PySide6.QtWidgets import (QComboBox, QHBoxLayout, QHeaderView, QLabel, QPla
                                QPushButton, QSpinBox, QSplitter, QTableWidget, QTableWidgetItem,
                                QVBoxLayout, QWidget)
 
-from app.drawing.plot_axes import true_value_axes
+from app.drawing.plot_axes import paint_whole, true_value_axes
 from app.drawing.style import current_style
 from app.results import study_rows
 
@@ -109,7 +109,7 @@ class StudyPanel(QWidget):
         self.mode_combo.currentIndexChanged.connect(lambda _i: self._draw_histogram())
         mrow.addWidget(self.mode_combo, 1)
         ll.addLayout(mrow)
-        self.plot = pg.PlotWidget(axisItems=true_value_axes())
+        self.plot = paint_whole(pg.PlotWidget(axisItems=true_value_axes()))
         self.plot.setObjectName("study_histogram")
         self.plot.setMinimumHeight(90)
         st = current_style()

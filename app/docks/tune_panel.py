@@ -41,7 +41,7 @@ from solver.margins import source_bands
 from solver.model import Mass, Spring
 
 from app.docks.on_screen import behind_tab
-from app.drawing.plot_axes import log_ticks, true_value_axes
+from app.drawing.plot_axes import log_ticks, paint_whole, true_value_axes
 from app.document.solve_service import dof_count
 from app.drawing.style import CURVE_WIDTH, current_style
 from app.results.names import names
@@ -429,7 +429,7 @@ class TunePanel(QWidget):
         left.setMinimumWidth(260)
 
         pg.setConfigOptions(antialias=True)
-        self.plot = pg.PlotWidget(axisItems=true_value_axes())
+        self.plot = paint_whole(pg.PlotWidget(axisItems=true_value_axes()))
         self.plot.setObjectName("tune_plot")
         self.plot.setBackground(st.background)
         pi = self.plot.getPlotItem()
