@@ -692,7 +692,9 @@ class MainWindow(QMainWindow):
             self.modes_table.set_stale(stale)
         if stale:
             self.pending_label.setText("results out of date")
-            self.pending_label.setStyleSheet(f"color: {current_style().warning.name()};")
+            css = f"color: {current_style().warning.name()};"
+            if self.pending_label.styleSheet() != css:     # a new style sheet re-polishes
+                self.pending_label.setStyleSheet(css)
         else:
             self.pending_label.setText("")
 
