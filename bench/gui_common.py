@@ -86,6 +86,12 @@ def full_window():
     w._notify_error = lambda title, message: None
     w.resize(*WINDOW_SIZE)
     w.show()
+    # as the program does once its first model is open (app.gui.freeze_startup_heap); the
+    # libraries' modules are loaded first, as the program's first model loads them
+    from app.gui import freeze_startup_heap
+
+    solver.analyse(chain_model(3))
+    freeze_startup_heap()
     return w
 
 
