@@ -123,13 +123,12 @@ class SketchLayout:
         pts = [(n.x, n.y) for n in self._nodes.values()]
         if len(pts) < 2 or len(pts) > 400:
             return None
-        best = None
-        for i in range(len(pts)):
-            for j in range(i + 1, len(pts)):
-                d = math.hypot(pts[i][0] - pts[j][0], pts[i][1] - pts[j][1]) * self.px_per_m
-                if d > 1e-9 and (best is None or d < best):
-                    best = d
-        return best
+        # every pair at once (a pair loop in Python: ~10 ms at 200 nodes, on every geometry edit)
+        P = np.asarray(pts, dtype=float)
+        i, j = np.triu_indices(len(pts), 1)
+        d = np.hypot(P[i, 0] - P[j, 0], P[i, 1] - P[j, 1]) * self.px_per_m
+        d = d[d > 1e-9]
+        return float(d.min()) if d.size else None
 
     def to_px(self, x: float, y: float) -> QPointF:
         """Device point of model coordinates (m, y up)."""
