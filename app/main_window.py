@@ -588,7 +588,8 @@ class MainWindow(QMainWindow):
     # construction (their plots, tables and imports); each is built the first time its tab is
     # shown, or when the program asks for it (``window.loads_panel``), and is then the same
     # panel it would have been from the start: wired to the document and the solve service,
-    # handed the current results.
+    # handed the current results, and with the window's and the solve service's handlers of
+    # the document still connected after its own (the order the eager panels had).
     sources_panel = property(lambda self: self._panel("dock_sources"))
     interference_panel = property(lambda self: self._panel("dock_interference"))
     loads_panel = property(lambda self: self._panel("dock_loads"))
@@ -609,7 +610,7 @@ class MainWindow(QMainWindow):
         # is in front until the first layout raises Tune): the build waits for the event loop
         # and happens only if the tab is still on screen then
         dock.visibilityChanged.connect(
-            lambda shown: shown and QTimer.singleShot(0, lambda: self._build_if_shown(name)))
+            lambda shown: shown and QTimer.singleShot(0, dock, lambda: self._build_if_shown(name)))
         return dock
 
     def _build_if_shown(self, name: str) -> None:
@@ -639,10 +640,12 @@ class MainWindow(QMainWindow):
         dock.setWidget(panel)
         if placeholder is not None:
             placeholder.deleteLater()
-        # the window's own handler of another model stays the last one (see __init__)
+        # the window's own handler of another model and the solve service's handler of an edit
+        # stay the last ones (see __init__): the panel takes an edit's model before its results
         if getattr(self, "_opened_wired", False):
             self.document.opened.disconnect(self._on_opened)
             self.document.opened.connect(self._on_opened)
+        self.solver.connect_last()
         analysis = self.solver.last_analysis
         if analysis is not None and analysis.model is self.document.model and \
                 hasattr(panel, "set_analysis"):

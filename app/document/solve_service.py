@@ -145,6 +145,7 @@ class SolveService(QObject):
         if immediate is not None:
             self.immediate = bool(immediate)
         document.model_changed.connect(self.request)
+        self._document = document
         if document.model.masses:
             self.request(document.model)
         else:
@@ -154,6 +155,17 @@ class SolveService(QObject):
             self._generation += 1
             self._set_pending(True)
             self._burst_timer.start()
+
+    def connect_last(self) -> None:
+        """Connect to the attached document's ``model_changed`` again, after every handler
+        connected since (a view built later, such as a panel made when its tab is first shown,
+        then takes an edit's model before the solve of a small model hands it the results, as
+        the views built with the window do)."""
+        document = getattr(self, "_document", None)
+        if document is None:
+            return
+        document.model_changed.disconnect(self.request)
+        document.model_changed.connect(self.request)
 
     @property
     def pending(self) -> bool:

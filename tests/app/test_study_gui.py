@@ -183,3 +183,27 @@ def test_one_tolerance_for_several_springs_is_one_undo_step(window, qtbot):
     assert model.find("s1").tolerance == model.find("s2").tolerance == Tolerance(10)
     assert window.document.undo_stack.count() == before + 1
     assert window.properties.widget("tolerance_percent").text() == "10"
+
+
+def test_absorber_built_late_follows_a_deleted_protected_mass(window, qtbot):
+    """The Absorber panel is built when its tab is first shown; it must still take an edit's
+    model before the edit's results, as the panels built with the window do. With the Frame
+    protected, deleting the Frame (and its bracket) leaves the Pump on its isolator: the design
+    is then for the Pump, an SDOF whose modal mass is its mass, 40 kg, at
+    sqrt(k/m)/(2 pi) = sqrt(4e5/40)/(2 pi) Hz (math), never an error naming the deleted mass."""
+    _open(window, qtbot, skid())
+    click_tab(qtbot, window, "Absorber")
+    panel = window.absorber_panel
+    panel.mass_combo.setCurrentIndex(panel.mass_combo.findText("Frame"))
+    qtbot.waitUntil(lambda: panel.design is not None and panel.design.mass_id == "m2",
+                    timeout=5000)
+    window.scene.select_ids(["m2"])
+    window.act_delete.trigger()
+    assert "m2" not in window.document.model.ids()
+    qtbot.waitUntil(lambda: panel.design is not None and panel.design.mass_id == "m1",
+                    timeout=5000)
+    text = panel.design_label.text()
+    assert "m2" not in text and "not a mass" not in text and "Pump" in text
+    assert panel.design.primary_mass == pytest.approx(40.0, rel=1e-9)
+    assert panel.design.primary_hz == pytest.approx(math.sqrt(4.0e5 / 40.0) / (2 * math.pi),
+                                                    rel=1e-9)
