@@ -19,7 +19,7 @@ from solver.errors import ModelError
 from app.docks.on_screen import on_screen
 from app.document import commands
 from app.drawing.plot_axes import paint_whole, true_value_axes
-from app.drawing.style import CURVE_WIDTH, current_style
+from app.drawing.style import CURVE_WIDTH, RESULT_WIDTH, current_style
 from app.results.names import names
 from app.results.offload import dof_count
 from app.text.numbers import number
@@ -269,7 +269,7 @@ class AbsorberPanel(QWidget):
         f = d.freqs_hz
         for y, name, pen in (
                 (d.before, "without absorber", pg.mkPen(st.ink_soft, width=CURVE_WIDTH)),
-                (d.after, "with absorber", pg.mkPen(st.accent, width=CURVE_WIDTH)),
+                (d.after, "with absorber", pg.mkPen(st.accent, width=RESULT_WIDTH)),
                 (d.after_low, "absorber 5 % low", pg.mkPen(st.warning, width=1,
                                                             style=Qt.PenStyle.DashLine)),
                 (d.after_high, "absorber 5 % high", pg.mkPen(st.error, width=1,

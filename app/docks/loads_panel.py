@@ -29,7 +29,7 @@ from solver.errors import ModelError
 
 from app.docks.on_screen import behind_tab
 from app.drawing.plot_axes import log_ticks, paint_whole, true_value_axes
-from app.drawing.style import CURVE_WIDTH, current_style
+from app.drawing.style import RESULT_WIDTH, current_style
 from app.results import load_rows as lr
 from app.text.numbers import number
 
@@ -822,7 +822,7 @@ class LoadsPanel(QWidget):
                                                             style=Qt.DashLine))
         y = data[:, i]
         keep = y > 0
-        p.plot(f[keep], y[keep], pen=pg.mkPen(st.accent, width=CURVE_WIDTH))
+        p.plot(f[keep], y[keep], pen=pg.mkPen(st.accent, width=RESULT_WIDTH))
         _log_x(p, f[0], f[-1])
         _log_y(p, np.concatenate([y, r.input_asd if what == "acceleration" else []]))
         p.autoRange()
@@ -855,7 +855,7 @@ class LoadsPanel(QWidget):
         p.setLabel("left", self._TIME_UNIT[what])
         if what == "acceleration":
             p.plot(s.times, s.input_g, pen=pg.mkPen(st.ink, width=1, style=Qt.DashLine))
-        p.plot(s.times, data[:, i], pen=pg.mkPen(st.accent, width=CURVE_WIDTH))
+        p.plot(s.times, data[:, i], pen=pg.mkPen(st.accent, width=RESULT_WIDTH))
         p.autoRange()
 
     def _draw_srs(self):
@@ -867,7 +867,7 @@ class LoadsPanel(QWidget):
         st = current_style()
         srs = res.srs
         p.plot(srs.frequencies_hz, srs.maximax_g,
-               pen=pg.mkPen(st.accent, width=CURVE_WIDTH))
+               pen=pg.mkPen(st.accent, width=RESULT_WIDTH))
         for n, f in enumerate(res.shock.mode_frequencies_hz, start=1):
             if f <= 0:
                 continue

@@ -312,6 +312,16 @@ class ModesTable(QWidget):
         finally:
             self._sharing = False
 
+    def changeEvent(self, event):  # noqa: N802 (Qt's name)
+        # a new palette (light or dark desktop): the cells take its colours now, not at the
+        # next update (the model keeps the style it looked up last)
+        if event.type() in (QEvent.Type.PaletteChange, QEvent.Type.StyleChange) and \
+                getattr(self, "_model", None) is not None:
+            self._model._style = None
+            self.view.viewport().update()
+            self._update_banner()
+        super().changeEvent(event)
+
     def eventFilter(self, obj, event):  # noqa: N802
         # the viewport's own resize (not the view's): it comes after the frame and the scroll
         # bars are laid out, so its width is the room the columns really have

@@ -23,9 +23,13 @@ from PySide6.QtGui import QColor, QGuiApplication, QPalette
 
 #: Pen width (px) of the plots' data curves (sweeps, response, loads, absorber). Qt draws an
 #: antialiased line one pixel wide on its fast path and a wider one through its general stroker,
-#: 10-50x slower (``bench/plot_paint_bench.py``), and an edit repaints every curve shown: curves
+#: 15-28x slower (``bench/plot_paint_bench.py``), and an edit repaints every curve shown: curves
 #: are told apart by colour and dash, not by width. Short items (cursors, band edges) may be wider.
+#: (A cosmetic pen: one device pixel, a hairline on a 200 % display.)
 CURVE_WIDTH = 1.0
+#: The one result curve of a plot that is redrawn only when its own computation ends (the Loads
+#: responses, the Absorber's "with absorber"): wider, to stand out from its input and variants.
+RESULT_WIDTH = 2.0
 
 
 def _c(hex_rgb: str, alpha: int = 255) -> QColor:

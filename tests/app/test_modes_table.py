@@ -119,3 +119,31 @@ def test_number_columns_fit_every_row_as_qt_measures_them(qtbot, n):
         notes = table._model.columnCount() - 1
         for c in range(notes):
             assert hdr.sectionSize(c) >= max(view.sizeHintForColumn(c), hdr.sectionSizeHint(c)), c
+
+
+def test_a_palette_switch_recolours_the_table_at_once(qtbot):
+    """common practice: a light/dark switch restyles every view at once, not at the next edit:
+    the out-of-date cells take the dark style's grey as soon as the palette changes."""
+    from PySide6.QtGui import QColor, QPalette
+    from PySide6.QtWidgets import QApplication
+
+    from app.drawing.style import DARK, LIGHT
+
+    table = ModesTable()
+    qtbot.addWidget(table)
+    table.show()
+    table.set_analysis(solver.analyse(td3s()))
+    table.set_stale(True)
+    index = table._model.index(0, 1)
+    role = Qt.ItemDataRole.ForegroundRole
+    app = QApplication.instance()
+    old = QPalette(app.palette())
+    assert table._model.data(index, role).name() == LIGHT.undeformed.name()
+    pal = QPalette(old)
+    pal.setColor(QPalette.ColorRole.Window, QColor("#202020"))
+    app.setPalette(pal)
+    try:
+        qtbot.waitUntil(lambda: table._model.data(index, role).name() == DARK.undeformed.name(),
+                        timeout=5000)
+    finally:
+        app.setPalette(old)
