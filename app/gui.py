@@ -64,7 +64,10 @@ def _open_done(window) -> None:
     window.view.fit()
     window.solver.solve_now()
     window.check_recovery()
-    freeze_startup_heap()
+    # after the first model's results are painted: its full collection (~50 ms) holds nothing up
+    from PySide6.QtCore import QTimer
+
+    QTimer.singleShot(1000, freeze_startup_heap)
 
 
 def freeze_startup_heap() -> None:

@@ -532,16 +532,12 @@ class MainWindow(QMainWindow):
     def _build_sources(self):
         from app.docks.sources_panel import SourcesPanel
 
-        panel = SourcesPanel(self.document)
-        panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
-        self.solver.results_ready.connect(panel.set_analysis)
-        return panel
+        return SourcesPanel(self.document)
 
     def _build_interference(self):
         from app.docks.interference_panel import InterferencePanel
 
         panel = InterferencePanel(self.document)
-        self.solver.results_ready.connect(panel.set_analysis)
         self.solver.live_changed.connect(panel.set_live)
         panel.set_live(self.solver.live)
         return panel
@@ -556,7 +552,6 @@ class MainWindow(QMainWindow):
         from app.docks.loads_panel import LoadsPanel
 
         panel = LoadsPanel(self.document)
-        panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
         self.document.opened.connect(panel.reset)
         return panel
 
@@ -571,17 +566,12 @@ class MainWindow(QMainWindow):
     def _build_study(self):
         from app.docks.study_panel import StudyPanel
 
-        panel = StudyPanel(self.document)
-        panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
-        return panel
+        return StudyPanel(self.document)
 
     def _build_absorber(self):
         from app.docks.absorber_panel import AbsorberPanel
 
-        panel = AbsorberPanel(self.document)
-        panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
-        self.solver.results_ready.connect(panel.set_analysis)
-        return panel
+        return AbsorberPanel(self.document)
 
     # -- panels built on first show ------------------------------------------------------------
     # Behind their tabs at the start, these panels cost the first paint a third of the window's
@@ -635,6 +625,11 @@ class MainWindow(QMainWindow):
             return self._panels[name]
         panel = build()
         self._panels[name] = panel
+        # what every such panel has: its messages in the status bar, the solve service's results
+        if hasattr(panel, "status_message"):
+            panel.status_message.connect(lambda m: self.statusBar().showMessage(m, 8000))
+        if hasattr(panel, "set_analysis"):
+            self.solver.results_ready.connect(panel.set_analysis)
         dock = self.findChild(QDockWidget, name)
         placeholder = dock.widget()
         dock.setWidget(panel)

@@ -10,25 +10,15 @@ from pathlib import Path
 import numpy as np
 import pyqtgraph as pg
 import pytest
-import scipy.linalg
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import QDockWidget
 
 import solver
+from _models_for_views import fan_drive_frequencies
 
 ROOT = Path(__file__).resolve().parents[2]
 FAN = ROOT / "assets" / "examples" / "fan_drive.json"
 SHELF = ROOT / "assets" / "examples" / "shaker_fixture.json"   # a band only, no speed
-
-
-def _fan_frequencies():
-    """The fan drive's natural frequencies from scipy: discs 0.05, 0.004, 0.6 kg m^2 on shafts of
-    20000 and 9000 N m/rad, free at both ends (math: torsion chain stiffness matrix)."""
-    J = np.diag([0.05, 0.004, 0.6])
-    k1, k2 = 20000.0, 9000.0
-    K = np.array([[k1, -k1, 0], [-k1, k1 + k2, -k2], [0, -k2, k2]])
-    w2 = scipy.linalg.eigh(K, J, eigvals_only=True)
-    return np.sqrt(np.clip(w2, 0, None)) / (2 * np.pi)
 
 
 def _open(qtbot, window, path):
@@ -51,7 +41,7 @@ def test_diagram_of_the_fan_drive(qtbot, window):
     never its id; axes say their units."""
     _open(qtbot, window, FAN)
     panel = _show_diagram(qtbot, window)
-    f = _fan_frequencies()
+    f = fan_drive_frequencies()
     (c,) = panel.data.in_range
     assert c.order == 2.0 and c.rpm == pytest.approx(60 * f[1] / 2, rel=1e-9)
     text = panel.message.text()

@@ -8,11 +8,11 @@ stiffnesses written out by hand (torsion chain, math), crossing speeds against N
 
 from pathlib import Path
 
-import numpy as np
 import pytest
-import scipy.linalg
-from PySide6.QtCore import Qt
-from PySide6.QtWidgets import QDockWidget, QTabBar
+from PySide6.QtWidgets import QDockWidget
+
+from _models_for_views import fan_drive_frequencies
+from tests.app._screen import click_tab
 
 ROOT = Path(__file__).resolve().parents[2]
 FAN = ROOT / "assets" / "examples" / "fan_drive.json"
@@ -20,29 +20,10 @@ SHELF = ROOT / "assets" / "examples" / "shaker_fixture.json"   # a band only, no
 LAZY = ("dock_sources", "dock_interference", "dock_loads", "dock_study", "dock_absorber")
 
 
-def _fan_frequencies():
-    """Discs 0.05, 0.004, 0.6 kg m^2 on shafts of 20000 and 9000 N m/rad, free ends (math)."""
-    J = np.diag([0.05, 0.004, 0.6])
-    k1, k2 = 20000.0, 9000.0
-    K = np.array([[k1, -k1, 0], [-k1, k1 + k2, -k2], [0, -k2, k2]])
-    w2 = scipy.linalg.eigh(K, J, eigvals_only=True)
-    return np.sqrt(np.clip(w2, 0, None)) / (2 * np.pi)
-
-
 def _open(qtbot, window, path):
     assert window.open_path(str(path), ask=False)
     qtbot.waitUntil(lambda: window.analysis is not None
                     and window.analysis.model == window.document.model, timeout=8000)
-
-
-def _click_tab(qtbot, window, title):
-    """Click the tab called ``title`` in the window's dock tab bars (as a user does)."""
-    for bar in window.findChildren(QTabBar):
-        for i in range(bar.count()):
-            if bar.tabText(i) == title and bar.isVisible():
-                qtbot.mouseClick(bar, Qt.MouseButton.LeftButton, pos=bar.tabRect(i).center())
-                return
-    raise AssertionError(f"no visible tab {title!r}")
 
 
 def _built(window):
@@ -57,7 +38,7 @@ def test_tabs_behind_others_are_built_on_first_show(qtbot, window):
     qtbot.waitUntil(lambda: not tune.widget().visibleRegion().isEmpty(), timeout=3000)
     qtbot.wait(50)
     assert _built(window) == set()
-    _click_tab(qtbot, window, "Loads")
+    click_tab(qtbot, window, "Loads")
     dock = window.findChild(QDockWidget, "dock_loads")
     qtbot.waitUntil(lambda: "dock_loads" in _built(window), timeout=3000)
     assert _built(window) == {"dock_loads"}
@@ -72,22 +53,22 @@ def test_a_panel_built_after_open_shows_the_open_model(qtbot, window):
     frequencies."""
     _open(qtbot, window, FAN)
     assert _built(window) == set()
-    f = _fan_frequencies()
-    _click_tab(qtbot, window, "Interference diagram")
+    f = fan_drive_frequencies()
+    click_tab(qtbot, window, "Interference diagram")
     qtbot.waitUntil(lambda: "dock_interference" in _built(window), timeout=3000)
     panel = window.interference_panel
     qtbot.waitUntil(lambda: panel.data is not None, timeout=5000)
     (c,) = panel.data.in_range
     assert c.order == 2.0 and c.rpm == pytest.approx(60 * f[1] / 2, rel=1e-9)
 
-    _click_tab(qtbot, window, "Sources")
+    click_tab(qtbot, window, "Sources")
     qtbot.waitUntil(lambda: "dock_sources" in _built(window), timeout=3000)
     sp = window.sources_panel
     first = window.document.model.excitations[0]
     assert sp.current_id == first.id
     assert sp.field("label").text() == first.label
 
-    _click_tab(qtbot, window, "Absorber")
+    click_tab(qtbot, window, "Absorber")
     qtbot.waitUntil(lambda: "dock_absorber" in _built(window), timeout=3000)
     combo = window.absorber_panel.mode_combo
     assert [combo.itemData(i) for i in range(combo.count())] == [2, 3]
@@ -100,7 +81,7 @@ def test_another_model_after_a_lazy_build_still_gets_its_results(qtbot, window):
     small model is solved inside the signal that opens it): open the shelf (no speed source:
     no diagram), then the fan drive again: its crossing is drawn (60 f2 / 2 rpm, scipy)."""
     _open(qtbot, window, FAN)
-    _click_tab(qtbot, window, "Interference diagram")
+    click_tab(qtbot, window, "Interference diagram")
     qtbot.waitUntil(lambda: "dock_interference" in _built(window), timeout=3000)
     panel = window.interference_panel
     qtbot.waitUntil(lambda: panel.data is not None, timeout=5000)
@@ -109,7 +90,7 @@ def test_another_model_after_a_lazy_build_still_gets_its_results(qtbot, window):
     _open(qtbot, window, FAN)
     qtbot.waitUntil(lambda: panel.data is not None and len(panel.data.in_range) == 1,
                     timeout=5000)
-    assert panel.data.in_range[0].rpm == pytest.approx(60 * _fan_frequencies()[1] / 2,
+    assert panel.data.in_range[0].rpm == pytest.approx(60 * fan_drive_frequencies()[1] / 2,
                                                        rel=1e-9)
 
 
