@@ -7,13 +7,20 @@ importance (masses, then anchors, then springs and dashpots), on the drawing at 
 animation does not make them jump from frame to frame.
 
 Overlap tests look only at the neighbourhood (a grid of cells a few text lines high), so the
-labels of a model with hundreds of elements are placed in linear time.
+labels of a model with hundreds of elements are placed in linear time. Before that, every
+candidate of a label is checked against the symbols at once on a raster of them
+(:class:`SymbolRaster`: summed-area tables of the cells some symbol touches and of those one
+covers whole): most candidates are then known clear or known blocked in a few array lookups, and
+only those at a symbol's edge are tested rectangle by rectangle. The raster only decides what it
+can prove, so the places are exactly those of the rectangle tests alone (a crowded 200-mass
+chain tried ~4,600 candidates against ~30 rectangles each: 50-95 ms a new layout).
 """
 
 from __future__ import annotations
 
 import math
 
+import numpy as np
 from PySide6.QtCore import QPointF, QRectF
 
 #: Clear space kept round every label (device units).
@@ -41,7 +48,10 @@ class RectIndex:
                 yield i, j
 
     def add(self, r: QRectF) -> None:
-        box = _coords(r)
+        self.add_box(_coords(r))
+
+    def add_box(self, box: tuple[float, float, float, float]) -> None:
+        """:meth:`add` of a rectangle (left, top, right, bottom), left <= right, top <= bottom."""
         if not (box[2] > box[0] and box[3] > box[1]):
             return      # a null rectangle meets nothing (as QRectF.intersects has it)
         cells = self.cells
@@ -55,15 +65,103 @@ class RectIndex:
     def hits(self, r: QRectF) -> bool:
         """True when ``r`` overlaps a stored rectangle (open intervals: touching edges do not
         overlap, as QRectF.intersects)."""
-        left, top, right, bottom = box = _coords(r)
+        return self.hits_box(*_coords(r))
+
+    def hits_box(self, left: float, top: float, right: float, bottom: float) -> bool:
+        """:meth:`hits` of the rectangle (left, top, right, bottom), left <= right and
+        top <= bottom."""
         if not (right > left and bottom > top):
             return False
-        cells = self.cells
-        for k in self._keys(box):
-            for a, b, c, d in cells.get(k, ()):
-                if left < c and a < right and top < d and b < bottom:
-                    return True
+        cells, c = self.cells, self.cell
+        rows = range(math.floor(top / c), math.floor(bottom / c) + 1)
+        for i in range(math.floor(left / c), math.floor(right / c) + 1):
+            for j in rows:
+                found = cells.get((i, j))
+                if found:
+                    for a, b, cr, d in found:
+                        if left < cr and a < right and top < d and b < bottom:
+                            return True
         return False
+
+
+class SymbolRaster:
+    """The symbols' rectangles on a grid of square cells, as two summed-area tables: cells some
+    rectangle's interior meets (*touched*) and cells some rectangle holds whole (*covered*).
+
+    :meth:`verdicts` tells, for many query rectangles at once, which are certainly clear of
+    every symbol (no touched cell under them), which certainly overlap one (a covered cell under
+    their interior) and which it cannot tell (-1, 1, 0). Cell ranges are widened (touched) or
+    narrowed (covered) by a small margin, so rounding never turns a "cannot tell" into a wrong
+    answer.
+    """
+
+    #: Most cells along a side (a larger drawing gets larger cells).
+    MAX_CELLS = 512
+    _EPS = 1e-6
+
+    def __init__(self, boxes: list[tuple[float, float, float, float]], cell: float):
+        b = np.asarray(boxes, float).reshape(-1, 4)
+        self.x0, self.y0 = float(b[:, 0].min()), float(b[:, 1].min())
+        span = max(float(b[:, 2].max()) - self.x0, float(b[:, 3].max()) - self.y0)
+        self.cell = max(float(cell), span / self.MAX_CELLS, 1e-9)
+        self.nx = int(math.ceil((float(b[:, 2].max()) - self.x0) / self.cell)) + 1
+        self.ny = int(math.ceil((float(b[:, 3].max()) - self.y0) / self.cell)) + 1
+        touched = self._cells(b, outward=True)
+        covered = self._cells(b, outward=False)
+        self.touched = self._table(touched)
+        self.covered = self._table(covered)
+
+    def _ranges(self, b, outward: bool):
+        """Inclusive cell ranges (i0, j0, i1, j1) of rectangles (n, 4): the cells their interior
+        meets (``outward``, widened by a margin) or the cells inside them (narrowed)."""
+        e = self._EPS if outward else -self._EPS
+        gx = (b[:, [0, 2]] - self.x0) / self.cell
+        gy = (b[:, [1, 3]] - self.y0) / self.cell
+        if outward:
+            i0, i1 = np.floor(gx[:, 0] - e), np.ceil(gx[:, 1] + e) - 1
+            j0, j1 = np.floor(gy[:, 0] - e), np.ceil(gy[:, 1] + e) - 1
+        else:
+            i0, i1 = np.ceil(gx[:, 0] - e), np.floor(gx[:, 1] + e) - 1
+            j0, j1 = np.ceil(gy[:, 0] - e), np.floor(gy[:, 1] + e) - 1
+        return i0, j0, i1, j1
+
+    def _cells(self, b, outward: bool) -> np.ndarray:
+        """A 0/1 grid of the cells the rectangles touch (or cover)."""
+        i0, j0, i1, j1 = self._ranges(b, outward)
+        i0, i1 = np.clip(i0, 0, self.nx), np.clip(i1 + 1, 0, self.nx)
+        j0, j1 = np.clip(j0, 0, self.ny), np.clip(j1 + 1, 0, self.ny)
+        keep = (i1 > i0) & (j1 > j0)
+        i0, i1, j0, j1 = (a[keep].astype(np.intp) for a in (i0, i1, j0, j1))
+        diff = np.zeros((self.ny + 1, self.nx + 1), np.int32)
+        np.add.at(diff, (j0, i0), 1)
+        np.add.at(diff, (j0, i1), -1)
+        np.add.at(diff, (j1, i0), -1)
+        np.add.at(diff, (j1, i1), 1)
+        return (diff.cumsum(0).cumsum(1)[:self.ny, :self.nx] > 0).astype(np.int32)
+
+    @staticmethod
+    def _table(grid: np.ndarray) -> np.ndarray:
+        table = np.zeros((grid.shape[0] + 1, grid.shape[1] + 1), np.int32)
+        table[1:, 1:] = grid.cumsum(0).cumsum(1)
+        return table
+
+    def _count(self, table, i0, j0, i1, j1) -> np.ndarray:
+        i0, i1 = np.clip(i0, 0, self.nx), np.clip(i1 + 1, 0, self.nx)
+        j0, j1 = np.clip(j0, 0, self.ny), np.clip(j1 + 1, 0, self.ny)
+        empty = (i1 <= i0) | (j1 <= j0)
+        i0, i1, j0, j1 = (a.astype(np.intp) for a in (i0, i1, j0, j1))
+        i1, j1 = np.maximum(i1, i0), np.maximum(j1, j0)
+        n = table[j1, i1] - table[j0, i1] - table[j1, i0] + table[j0, i0]
+        return np.where(empty, 0, n)
+
+    def verdicts(self, boxes) -> np.ndarray:
+        """-1 (clear of every symbol), 1 (overlaps one) or 0 (cannot tell) per rectangle
+        (left, top, right, bottom) of ``boxes``; a null rectangle is clear (it meets nothing)."""
+        b = np.asarray(boxes, float).reshape(-1, 4)
+        clear = self._count(self.touched, *self._ranges(b, outward=True)) == 0
+        hit = self._count(self.covered, *self._ranges(b, outward=False)) > 0
+        null = ~((b[:, 2] > b[:, 0]) & (b[:, 3] > b[:, 1]))
+        return np.where(null | clear, -1, np.where(hit, 1, 0))
 
 
 class LabelPlacer:
@@ -77,52 +175,152 @@ class LabelPlacer:
         self.bounds = QRectF(bounds) if bounds is not None else None
         self.pad = pad
         # cells of a few lines: a symbol widened by the room it sweeps spans few of them
-        self.index = RectIndex(max(32.0, 4.0 * line))
-        self.symbols: list[QRectF] = []
+        self.index = RectIndex(max(32.0, 4.0 * line))      # the symbols
+        self.labels = RectIndex(max(32.0, 4.0 * line))     # the labels placed
+        #: the symbols as (left, top, right, bottom)
+        self.symbols: list[tuple[float, float, float, float]] = []
         self.placed: list[tuple[str, QRectF]] = []
+        self._raster_cell = max(1.0, line / 4.0)
+        self._raster: SymbolRaster | None = None
 
     def block(self, rect: QRectF) -> None:
         """A symbol (or the room it sweeps when it moves) labels must keep off."""
-        self.symbols.append(QRectF(rect))
-        self.index.add(rect)
+        box = _coords(rect)
+        self.symbols.append(box)
+        self.index.add_box(box)
+        self._raster = None
+
+    def block_boxes(self, boxes) -> None:
+        """:meth:`block` of many rectangles, rows (left, top, right, bottom) with left <= right
+        and top <= bottom."""
+        for box in np.asarray(boxes, float).reshape(-1, 4).tolist():
+            box = tuple(box)
+            self.symbols.append(box)
+            self.index.add_box(box)
+        self._raster = None
 
     def fits(self, rect: QRectF) -> bool:
         if self.bounds is not None and not self.bounds.contains(rect):
             return False
         p = self.pad
-        return not self.index.hits(rect.adjusted(-p, -p, p, p))
+        padded = rect.adjusted(-p, -p, p, p)
+        return not self.labels.hits(padded) and not self.index.hits(padded)
 
     def place(self, text: str, candidates) -> QRectF | None:
         """The first candidate rectangle that fits (then taken), or None: the label is left
         off."""
-        for rect in candidates:
-            if self.fits(rect):
-                self.index.add(rect)
-                self.placed.append((text, QRectF(rect)))
-                return QRectF(rect)
-        return None
+        return self.place_all([(text, candidates)])[0]
+
+    def place_all(self, requests) -> list[QRectF | None]:
+        """:meth:`place` for each ``(text, candidates)`` in turn. A candidate is a QRectF or an
+        ``(x, y, w, h)`` tuple (:func:`around_boxes`, :func:`shifted_boxes`: no Qt object per
+        candidate)."""
+        groups = [np.array([r.getRect() if isinstance(r, QRectF) else r for r in cands],
+                           float).reshape(-1, 4) for _text, cands in requests]
+        return self.place_groups([text for text, _c in requests], groups)
+
+    def place_groups(self, texts, groups) -> list[QRectF | None]:
+        """:meth:`place` for each text in turn, its candidates a (k, 4) array of rows (x, y, w,
+        h). The candidates of every label are tested against the bounds and the symbols in one
+        pass first (:class:`SymbolRaster`), then placed in order, each clear of the labels
+        placed before it; the tests are QRectF's own (``contains``, ``intersects`` of the
+        rectangle grown by ``pad``), in the same arithmetic."""
+        counts = [len(g) for g in groups]
+        if not sum(counts):
+            return [None] * len(groups)
+        flat = np.concatenate([np.asarray(g, float).reshape(-1, 4) for g in groups])
+        verdicts, padded = self._verdicts(flat)
+        rects = flat.tolist()
+        out: list[QRectF | None] = []
+        labels, symbols = self.labels, self.index.hits_box
+        k = 0
+        for text, n in zip(texts, counts):
+            found = None
+            for j in range(k, k + n):
+                verdict = verdicts[j]
+                if verdict == 1:
+                    continue
+                box = padded[j]
+                if labels.hits_box(*box) or (verdict == 0 and symbols(*box)):
+                    continue
+                x, y, w, h = rects[j]
+                labels.add_box((min(x, x + w), min(y, y + h), max(x, x + w), max(y, y + h)))
+                found = QRectF(x, y, w, h)
+                self.placed.append((text, QRectF(found)))
+                break
+            out.append(found)
+            k += n
+        return out
+
+    def _verdicts(self, xywh: np.ndarray) -> tuple[list[int], list[list[float]]]:
+        """Per candidate (x, y, w, h): 1 when it is outside the bounds or certainly overlaps a
+        symbol, -1 when certainly clear of every symbol, 0 when the rectangles must tell; and
+        each one grown by ``pad`` as (left, top, right, bottom)."""
+        x, y, w, h = xywh.T
+        p = self.pad
+        # QRectF.adjusted(-p, -p, p, p): x - p, width (w + p) + p
+        px, py = x - p, y - p
+        pw, ph = (w + p) + p, (h + p) + p
+        box = np.column_stack([np.minimum(px, px + pw), np.minimum(py, py + ph),
+                               np.maximum(px, px + pw), np.maximum(py, py + ph)])
+        if self.symbols:
+            if self._raster is None:
+                self._raster = SymbolRaster(self.symbols, self._raster_cell)
+            verdict = self._raster.verdicts(box)
+        else:
+            verdict = np.full(len(box), -1)
+        if self.bounds is not None:
+            verdict = np.where(_inside(self.bounds, x, y, w, h), verdict, 1)
+        return verdict.tolist(), box.tolist()
+
+
+def _inside(bounds: QRectF, x, y, w, h) -> np.ndarray:
+    """QRectF.contains(QRectF(x, y, w, h)) of many rectangles: False for a null one (zero
+    width or height) or a null ``bounds``."""
+    bx, by, bw, bh = bounds.getRect()
+    out = np.ones(len(x), bool)
+    for lo, size, blo, bsize in ((x, w, bx, bw), (y, h, by, bh)):
+        l1, r1 = (blo + bsize, blo) if bsize < 0 else (blo, blo + bsize)
+        if l1 == r1:
+            return np.zeros(len(x), bool)
+        l2 = np.where(size < 0, lo + size, lo)
+        r2 = np.where(size < 0, lo, lo + size)
+        out &= (l2 != r2) & (l2 >= l1) & (r2 <= r1)
+    return out
+
+
+def around_boxes(symbol: QRectF, w: float, h: float, gap: float) -> list[tuple]:
+    """:func:`around` as ``(x, y, w, h)`` tuples."""
+    sx, sy, sw, sh = symbol.getRect()
+    cx, cy = sx + sw / 2, sy + sh / 2
+    right, bottom = sx + sw, sy + sh
+    return [(cx - w / 2, bottom + gap, w, h), (cx - w / 2, sy - gap - h, w, h),
+            (right + gap, cy - h / 2, w, h), (sx - gap - w, cy - h / 2, w, h),
+            (right + gap, bottom + gap, w, h), (sx - gap - w, bottom + gap, w, h),
+            (right + gap, sy - gap - h, w, h), (sx - gap - w, sy - gap - h, w, h)]
+
+
+def shifted_boxes(rect, h: float, steps: int = 3) -> list[tuple]:
+    """:func:`shifted` as ``(x, y, w, h)`` tuples (``rect`` a QRectF or such a tuple)."""
+    x, y, w, rh = rect.getRect() if isinstance(rect, QRectF) else rect
+    out = [(x, y, w, rh)]
+    for k in range(1, steps + 1):
+        out.append((x, y + -k * 0.9 * h, w, rh))
+        out.append((x, y + k * 0.9 * h, w, rh))
+    return out
 
 
 def around(symbol: QRectF, w: float, h: float, gap: float):
     """Candidate label rectangles (w x h) round a symbol, ``gap`` away: below, above, right,
     left, then the four corners."""
-    c = symbol.center()
-    yield QRectF(c.x() - w / 2, symbol.bottom() + gap, w, h)
-    yield QRectF(c.x() - w / 2, symbol.top() - gap - h, w, h)
-    yield QRectF(symbol.right() + gap, c.y() - h / 2, w, h)
-    yield QRectF(symbol.left() - gap - w, c.y() - h / 2, w, h)
-    yield QRectF(symbol.right() + gap, symbol.bottom() + gap, w, h)
-    yield QRectF(symbol.left() - gap - w, symbol.bottom() + gap, w, h)
-    yield QRectF(symbol.right() + gap, symbol.top() - gap - h, w, h)
-    yield QRectF(symbol.left() - gap - w, symbol.top() - gap - h, w, h)
+    for box in around_boxes(symbol, w, h, gap):
+        yield QRectF(*box)
 
 
 def shifted(rect: QRectF, h: float, steps: int = 3):
     """``rect``, then shifted up and down by up to ``steps`` lines."""
-    yield QRectF(rect)
-    for k in range(1, steps + 1):
-        yield rect.translated(0, -k * 0.9 * h)
-        yield rect.translated(0, k * 0.9 * h)
+    for box in shifted_boxes(rect, h, steps):
+        yield QRectF(*box)
 
 
 def segment_boxes(p1: QPointF, p2: QPointF, half_width: float, pieces: int = 8) -> list[QRectF]:
@@ -143,4 +341,5 @@ def segment_boxes(p1: QPointF, p2: QPointF, half_width: float, pieces: int = 8) 
     return out
 
 
-__all__ = ["LabelPlacer", "RectIndex", "around", "shifted", "segment_boxes", "PAD"]
+__all__ = ["LabelPlacer", "RectIndex", "SymbolRaster", "around", "shifted", "around_boxes",
+           "shifted_boxes", "segment_boxes", "PAD"]

@@ -100,6 +100,7 @@ class SketchLayout:
             base = max(8.0, min(base, 0.55 * spacing))
         self.base = base
         self.extent_m = extent if extent > 1e-12 else 1.0
+        self._rest_ends: dict = {}
         self._turns = {}
         for s in model.springs:
             a = self.attach(s.a, _bodies.offset_of(s, "a"))
@@ -258,7 +259,20 @@ class SketchLayout:
         ``lane`` is a perpendicular offset in device units (parallel elements between the same
         two nodes are drawn side by side). Ends are trimmed to the edges of mass blocks; an end
         with an attachment offset (m, on a body) ends exactly on its attachment point.
+        At rest (no ``displacements``) the ends are kept: the layout's geometry is fixed
+        (:meth:`rebind` takes only a model of the same geometry), and the drawing at rest, its
+        labels and the symbols they avoid each ask for every link's ends.
         """
+        if not displacements:
+            key = (a, b, lane, a_offset, b_offset)
+            ends = self._rest_ends.get(key)
+            if ends is None:
+                ends = self._rest_ends[key] = self._link_ends(a, b, lane, None, 1.0,
+                                                              a_offset, b_offset)
+            return QPointF(ends[0]), QPointF(ends[1])
+        return self._link_ends(a, b, lane, displacements, scale, a_offset, b_offset)
+
+    def _link_ends(self, a, b, lane, displacements, scale, a_offset, b_offset):
         pa = self.attach(a, a_offset, displacements, scale)
         pb = self.attach(b, b_offset, displacements, scale)
         dx, dy = pb.x() - pa.x(), pb.y() - pa.y()
@@ -988,30 +1002,45 @@ def _paint_arrays(painter: QPainter, lay: SketchLayout, points, st: Style, grey:
 
 
 def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
-    from app.drawing.labels import LabelPlacer, around, segment_boxes, shifted
+    """Place the labels ``texts`` (:func:`_label_texts`) on the drawing at rest: ``[(text,
+    QRectF, colour)]`` of those that found room. Masses and links of a translation model
+    without rigid bodies are done with arrays (:func:`_fast_label_parts`: their geometry is
+    :func:`_frame_arrays`' own), everything else element by element; both give the same
+    symbols to keep off and the same candidates in the same order."""
+    from app.drawing.labels import LabelPlacer, around_boxes, segment_boxes, shifted_boxes
 
     model = lay.model
     base = lay.base
     h = fm.height()
     placer = LabelPlacer(h, lay.rect.adjusted(1, 1, -1, -1))
     sweep = max(0.0, motion_px)
-    moving = {m.id for m in model.masses}
+    widths = [fm.horizontalAdvance(t) for _k, _e, t in texts]
+    fast = _fast_label_parts(lay, texts, widths, h, sweep, placer.pad) \
+        if _paint_rest_fast(lay) else None
     # what labels keep off: every symbol at rest, widened by the room it sweeps when it moves
     for a in model.anchors:
         c = lay.point(a.id)
         placer.block(QRectF(c.x() - 0.8 * base, c.y() - 0.8 * base, 1.6 * base, 1.6 * base))
     lanes = lay.lanes()
-    for el in list(model.springs) + list(model.dampers):
-        p1, p2 = lay.ends_of(el, lanes.get(el.id, 0.0))
-        grow = sweep if (el.a in moving or el.b in moving) else 0.0
-        for box in segment_boxes(p1, p2, 0.21 * base):
-            placer.block(box.adjusted(-grow, -grow, grow, grow))
+    if fast is not None:
+        placer.block_boxes(fast["blocks"])
+        ends = {}
+    else:
+        moving = {m.id for m in model.masses}
+        # each link's ends once (trimmed to the blocks: the costly part of a link's geometry)
+        ends = {el.id: lay.ends_of(el, lanes.get(el.id, 0.0))
+                for el in list(model.springs) + list(model.dampers)}
+        for el in list(model.springs) + list(model.dampers):
+            p1, p2 = ends[el.id]
+            grow = sweep if (el.a in moving or el.b in moving) else 0.0
+            for box in segment_boxes(p1, p2, 0.21 * base):
+                placer.block(box.adjusted(-grow, -grow, grow, grow))
     for g in getattr(model, "gears", ()):
         p1, p2 = lay.link_ends(g.a, g.b, 0.0)
         for box in segment_boxes(p1, p2, 0.55 * base):
             placer.block(box)
     mass_box = {}
-    for m in model.masses:
+    for m in ([] if fast is not None else model.masses):
         c = lay.point(m.id)
         half = _symbol_half(lay, m)
         box = QRectF(c.x() - half, c.y() - half, 2 * half, 2 * half)
@@ -1028,20 +1057,22 @@ def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
         placer.block(QRectF(o, tip).normalized().adjusted(-0.3 * base, -0.3 * base,
                                                           0.3 * base, 0.3 * base))
 
-    out = []
-    for kind, el, text in texts:
-        w = fm.horizontalAdvance(text)
+    groups, colors = [], []
+    for i, (kind, el, text) in enumerate(texts):
+        w = widths[i]
         color = st.label
-        if kind == "mass":
+        if fast is not None and i in fast["candidates"]:
+            cands = fast["candidates"][i]
+        elif kind == "mass":
             box = mass_box[el.id].adjusted(-sweep, -sweep, sweep, sweep)
             gap = 0.2 * base + placer.pad + 1     # the clear space round a label included
             side = _free_side(lay, el.id)
             c = box.center()
-            first = {"below": QRectF(c.x() - w / 2, box.bottom() + gap, w, h),
-                     "above": QRectF(c.x() - w / 2, box.top() - gap - h, w, h),
-                     "right": QRectF(box.right() + gap, c.y() - h / 2, w, h),
-                     "left": QRectF(box.left() - gap - w, c.y() - h / 2, w, h)}[side]
-            cands = [first] + list(around(box, w, h, gap))
+            first = {"below": (c.x() - w / 2, box.bottom() + gap, w, h),
+                     "above": (c.x() - w / 2, box.top() - gap - h, w, h),
+                     "right": (box.right() + gap, c.y() - h / 2, w, h),
+                     "left": (box.left() - gap - w, c.y() - h / 2, w, h)}[side]
+            cands = [first] + around_boxes(box, w, h, gap)
         elif kind == "anchor":
             color = st.ink_soft
             c = lay.point(el.id)
@@ -1051,40 +1082,162 @@ def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
             g = placer.pad + 1
             if abs(normal.x()) > 0.5:
                 x = box.left() - g - w if normal.x() > 0 else box.right() + g
-                first = QRectF(x, c.y() - h / 2, w, h)
+                first = (x, c.y() - h / 2, w, h)
             else:
                 y = box.bottom() + g if normal.y() < 0 else box.top() - g - h
-                first = QRectF(c.x() - w / 2, y, w, h)
-            cands = [first] + list(around(box, w, h, g))
+                first = (c.x() - w / 2, y, w, h)
+            cands = [first] + around_boxes(box, w, h, g)
         elif kind == "axis":
             color = st.ink_soft
             o = _axis_origin(lay)
             if model.axis == "x":
-                first = QRectF(o.x() + 1.2 * base + 4, o.y() - h / 2, w, h)
+                first = (o.x() + 1.2 * base + 4, o.y() - h / 2, w, h)
             else:
-                first = QRectF(o.x() + 0.4 * base, o.y() - 1.2 * base - h / 2, w, h)
+                first = (o.x() + 0.4 * base, o.y() - 1.2 * base - h / 2, w, h)
             cands = [first]
         elif kind == "gear":
             p1, p2 = lay.link_ends(el.a, el.b, 0.0)
             pos = _beside(p1, p2, 0.55 * base + 0.35 * h + 2, fm, text)
-            first = QRectF(pos.x() - w / 2, pos.y() - h / 2, w, h)
+            first = (pos.x() - w / 2, pos.y() - h / 2, w, h)
             mid = QPointF(0.5 * (p1.x() + p2.x()), 0.5 * (p1.y() + p2.y()))
             r = 0.55 * base
-            cands = list(shifted(first, h)) + list(around(
-                QRectF(mid.x() - r, mid.y() - r, 2 * r, 2 * r), w, h, placer.pad + 1))
+            cands = shifted_boxes(first, h) + around_boxes(
+                QRectF(mid.x() - r, mid.y() - r, 2 * r, 2 * r), w, h, placer.pad + 1)
         else:
-            p1, p2 = lay.ends_of(el, lanes.get(el.id, 0.0))
+            p1, p2 = ends[el.id]
             pos = _beside(p1, p2, 0.21 * base + 0.35 * h + 2 + sweep, fm, text,
                           lanes.get(el.id, 0.0))
-            first = QRectF(pos.x() - w / 2, pos.y() - h / 2, w, h)
+            first = (pos.x() - w / 2, pos.y() - h / 2, w, h)
             mid = QPointF(0.5 * (p1.x() + p2.x()), 0.5 * (p1.y() + p2.y()))
             r = 0.21 * base + sweep
-            cands = list(shifted(first, h)) + list(around(
-                QRectF(mid.x() - r, mid.y() - r, 2 * r, 2 * r), w, h, placer.pad + 1))
-        rect = placer.place(text, cands)
-        if rect is not None:
-            out.append((text, rect, color))
-    return out
+            cands = shifted_boxes(first, h) + around_boxes(
+                QRectF(mid.x() - r, mid.y() - r, 2 * r, 2 * r), w, h, placer.pad + 1)
+        groups.append(np.asarray(cands, float).reshape(-1, 4))
+        colors.append(color)
+    # every label's candidates tested against the symbols in one pass, then placed in order
+    rects = placer.place_groups([t for _k, _e, t in texts], groups)
+    return [(text, rect, color) for (_k, _e, text), rect, color in zip(texts, rects, colors)
+            if rect is not None]
+
+
+def _fast_label_parts(lay, texts, widths, h: float, sweep: float, pad: float) -> dict:
+    """The masses' and links' share of :func:`_place_labels` for a translation model without
+    rigid bodies, with arrays: ``blocks`` (k, 4) left, top, right, bottom of their symbols
+    (each link in :func:`segment_boxes` pieces, grown by the sweep when a mass ends it; each
+    block with its lock marks, grown by the sweep) and ``candidates`` {index in ``texts``:
+    (m, 4) x, y, w, h}, as the element-by-element code makes them."""
+    model = lay.model
+    base = lay.base
+    fd = _frame_arrays(lay)
+    nm = fd["n_masses"]
+    rest = fd["rest"]
+    mass_values = np.array([m.mass for m in model.masses], float)
+    half = np.where(mass_values > 0, fd["half"][:nm], 0.14 * base)
+    x, y = rest[:nm, 0] - half, rest[:nm, 1] - half
+    w = h_box = 2 * half
+    fixed = np.array([bool(m.fixed) for m in model.masses], bool)
+    # QRectF.adjusted(-0.4 base, 0, 0, 0.4 base) for the lock marks
+    x = np.where(fixed, x - 0.4 * base, x)
+    w = np.where(fixed, w + 0.4 * base, w)
+    h_box = np.where(fixed, h_box + 0.4 * base, h_box)
+    # grown by the sweep: adjusted(-s, -s, s, s)
+    bx, by, bw, bh = x - sweep, y - sweep, (w + sweep) + sweep, (h_box + sweep) + sweep
+    blocks = [np.column_stack([bx, by, bx + bw, by + bh])]
+    cands: dict = {}
+
+    links = list(model.springs) + list(model.dampers)
+    ends = []
+    for key, group in (("springs", model.springs), ("dampers", model.dampers)):
+        if len(group):
+            ends.append(_link_ends(fd, rest, fd[key]))
+    if links:
+        p1 = np.concatenate([e[0] for e in ends])
+        p2 = np.concatenate([e[1] for e in ends])
+        is_mass = set(fd["mass_ids"])
+        grow = np.array([sweep if (el.a in is_mass or el.b in is_mass) else 0.0
+                         for el in links], float)
+        blocks.append(_segment_box_array(p1, p2, 0.21 * base, grow))
+
+    index = {(kind, id(el)): i for i, (kind, el, _t) in enumerate(texts)}
+    gap = 0.2 * base + pad + 1
+    for j, m in enumerate(model.masses):
+        i = index.get(("mass", id(m)))
+        if i is None:
+            continue
+        tw = widths[i]
+        cx, cy = bx[j] + bw[j] / 2, by[j] + bh[j] / 2
+        left, top, right, bottom = bx[j], by[j], bx[j] + bw[j], by[j] + bh[j]
+        side = _free_side(lay, m.id)
+        first = {"below": (cx - tw / 2, bottom + gap, tw, h),
+                 "above": (cx - tw / 2, top - gap - h, tw, h),
+                 "right": (right + gap, cy - h / 2, tw, h),
+                 "left": (left - gap - tw, cy - h / 2, tw, h)}[side]
+        cands[i] = np.array([first] + _around_rows(left, top, right, bottom, bw[j], bh[j], tw,
+                                                   h, gap))
+    lanes = lay.lanes()
+    r = 0.21 * base + sweep
+    off = 0.21 * base + 0.35 * h + 2 + sweep
+    for k, el in enumerate(links):
+        i = index.get(("spring" if k < len(model.springs) else "dashpot", id(el)))
+        if i is None:
+            continue
+        tw = widths[i]
+        px, py = _beside_xy(p1[k], p2[k], off, tw, lanes.get(el.id, 0.0))
+        fx, fy = px - tw / 2, py - h / 2
+        rows = [(fx, fy, tw, h)]
+        for s in range(1, 4):
+            rows.append((fx, fy + -s * 0.9 * h, tw, h))
+            rows.append((fx, fy + s * 0.9 * h, tw, h))
+        mx, my = 0.5 * (p1[k, 0] + p2[k, 0]), 0.5 * (p1[k, 1] + p2[k, 1])
+        sx, sy = mx - r, my - r
+        rows += _around_rows(sx, sy, sx + 2 * r, sy + 2 * r, 2 * r, 2 * r, tw, h, pad + 1)
+        cands[i] = np.array(rows)
+    return {"blocks": np.concatenate(blocks), "candidates": cands}
+
+
+def _around_rows(left, top, right, bottom, w_box, h_box, w, h, gap) -> list[tuple]:
+    """:func:`app.drawing.labels.around_boxes` of the box (left, top, right, bottom)."""
+    cx, cy = left + w_box / 2, top + h_box / 2
+    return [(cx - w / 2, bottom + gap, w, h), (cx - w / 2, top - gap - h, w, h),
+            (right + gap, cy - h / 2, w, h), (left - gap - w, cy - h / 2, w, h),
+            (right + gap, bottom + gap, w, h), (left - gap - w, bottom + gap, w, h),
+            (right + gap, top - gap - h, w, h), (left - gap - w, top - gap - h, w, h)]
+
+
+def _segment_box_array(p1, p2, half_width: float, grow) -> np.ndarray:
+    """:func:`app.drawing.labels.segment_boxes` of every link (rows of ``p1``, ``p2``), each
+    box grown by its link's ``grow``: (k, 4) left, top, right, bottom."""
+    d = p2 - p1
+    along_axis = np.minimum(np.abs(d[:, 0]), np.abs(d[:, 1])) <= 0.25 * half_width
+    out = []
+    for pieces, sel in ((1, along_axis), (8, ~along_axis)):
+        if not sel.any():
+            continue
+        q1, dd, g = p1[sel], d[sel], grow[sel]
+        for i in range(pieces):
+            a = q1 + dd * i / pieces
+            b = q1 + dd * (i + 1) / pieces
+            lo, hi = np.minimum(a, b), np.maximum(a, b)
+            pad = (half_width + g)[:, None]
+            out.append(np.column_stack([lo - pad, hi + pad]))
+    return np.concatenate(out) if out else np.zeros((0, 4))
+
+
+def _beside_xy(p1, p2, off: float, text_width: float, lane: float = 0.0) -> tuple[float, float]:
+    """:func:`_beside` of plain coordinates."""
+    mx, my = 0.5 * (p1[0] + p2[0]), 0.5 * (p1[1] + p2[1])
+    dx, dy = p2[0] - p1[0], p2[1] - p1[1]
+    length = math.hypot(dx, dy)
+    if length < 1e-9:
+        return mx, my - off
+    nx, ny = -dy / length, dx / length
+    if abs(lane) > 1e-9:
+        if lane < 0:
+            nx, ny = -nx, -ny
+    elif ny > 0 or (abs(ny) < 1e-9 and nx < 0):
+        nx, ny = -nx, -ny                 # above (screen) or to the right
+    extra = 0.5 * text_width * abs(nx)
+    return mx + nx * (off + extra), my + ny * off
 
 
 def _beside(p1: QPointF, p2: QPointF, off: float, fm: QFontMetricsF, text: str,

@@ -96,3 +96,111 @@ def test_canvas_labels_reused_for_the_same_drawing_and_searched_for_a_new_one(
     window.document.undo_stack.undo()
     qtbot.wait(20)
     assert runs == [1] and _label_places(scene) == first
+
+
+def test_symbol_raster_never_contradicts_the_rectangles():
+    """Qt (QRectF.intersects), brute force: the raster's "clear" (-1) and "overlaps" (1) are
+    always what the rectangles say; it may only answer "cannot tell" (0). Rectangles of every
+    size, touching edges, off-grid and null ones, with cells finer and coarser than them."""
+    from app.drawing.labels import SymbolRaster, _coords
+
+    rng = np.random.default_rng(23)
+    undecided = 0
+    for cell in (0.7, 3.0, 25.0):
+        stored = [r for r in _random_rects(rng, 200) if not r.normalized().isNull()]
+        raster = SymbolRaster([_coords(r) for r in stored], cell)
+        queries = _random_rects(rng, 800) + [QRectF(r) for r in stored[:50]] + \
+            [r.translated(r.width(), 0) for r in stored[:50]] + \
+            [r.adjusted(1e-9, 1e-9, -1e-9, -1e-9) for r in stored[:50]]
+        verdicts = raster.verdicts([_coords(q) for q in queries])
+        for q, v in zip(queries, verdicts):
+            truth = any(q.intersects(r) for r in stored)
+            assert v == 0 or v == (1 if truth else -1), (cell, q, v, truth)
+        undecided += int(np.sum(verdicts == 0))
+    # it decides most queries (what it is for); the count can fail only if it stops deciding
+    assert undecided < 0.5 * 3 * 950
+
+
+def test_place_groups_of_tuples_is_place_of_rectangles():
+    """Qt (QRectF.contains, QRectF.intersects): candidates given as (x, y, w, h) rows give the
+    same places as the same candidates given as QRectF, and both are the first candidate inside
+    the bounds and clear of every symbol and earlier label."""
+    rng = np.random.default_rng(31)
+    bounds = QRectF(0, 0, 400, 300)
+    symbols = _random_rects(rng, 80)
+    requests = [(f"label {k}", _random_rects(rng, 7)) for k in range(250)]
+    by_rect, by_row = LabelPlacer(14.0, bounds), LabelPlacer(14.0, bounds)
+    for r in symbols:
+        by_rect.block(r)
+        by_row.block(r)
+    got_rect = [by_rect.place(t, c) for t, c in requests]
+    got_row = by_row.place_groups([t for t, _c in requests],
+                                  [np.array([c.getRect() for c in cands]) for _t, cands in requests])
+    assert got_rect == got_row
+    taken, p = list(symbols), by_rect.pad
+    for (_t, cands), got in zip(requests, got_rect):
+        expect = next((c for c in cands if bounds.contains(c) and
+                       not any(c.adjusted(-p, -p, p, p).intersects(o) for o in taken)), None)
+        assert got == expect
+        if got is not None:
+            taken.append(got)
+    assert sum(g is not None for g in got_rect) > 20
+
+
+def _sketch_models():
+    from solver.model import Anchor, Damper, Mass, Model, Spring
+
+    rng = np.random.default_rng(5)
+    chain = Model(
+        kind="line", name="chain",
+        masses=tuple(Mass(f"m{i}", 0.3 * (i + 1), 0.0, float(rng.uniform(0.2, 5.0)),
+                          fixed=("x",) if i == 7 else ()) for i in range(60))
+        + (Mass("j", 20.0, 0.0, 0.0),),
+        anchors=(Anchor("g", 0.0, 0.0),),
+        springs=(Spring("s0", "g", "m0", 1e4), Spring("p0", "g", "m0", 2e4))
+        + tuple(Spring(f"s{i}", f"m{i - 1}", f"m{i}", 1e4) for i in range(1, 60))
+        + (Spring("sj", "m59", "j", 1e4),),
+        dampers=(Damper("d0", "g", "m0", 30.0), Damper("d1", "m3", "m4", 5.0)))
+    planar = Model(
+        kind="planar", name="frame",
+        masses=tuple(Mass(f"n{r}{c}", 0.5 * c + 0.1 * r, 0.4 * r + 0.05 * c, 1.0 + r + c)
+                     for r in range(4) for c in range(5)),
+        anchors=(Anchor("a", -0.5, 0.0), Anchor("b", -0.5, 1.2)),
+        springs=(Spring("sa", "a", "n00", 1e4), Spring("sb", "b", "n30", 1e4))
+        + tuple(Spring(f"h{r}{c}", f"n{r}{c - 1}", f"n{r}{c}", 1e4)
+                for r in range(4) for c in range(1, 5))
+        + tuple(Spring(f"v{r}{c}", f"n{r - 1}{c}", f"n{r}{c}", 1e4)
+                for r in range(1, 4) for c in range(5))
+        + tuple(Spring(f"x{r}{c}", f"n{r - 1}{c - 1}", f"n{r}{c}", 5e3)
+                for r in range(1, 4) for c in range(1, 5)))
+    return chain, planar
+
+
+def test_array_label_placement_is_the_element_by_element_one(qapp, monkeypatch):
+    """The masses' and links' labels of a translation model placed with arrays give the same
+    labels in the same places as the element-by-element code the other models use (itself
+    checked against Qt above): parallel links on lanes, a dashpot, a locked mass, a junction,
+    diagonal links, with and without the room moving symbols sweep."""
+    from PySide6.QtGui import QFont, QFontMetricsF
+
+    from app.drawing import sketch
+    from app.drawing.style import LIGHT
+
+    font = QFont()
+    font.setPixelSize(11)
+    fm = QFontMetricsF(font)
+    compared = 0
+    for model in _sketch_models():
+        for size, sweep in (((900, 300), 0.0), ((500, 400), 6.0), ((300, 200), 0.0)):
+            lay = sketch.SketchLayout(model, QRectF(0, 0, *size))
+            texts = sketch._label_texts(lay, True, None)
+            assert sketch._paint_rest_fast(lay)
+            fast = sketch._place_labels(lay, LIGHT, texts, fm, sweep)
+            monkeypatch.setattr(sketch, "_paint_rest_fast", lambda _lay: False)
+            slow = sketch._place_labels(lay, LIGHT, texts, fm, sweep)
+            monkeypatch.undo()
+            assert [t for t, _r, _c in fast] == [t for t, _r, _c in slow]
+            for (_t, a, _ca), (_t2, b, _cb) in zip(fast, slow):
+                assert np.allclose(a.getRect(), b.getRect(), atol=1e-9)
+            compared += len(fast)
+    assert compared > 100
