@@ -10,6 +10,7 @@ from PySide6.QtCore import QAbstractTableModel, QEvent, QModelIndex, Qt, Signal
 from PySide6.QtGui import QColor, QGuiApplication
 from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QLabel, QTableView, QVBoxLayout, QWidget
 
+from app.document.solve_service import same_solve
 from app.drawing.style import current_style
 from app.results.mode_rows import (_modal, mode_table_cells, mode_table_csv, mode_table_header,
                                    mode_table_rows, write_mode_table_csv)
@@ -174,6 +175,10 @@ class ModesTable(QWidget):
     # -- public API --------------------------------------------------------------------------
     def set_analysis(self, analysis) -> None:
         """Show an analysis (or None to clear); keeps the selected mode number when it exists."""
+        if not self._stale and same_solve(analysis, self._analysis) and analysis is not None:
+            # the same solve's results (a line model moved on the page): every cell is as shown
+            self._analysis = self._model._analysis = analysis
+            return
         keep = self.selected_mode()
         self._analysis = analysis
         self._updating = True

@@ -42,7 +42,7 @@ from solver.model import Mass, Spring
 
 from app.docks.on_screen import behind_tab
 from app.drawing.plot_axes import log_ticks, paint_whole, true_value_axes
-from app.document.solve_service import dof_count
+from app.document.solve_service import dof_count, physics_key
 from app.drawing.style import CURVE_WIDTH, current_style
 from app.results.names import names
 from app.results.source_text import order_frequencies, speed_text
@@ -76,10 +76,13 @@ def differs_only_in(model, base, element_id: str, field: str) -> bool:
     sweep of ``base`` over that field is then the sweep of ``model`` too): the same answer as
     comparing ``with_value(model, ...)`` to ``with_value(base, ...)``. Elements an edit did not
     touch are the same objects in both models and are compared by identity first (2,000
-    elements: well under a millisecond, against several to build and validate a model)."""
+    elements: well under a millisecond, against several to build and validate a model).
+    Where the nodes of a line or torsion model are drawn is no difference: it enters neither
+    its matrices nor its sweep (:func:`app.document.solve_service.physics_key`)."""
     attr = "mass" if field == "inertia" else field
     if type(model) is not type(base):
         return False
+    place = ("x", "y") if getattr(model, "kind", "planar") != "planar" else ()
     for fl in dataclasses.fields(model):
         a, b = getattr(model, fl.name), getattr(base, fl.name)
         if a is b:
@@ -91,11 +94,13 @@ def differs_only_in(model, base, element_id: str, field: str) -> bool:
         for x, y in zip(a, b):
             if x is y:
                 continue
-            if (type(x) is type(y) and dataclasses.is_dataclass(x)
-                    and getattr(x, "id", None) == element_id == getattr(y, "id", None)
-                    and hasattr(x, attr)):
+            if type(x) is type(y) and dataclasses.is_dataclass(x):
+                skip = place
+                if getattr(x, "id", None) == element_id == getattr(y, "id", None) and \
+                        hasattr(x, attr):
+                    skip = place + (attr,)
                 if any(getattr(x, g.name) != getattr(y, g.name)
-                       for g in dataclasses.fields(x) if g.name != attr):
+                       for g in dataclasses.fields(x) if g.name not in skip):
                     return False
             elif x != y:
                 return False
@@ -460,6 +465,7 @@ class TunePanel(QWidget):
         lay.addWidget(split)
         self._cursor = None
         self._cursor_dots = None
+        self._cursor_key = None        # what the cursor dots show (_update_cursor)
         self._proposal_line = None
 
     # -- display units ------------------------------------------------------------------------
@@ -1044,6 +1050,7 @@ class TunePanel(QWidget):
                                       symbolPen=pg.mkPen(st.background))
         self._cursor = pg.InfiniteLine(angle=90, pen=pg.mkPen(st.accent, width=2))
         pi.addItem(self._cursor)
+        self._cursor_key = None
         self._cursor_dots = pi.plot([], [], pen=None, symbol="o", symbolSize=8,
                                     symbolBrush=pg.mkBrush(st.accent),
                                     symbolPen=pg.mkPen(st.background))
@@ -1068,9 +1075,21 @@ class TunePanel(QWidget):
             return
         self._cursor.setPos(math.log10(v / self._plot_factor))
         a = self._analysis
-        if a is not None and a.model is model:
+        # results of this model, or of it as it was before it was moved on the page (a line
+        # or torsion model: the same frequencies)
+        current = a is not None and (a.model is model or (
+            physics_key(model) is not None and physics_key(a.model) == physics_key(model)))
+        st = current_style()
+        key = (v, self._plot_factor, a.modal.eigenvalues if current else None, st.name,
+               model.excitations if current else None, model.margin_percent)
+        if self._cursor_key is not None and len(key) == len(self._cursor_key) and all(
+                x is y or not (isinstance(x, np.ndarray) or isinstance(y, np.ndarray))
+                and x == y
+                for x, y in zip(key, self._cursor_key)):
+            return       # the dots are as they would be drawn
+        self._cursor_key = key
+        if current:
             fr = np.asarray(a.modal.frequencies_hz, float)
-            st = current_style()
             bad = {c.mode for c in solver.margin_check(model, a.modal).conflicts} \
                 if model.excitations else set()
             # a mode inside a widened band is marked in the error colour at the cursor (one

@@ -18,6 +18,10 @@ newer one.
 The analyses of the last few models are kept (:data:`CACHE_SIZE`): an undo, a redo or an edit
 typed back to an earlier value gives a model equal to one already solved, and its results come
 back without a new solve. Models are immutable values, so an equal model has the same results.
+A line or torsion model moved on the page (a mass dragged) is solved no more either: where its
+nodes are drawn enters neither its matrices nor any text of its results (a planar model's
+positions set its springs' directions), so the results of the model as it was are those of the
+moved one (:func:`physics_key`), handed out with the moved model in them.
 """
 
 from __future__ import annotations
@@ -50,6 +54,68 @@ def analyse(model):
     return offload.analyse(model)
 
 
+
+
+_PLACE = ("x", "y")
+#: physics_key's memos: (node, its fields but the position) by id, (model, key) by id (the
+#: objects are kept, so an id is never taken for another object's)
+_UNPLACED: dict = {}
+_KEYS: OrderedDict = OrderedDict()
+
+
+def physics_key(model):
+    """What a line or torsion model's results depend on: the model with its masses' and
+    anchors' positions on the page left out (hashable); None for a planar model, whose
+    positions give its springs' directions, or for a model that cannot be hashed."""
+    if getattr(model, "kind", "planar") == "planar":
+        return None
+    known = _KEYS.get(id(model))
+    if known is not None and known[0] is model:
+        return known[1]
+    if len(_UNPLACED) > 50_000:
+        _UNPLACED.clear()
+
+    def unplaced(node):
+        # an edit replaces the elements it touches and keeps the others (the same objects)
+        found = _UNPLACED.get(id(node))
+        if found is None or found[0] is not node:
+            found = _UNPLACED[id(node)] = (node, (type(node),) + tuple(
+                getattr(node, f.name) for f in dataclasses.fields(node) if f.name not in _PLACE))
+        return found[1]
+
+    key = tuple((f.name, tuple(unplaced(n) for n in getattr(model, f.name)))
+                if f.name in ("masses", "anchors") else (f.name, getattr(model, f.name))
+                for f in dataclasses.fields(model))
+    try:
+        hash(key)
+    except TypeError:
+        key = None
+    _KEYS[id(model)] = (model, key)
+    while len(_KEYS) > 2 * CACHE_SIZE:
+        _KEYS.popitem(last=False)
+    return key
+
+
+def rebound(analysis, model):
+    """``analysis`` of a model with the same :func:`physics_key` as ``model``, with ``model``
+    in it (in the system its modes belong to as well)."""
+    if analysis.model is model:
+        return analysis
+    system = dataclasses.replace(analysis.system, model=model)
+    modal = dataclasses.replace(analysis.modal, system=system)
+    return dataclasses.replace(analysis, model=model, system=system, modal=modal)
+
+
+def same_solve(a, b) -> bool:
+    """True when analyses ``a`` and ``b`` are one solve's numbers (handed out again for an
+    equal model, or by :func:`rebound` for one moved on the page): every number and text of
+    their modes is the same, only the models may differ in where their nodes are drawn."""
+    if a is b:
+        return True
+    if a is None or b is None:
+        return False
+    return (a.modal.eigenvalues is b.modal.eigenvalues and a.energy is b.energy
+            and a.sensitivity is b.sensitivity and a.warnings == b.warnings)
 
 
 class _Relay(QObject):
@@ -120,6 +186,7 @@ class SolveService(QObject):
         self._burst_timer.timeout.connect(lambda: self._timer.start())
         self._last_request = -1e9
         self._cache: OrderedDict = OrderedDict()
+        self._by_physics: OrderedDict = OrderedDict()
         self.thread_dof_limit = thread_dof_limit
         self.immediate = bool(immediate)
         self._model = None
@@ -225,16 +292,22 @@ class SolveService(QObject):
             self._start()
 
     def cached(self, model):
-        """The analysis of a model equal to ``model`` solved recently (its ``model`` is
+        """The analysis of a model equal to ``model``, or of the same line or torsion model
+        placed elsewhere on the page (:func:`physics_key`), solved recently (its ``model`` is
         ``model`` itself), or None."""
         try:
             found = self._cache.get(model)
         except TypeError:      # an unhashable field: no reuse, never an error
             return None
-        if found is None:
-            return None
-        self._cache.move_to_end(model)
-        return found if found.model is model else dataclasses.replace(found, model=model)
+        if found is not None:
+            self._cache.move_to_end(model)
+        else:
+            key = physics_key(model)
+            found = self._by_physics.get(key) if key is not None else None
+            if found is None:
+                return None
+            self._by_physics.move_to_end(key)
+        return rebound(found, model)
 
     def _remember(self, analysis) -> None:
         model = getattr(analysis, "model", None)
@@ -247,6 +320,12 @@ class SolveService(QObject):
         self._cache.move_to_end(model)
         while len(self._cache) > CACHE_SIZE:
             self._cache.popitem(last=False)
+        key = physics_key(model)
+        if key is not None:
+            self._by_physics[key] = analysis
+            self._by_physics.move_to_end(key)
+            while len(self._by_physics) > CACHE_SIZE:
+                self._by_physics.popitem(last=False)
 
     def offer(self, model, analysis) -> bool:
         """Take results computed elsewhere (the tune panel solves small models at once while a

@@ -1058,9 +1058,10 @@ def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
                                                           0.3 * base, 0.3 * base))
 
     groups, colors = [], []
+    label_color, soft = st.label, st.ink_soft
     for i, (kind, el, text) in enumerate(texts):
         w = widths[i]
-        color = st.label
+        color = soft if kind in ("anchor", "axis") else label_color
         if fast is not None and i in fast["candidates"]:
             cands = fast["candidates"][i]
         elif kind == "mass":
@@ -1074,7 +1075,6 @@ def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
                      "left": (box.left() - gap - w, c.y() - h / 2, w, h)}[side]
             cands = [first] + around_boxes(box, w, h, gap)
         elif kind == "anchor":
-            color = st.ink_soft
             c = lay.point(el.id)
             normal = lay.anchor_normal(el.id)
             box = QRectF(c.x() - 0.8 * base, c.y() - 0.8 * base, 1.6 * base, 1.6 * base)
@@ -1088,7 +1088,6 @@ def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
                 first = (c.x() - w / 2, y, w, h)
             cands = [first] + around_boxes(box, w, h, g)
         elif kind == "axis":
-            color = st.ink_soft
             o = _axis_origin(lay)
             if model.axis == "x":
                 first = (o.x() + 1.2 * base + 4, o.y() - h / 2, w, h)
@@ -1160,48 +1159,76 @@ def _fast_label_parts(lay, texts, widths, h: float, sweep: float, pad: float) ->
 
     index = {(kind, id(el)): i for i, (kind, el, _t) in enumerate(texts)}
     gap = 0.2 * base + pad + 1
-    for j, m in enumerate(model.masses):
-        i = index.get(("mass", id(m)))
-        if i is None:
-            continue
-        tw = widths[i]
-        cx, cy = bx[j] + bw[j] / 2, by[j] + bh[j] / 2
-        left, top, right, bottom = bx[j], by[j], bx[j] + bw[j], by[j] + bh[j]
-        side = _free_side(lay, m.id)
-        first = {"below": (cx - tw / 2, bottom + gap, tw, h),
-                 "above": (cx - tw / 2, top - gap - h, tw, h),
-                 "right": (right + gap, cy - h / 2, tw, h),
-                 "left": (left - gap - tw, cy - h / 2, tw, h)}[side]
-        cands[i] = np.array([first] + _around_rows(left, top, right, bottom, bw[j], bh[j], tw,
-                                                   h, gap))
-    lanes = lay.lanes()
-    r = 0.21 * base + sweep
-    off = 0.21 * base + 0.35 * h + 2 + sweep
-    for k, el in enumerate(links):
-        i = index.get(("spring" if k < len(model.springs) else "dashpot", id(el)))
-        if i is None:
-            continue
-        tw = widths[i]
-        px, py = _beside_xy(p1[k], p2[k], off, tw, lanes.get(el.id, 0.0))
+    rows = [(j, index[("mass", id(m))]) for j, m in enumerate(model.masses)
+            if ("mass", id(m)) in index]
+    if rows:
+        j = np.array([r[0] for r in rows])
+        tw = np.array([widths[r[1]] for r in rows], float)
+        left, top, bw_, bh_ = bx[j], by[j], bw[j], bh[j]
+        around = _around_array(left, top, left + bw_, top + bh_, bw_, bh_, tw, h, gap)
+        # first the side farthest from the links (below, above, right, left: rows 0-3)
+        side = np.array([_SIDES[_free_side(lay, model.masses[k].id)] for k in j])
+        first = around[np.arange(len(j)), side][:, None, :]
+        for (_j, i), group in zip(rows, np.concatenate([first, around], axis=1)):
+            cands[i] = group
+    kinds = ["spring"] * len(model.springs) + ["dashpot"] * len(model.dampers)
+    rows = [(k, index[(kind, id(el))]) for k, (kind, el) in enumerate(zip(kinds, links))
+            if (kind, id(el)) in index]
+    if rows:
+        k = np.array([r[0] for r in rows])
+        tw = np.array([widths[r[1]] for r in rows], float)
+        lanes = lay.lanes()
+        lane = np.array([lanes.get(links[q].id, 0.0) for q in k], float)
+        r = 0.21 * base + sweep
+        px, py = _beside_array(p1[k], p2[k], 0.21 * base + 0.35 * h + 2 + sweep, tw, lane)
         fx, fy = px - tw / 2, py - h / 2
-        rows = [(fx, fy, tw, h)]
-        for s in range(1, 4):
-            rows.append((fx, fy + -s * 0.9 * h, tw, h))
-            rows.append((fx, fy + s * 0.9 * h, tw, h))
-        mx, my = 0.5 * (p1[k, 0] + p2[k, 0]), 0.5 * (p1[k, 1] + p2[k, 1])
+        width, height = tw, np.full(len(k), h)
+        shifted = [np.column_stack([fx, fy, width, height])]
+        for step in range(1, 4):
+            shifted.append(np.column_stack([fx, fy + -step * 0.9 * h, width, height]))
+            shifted.append(np.column_stack([fx, fy + step * 0.9 * h, width, height]))
+        mx = 0.5 * (p1[k, 0] + p2[k, 0])
+        my = 0.5 * (p1[k, 1] + p2[k, 1])
         sx, sy = mx - r, my - r
-        rows += _around_rows(sx, sy, sx + 2 * r, sy + 2 * r, 2 * r, 2 * r, tw, h, pad + 1)
-        cands[i] = np.array(rows)
+        around = _around_array(sx, sy, sx + 2 * r, sy + 2 * r, np.full(len(k), 2 * r),
+                               np.full(len(k), 2 * r), tw, h, pad + 1)
+        groups = np.concatenate([np.stack(shifted, axis=1), around], axis=1)
+        for (_k, i), group in zip(rows, groups):
+            cands[i] = group
     return {"blocks": np.concatenate(blocks), "candidates": cands}
 
 
-def _around_rows(left, top, right, bottom, w_box, h_box, w, h, gap) -> list[tuple]:
-    """:func:`app.drawing.labels.around_boxes` of the box (left, top, right, bottom)."""
+#: Rows of :func:`_around_array` of a mass label's first choices (see :func:`_free_side`).
+_SIDES = {"below": 0, "above": 1, "right": 2, "left": 3}
+
+
+def _around_array(left, top, right, bottom, w_box, h_box, w, h: float, gap: float):
+    """:func:`app.drawing.labels.around_boxes` of many boxes (arrays left, top, right, bottom,
+    width, height; label widths ``w``): (n, 8, 4) rows x, y, w, h."""
     cx, cy = left + w_box / 2, top + h_box / 2
-    return [(cx - w / 2, bottom + gap, w, h), (cx - w / 2, top - gap - h, w, h),
-            (right + gap, cy - h / 2, w, h), (left - gap - w, cy - h / 2, w, h),
-            (right + gap, bottom + gap, w, h), (left - gap - w, bottom + gap, w, h),
-            (right + gap, top - gap - h, w, h), (left - gap - w, top - gap - h, w, h)]
+    hh = np.full(len(w), h)
+    xs = (cx - w / 2, cx - w / 2, right + gap, left - gap - w,
+          right + gap, left - gap - w, right + gap, left - gap - w)
+    ys = (bottom + gap, top - gap - h, cy - h / 2, cy - h / 2,
+          bottom + gap, bottom + gap, top - gap - h, top - gap - h)
+    return np.stack([np.column_stack([x, y, w, hh]) for x, y in zip(xs, ys)], axis=1)
+
+
+def _beside_array(p1, p2, off: float, text_width, lane):
+    """:func:`_beside` of many links (rows of ``p1``, ``p2``; arrays of label widths and
+    lanes): the label points' x and y."""
+    mx, my = 0.5 * (p1[:, 0] + p2[:, 0]), 0.5 * (p1[:, 1] + p2[:, 1])
+    dx, dy = p2[:, 0] - p1[:, 0], p2[:, 1] - p1[:, 1]
+    length = np.hypot(dx, dy)
+    short = length < 1e-9
+    safe = np.where(short, 1.0, length)
+    nx, ny = -dy / safe, dx / safe
+    on_lane = np.abs(lane) > 1e-9
+    flip = np.where(on_lane, lane < 0, (ny > 0) | ((np.abs(ny) < 1e-9) & (nx < 0)))
+    nx, ny = np.where(flip, -nx, nx), np.where(flip, -ny, ny)
+    extra = 0.5 * text_width * np.abs(nx)
+    return (np.where(short, mx, mx + nx * (off + extra)),
+            np.where(short, my - off, my + ny * off))
 
 
 def _segment_box_array(p1, p2, half_width: float, grow) -> np.ndarray:
@@ -1221,23 +1248,6 @@ def _segment_box_array(p1, p2, half_width: float, grow) -> np.ndarray:
             pad = (half_width + g)[:, None]
             out.append(np.column_stack([lo - pad, hi + pad]))
     return np.concatenate(out) if out else np.zeros((0, 4))
-
-
-def _beside_xy(p1, p2, off: float, text_width: float, lane: float = 0.0) -> tuple[float, float]:
-    """:func:`_beside` of plain coordinates."""
-    mx, my = 0.5 * (p1[0] + p2[0]), 0.5 * (p1[1] + p2[1])
-    dx, dy = p2[0] - p1[0], p2[1] - p1[1]
-    length = math.hypot(dx, dy)
-    if length < 1e-9:
-        return mx, my - off
-    nx, ny = -dy / length, dx / length
-    if abs(lane) > 1e-9:
-        if lane < 0:
-            nx, ny = -nx, -ny
-    elif ny > 0 or (abs(ny) < 1e-9 and nx < 0):
-        nx, ny = -nx, -ny                 # above (screen) or to the right
-    extra = 0.5 * text_width * abs(nx)
-    return mx + nx * (off + extra), my + ny * off
 
 
 def _beside(p1: QPointF, p2: QPointF, off: float, fm: QFontMetricsF, text: str,

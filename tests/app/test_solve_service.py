@@ -150,3 +150,95 @@ def test_hidden_sensitivity_table_fills_when_shown(qtbot, two_mass_model):
     j = list(a.energy.spring_ids).index("s2")
     assert table.cell_value("s2", "k", 1) == pytest.approx(0.5 * a.energy.strain[0, j],
                                                            rel=1e-12)
+
+
+def _same_results(got, fresh):
+    """Every number and text of two analyses alike (frequencies, shapes, energy shares,
+    sensitivities, zero modes, warnings)."""
+    np.testing.assert_array_equal(got.modal.eigenvalues, fresh.modal.eigenvalues)
+    np.testing.assert_array_equal(np.abs(got.modal.shapes), np.abs(fresh.modal.shapes))
+    np.testing.assert_array_equal(got.energy.strain, fresh.energy.strain)
+    np.testing.assert_array_equal(got.energy.kinetic, fresh.energy.kinetic)
+    np.testing.assert_array_equal(got.sensitivity.dlambda_dk, fresh.sensitivity.dlambda_dk)
+    assert [(z.mode, z.kind, z.cause) for z in got.modal.zero_modes] == \
+        [(z.mode, z.kind, z.cause) for z in fresh.modal.zero_modes]
+    assert got.warnings == fresh.warnings
+
+
+def test_a_line_model_moved_on_the_page_is_not_solved_again(qtbot, monkeypatch):
+    """common practice: in a line model (and a torsion one) every spring acts along the one
+    axis whatever the drawing, so K and M (and every result) do not depend on where the nodes
+    are drawn. A drag of a mass gives back the results held for the model as it was: for the
+    moved model object (its system too), the same as a fresh solve of the moved model, and the
+    frequencies are those of scipy.linalg.eigh(K, M) built by hand. A free mass (a rigid mode
+    with its text) is in the model, so the texts are compared too."""
+    from solver import analyse as fresh_analyse
+    from solver.model import Anchor, Mass, Model, Spring
+
+    model = Model(kind="line", name="drag", axis="x",
+                  masses=(Mass("m1", 0.2, 0.0, 2.0), Mass("m2", 0.4, 0.0, 1.0),
+                          Mass("f1", 1.0, 0.5, 3.0), Mass("f2", 1.2, 0.5, 1.5)),
+                  anchors=(Anchor("g1", 0.0, 0.0),),
+                  springs=(Spring("s1", "g1", "m1", 1000.0), Spring("s2", "m1", "m2", 500.0),
+                           Spring("s3", "f1", "f2", 800.0)))
+    doc = Document(model)
+    service = SolveService(doc, parent=doc, immediate=True)
+    got = []
+    service.results_ready.connect(got.append)
+    assert service.wait(5000)
+    qtbot.wait(2 * solve_service.DEBOUNCE_MS)
+    calls = []
+    real = solve_service.analyse
+    monkeypatch.setattr(solve_service, "analyse", lambda m: calls.append(m) or real(m))
+    doc.move_nodes({"m2": (0.9, -0.3), "g1": (-0.5, 0.2)})
+    assert not service.pending and calls == []
+    result = got[-1]
+    assert result.model is doc.model and result.system.model is doc.model
+    assert result.modal.system is result.system
+    _same_results(result, fresh_analyse(doc.model))
+    hz = np.sort(_frequencies(result))
+    np.testing.assert_allclose(hz[hz > 1e-6], np.sort(np.concatenate([
+        _reference_hz(1000.0, 500.0),
+        [np.sqrt(800.0 * (3.0 + 1.5) / (3.0 * 1.5)) / (2 * np.pi)]])), rtol=1e-10)
+    # a value edit is a new model: solved
+    qtbot.wait(2 * solve_service.DEBOUNCE_MS)
+    doc.set_element("s2", k=700.0)
+    assert len(calls) == 1
+    elastic = np.sort(_frequencies(got[-1]))
+    assert np.isclose(elastic, _reference_hz(1000.0, 700.0)[0], rtol=1e-10).any()
+    assert np.isclose(elastic, _reference_hz(1000.0, 700.0)[1], rtol=1e-10).any()
+
+
+def test_a_planar_model_moved_is_solved_again(qtbot, monkeypatch):
+    """math: in a planar model a spring acts along the line between its ends, so moving a node
+    turns its springs and changes K: the moved model is solved again, and its frequencies are
+    those of K built by hand for the new directions (k u u^T per spring, u the unit vector
+    along it), not the earlier ones."""
+    from solver.model import Anchor, Mass, Model, Spring
+
+    model = Model(kind="planar", name="pendulum",
+                  masses=(Mass("m", 0.0, 1.0, 2.0),),
+                  anchors=(Anchor("a", 0.0, 0.0), Anchor("b", 2.0, 1.0)),
+                  springs=(Spring("s1", "a", "m", 1000.0), Spring("s2", "b", "m", 400.0)))
+    doc = Document(model)
+    service = SolveService(doc, parent=doc, immediate=True)
+    got = []
+    service.results_ready.connect(got.append)
+    assert service.wait(5000)
+    qtbot.wait(2 * solve_service.DEBOUNCE_MS)
+    calls = []
+    real = solve_service.analyse
+    monkeypatch.setattr(solve_service, "analyse", lambda m: calls.append(m) or real(m))
+    doc.move_nodes({"m": (1.0, 0.0)})
+    assert len(calls) == 1 and got[-1].model is doc.model
+
+    def by_hand(p):
+        K = np.zeros((2, 2))
+        for anchor, k in (((0.0, 0.0), 1000.0), ((2.0, 1.0), 400.0)):
+            u = np.subtract(p, anchor)
+            u = u / np.linalg.norm(u)
+            K += k * np.outer(u, u)
+        return np.sqrt(scipy.linalg.eigh(K, 2.0 * np.eye(2), eigvals_only=True)) / (2 * np.pi)
+
+    np.testing.assert_allclose(_frequencies(got[-1]), by_hand((1.0, 0.0)), rtol=1e-10)
+    assert not np.allclose(by_hand((1.0, 0.0)), by_hand((0.0, 1.0)))
