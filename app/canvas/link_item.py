@@ -10,6 +10,8 @@ from PySide6.QtWidgets import QGraphicsItem, QGraphicsObject, QGraphicsSimpleTex
 
 from app.drawing.style import current_style
 
+from .node_item import ITEM_CACHE
+
 
 def _edge_inset(node_item, u: QPointF) -> float:
     """Distance from a node's centre to its outline along unit vector ``u`` (scene axes)."""
@@ -36,6 +38,7 @@ class LinkItem(QGraphicsObject):
         super().__init__()
         self.setFlags(QGraphicsItem.ItemIsSelectable)
         self.setZValue(1)
+        self.setCacheMode(ITEM_CACHE)
         self.label_item = QGraphicsSimpleTextItem(self)
         self.offset = 0.0
         self._path = QPainterPath()

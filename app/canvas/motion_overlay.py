@@ -18,11 +18,12 @@ from __future__ import annotations
 import math
 
 from PySide6.QtCore import Qt
-from PySide6.QtWidgets import QLabel
+from PySide6.QtWidgets import QGraphicsItem, QLabel
 
 from app.drawing.style import current_style
 
 from .mass_item import MassItem
+from .node_item import ITEM_CACHE
 
 #: The largest drawn displacement, as a fraction of the closest node spacing on the canvas.
 SPACING_FRACTION = 0.33
@@ -76,6 +77,8 @@ class CanvasMotion:
         if not displacements or (peak <= 0 and peak_turn <= 0):
             self.clear()
             return
+        if not self.active:
+            self._cache_items(False)     # every item changes every frame
         self.active = True
         torsion = self.scene.document.model.kind == "torsion"
         ppm = self.scene.mapper.px_per_m
@@ -137,7 +140,16 @@ class CanvasMotion:
                 item._display_offset = None
         for link in self.scene.links.values():
             link.refresh(label=False)
+        self._cache_items(True)
         self.caption.hide()
+
+    def _cache_items(self, on: bool) -> None:
+        """The canvas items keep a pixmap of their drawing (``node_item.ITEM_CACHE``), or not
+        while a mode plays on the canvas."""
+        mode = ITEM_CACHE if on else QGraphicsItem.CacheMode.NoCache
+        for item in list(self.scene.nodes.values()) + list(self.scene.links.values()):
+            if item.cacheMode() != mode:
+                item.setCacheMode(mode)
 
     def drawn_offset(self, node_id: str):
         """The display offset of a node now (scene units), for tests and tooltips."""
