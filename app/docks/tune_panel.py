@@ -30,7 +30,7 @@ from collections import OrderedDict
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QObject, QRunnable, QSignalBlocker, Qt, QThreadPool, Signal
+from PySide6.QtCore import QObject, QRunnable, QSignalBlocker, Qt, QThreadPool, QTimer, Signal
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QGridLayout, QHBoxLayout,
                                QLabel, QListWidget, QPushButton, QScrollArea, QSizePolicy,
                                QSlider, QSpinBox, QSplitter, QVBoxLayout, QWidget)
@@ -140,6 +140,11 @@ SWEEP_CACHE_SIZE = 6
 #: Up to this many DOFs a sweep (SWEEP_POINTS solves) is computed at once when an element is
 #: picked; above, always in the worker (40 solves of 300 DOFs stall the window for a second).
 SWEEP_SYNC_DOF_LIMIT = 30
+#: A sweep computed in the background starts this long after the edit that made it due (ms):
+#: its thread sends models and takes results under the interpreter lock, and started at once
+#: it slowed the edit's own solve and paint by 5-10 ms at 200 masses (bench/edit_bench.py); a
+#: burst of edits starts one sweep, for the last.
+SWEEP_DEFER_MS = 80
 
 
 class _Relay(QObject):
@@ -310,6 +315,11 @@ class TunePanel(QWidget):
         self._pool.setMaxThreadCount(1)
         self._relay = _Relay(self)
         self._relay.done.connect(self._on_sweep_done)
+        self._due_sweep = None               # (generation, key) of a sweep about to start
+        self._sweep_timer = QTimer(self)
+        self._sweep_timer.setSingleShot(True)
+        self._sweep_timer.setInterval(SWEEP_DEFER_MS)
+        self._sweep_timer.timeout.connect(self._start_sweep)
         self._drag_serial = 0
         self._proposed: float | None = None
         self._plot_factor = 1.0
@@ -667,8 +677,8 @@ class TunePanel(QWidget):
         if found is None and (background or dof_count(model) > SWEEP_SYNC_DOF_LIMIT):
             self._sweep_pending = True
             self._dim_sweep(model)
-            self._pool.start(_SweepJob(self._sweep_generation, key, self._relay,
-                                       lambda: self._sweep_generation))
+            self._due_sweep = (self._sweep_generation, key)
+            self._sweep_timer.start()
             return
         if found is None:
             try:
@@ -696,8 +706,18 @@ class TunePanel(QWidget):
             QCoreApplication.processEvents()
         return not self._sweep_pending
 
+    def _start_sweep(self) -> None:
+        """Start the background sweep made due last (:data:`SWEEP_DEFER_MS`), unless a newer
+        one has overtaken it."""
+        due, self._due_sweep = self._due_sweep, None
+        if due is None or due[0] != self._sweep_generation:
+            return
+        self._pool.start(_SweepJob(due[0], due[1], self._relay, lambda: self._sweep_generation))
+
     def shutdown(self) -> None:
         """Stop the sweep worker (the window is closing)."""
+        self._sweep_timer.stop()
+        self._due_sweep = None
         self._sweep_generation += 1
         self._pool.clear()
         self._pool.waitForDone(5000)

@@ -417,3 +417,42 @@ def test_the_frequency_axis_holds_through_small_edits(qtbot, window, two_mass_mo
     assert float(np.nanmax(panel.sweep_result.frequencies_hz)) <= higher
     assert top_hz(window.document.model) <= higher
 
+
+
+def test_a_burst_of_edits_sweeps_once_for_the_last_model(qtbot, window):
+    """A sweep of the swept spring made stale by other edits is computed in the background
+    once, for the model after the last edit of a burst, and only after the edits' own results
+    are drawn (it starts SWEEP_DEFER_MS later). Its frequencies at each value are those of
+    scipy.linalg.eigh(K, M) of the chain built by hand (math: K tridiagonal from the spring
+    stiffnesses, M diagonal), rtol 1e-9."""
+    import scipy.linalg
+
+    from app.docks import tune_panel as tp
+
+    model = _sweep_model()
+    panel = _open(window, model)
+    assert panel.select_element("s3", "k")
+    assert panel.wait_sweep()
+    started = []
+    real = panel._pool.start
+    panel._pool.start = lambda job: started.append(job) or real(job)
+    for k in (2500.0, 2600.0, 2700.0):
+        window.document.set_element("s4", k=k)
+    assert panel.sweep_pending and started == []      # not during the edits
+    assert panel.wait_sweep()
+    assert len(started) == 1
+    sweep = panel.sweep_result
+    ks = [1000.0, 2000.0, None, 2700.0, 5000.0]
+    masses = [1.1, 1.2, 1.3, 1.4, 1.5]
+    for value, row in zip(sweep.values[::7], sweep.frequencies_hz[::7]):
+        k = [value if x is None else x for x in ks]
+        K = np.zeros((5, 5))
+        for i, ki in enumerate(k):
+            K[i, i] += ki
+            if i:
+                K[i - 1, i - 1] += ki
+                K[i - 1, i] -= ki
+                K[i, i - 1] -= ki
+        hz = np.sqrt(scipy.linalg.eigh(K, np.diag(masses), eigvals_only=True)) / (2 * np.pi)
+        np.testing.assert_allclose(row, hz, rtol=1e-9)
+    assert tp.SWEEP_DEFER_MS > 0
