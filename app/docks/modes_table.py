@@ -36,6 +36,12 @@ def _two_lines(text: str) -> str:
     return f"{head}\n({unit}"
 
 
+#: The roles the table answers (the font, decoration, check state ... are the view's own).
+_ROLES = frozenset({Qt.ItemDataRole.DisplayRole, Qt.ItemDataRole.ToolTipRole,
+                    Qt.ItemDataRole.TextAlignmentRole, Qt.ItemDataRole.ForegroundRole,
+                    Qt.ItemDataRole.BackgroundRole, Qt.ItemDataRole.UserRole})
+
+
 class _ModesModel(QAbstractTableModel):
     def __init__(self, parent=None):
         super().__init__(parent)
@@ -87,8 +93,8 @@ class _ModesModel(QAbstractTableModel):
         return None
 
     def data(self, index, role=Qt.ItemDataRole.DisplayRole):
-        if not index.isValid():
-            return None
+        if role not in _ROLES or not index.isValid():
+            return None       # the view asks for every role of every cell it paints
         r, c = index.row(), index.column()
         row = self._rows[r]
         last = len(self._header) - 1
