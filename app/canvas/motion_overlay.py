@@ -77,8 +77,8 @@ class CanvasMotion:
         if not displacements or (peak <= 0 and peak_turn <= 0):
             self.clear()
             return
-        if not self.active:
-            self._cache_items(False)     # every item changes every frame
+        # every item changes every frame (items made by an edit while it plays too)
+        self._cache_items(False)
         self.active = True
         torsion = self.scene.document.model.kind == "torsion"
         ppm = self.scene.mapper.px_per_m

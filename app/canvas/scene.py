@@ -299,7 +299,7 @@ class ModelScene(QGraphicsScene):
         self._labels_key = state()
 
     def _place_labels(self, nodes, links) -> None:
-        from app.drawing.labels import LabelPlacer, around, segment_boxes, shifted
+        from app.drawing.labels import LabelPlacer, around_boxes, segment_boxes, shifted_boxes
 
         line = max((it.label_item.boundingRect().height() for it in nodes + links), default=14.0)
         placer = LabelPlacer(line)
@@ -310,6 +310,7 @@ class ModelScene(QGraphicsScene):
             for box in segment_boxes(p1, p2, 7.0):
                 placer.block(box)
         gap = placer.pad + 2
+        items, requests = [], []
         for item in [n for n in nodes if isinstance(n, MassItem)] + \
                 [n for n in nodes if not isinstance(n, MassItem)] + links:
             label = item.label_item
@@ -323,11 +324,15 @@ class ModelScene(QGraphicsScene):
                 p1, p2 = item.endpoints()
                 mid = QPointF((p1.x() + p2.x()) / 2, (p1.y() + p2.y()) / 2)
                 symbol = QRectF(mid.x() - 7, mid.y() - 7, 14, 14)
-                cands = list(shifted(preferred, h)) + list(around(symbol, w, h, gap))
+                cands = shifted_boxes(preferred, h) + around_boxes(symbol, w, h, gap)
             else:
                 symbol = item.mapRectToScene(item.symbol_rect())
-                cands = [preferred] + list(around(symbol, w, h, gap))
-            rect = placer.place(label.text(), cands)
+                cands = [preferred.getRect()] + around_boxes(symbol, w, h, gap)
+            items.append(item)
+            requests.append((label.text(), cands))
+        # every label's candidates tested against the symbols in one pass, then placed in order
+        for item, rect in zip(items, placer.place_all(requests)):
+            label = item.label_item
             label.setVisible(rect is not None)
             if rect is not None:
                 label.setPos(label.parentItem().mapFromScene(rect.topLeft()))

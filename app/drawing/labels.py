@@ -208,8 +208,15 @@ class LabelPlacer:
 
     def place(self, text: str, candidates) -> QRectF | None:
         """The first candidate rectangle that fits (then taken), or None: the label is left
-        off."""
-        return self.place_all([(text, candidates)])[0]
+        off. One label's candidates are tested one by one (:meth:`place_all` is the faster way
+        for many labels: its one pass over the symbols costs more than a label's tests)."""
+        for cand in candidates:
+            rect = QRectF(cand) if isinstance(cand, QRectF) else QRectF(*cand)
+            if self.fits(rect):
+                self.labels.add(rect)
+                self.placed.append((text, QRectF(rect)))
+                return rect
+        return None
 
     def place_all(self, requests) -> list[QRectF | None]:
         """:meth:`place` for each ``(text, candidates)`` in turn. A candidate is a QRectF or an
