@@ -169,6 +169,9 @@ def spring_stretch(system: System, V_all) -> tuple[np.ndarray, np.ndarray]:
     along the spring's line and across it (zero on a line or a shaft)."""
     V_all = np.asarray(V_all)
     cols = V_all.shape[1] if V_all.ndim == 2 else 1
+    if cols == 0:       # no motion at all (every mass locked: a model with no mode)
+        z = np.zeros((0 if system.spring_dofs is None else len(system.spring_dofs), 0))
+        return z, z
     V = np.vstack([V_all.reshape(-1, cols), np.zeros((1, cols), V_all.dtype)])  # -1: ground
     idx = system.spring_dofs
     coef = system.spring_coef

@@ -326,3 +326,25 @@ def test_loose_junctions_among_thousands_are_found_and_taken_out():
     ib = solver.assemble(big).dofs.index(("m", "x"))
     i_s = solver.assemble(small).dofs.index(("m", "x"))
     np.testing.assert_allclose(H[:, ib], Hs[:, i_s], rtol=1e-9)
+
+
+def test_a_model_with_every_mass_locked_is_analysed_with_no_mode(tmp_path, capsys):
+    """common practice: a mass locked in its only direction cannot move, so a model whose
+    every mass is locked has no degree of freedom and no mode (the eigenproblem is 0 x 0). The
+    full analysis (energy shares and sensitivities included) says so instead of failing inside
+    (it raised ValueError from the spring stretch of no motion), and the command line prints it
+    with exit 0."""
+    from app import cli
+
+    model = Model(kind="line", name="locked", masses=(Mass("m1", 0.2, 0.0, 2.0, fixed=("x",)),),
+                  anchors=(Anchor("g", 0.0, 0.0),), springs=(Spring("s1", "g", "m1", 1000.0),))
+    analysis = solver.analyse(model)
+    assert analysis.n_modes == 0
+    assert analysis.energy.strain.shape == (0, 1)
+    assert analysis.sensitivity.dlambda_dk.shape == (0, 1)
+    assert any("locked" in w for w in analysis.warnings)
+    path = tmp_path / "locked.json"
+    solver.save_model(model, path)
+    assert cli.main(["solve", str(path)]) == 0
+    out = capsys.readouterr().out
+    assert "0 DOF" in out and "nothing can move" in out
