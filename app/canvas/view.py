@@ -3,12 +3,18 @@
 from __future__ import annotations
 
 from PySide6.QtCore import Qt
-from PySide6.QtGui import QPainter
+from PySide6.QtGui import QPainter, QPixmapCache
 from PySide6.QtWidgets import QGraphicsView
 
 from .scene import Mode
 
 _MAX_FIT_ZOOM = 2.5
+#: Room for the canvas items' pixmaps (``node_item.ITEM_CACHE``), in viewports' worth of pixels:
+#: each item keeps its visible part, and items overlap (labels, links' margins). Qt's default of
+#: 10 MB is less than a 200-mass canvas needs on a large window: pixmaps were then thrown out
+#: and drawn again on every repaint, slower than no pixmaps (bench/tune_bench.py: a slider step
+#: 172 ms without them, 235 ms with 10 MB, 146 ms with room).
+_CACHE_VIEWPORTS = 8
 
 
 class CanvasView(QGraphicsView):
@@ -26,6 +32,14 @@ class CanvasView(QGraphicsView):
         self.setRubberBandSelectionMode(Qt.ContainsItemShape)
         scene.mode_changed.connect(self._on_mode_change)
         self._on_mode_change(scene.mode)
+
+    def resizeEvent(self, event):  # noqa: N802 (Qt's name)
+        super().resizeEvent(event)
+        ratio = self.devicePixelRatioF()
+        vp = self.viewport()
+        want_kb = int(_CACHE_VIEWPORTS * vp.width() * vp.height() * ratio * ratio * 4 / 1024)
+        if QPixmapCache.cacheLimit() < want_kb:
+            QPixmapCache.setCacheLimit(want_kb)
 
     def focusNextPrevChild(self, next_: bool) -> bool:  # noqa: N802
         """Tab walks the model's elements first; past the last one focus moves on as usual."""

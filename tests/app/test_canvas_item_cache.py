@@ -92,3 +92,32 @@ def test_a_mode_played_on_the_canvas_draws_without_pixmaps(qtbot, window):
     panel.set_on_canvas(False)
     qtbot.waitUntil(lambda: not window.canvas_motion.active, timeout=3000)
     assert all(item.cacheMode() == ITEM_CACHE for item in _items(window))
+
+
+def test_an_unchanged_canvas_repaints_from_the_pixmaps(qtbot, window, monkeypatch):
+    """common practice (what the cache is for): on a large window with a 200-mass chain,
+    repainting a canvas where nothing changed draws no item again: every item's pixmap is
+    kept (Qt's pixmap room of 10 MB was too small and threw them out on every repaint)."""
+    from app.canvas.mass_item import MassItem
+    from app.canvas.spring_item import SpringItem
+
+    drawn = []
+    for cls in (MassItem, SpringItem):
+        real = cls.paint
+        monkeypatch.setattr(cls, "paint", lambda self, *a, _real=real: drawn.append(self)
+                            or _real(self, *a))
+    masses = tuple(Mass(f"m{i}", 0.05 * (i + 1), 0.02 * (i % 7), 1.0 + 0.01 * i)
+                   for i in range(200))
+    springs = (Spring("s0", "g", "m0", 1000.0),) + tuple(
+        Spring(f"s{i}", f"m{i - 1}", f"m{i}", 1000.0) for i in range(1, 200))
+    window.resize(1900, 1200)
+    window.document.new(model=Model(kind="line", name="many", masses=masses,
+                                    anchors=(Anchor("g", 0.0, 0.0),), springs=springs))
+    window.solver.wait()
+    window.view.fitInView(window.scene.itemsBoundingRect())
+    view = window.view.viewport()
+    view.repaint()
+    assert len(drawn) > 300                 # the first paint draws the items
+    drawn.clear()
+    view.repaint()
+    assert drawn == []
