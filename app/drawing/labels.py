@@ -297,7 +297,8 @@ def _inside(bounds: QRectF, x, y, w, h) -> np.ndarray:
 
 
 def around_boxes(symbol: QRectF, w: float, h: float, gap: float) -> list[tuple]:
-    """:func:`around` as ``(x, y, w, h)`` tuples."""
+    """Candidate label rectangles (w x h) round a symbol, ``gap`` away, as ``(x, y, w, h)``
+    tuples: below, above, right, left, then the four corners."""
     sx, sy, sw, sh = symbol.getRect()
     cx, cy = sx + sw / 2, sy + sh / 2
     right, bottom = sx + sw, sy + sh
@@ -308,26 +309,14 @@ def around_boxes(symbol: QRectF, w: float, h: float, gap: float) -> list[tuple]:
 
 
 def shifted_boxes(rect, h: float, steps: int = 3) -> list[tuple]:
-    """:func:`shifted` as ``(x, y, w, h)`` tuples (``rect`` a QRectF or such a tuple)."""
+    """``rect`` (a QRectF or an ``(x, y, w, h)`` tuple), then shifted up and down by up to
+    ``steps`` lines, as ``(x, y, w, h)`` tuples."""
     x, y, w, rh = rect.getRect() if isinstance(rect, QRectF) else rect
     out = [(x, y, w, rh)]
     for k in range(1, steps + 1):
         out.append((x, y + -k * 0.9 * h, w, rh))
         out.append((x, y + k * 0.9 * h, w, rh))
     return out
-
-
-def around(symbol: QRectF, w: float, h: float, gap: float):
-    """Candidate label rectangles (w x h) round a symbol, ``gap`` away: below, above, right,
-    left, then the four corners."""
-    for box in around_boxes(symbol, w, h, gap):
-        yield QRectF(*box)
-
-
-def shifted(rect: QRectF, h: float, steps: int = 3):
-    """``rect``, then shifted up and down by up to ``steps`` lines."""
-    for box in shifted_boxes(rect, h, steps):
-        yield QRectF(*box)
 
 
 def segment_boxes(p1: QPointF, p2: QPointF, half_width: float, pieces: int = 8) -> list[QRectF]:
@@ -348,5 +337,5 @@ def segment_boxes(p1: QPointF, p2: QPointF, half_width: float, pieces: int = 8) 
     return out
 
 
-__all__ = ["LabelPlacer", "RectIndex", "SymbolRaster", "around", "shifted", "around_boxes",
-           "shifted_boxes", "segment_boxes", "PAD"]
+__all__ = ["LabelPlacer", "RectIndex", "SymbolRaster", "around_boxes", "shifted_boxes",
+           "segment_boxes", "PAD"]

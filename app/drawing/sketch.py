@@ -1024,14 +1024,10 @@ def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
     lanes = lay.lanes()
     if fast is not None:
         placer.block_boxes(fast["blocks"])
-        ends = {}
     else:
         moving = {m.id for m in model.masses}
-        # each link's ends once (trimmed to the blocks: the costly part of a link's geometry)
-        ends = {el.id: lay.ends_of(el, lanes.get(el.id, 0.0))
-                for el in list(model.springs) + list(model.dampers)}
         for el in list(model.springs) + list(model.dampers):
-            p1, p2 = ends[el.id]
+            p1, p2 = lay.ends_of(el, lanes.get(el.id, 0.0))     # kept by the layout
             grow = sweep if (el.a in moving or el.b in moving) else 0.0
             for box in segment_boxes(p1, p2, 0.21 * base):
                 placer.block(box.adjusted(-grow, -grow, grow, grow))
@@ -1103,7 +1099,7 @@ def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
             cands = shifted_boxes(first, h) + around_boxes(
                 QRectF(mid.x() - r, mid.y() - r, 2 * r, 2 * r), w, h, placer.pad + 1)
         else:
-            p1, p2 = ends[el.id]
+            p1, p2 = lay.ends_of(el, lanes.get(el.id, 0.0))
             pos = _beside(p1, p2, 0.21 * base + 0.35 * h + 2 + sweep, fm, text,
                           lanes.get(el.id, 0.0))
             first = (pos.x() - w / 2, pos.y() - h / 2, w, h)

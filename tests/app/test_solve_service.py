@@ -165,6 +165,22 @@ def _same_results(got, fresh):
     assert got.warnings == fresh.warnings
 
 
+def _solved_and_watched(model, qtbot, monkeypatch):
+    """A document of ``model`` with a solve service (solved, a single edit away), the results
+    it delivers and the models it solves from now on: (document, service, results, solved
+    models)."""
+    doc = Document(model)
+    service = SolveService(doc, parent=doc, immediate=True)
+    got = []
+    service.results_ready.connect(got.append)
+    assert service.wait(5000)
+    qtbot.wait(2 * solve_service.DEBOUNCE_MS)
+    calls = []
+    real = solve_service.analyse
+    monkeypatch.setattr(solve_service, "analyse", lambda m: calls.append(m) or real(m))
+    return doc, service, got, calls
+
+
 def test_a_line_model_moved_on_the_page_is_not_solved_again(qtbot, monkeypatch):
     """common practice: in a line model (and a torsion one) every spring acts along the one
     axis whatever the drawing, so K and M (and every result) do not depend on where the nodes
@@ -181,15 +197,7 @@ def test_a_line_model_moved_on_the_page_is_not_solved_again(qtbot, monkeypatch):
                   anchors=(Anchor("g1", 0.0, 0.0),),
                   springs=(Spring("s1", "g1", "m1", 1000.0), Spring("s2", "m1", "m2", 500.0),
                            Spring("s3", "f1", "f2", 800.0)))
-    doc = Document(model)
-    service = SolveService(doc, parent=doc, immediate=True)
-    got = []
-    service.results_ready.connect(got.append)
-    assert service.wait(5000)
-    qtbot.wait(2 * solve_service.DEBOUNCE_MS)
-    calls = []
-    real = solve_service.analyse
-    monkeypatch.setattr(solve_service, "analyse", lambda m: calls.append(m) or real(m))
+    doc, service, got, calls = _solved_and_watched(model, qtbot, monkeypatch)
     doc.move_nodes({"m2": (0.9, -0.3), "g1": (-0.5, 0.2)})
     assert not service.pending and calls == []
     result = got[-1]
@@ -220,15 +228,7 @@ def test_a_planar_model_moved_is_solved_again(qtbot, monkeypatch):
                   masses=(Mass("m", 0.0, 1.0, 2.0),),
                   anchors=(Anchor("a", 0.0, 0.0), Anchor("b", 2.0, 1.0)),
                   springs=(Spring("s1", "a", "m", 1000.0), Spring("s2", "b", "m", 400.0)))
-    doc = Document(model)
-    service = SolveService(doc, parent=doc, immediate=True)
-    got = []
-    service.results_ready.connect(got.append)
-    assert service.wait(5000)
-    qtbot.wait(2 * solve_service.DEBOUNCE_MS)
-    calls = []
-    real = solve_service.analyse
-    monkeypatch.setattr(solve_service, "analyse", lambda m: calls.append(m) or real(m))
+    doc, _service, got, calls = _solved_and_watched(model, qtbot, monkeypatch)
     doc.move_nodes({"m": (1.0, 0.0)})
     assert len(calls) == 1 and got[-1].model is doc.model
 
