@@ -70,9 +70,7 @@ def spring_rows(spring_dofs: np.ndarray, axis: np.ndarray, k, k_t, n_all: int):
         rows = np.broadcast_to(np.arange(n_s * n_kind).reshape(n_s, n_kind, 1), vals.shape)
         keep = (cols >= 0) & (vals != 0.0) & (weights[:, :, None] > 0)
         B = sp.csr_matrix((vals[keep], (rows[keep], cols[keep])), shape=(n_s * n_kind, n_all))
-        B.sum_duplicates()
-        used = np.flatnonzero(np.diff(B.indptr) > 0)
-        return B[used], np.sqrt(weights.reshape(-1)[used])
+        return _used_rows(B, weights)
     if nd == 1:
         dirs = np.ones((n_s, 1, 1))            # (spring, row kind, component)
         weights = k[:, None]
@@ -88,9 +86,17 @@ def spring_rows(spring_dofs: np.ndarray, axis: np.ndarray, k, k_t, n_all: int):
     rows = np.broadcast_to(np.arange(n_s * n_kind).reshape(n_s, n_kind, 1), vals.shape)
     keep = (cols >= 0) & (vals != 0.0) & (weights[:, :, None] > 0)
     B = sp.csr_matrix((vals[keep], (rows[keep], cols[keep])), shape=(n_s * n_kind, n_all))
+    return _used_rows(B, weights)
+
+
+def _used_rows(B, weights):
+    """The rows of ``B`` with an entry, and their weights sqrt(stiffness)."""
     B.sum_duplicates()
     used = np.flatnonzero(np.diff(B.indptr) > 0)
-    return B[used], np.sqrt(weights.reshape(-1)[used])
+    w = np.sqrt(weights.reshape(-1)[used])
+    if len(used) == B.shape[0]:
+        return B, w        # every row strains something (row selection copies the matrix)
+    return B[used], w
 
 
 @dataclass

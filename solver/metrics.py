@@ -177,31 +177,57 @@ def unheld_junction_directions(system, near=None) -> np.ndarray:
     return np.array(cols).T if cols else np.zeros((n_all, 0))
 
 
+def _kept(result: ModalResult, key, compute):
+    """``compute()`` once per result (energy shares and sensitivities both need the same
+    motions); the arrays are kept on the result, read-only."""
+    memo = result.__dict__.setdefault("_metric_memo", {})
+    if key not in memo:
+        value = compute()
+        for a in value if isinstance(value, tuple) else (value,):
+            a.setflags(write=False)
+        memo[key] = value
+    return memo[key]
+
+
 def _relative_motion(result: ModalResult):
-    """(n_modes, n_springs) axial and transverse relative displacement of each spring's ends."""
-    system = result.system
-    model = system.model
-    if len(model.springs) == 0:
-        z = np.zeros((result.n_modes, 0))
-        return z, z
-    axial, trans = spring_stretch(system, result.all_shapes)
-    return axial.T, trans.T
+    """(n_modes, n_springs) axial and transverse relative displacement of each spring's ends
+    (read-only arrays)."""
+
+    def compute():
+        system = result.system
+        if len(system.model.springs) == 0:
+            return np.zeros((result.n_modes, 0)), np.zeros((result.n_modes, 0))
+        axial, trans = spring_stretch(system, result.all_shapes)
+        return axial.T, trans.T
+
+    return _kept(result, "relative", compute)
 
 
 def _mass_motion_squared(result: ModalResult, rotation: bool = False):
     """(n_modes, n_masses) |phi_j|^2 summed over each mass's free directions (junctions too):
-    its translations, or with ``rotation`` a planar rigid body's theta alone."""
-    system = result.system
-    model = system.model
-    shapes = np.vstack([result.all_shapes, np.zeros((1, result.n_modes))])
-    out = np.zeros((result.n_modes, len(model.masses)))
-    body_dir = (system.node_directions.index("theta") if model.kind == "planar"
-                and "theta" in system.node_directions else -1)
-    for j, m in enumerate(model.masses):
-        for c, i in enumerate(system.mass_dofs[m.id]):
-            if i >= 0 and (c == body_dir) == rotation:
-                out[:, j] += shapes[i] ** 2
-    return out
+    its translations, or with ``rotation`` a planar rigid body's theta alone (read-only)."""
+
+    def compute():
+        system = result.system
+        model = system.model
+        shapes = result.all_shapes
+        out = np.zeros((result.n_modes, len(model.masses)))
+        if not model.masses:
+            return out
+        body_dir = (system.node_directions.index("theta") if model.kind == "planar"
+                    and "theta" in system.node_directions else -1)
+        index = np.array([system.mass_dofs[m.id] for m in model.masses], np.int64)
+        # direction by direction, as a sum over each mass's directions in order
+        for c in range(index.shape[1]):
+            if (c == body_dir) != rotation:
+                continue
+            col = index[:, c]
+            has = col >= 0
+            if has.any():
+                out[:, has] += shapes[col[has]].T ** 2
+        return out
+
+    return _kept(result, ("mass", bool(rotation)), compute)
 
 
 @checked_arguments
