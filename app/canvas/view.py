@@ -3,13 +3,16 @@
 from __future__ import annotations
 
 from PySide6.QtCore import Qt
-from PySide6.QtGui import QPainter, QPixmapCache
+from PySide6.QtGui import QPainter
 from PySide6.QtWidgets import QGraphicsView
+
+from app.drawing.pixmap_room import ViewportRoom
 
 from .scene import Mode
 
 _MAX_FIT_ZOOM = 2.5
-#: Room for the canvas items' pixmaps (``node_item.ITEM_CACHE``), in viewports' worth of pixels:
+#: Room for the canvas items' pixmaps (``node_item.ITEM_CACHE``; :mod:`app.drawing.pixmap_room`),
+#: in viewports' worth of pixels:
 #: each item keeps its visible part, and items overlap (labels, links' margins). Qt's default of
 #: 10 MB is less than a 200-mass canvas needs on a large window: pixmaps were then thrown out
 #: and drawn again on every repaint, slower than no pixmaps (bench/tune_bench.py: a slider step
@@ -32,14 +35,7 @@ class CanvasView(QGraphicsView):
         self.setRubberBandSelectionMode(Qt.ContainsItemShape)
         scene.mode_changed.connect(self._on_mode_change)
         self._on_mode_change(scene.mode)
-
-    def resizeEvent(self, event):  # noqa: N802 (Qt's name)
-        super().resizeEvent(event)
-        ratio = self.devicePixelRatioF()
-        vp = self.viewport()
-        want_kb = int(_CACHE_VIEWPORTS * vp.width() * vp.height() * ratio * ratio * 4 / 1024)
-        if QPixmapCache.cacheLimit() < want_kb:
-            QPixmapCache.setCacheLimit(want_kb)
+        self._pixmap_room = ViewportRoom("canvas", self.viewport(), _CACHE_VIEWPORTS)
 
     def focusNextPrevChild(self, next_: bool) -> bool:  # noqa: N802
         """Tab walks the model's elements first; past the last one focus moves on as usual."""

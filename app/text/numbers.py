@@ -29,6 +29,9 @@ PLAIN_LOW, PLAIN_HIGH = 1e-3, 1e4
 CSV_SIG = 12
 
 DASH = "—"
+#: Decimal exponents written plainly: log10 of PLAIN_LOW and PLAIN_HIGH.
+_PLAIN_E = (round(math.log10(PLAIN_LOW)), round(math.log10(PLAIN_HIGH)))
+_INFINITE = (math.inf, -math.inf)
 
 
 def _strip(text: str) -> str:
@@ -55,18 +58,27 @@ def number(value, sig: int = SIG) -> str:
     NaN is a dash, infinity ``inf``; zero ``0`` (never ``-0``).
     """
     v = float(value)
-    if math.isnan(v):
+    if v != v:
         return DASH
-    if math.isinf(v):
-        return "inf" if v > 0 else "-inf"
     if v == 0:
         return "0"
+    if v in _INFINITE:
+        return "inf" if v > 0 else "-inf"
     # round first, in decimal text (a float rounded up past 1.8e308 would be inf): 9999.7 at 4
     # digits is 1.000e4 and takes the exponent
     mant, exp = f"{abs(v):.{sig - 1}e}".split("e")
-    digits, e = mant.replace(".", ""), int(exp)
+    e = int(exp)
+    if _PLAIN_E[0] <= e < _PLAIN_E[1]:
+        places = sig - 1 - e
+        if places >= 0:
+            # the same digits written at once: both conversions round the exact binary value
+            # to the same last place (or, where rounding carried into a new power of ten, both
+            # give that power), and this is the shorter path (tables of hundreds of modes)
+            text = f"{v:.{places}f}"
+            return text.rstrip("0").rstrip(".") if places else text
+    digits = mant.replace(".", "")
     sign = "-" if v < 0 else ""
-    if math.log10(PLAIN_LOW) <= e < math.log10(PLAIN_HIGH):
+    if _PLAIN_E[0] <= e < _PLAIN_E[1]:
         return sign + _strip(_point(digits, e))
     e3 = 3 * math.floor(e / 3)
     return sign + _strip(_point(digits, e - e3)) + f"e{e3}"

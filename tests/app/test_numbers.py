@@ -63,3 +63,34 @@ def test_linear_ticks_share_one_exponent_and_read_true():
     texts = tick_texts([0.0, 2e-6, 4e-6], 2e-6)
     assert texts[1:] == ["2e-6", "4e-6"]
     assert [float(t) for t in texts] == [0.0, 2e-6, 4e-6]
+
+
+def _boundary_values():
+    """Values on and beside the rounding boundaries d.dd...5 x 10^e, and where rounding carries
+    into the next power of ten (9.9995 at 4 digits), around the plain range's ends too."""
+    digits = st.integers(min_value=1, max_value=8)
+    return st.builds(
+        lambda sig, mant, e, nudge, neg: (-1 if neg else 1) * nudge(
+            (mant + 0.5) * 10.0 ** (e - sig + 1)),
+        digits, st.integers(min_value=1, max_value=99_999_999), st.integers(-6, 6),
+        st.sampled_from([lambda x: x, lambda x: math.nextafter(x, 0),
+                         lambda x: math.nextafter(x, math.inf)]),
+        st.booleans())
+
+
+@given(st.one_of(finite, _boundary_values()), st.integers(min_value=1, max_value=8))
+def test_number_is_the_correctly_rounded_decimal(v, sig):
+    """IEEE 754-2008 sec. 5.12.2 (correctly rounded conversion to decimal, ties to even): the
+    text written is the exact binary value rounded to ``sig`` significant digits, checked with
+    Python's decimal module (exact arithmetic on Decimal(v)), a different algorithm from the
+    float formatting the display uses. Includes ties, their neighbours and carries."""
+    from decimal import ROUND_HALF_EVEN, Decimal
+
+    text = number(v, sig)
+    if v == 0:
+        assert text == "0"
+        return
+    exact = Decimal(v)
+    place = exact.adjusted() - sig + 1
+    want = exact.quantize(Decimal(1).scaleb(place), rounding=ROUND_HALF_EVEN)
+    assert Decimal(text) == want, (v, sig, text, want)
