@@ -23,10 +23,11 @@ class AnchorItem(NodeItem):
             normal = QPointF(0, -1) if (model.kind != "line" or model.axis == "y") else QPointF(1, 0)
         self.normal = normal
         self._path = shapes.anchor_path(QPointF(0, 0), _SIZE, normal)
+        self._bounds = self._path.boundingRect().adjusted(-4, -4, 4, 4)
         super().update_from(element, model)
 
     def boundingRect(self) -> QRectF:  # noqa: N802
-        return self._path.boundingRect().adjusted(-4, -4, 4, 4)
+        return self._bounds          # kept with the path (Qt asks on every paint)
 
     def shape(self) -> QPainterPath:
         p = QPainterPath()

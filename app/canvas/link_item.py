@@ -42,6 +42,7 @@ class LinkItem(QGraphicsObject):
         self.label_item = QGraphicsSimpleTextItem(self)
         self.offset = 0.0
         self._path = QPainterPath()
+        self._bounds = None
         self.energy_color = None
         self.set_element(element, a_item, b_item)
 
@@ -91,6 +92,7 @@ class LinkItem(QGraphicsObject):
         self.prepareGeometryChange()
         p1, p2 = self.endpoints()
         self._path = self.build_path(p1, p2)
+        self._bounds = None
         if not label:
             self.update()
             return
@@ -116,7 +118,11 @@ class LinkItem(QGraphicsObject):
         return self._path.boundingRect()
 
     def boundingRect(self) -> QRectF:  # noqa: N802
-        return self._path.boundingRect().adjusted(-8, -8, 8, 8)
+        # kept until the path is built again (Qt asks on every paint, see MassItem)
+        r = self._bounds
+        if r is None:
+            r = self._bounds = self._path.boundingRect().adjusted(-8, -8, 8, 8)
+        return r
 
     def shape(self) -> QPainterPath:
         stroker = QPainterPathStroker()

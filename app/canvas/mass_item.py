@@ -35,6 +35,7 @@ class MassItem(NodeItem):
         self.elastic_centre = bodies.elastic_centre(model, element.id) if self.is_body else None
         self.coupling_text = bodies.coupling_statement(model, element.id) if self.is_body else ""
         self._path = self._symbol(element)
+        self._bounds = None              # boundingRect, made again from the new symbol
         self._sync_mounts()
         self._arrow_path = None          # made once per symbol: paints and label keys reuse it
         super().update_from(element, model)
@@ -130,11 +131,16 @@ class MassItem(NodeItem):
         return self._path.boundingRect().width() / 2
 
     def boundingRect(self) -> QRectF:  # noqa: N802
-        r = self._path.boundingRect().adjusted(-12, -4, 4, 14)
-        if getattr(self, "elastic_centre", None) is not None:
-            k = self.mapper.px_per_m
-            e = QPointF(self.elastic_centre[0] * k, -self.elastic_centre[1] * k)
-            r = r.united(QRectF(e.x() - 10, e.y() - 10, 20, 20))
+        # kept: Qt asks every item for it on every paint of the canvas, even a small region
+        # (200 masses: ~550 calls a paint); made again when update_from changes the symbol
+        r = getattr(self, "_bounds", None)
+        if r is None:
+            r = self._path.boundingRect().adjusted(-12, -4, 4, 14)
+            if getattr(self, "elastic_centre", None) is not None:
+                k = self.mapper.px_per_m
+                e = QPointF(self.elastic_centre[0] * k, -self.elastic_centre[1] * k)
+                r = r.united(QRectF(e.x() - 10, e.y() - 10, 20, 20))
+            self._bounds = r
         return r
 
     def shape(self) -> QPainterPath:

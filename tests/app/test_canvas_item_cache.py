@@ -121,3 +121,30 @@ def test_an_unchanged_canvas_repaints_from_the_pixmaps(qtbot, window, monkeypatc
     drawn.clear()
     view.repaint()
     assert drawn == []
+
+
+def test_kept_bounding_rects_follow_the_drawing(qtbot, window):
+    """The items keep their bounding rectangles (Qt asks for them on every paint): after a mass
+    grows and a mass is dragged with the mouse, each item's rectangle is the one its current
+    symbol gives (its path's bounds with the item's margins), and a grown mass's rectangle grew."""
+    from PySide6.QtCore import QRectF
+
+    window.document.new(model=_chain())
+    window.solver.wait()
+    scene, view = window.scene, window.view
+    before = QRectF(scene.nodes["m2"].boundingRect())
+    window.document.set_element("m2", mass=9.0)
+    m4 = scene.nodes["m4"]
+    start = view.mapFromScene(m4.scenePos())
+    qtbot.mousePress(view.viewport(), Qt.LeftButton, pos=start)
+    qtbot.mouseMove(view.viewport(), start + QPoint(30, 40))
+    qtbot.mouseRelease(view.viewport(), Qt.LeftButton, pos=start + QPoint(30, 40))
+    qtbot.waitUntil(lambda: not window.solver.pending, timeout=3000)
+    after = scene.nodes["m2"].boundingRect()
+    assert after.width() > before.width() and after.height() > before.height()
+    for item in scene.nodes.values():
+        if hasattr(item, "elastic_centre"):
+            assert item.boundingRect() == item._path.boundingRect().adjusted(-12, -4, 4, 14)
+    for link in scene.links.values():
+        assert link.boundingRect() == link._path.boundingRect().adjusted(-8, -8, 8, 8)
+    assert scene.links["s4"].boundingRect() != QRectF()
