@@ -137,6 +137,14 @@ def test_place_groups_of_tuples_is_place_of_rectangles():
     got_row = by_row.place_groups([t for t, _c in requests],
                                   [np.array([c.getRect() for c in cands]) for _t, cands in requests])
     assert got_rect == got_row
+    # labels placed one by one first, the rest in one pass: the pass keeps clear of them too
+    mixed = LabelPlacer(14.0, bounds)
+    for r in symbols:
+        mixed.block(r)
+    first = [mixed.place(t, c) for t, c in requests[:60]]
+    rest = mixed.place_groups([t for t, _c in requests[60:]],
+                              [np.array([c.getRect() for c in cands]) for _t, cands in requests[60:]])
+    assert first + rest == got_rect
     taken, p = list(symbols), by_rect.pad
     for (_t, cands), got in zip(requests, got_rect):
         expect = next((c for c in cands if bounds.contains(c) and
