@@ -10,6 +10,8 @@ from __future__ import annotations
 import csv
 import io
 
+import numpy as np
+
 from app.results.verdicts import verdicts
 from app.text.numbers import FREQ_SIG, csv_number, number, percent
 from app.text.units import KINDS
@@ -55,20 +57,33 @@ def mode_table_rows(analysis) -> list[dict]:
     modal = _modal(analysis)
     model = _model(analysis)
     dirs = _directions(analysis)
-    f = modal.frequencies_hz
-    w = modal.omegas
-    T = modal.periods_s
-    pct = modal.effective_mass_percent
-    cum = modal.cumulative_percent
+    # plain floats and per-mode lookups made once (a table of hundreds of modes is rebuilt on
+    # every edit): float(x) of an array element is the element's own value, as tolist() gives
+    f = modal.frequencies_hz.tolist()
+    w = modal.omegas.tolist()
+    T = modal.periods_s.tolist()
+    pct = {d: v.tolist() for d, v in modal.effective_mass_percent.items()}
+    cum = {d: v.tolist() for d, v in modal.cumulative_percent.items()}
+    eff = {d: np.asarray(modal.effective_mass[d]).tolist() for d in dirs}
+    zero = {}
+    for z in modal.zero_modes:
+        zero.setdefault(z.mode, z)         # the first, as ModalResult.zero_mode finds it
+    group_of = {}
+    for g in modal.repeated:
+        for n in g:
+            group_of.setdefault(n, g)      # the first group holding n (repeated_group)
     rows = []
     from solver.margins import margin_check
 
     margin = verdicts(model, margin_check(model, modal))
+    by_mode: dict = {}
+    for v in margin:
+        by_mode.setdefault(v.mode, []).append(v)
     for i in range(modal.n_modes):
         n = i + 1
-        z = modal.zero_mode(n)
-        group = tuple(g for g in modal.repeated_group(n) if g != n)
-        mine = [v for v in margin if v.mode == n]
+        z = zero.get(n)
+        group = tuple(g for g in group_of.get(n, ()) if g != n)
+        mine = by_mode.get(n, [])
         near = [f"{v.relation} {v.what}: {v.way_out}" for v in mine]
         flags = []
         if z is not None:
@@ -79,12 +94,12 @@ def mode_table_rows(analysis) -> list[dict]:
         flags.extend(near)
         rows.append({
             "mode": n,
-            "frequency_hz": float(f[i]),
-            "omega_rad_s": float(w[i]),
-            "period_s": float(T[i]),
-            "effective_mass": {d: float(modal.effective_mass[d][i]) for d in dirs},
-            "effective_mass_percent": {d: float(pct[d][i]) for d in dirs},
-            "cumulative_percent": {d: float(cum[d][i]) for d in dirs},
+            "frequency_hz": f[i],
+            "omega_rad_s": w[i],
+            "period_s": T[i],
+            "effective_mass": {d: eff[d][i] for d in dirs},
+            "effective_mass_percent": {d: pct[d][i] for d in dirs},
+            "cumulative_percent": {d: cum[d][i] for d in dirs},
             "zero_frequency": z is not None,
             "zero_kind": z.kind if z is not None else "",
             "zero_cause": z.cause if z is not None else "",
@@ -128,9 +143,16 @@ def mode_table_cells(analysis, rows: list[dict] | None = None, short_flags: bool
     for r in rows:
         cells = [str(r["mode"]), number(r["frequency_hz"], FREQ_SIG),
                  number(r["omega_rad_s"], FREQ_SIG), number(r["period_s"])]
+        share, total = r["effective_mass_percent"], r["cumulative_percent"]
         for d in dirs:
-            cells += [percent(r["effective_mass_percent"][d]), percent(r["cumulative_percent"][d])]
-        cells.append(_short_flags(r) if short_flags else r["flags"])
+            cells.append(percent(share[d]))
+            cells.append(percent(total[d]))
+        if not short_flags:
+            cells.append(r["flags"])
+        elif r["zero_frequency"] or r["repeated_with"] or r["verdicts"]:
+            cells.append(_short_flags(r))
+        else:
+            cells.append("")               # nothing to flag (most modes)
         out.append(cells)
     return out
 
