@@ -147,3 +147,44 @@ def test_a_palette_switch_recolours_the_table_at_once(qtbot):
                         timeout=5000)
     finally:
         app.setPalette(old)
+
+
+def test_every_role_of_a_cell_in_one_call_matches_data(qtbot):
+    """Qt (QAbstractItemModel::multiData: the default fills each role with data()): the table's
+    one-call answer gives, for every cell and every role a delegate asks, what data() gives
+    (text, alignment, colours, tooltip), on a model with a mode inside an excitation band, and
+    an unanswered role is left empty. The delegate (which asks for its seven roles in one
+    span) reads the same text as data()."""
+    from PySide6.QtCore import QModelRoleData, QModelRoleDataSpan, Qt
+    from PySide6.QtWidgets import QStyleOptionViewItem
+
+    from solver.model import Excitation
+
+    table = ModesTable()
+    qtbot.addWidget(table)
+    table.show()
+    model = td3s()
+    f1 = solver.modes(model).frequencies_hz[1]
+    model = model.with_changes(excitations=(Excitation(id="band", type="band", f_min_hz=f1 * 0.9,
+                                                       f_max_hz=f1 * 1.1),))
+    table.set_analysis(solver.analyse(model))
+    m = table._model
+    roles = [Qt.ItemDataRole.DisplayRole, Qt.ItemDataRole.FontRole,
+             Qt.ItemDataRole.TextAlignmentRole, Qt.ItemDataRole.ForegroundRole,
+             Qt.ItemDataRole.CheckStateRole, Qt.ItemDataRole.DecorationRole,
+             Qt.ItemDataRole.BackgroundRole, Qt.ItemDataRole.ToolTipRole]
+    tinted = 0
+    for r in range(m.rowCount()):
+        for c in range(m.columnCount()):
+            index = m.index(r, c)
+            cells = [QModelRoleData(role) for role in roles]
+            for cell in cells:        # PySide makes a span of one QModelRoleData
+                m.multiData(index, QModelRoleDataSpan(cell))
+            for role, cell in zip(roles, cells):
+                want = m.data(index, role)
+                assert cell.data() == want, (r, c, role)
+            tinted += cells[6].data() is not None
+            opt = QStyleOptionViewItem()
+            table.view.itemDelegate().initStyleOption(opt, index)
+            assert opt.text == m.data(index, Qt.ItemDataRole.DisplayRole)
+    assert tinted == m.columnCount()          # the one mode in the band: its whole row
