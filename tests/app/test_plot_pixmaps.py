@@ -51,19 +51,23 @@ def _same_as_drawn(panel, earlier=None, crossings=0):
 def test_cached_sweep_curves_show_what_they_draw(qtbot, window):
     """common practice (a cache is invisible): the sweep plot drawn from its curves' pixmaps
     matches the curves' own drawing when swept, while dimmed for an edit elsewhere in the model
-    (the pixmaps drawn at 30 % opacity) and after the new sweep arrives."""
+    (the pixmaps drawn at 30 % opacity) and after the new sweep arrives (drawn directly first,
+    kept as pixmaps once unchanged for tune_panel.CURVE_CACHE_MS)."""
     window.document.new(model=_chain())
     window.solver.wait()
     panel = window.tune_panel
     qtbot.waitUntil(lambda: panel.isVisible() and panel.plot.viewport().width() > 100)
     assert panel.select_element("s3", "k")
     assert panel.wait_sweep()
-    qtbot.waitUntil(lambda: bool(panel._sweep_curves))
+    qtbot.waitUntil(lambda: panel.curves_cached)          # once drawn unchanged for a while
     swept = _same_as_drawn(panel)
     window.document.set_element("s20", k=9000.0)          # the sweep is stale: dimmed
-    assert panel.sweep_pending
+    assert panel.sweep_pending and panel.curves_cached
     dimmed = _same_as_drawn(panel, swept, crossings=swept.shape[0] * swept.shape[1] // 1000)
     assert panel.wait_sweep()
+    # new curves are drawn directly first (filling pixmaps costs more than drawing), then kept
+    assert not panel.curves_cached
+    qtbot.waitUntil(lambda: panel.curves_cached)
     _same_as_drawn(panel, dimmed)
 
 
