@@ -22,7 +22,7 @@ from app.docks.motion_panel import MotionPanel
 from app.docks.properties import PropertyPanel
 from app.document.recovery import Recovery
 from app.document.solve_service import SolveService
-from app.drawing.style import current_style
+from app.drawing.style import current_style, restyle
 
 #: A pending solve is marked out of date only when it takes longer than this (ms).
 STALE_DELAY_MS = 120
@@ -690,9 +690,7 @@ class MainWindow(QMainWindow):
             self.modes_table.set_stale(stale)
         if stale:
             self.pending_label.setText("results out of date")
-            css = f"color: {current_style().warning.name()};"
-            if self.pending_label.styleSheet() != css:     # a new style sheet re-polishes
-                self.pending_label.setStyleSheet(css)
+            restyle(self.pending_label, f"color: {current_style().warning.name()};")
         else:
             self.pending_label.setText("")
 
@@ -764,10 +762,8 @@ class MainWindow(QMainWindow):
         st = current_style()
         color = (st.error if error else st.warning).name()
         text = "\n".join(f"⚠ {w}" for w in warnings)
-        # only what changed: a style sheet set again re-polishes the label and lays out the
-        # panel anew (25-110 ms a solve on a 1000-mass model, bench/edit_bench.py)
-        if self.warnings_label.styleSheet() != f"color: {color};":
-            self.warnings_label.setStyleSheet(f"color: {color};")
+        # only what changed (a style sheet or text set again lays the panel out anew)
+        restyle(self.warnings_label, f"color: {color};")
         if self.warnings_label.text() != text:
             self.warnings_label.setText(text)
         self.warnings_label.show()

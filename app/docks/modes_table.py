@@ -11,7 +11,7 @@ from PySide6.QtGui import QColor, QGuiApplication
 from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QLabel, QTableView, QVBoxLayout, QWidget
 
 from app.document.solve_service import same_solve
-from app.drawing.style import current_style
+from app.drawing.style import current_style, restyle
 from app.results.mode_rows import (_modal, mode_table_cells, mode_table_csv, mode_table_header,
                                    mode_table_rows, write_mode_table_csv)
 
@@ -383,20 +383,14 @@ class ModesTable(QWidget):
         st = current_style()
         if self._stale:
             self._banner.setText("Results out of date: solving the edited model…")
-            _restyle(self._banner, f"color: {st.warning_hex}; font-weight: bold;")
+            restyle(self._banner, f"color: {st.warning_hex}; font-weight: bold;")
             self._banner.setVisible(True)
         elif self._message:
             self._banner.setText(self._message)
-            _restyle(self._banner, f"color: {st.ink_soft_hex};")
+            restyle(self._banner, f"color: {st.ink_soft_hex};")
             self._banner.setVisible(True)
         else:
             self._banner.setVisible(False)
-
-
-def _restyle(widget, css: str) -> None:
-    """Set a style sheet only when it changes: each call makes Qt polish the widget again."""
-    if widget.styleSheet() != css:
-        widget.setStyleSheet(css)
 
 
 __all__ = ["ModesTable", "mode_table_rows", "mode_table_header", "mode_table_cells",

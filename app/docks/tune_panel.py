@@ -31,8 +31,8 @@ from collections import OrderedDict
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QObject, QRunnable, QSignalBlocker, Qt, QThreadPool, QTimer, Signal
-from PySide6.QtWidgets import (QCheckBox, QGraphicsItem, QComboBox, QDoubleSpinBox, QGridLayout, QHBoxLayout,
-                               QLabel, QListWidget, QPushButton, QScrollArea, QSizePolicy,
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QGraphicsItem, QGridLayout,
+                               QHBoxLayout, QLabel, QListWidget, QPushButton, QScrollArea, QSizePolicy,
                                QSlider, QSpinBox, QSplitter, QVBoxLayout, QWidget)
 
 import solver

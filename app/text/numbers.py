@@ -68,17 +68,16 @@ def number(value, sig: int = SIG) -> str:
     # digits is 1.000e4 and takes the exponent
     mant, exp = f"{abs(v):.{sig - 1}e}".split("e")
     e = int(exp)
-    if _PLAIN_E[0] <= e < _PLAIN_E[1]:
-        places = sig - 1 - e
-        if places >= 0:
-            # the same digits written at once: both conversions round the exact binary value
-            # to the same last place (or, where rounding carried into a new power of ten, both
-            # give that power), and this is the shorter path (tables of hundreds of modes)
-            text = f"{v:.{places}f}"
-            return text.rstrip("0").rstrip(".") if places else text
+    places = sig - 1 - e
+    if _PLAIN_E[0] <= e < _PLAIN_E[1] and places >= 0:
+        # the same digits written at once: both conversions round the exact binary value to
+        # the same last place (or, where rounding carried into a new power of ten, both give
+        # that power), and this is the shorter path (tables of hundreds of modes)
+        text = f"{v:.{places}f}"
+        return _strip(text)
     digits = mant.replace(".", "")
     sign = "-" if v < 0 else ""
-    if _PLAIN_E[0] <= e < _PLAIN_E[1]:
+    if _PLAIN_E[0] <= e < _PLAIN_E[1]:      # fewer digits than the integer part (9870 at 2)
         return sign + _strip(_point(digits, e))
     e3 = 3 * math.floor(e / 3)
     return sign + _strip(_point(digits, e - e3)) + f"e{e3}"
