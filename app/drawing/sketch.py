@@ -648,7 +648,8 @@ def _paint_labels(painter, lay: SketchLayout, st: Style, labels, energy, motion_
                 lay.rect.getRect(), lay.base, st.label.rgba(), st.ink_soft.rgba())
         found = next((places for k, places in _PLACED if k == full), None)
         if found is None:
-            found = _place_labels(lay, st, texts, QFontMetricsF(font), motion_px)
+            found = _place_labels(lay, st, texts, QFontMetricsF(font), motion_px,
+                                  _text_widths(font, [t for _k, _e, t in texts]))
             _PLACED.insert(0, (full, found))
             del _PLACED[4:]
         lay._labels = found
@@ -1001,7 +1002,29 @@ def _paint_arrays(painter: QPainter, lay: SketchLayout, points, st: Style, grey:
         painter.restore()
 
 
-def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
+def _text_widths(font: QFont, texts) -> list[float]:
+    """``QFontMetricsF(font).horizontalAdvance`` of each text, kept by font and text: a drawing
+    placed again (a mass moved) has the same labels (400 of them at 200 masses: ~0.6 ms)."""
+    key = font.key()
+    fm = None
+    out = []
+    for text in texts:
+        w = _WIDTHS.get((key, text))
+        if w is None:
+            if fm is None:
+                fm = QFontMetricsF(font)
+            if len(_WIDTHS) > 20_000:
+                _WIDTHS.clear()
+            w = _WIDTHS[(key, text)] = fm.horizontalAdvance(text)
+        out.append(w)
+    return out
+
+
+#: Label widths by (QFont.key(), text): see :func:`_text_widths`.
+_WIDTHS: dict = {}
+
+
+def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float, widths=None):
     """Place the labels ``texts`` (:func:`_label_texts`) on the drawing at rest: ``[(text,
     QRectF, colour)]`` of those that found room. Masses and links of a translation model
     without rigid bodies are done with arrays (:func:`_fast_label_parts`: their geometry is
@@ -1014,7 +1037,8 @@ def _place_labels(lay, st, texts, fm: QFontMetricsF, motion_px: float):
     h = fm.height()
     placer = LabelPlacer(h, lay.rect.adjusted(1, 1, -1, -1))
     sweep = max(0.0, motion_px)
-    widths = [fm.horizontalAdvance(t) for _k, _e, t in texts]
+    if widths is None:
+        widths = [fm.horizontalAdvance(t) for _k, _e, t in texts]
     fast = _fast_label_parts(lay, texts, widths, h, sweep, placer.pad) \
         if _paint_rest_fast(lay) else None
     # what labels keep off: every symbol at rest, widened by the room it sweeps when it moves
@@ -1163,7 +1187,7 @@ def _fast_label_parts(lay, texts, widths, h: float, sweep: float, pad: float) ->
         left, top, bw_, bh_ = bx[j], by[j], bw[j], bh[j]
         around = _around_array(left, top, left + bw_, top + bh_, bw_, bh_, tw, h, gap)
         # first the side farthest from the links (below, above, right, left: rows 0-3)
-        side = np.array([_SIDES[_free_side(lay, model.masses[k].id)] for k in j])
+        side = np.array(_free_side_rows(lay, j.tolist()), int)
         first = around[np.arange(len(j)), side][:, None, :]
         for (_j, i), group in zip(rows, np.concatenate([first, around], axis=1)):
             cands[i] = group
@@ -1266,22 +1290,54 @@ def _beside(p1: QPointF, p2: QPointF, off: float, fm: QFontMetricsF, text: str,
     return QPointF(mx + nx * (off + extra), my + ny * off)
 
 
-def _free_side(lay: SketchLayout, mass_id: str) -> str:
-    """Side of a mass (below, left, right, above) farthest from the links attached to it."""
-    c = lay.point(mass_id)
+def _neighbours(lay: SketchLayout) -> dict[str, list[str]]:
+    """Every node's linked nodes (by springs and dashpots), once per model: a scan of all links
+    per mass was quadratic (0.3 s at 200 masses)."""
     cached = getattr(lay, "_neighbours", None)
     if cached is None or cached[0] is not lay.model:
-        # every node's linked nodes, once per model (a scan of all links per mass was
-        # quadratic: 0.3 s at 200 masses)
         found: dict[str, list[str]] = {}
         for el in list(lay.model.springs) + list(lay.model.dampers):
             found.setdefault(el.a, []).append(el.b)
             found.setdefault(el.b, []).append(el.a)
         cached = lay._neighbours = (lay.model, found)
+    return cached[1]
+
+
+def _free_side(lay: SketchLayout, mass_id: str) -> str:
+    """Side of a mass (below, left, right, above) farthest from the links attached to it."""
+    c = lay.point(mass_id)
     dirs = []
-    for other in cached[1].get(mass_id, ()):
+    for other in _neighbours(lay).get(mass_id, ()):
         p = lay.point(other)
         dirs.append(math.atan2(p.y() - c.y(), p.x() - c.x()))
+    return _side_away(dirs)
+
+
+def _free_side_rows(lay: SketchLayout, rows) -> list[int]:
+    """:func:`_free_side` of the masses at ``rows`` of :func:`_frame_arrays` (their
+    :data:`_SIDES` rows), from the arrays' points: the same points as ``lay.point`` (both are
+    ``lay.to_px`` of the node), without a QPointF per node and neighbour (~2 ms at 200 masses,
+    on every geometry edit)."""
+    fd = _frame_arrays(lay)
+    model = lay.model
+    pts = fd["rest"].tolist()
+    row_of = {n.id: k for k, n in enumerate(list(model.masses) + list(model.anchors))}
+    found = _neighbours(lay)
+    out = []
+    for k in rows:
+        cx, cy = pts[k]
+        dirs = []
+        for other in found.get(fd["mass_ids"][k], ()):
+            px, py = pts[row_of[other]]
+            dirs.append(math.atan2(py - cy, px - cx))
+        out.append(_SIDES[_side_away(dirs)])
+    return out
+
+
+def _side_away(dirs) -> str:
+    """The side (below, left, right, above) farthest from the directions ``dirs`` (rad, on the
+    page) of a mass's links: the first at least 60 degrees from every one, in reading
+    preference, else the one farthest from its nearest."""
     if not dirs:
         return "below"
     best, best_score = "below", -1.0

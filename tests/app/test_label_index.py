@@ -212,3 +212,42 @@ def test_array_label_placement_is_the_element_by_element_one(qapp, monkeypatch):
                 assert np.allclose(a.getRect(), b.getRect(), atol=1e-9)
             compared += len(fast)
     assert compared > 100
+
+
+def test_free_side_from_arrays_is_the_one_from_points(qapp):
+    """The side a mass label tries first, found from the frame arrays' points for every mass at
+    once, is the one found from the layout's points mass by mass (both are the layout's
+    to_px of each node): chain with parallel links and a junction, planar frame with diagonal
+    links at 45 degrees and links at every side of a mass."""
+    from app.drawing import sketch
+
+    checked, sides = 0, set()
+    for model in _sketch_models():
+        for size in ((900, 300), (300, 200)):
+            lay = sketch.SketchLayout(model, QRectF(0, 0, *size))
+            rows = list(range(len(model.masses)))
+            one_by_one = [sketch._SIDES[sketch._free_side(lay, m.id)] for m in model.masses]
+            assert sketch._free_side_rows(lay, rows) == one_by_one
+            checked += len(rows)
+            sides.update(one_by_one)
+    # not every mass takes the same side: the comparison can tell them apart
+    assert checked > 100 and len(sides) > 1
+
+
+def test_kept_label_widths_are_the_font_metrics_widths(qapp):
+    """The label widths kept by font and text are QFontMetricsF's own, for a font and for
+    another size of it asked after the first was kept (Qt is the reference)."""
+    from PySide6.QtGui import QFont, QFontMetricsF
+
+    from app.drawing import sketch
+
+    texts = ["m1", "Spring 12  2.5e6 N/m", "m1", "x", "a much longer label  (40 %)"]
+    for px in (11, 17, 11):
+        font = QFont()
+        font.setPixelSize(px)
+        fm = QFontMetricsF(font)
+        assert sketch._text_widths(font, texts) == [fm.horizontalAdvance(t) for t in texts]
+    small, big = QFont(), QFont()
+    small.setPixelSize(9)
+    big.setPixelSize(25)
+    assert sketch._text_widths(small, texts[1:2])[0] < sketch._text_widths(big, texts[1:2])[0]
