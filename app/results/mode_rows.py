@@ -13,7 +13,8 @@ import io
 import numpy as np
 
 from app.results.verdicts import verdicts
-from app.text.numbers import FREQ_SIG, csv_number, number, percent
+from app.text.numbers import (FREQ_SIG, csv_number, number, number_widths, percent,
+                               percent_widths)
 from app.text.units import KINDS
 
 _DIR_SYMBOL = {"x": "x", "y": "y", "theta": "θ"}
@@ -139,22 +140,46 @@ def mode_table_cells(analysis, rows: list[dict] | None = None, short_flags: bool
     """Rows of display text (rounded for reading); flags short or in full."""
     rows = mode_table_rows(analysis) if rows is None else rows
     dirs = _directions(analysis) if analysis is not None else []
-    out = []
-    for r in rows:
-        cells = [str(r["mode"]), number(r["frequency_hz"], FREQ_SIG),
-                 number(r["omega_rad_s"], FREQ_SIG), number(r["period_s"])]
-        share, total = r["effective_mass_percent"], r["cumulative_percent"]
-        for d in dirs:
-            cells.append(percent(share[d]))
-            cells.append(percent(total[d]))
-        if not short_flags:
-            cells.append(r["flags"])
-        elif r["zero_frequency"] or r["repeated_with"] or r["verdicts"]:
-            cells.append(_short_flags(r))
-        else:
-            cells.append("")               # nothing to flag (most modes)
-        out.append(cells)
-    return out
+    return [mode_row_cells(r, dirs, short_flags) for r in rows]
+
+
+def mode_row_cells(r: dict, dirs, short_flags: bool = True) -> list[str]:
+    """The display text of one row of :func:`mode_table_rows` (the columns of
+    :func:`mode_table_header` for the directions ``dirs``)."""
+    cells = [str(r["mode"]), number(r["frequency_hz"], FREQ_SIG),
+             number(r["omega_rad_s"], FREQ_SIG), number(r["period_s"])]
+    share, total = r["effective_mass_percent"], r["cumulative_percent"]
+    for d in dirs:
+        cells.append(percent(share[d]))
+        cells.append(percent(total[d]))
+    if not short_flags:
+        cells.append(r["flags"])
+    elif r["zero_frequency"] or r["repeated_with"] or r["verdicts"]:
+        cells.append(_short_flags(r))
+    else:
+        cells.append("")               # nothing to flag (most modes)
+    return cells
+
+
+def mode_column_widths(analysis, rows: list[dict]) -> list:
+    """For each column of :func:`mode_table_cells` (short flags), an array of a count of
+    characters each row's text never exceeds, computed without writing the numbers
+    (:func:`app.text.numbers.number_widths`); the notes column's counts are exact (only a
+    flagged row has notes). A table asks on every edit whether a column must be widened."""
+    modal = _modal(analysis)
+    n = len(rows)
+    widths = [np.full(n, len(str(n)), np.int64),
+              number_widths(modal.frequencies_hz, FREQ_SIG),
+              number_widths(modal.omegas, FREQ_SIG),
+              number_widths(modal.periods_s)]
+    pct, cum = modal.effective_mass_percent, modal.cumulative_percent
+    for d in _directions(analysis):
+        widths += [percent_widths(pct[d]), percent_widths(cum[d])]
+    notes = np.zeros(n, np.int64)
+    for i, r in enumerate(rows):
+        if r["zero_frequency"] or r["repeated_with"] or r["verdicts"]:
+            notes[i] = len(_short_flags(r))
+    return widths + [notes]
 
 
 _CSV_UNIT = {"kg": "kg", "kg m²": "kg_m2", "lb": "lb", "lb in²": "lb_in2"}

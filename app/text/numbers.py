@@ -119,6 +119,79 @@ def percent(value, decimals: int = 1) -> str:
     return "0" + text[2:] if text.startswith("-0") and float(text) == 0 else text
 
 
+def number_widths(values, sig: int = SIG):
+    """For each of ``values`` (array-like), a count of characters that ``number(v, sig)`` never
+    exceeds, without writing the text (a table of hundreds of values asks on every edit whether
+    a column must be widened). The count is of the text before :func:`_strip` drops trailing
+    zeros, at the exponent of the value rounded to ``sig`` digits; where the floating-point
+    log10 leaves that exponent in doubt (a value within 1e-9 of a power of ten or of the
+    rounding edge below one), the larger count of the two exponents. Returns an int array."""
+    import numpy as np
+
+    v = np.asarray(values, float).ravel()
+    out = np.full(v.shape, 4, np.int64)        # "—", "0", "inf", "-inf"
+    a = np.abs(v)
+    ok = np.isfinite(v) & (a > 0)
+    if not ok.any():
+        return out
+    lg = np.log10(a[ok])
+    e0 = np.floor(lg)
+    frac = lg - e0
+    doubt = 1e-9
+    # rounding to sig digits carries into the next power of ten from a mantissa of
+    # 10 - 5 x 10^-sig on (9.9995 at 4 digits)
+    carry = math.log10(10.0 - 0.5 * 10.0 ** (1 - sig))
+    low = np.where(frac < doubt, e0 - 1, np.where(frac > carry + doubt, e0 + 1, e0))
+    high = np.where(frac > carry - doubt, e0 + 1, e0)
+    widest = np.zeros(len(e0))
+    for shift in (-1, 0, 1):
+        e = e0 + shift
+        inside = (e >= low) & (e <= high)
+        widest = np.where(inside, np.maximum(widest, _width_at(e, sig)), widest)
+    out[ok] = widest.astype(np.int64) + (v[ok] < 0)
+    return out
+
+
+def _width_at(e, sig: int):
+    """Characters of :func:`number`'s text (unsigned, before :func:`_strip`) of values whose
+    rounded decimal exponent is ``e`` (an array)."""
+    import numpy as np
+
+    places = sig - 1 - e
+    plain_width = np.where(places >= 0, np.maximum(e + 1, 1) + np.where(places > 0, 1 + places, 0),
+                           e + 1)
+    e3 = 3 * np.floor(e / 3)
+    k = e - e3
+    exponent = 1 + (e3 < 0) + np.where(np.abs(e3) >= 100, 3, np.where(np.abs(e3) >= 10, 2, 1))
+    eng_width = (k + 1) + np.where(sig > k + 1, sig - k, 0) + exponent
+    plain = (e >= _PLAIN_E[0]) & (e < _PLAIN_E[1])
+    return np.where(plain, plain_width, eng_width)
+
+
+def percent_widths(values, decimals: int = 1):
+    """For each of ``values``, a count of characters that ``percent(v, decimals)`` never exceeds
+    (see :func:`number_widths`): the sign, the whole digits of the value rounded to
+    ``decimals`` places (counted against exact powers of ten, with a margin of 1e-12 for the
+    rounding) and the decimals. Returns an int array."""
+    import numpy as np
+
+    v = np.asarray(values, float).ravel()
+    out = np.ones(v.shape, np.int64)           # "—"
+    ok = np.isfinite(v)
+    a = np.abs(v[ok])
+    huge = a >= 1e21
+    top = np.where(huge, 1.0, a) * (1 + 1e-12) + 0.5 * 10.0 ** -decimals
+    whole = np.ones(len(a), np.int64)
+    for k in range(1, 23):                      # 10.0 ** k is exact up to 10^22
+        whole += top >= 10.0 ** k
+    # past 10^21 the whole digits from log10, one more for its rounding
+    whole = np.where(huge, np.floor(np.log10(np.where(huge, a, 1.0))).astype(np.int64) + 2,
+                     whole)
+    out[ok] = (v[ok] < 0) + whole + (1 + decimals if decimals > 0 else 0)
+    out[~ok & np.isinf(v)] = 4                 # "inf", "-inf"
+    return out
+
+
 def band_text(low_hz: float, high_hz: float) -> str:
     """A frequency interval: ``20 to 200 Hz``; a single line ``49.5 Hz``."""
     if high_hz <= low_hz:

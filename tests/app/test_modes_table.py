@@ -188,3 +188,102 @@ def test_every_role_of_a_cell_in_one_call_matches_data(qtbot):
             table.view.itemDelegate().initStyleOption(opt, index)
             assert opt.text == m.data(index, Qt.ItemDataRole.DisplayRole)
     assert tinted == m.columnCount()          # the one mode in the band: its whole row
+
+
+def _analyses_for_widths():
+    """Pairs of analyses of the same shape whose numbers change length: chains stiffened and
+    softened, a free-free chain (zero modes, infinite periods), a planar frame (two directions),
+    a model with a source band (flagged rows with notes)."""
+    import dataclasses
+
+    from solver.model import Anchor, Excitation, Mass, Model, Spring
+
+    out = []
+    for n in (3, 60, 200):
+        base = chain(n)
+        for factor in (1.2345e3, 1e-4, 1.01):
+            other = dataclasses.replace(base, springs=tuple(
+                dataclasses.replace(sp, k=sp.k * (factor if i % 3 else 1.0))
+                for i, sp in enumerate(base.springs)))
+            out.append((base, other))
+    free = Model(kind="line", masses=tuple(Mass(f"m{i}", i, 0, 1.0 + i) for i in range(8)),
+                 springs=tuple(Spring(f"s{i}", f"m{i}", f"m{i + 1}", 5e3 * (i + 1))
+                               for i in range(7)))
+    out.append((free, dataclasses.replace(free, masses=tuple(
+        dataclasses.replace(m, mass=m.mass * 37.0) for m in free.masses))))
+    frame = Model(kind="planar", anchors=(Anchor("g", 0, 0), Anchor("h", 2, 0)),
+                  masses=(Mass("a", 0, 1, 2.0), Mass("b", 2, 1, 3.0), Mass("c", 1, 2, 0.5)),
+                  springs=(Spring("s1", "g", "a", 1e4), Spring("s2", "h", "b", 2e4),
+                           Spring("s3", "a", "b", 5e3), Spring("s4", "a", "c", 8e3),
+                           Spring("s5", "b", "c", 3e3)))
+    out.append((frame, dataclasses.replace(frame, springs=tuple(
+        dataclasses.replace(sp, k=sp.k * 1e3) for sp in frame.springs))))
+    banded = dataclasses.replace(chain(20), excitations=(
+        Excitation(id="e1", type="band", label="Motor", f_min_hz=5.0, f_max_hz=40.0),))
+    out.append((banded, dataclasses.replace(banded, masses=tuple(
+        dataclasses.replace(m, mass=m.mass * 4.0) for m in banded.masses))))
+    return out
+
+
+def test_width_check_without_writing_numbers_is_the_written_one(qtbot):
+    """Counting against the written text: whether any cell of new results is longer than the
+    widths the columns were fitted to, decided from width bounds and only the rows past them
+    written, is what writing every cell and measuring it says (for the old widths, and for each
+    column's width one character short, where it must say longer)."""
+    from app.docks.modes_table import _ModesModel
+
+    checked = 0
+    for first, second in _analyses_for_widths():
+        a, b = solver.analyse(first), solver.analyse(second)
+        for old, new in ((a, b), (b, a)):
+            model = _ModesModel()
+            model.set_analysis(old)
+            cells = model.all_cells()
+            chars = [max(len(r[c]) for r in cells) for c in range(len(cells[0]))]
+            model.set_analysis(new)
+            new_cells = mode_table_cells_of(new)
+            longest = [max(len(r[c]) for r in new_cells) for c in range(len(chars))]
+            assert model.longer_than(chars) == any(n > c for n, c in zip(longest, chars))
+            for c in range(len(chars)):
+                if longest[c] > 0:
+                    short = list(longest)
+                    short[c] -= 1
+                    assert model.longer_than(short)
+                assert not model.longer_than(longest)
+            assert model.all_cells() == new_cells
+            checked += 1
+    assert checked >= 20
+
+
+def mode_table_cells_of(analysis):
+    from app.results.mode_rows import mode_table_cells
+
+    return mode_table_cells(analysis)
+
+
+def test_an_update_writes_the_rows_shown_not_every_row(qtbot):
+    """common practice (a view formats what it shows): after new results of the same shape
+    whose numbers are no longer than before, the table has written the text of the rows on
+    screen only, and every row asked for reads as mode_table_cells writes it."""
+    import dataclasses
+
+    table = ModesTable()
+    qtbot.addWidget(table)
+    table.resize(700, 300)
+    table.show()
+    qtbot.waitExposed(table)
+    model = chain(200)
+    table.set_analysis(solver.analyse(model))
+    softer = dataclasses.replace(model, springs=tuple(
+        dataclasses.replace(sp, k=sp.k * 0.999) for sp in model.springs))
+    new = solver.analyse(softer)
+    table.set_analysis(new)
+    assert all(cells is None for cells in table._model._cells)    # nothing grew: none written
+    table.view.viewport().update()
+    qtbot.waitUntil(lambda: any(cells is not None for cells in table._model._cells))
+    written = [r for r, cells in enumerate(table._model._cells) if cells is not None]
+    assert len(written) < 60
+    expected = mode_table_cells_of(new)
+    for r in (0, 57, 199):
+        idx = table._model.index(r, 1)
+        assert table._model.data(idx) == expected[r][1]

@@ -94,3 +94,56 @@ def test_number_is_the_correctly_rounded_decimal(v, sig):
     place = exact.adjusted() - sig + 1
     want = exact.quantize(Decimal(1).scaleb(place), rounding=ROUND_HALF_EVEN)
     assert Decimal(text) == want, (v, sig, text, want)
+
+
+_any_float = st.floats(allow_nan=True, allow_infinity=True)
+# values at the edges the widths must get right: powers of ten and the rounding edge below them
+_edges = st.sampled_from([1e-3, 9.9995, 9.99949999999, 9.99950000001, 999.95, 9999.5, 1e4,
+                          0.00099995, 99.95, 99.949999999, 9.95, 0.05, 1e22, 1e-300, 5e-324,
+                          1.7976931348623157e308, 0.0, -0.0])
+
+
+@given(st.lists(st.one_of(_any_float, _edges, _edges.map(lambda v: -v)), min_size=1,
+                max_size=20), st.integers(min_value=1, max_value=8))
+def test_number_widths_never_fall_short_of_the_text(values, sig):
+    """Counting (an upper bound, no source needed): number_widths is never shorter than the text
+    number() writes, for any float (NaN, infinities, subnormals, signs, values at powers of ten
+    and at the rounding edge just below them), so a column fitted to it never cuts a number."""
+    from app.text.numbers import number_widths
+
+    widths = number_widths(values, sig)
+    for v, w in zip(values, widths):
+        assert len(number(v, sig)) <= w, (v, number(v, sig), w)
+
+
+@given(st.lists(st.one_of(_any_float, _edges, _edges.map(lambda v: -v)), min_size=1,
+                max_size=20), st.integers(min_value=0, max_value=3))
+def test_percent_widths_never_fall_short_of_the_text(values, decimals):
+    """Counting (an upper bound): percent_widths is never shorter than percent()'s text."""
+    from app.text.numbers import percent, percent_widths
+
+    widths = percent_widths(values, decimals)
+    for v, w in zip(values, widths):
+        assert len(percent(v, decimals)) <= w, (v, percent(v, decimals), w)
+
+
+def test_widths_are_the_text_lengths_where_no_zero_is_dropped():
+    """Counting: where number() drops no trailing zero the width is the text's own length (a
+    bound that is too loose would make the table format every value it meant to skip); so is
+    a percentage's, but for one digit more at a value that sits on a rounding edge (9.95)."""
+    import random
+
+    from app.text.numbers import number_widths, percent, percent_widths
+
+    rnd = random.Random(7)
+    values = [rnd.choice((1, -1)) * 10 ** rnd.uniform(-9, 9) for _ in range(4000)]
+    for sig in (4, 6):
+        widths = number_widths(values, sig)
+        kept = [(len(number(v, sig)), w) for v, w in zip(values, widths)
+                if not f"{abs(v):.{sig - 1}e}".split("e")[0].endswith("0")]
+        assert len(kept) > 3000
+        assert sum(n == w for n, w in kept) >= 0.99 * len(kept)
+    shares = [rnd.uniform(0, 100) for _ in range(2000)] + [99.95, 9.95, 0.0, 100.0]
+    pairs = list(zip(percent_widths(shares), (len(percent(v)) for v in shares)))
+    assert all(w >= n for w, n in pairs)
+    assert sum(w == n for w, n in pairs) >= len(pairs) - 2
