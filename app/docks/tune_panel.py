@@ -756,14 +756,14 @@ class TunePanel(QWidget):
         paint 3.5 -> 1.4 ms). The pixmaps are filled now, while the window is idle: Qt fills
         them at the next paint, which was the first paint of the next edit (~5 ms more)."""
         for item in self._sweep_curves:
-            item.curve.setCacheMode(QGraphicsItem.CacheMode.DeviceCoordinateCache)
-            item.curve.update()
+            item.setCacheMode(QGraphicsItem.CacheMode.DeviceCoordinateCache)
+            item.update()
 
     @property
     def curves_cached(self) -> bool:
         """True when every sweep curve keeps a pixmap (tests)."""
         return bool(self._sweep_curves) and all(
-            item.curve.cacheMode() == QGraphicsItem.CacheMode.DeviceCoordinateCache
+            item.cacheMode() == QGraphicsItem.CacheMode.DeviceCoordinateCache
             for item in self._sweep_curves)
 
     def _cached_sweep(self, key):
@@ -1030,14 +1030,19 @@ class TunePanel(QWidget):
             for item in self._sweep_curves:
                 pi.removeItem(item)
             pen = pg.mkPen(st.ink, width=CURVE_WIDTH)
-            self._sweep_curves = [pi.plot([], [], pen=pen, connect="finite") for _g in groups]
+            # bare curves, not PlotDataItems: those cost ~3x as much per setData (an Undo that
+            # brings a kept sweep back sets every group); the plot's x is log10 of the values
+            # (the axis is in log mode), as a PlotDataItem would map it
+            self._sweep_curves = [pg.PlotCurveItem(pen=pen, connect="finite") for _g in groups]
             for item in self._sweep_curves:
                 item.setZValue(-1)      # over bands and their labels, under markers and cursor
+                pi.addItem(item)
             self._pixmap_room.update()
+        log_x = np.append(np.log10(values), np.nan)
         for item, G in zip(self._sweep_curves, groups):
-            xs = np.tile(np.append(values, np.nan), G.shape[1])
+            xs = np.tile(log_x, G.shape[1])
             ys = np.vstack([G, np.full((1, G.shape[1]), np.nan)]).T.ravel()
-            item.curve.setCacheMode(QGraphicsItem.CacheMode.NoCache)    # see CURVE_CACHE_MS
+            item.setCacheMode(QGraphicsItem.CacheMode.NoCache)    # see CURVE_CACHE_MS
             item.setData(xs, ys)
             item.setOpacity(1.0)
         self._curve_cache_timer.start()

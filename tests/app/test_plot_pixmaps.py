@@ -31,7 +31,7 @@ def _same_as_drawn(panel, earlier=None, crossings=0):
     pixels allowed to differ by up to 40 levels where dimmed curves cross (drawn directly, each
     segment is laid on at 30 % opacity and a crossing comes out darker; from the pixmap the group
     is laid on once)."""
-    curves = [item.curve for item in panel._sweep_curves]
+    curves = list(panel._sweep_curves)
     assert curves and all(c.cacheMode() == QGraphicsItem.CacheMode.DeviceCoordinateCache
                           for c in curves)
     viewport = panel.plot.viewport()
