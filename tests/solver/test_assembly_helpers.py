@@ -105,3 +105,41 @@ def test_energy_shares_and_sensitivities_agree_with_their_definitions():
     assert np.allclose(an.sensitivity.dlambda_dm, -lam[:, None] * mass_part, rtol=1e-12, atol=0)
     elastic = lam > 0
     assert np.allclose(an.energy.strain[elastic].sum(axis=1), 1.0, rtol=1e-12)
+
+
+def test_a_model_keeps_its_hash_but_never_pickles_it():
+    """Python's data model (equal objects hash equal; a str hash is salted per process): a
+    model's kept hash is the hash of its fields, as the dataclass's own; equal models built
+    apart hash equal; a pickled model carries no kept hash (a worker process, with another salt,
+    computes its own), and a model read back equals and hashes as the original here. Checked in
+    a second interpreter with another PYTHONHASHSEED too."""
+    import dataclasses
+    import os
+    import pickle
+    import subprocess
+    import sys
+
+    from solver.model import Anchor, Mass, Model, Spring
+
+    def build():
+        return Model(kind="line", name="hash check",
+                     masses=(Mass("m1", 1.0, 0.0, 2.0), Mass("m2", 2.0, 0.0, 3.0)),
+                     anchors=(Anchor("g", 0.0, 0.0),),
+                     springs=(Spring("s1", "g", "m1", 1e4), Spring("s2", "m1", "m2", 2e4)))
+
+    a, b = build(), build()
+    expected = hash(tuple(getattr(a, f.name) for f in dataclasses.fields(a)))
+    assert hash(a) == expected == hash(b) and a == b
+    assert a.__dict__.get("_hash") == expected       # kept: asked again, not computed
+    changed = dataclasses.replace(a, name="other")
+    assert changed != a and hash(changed) != hash(a)
+    blob = pickle.dumps(a)
+    back = pickle.loads(blob)
+    assert "_hash" not in back.__dict__ and back == a and hash(back) == hash(a)
+    script = ("import pickle, sys, dataclasses; m = pickle.loads(sys.stdin.buffer.read());"
+              " print(hash(m) == hash(tuple(getattr(m, f.name) for f in"
+              " dataclasses.fields(m))))")
+    env = dict(os.environ, PYTHONHASHSEED="12345")
+    out = subprocess.run([sys.executable, "-c", script], input=blob, capture_output=True,
+                         env=env, check=True, cwd=os.getcwd())
+    assert out.stdout.strip() == b"True"
