@@ -88,10 +88,11 @@ def full_window():
     w.show()
     # as the program does once its first model is open (app.gui.freeze_startup_heap); the
     # libraries' modules are loaded first, as the program's first model loads them
-    from app.gui import freeze_startup_heap
+    from app.gui import collect_when_idle, freeze_startup_heap
 
     solver.analyse(chain_model(3))
     freeze_startup_heap()
+    collect_when_idle(w)     # as the program: full collections while idle, not in an edit
     return w
 
 

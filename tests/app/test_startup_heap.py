@@ -34,3 +34,69 @@ def test_later_cycles_are_still_collected_and_the_startup_heap_is_frozen():
         assert ref() is None
     finally:
         gc.unfreeze()
+
+
+def test_full_collections_wait_for_an_idle_window_and_still_come(qtbot, monkeypatch):
+    """Python's gc documentation (a full collection runs once the count of young collections
+    since the last one passes the third threshold): while the idle collector runs Python makes
+    no full collection of its own; when one is due, none is made within IDLE_MS of an edit or
+    while a solve is under way, one is made once the window is idle (a dropped reference cycle
+    is then freed: its weakref goes dead), and LONGEST_S after the last one it is made even
+    while busy. Closing the window gives Python its own thresholds back."""
+    import time
+
+    from PySide6.QtCore import QObject, Signal
+    from PySide6.QtWidgets import QWidget
+
+    from app.document import idle_collector as ic
+
+    class Doc(QObject):
+        model_changed = Signal(object)
+
+    monkeypatch.setattr(ic, "IDLE_MS", 300)
+    monkeypatch.setattr(ic, "TICK_MS", 20)
+    owner = QWidget()
+    doc = Doc()
+    busy = {"now": False}
+    python_own = gc.get_threshold()
+    full = []
+
+    def watch(phase, info):
+        if phase == "stop" and info["generation"] == 2:
+            full.append(time.monotonic())
+
+    gc.callbacks.append(watch)
+    try:
+        collector = ic.IdleCollector(owner, doc, busy=lambda: busy["now"])
+        assert gc.get_threshold()[2] == ic.UNREACHABLE
+        assert gc.get_threshold()[:2] == python_own[:2]
+
+        def churn():
+            # young collections until a full one is due, as an edit's allocations make them
+            while gc.get_count()[2] < collector.due_after:
+                [[] for _ in range(2000)]
+
+        # an edit: a full collection is due, but not while the model has just changed
+        churn()
+        doc.model_changed.emit(None)
+        edited = time.monotonic()
+        cycle = _Node()
+        cycle.other = cycle
+        ref = weakref.ref(cycle)
+        del cycle
+        qtbot.waitUntil(lambda: collector.full_collections >= 1, timeout=5000)
+        assert full and min(full) - edited >= 0.3 - 0.02
+        assert ref() is None
+        # busy (a solve under way): none while it lasts, however idle, until LONGEST_S passed
+        busy["now"] = True
+        churn()
+        count = collector.full_collections
+        qtbot.wait(500)
+        assert collector.full_collections == count
+        monkeypatch.setattr(ic, "LONGEST_S", 0.0)
+        qtbot.waitUntil(lambda: collector.full_collections > count, timeout=5000)
+        owner.deleteLater()
+        qtbot.waitUntil(lambda: gc.get_threshold() == python_own, timeout=5000)
+    finally:
+        gc.callbacks.remove(watch)
+        gc.set_threshold(*python_own)
