@@ -669,7 +669,7 @@ class Model:
     def __getstate__(self):
         # the fields only: what is kept besides them is a cache (a hash of strings differs from
         # one process to another, so a kept hash must never travel to a worker process)
-        return {k: v for k, v in self.__dict__.items() if not k.startswith("_")}
+        return {f.name: self.__dict__[f.name] for f in fields(self)}
 
     def __post_init__(self):
         for name, cls in (("masses", Mass), ("anchors", Anchor), ("springs", Spring),

@@ -34,6 +34,12 @@ TICK_MS = 250
 UNREACHABLE = 1 << 30
 
 
+#: Python's own thresholds, as they were before the first collector took over, and the
+#: collectors running (Python's thresholds come back when the last one stops).
+_python_threshold: tuple | None = None
+_running: set = set()
+
+
 class IdleCollector(QObject):
     """Makes Python's full collections when the window is idle (see the module docstring).
 
@@ -43,12 +49,16 @@ class IdleCollector(QObject):
 
     def __init__(self, parent, document, busy=lambda: False):
         super().__init__(parent)
+        global _python_threshold
         self._busy = busy
-        self._threshold = gc.get_threshold()
-        # Python's own rule: a full collection is due once this many young (generation 1)
-        # collections have run since the last one
-        self.due_after = self._threshold[2]
-        gc.set_threshold(self._threshold[0], self._threshold[1], UNREACHABLE)
+        if not _running or _python_threshold is None:
+            _python_threshold = gc.get_threshold()
+        # Python's own rule: a full collection is due once more young (generation 1)
+        # collections than this have run since the last one
+        self.due_after = _python_threshold[2]
+        gc.set_threshold(_python_threshold[0], _python_threshold[1], UNREACHABLE)
+        self._key = object()
+        _running.add(self._key)
         now = time.monotonic()
         self._last_change = now
         self.last_full = now
@@ -58,7 +68,7 @@ class IdleCollector(QObject):
         self._timer.setInterval(TICK_MS)
         self._timer.timeout.connect(self._tick)
         self._timer.start()
-        self.destroyed.connect(_restore(self._threshold))
+        self.destroyed.connect(_release(self._key))
 
     def _on_change(self, *_args) -> None:
         self._last_change = time.monotonic()
@@ -70,8 +80,8 @@ class IdleCollector(QObject):
                 and not self._busy())
 
     def _tick(self) -> None:
-        if gc.get_count()[2] < self.due_after:
-            return                       # not due: Python would not collect either
+        if gc.get_count()[2] <= self.due_after:
+            return          # not due (Python also waits for a quarter more long-lived objects)
         if self.idle() or time.monotonic() - self.last_full >= LONGEST_S:
             self.collect()
 
@@ -82,14 +92,17 @@ class IdleCollector(QObject):
         self.full_collections += 1
 
     def stop(self) -> None:
-        """Python's own thresholds back, and no more collections from here."""
+        """No more collections from this one; Python's own thresholds back when no other
+        collector runs."""
         self._timer.stop()
-        gc.set_threshold(*self._threshold)
+        _release(self._key)()
 
 
-def _restore(threshold):
+def _release(key):
     # a plain function, not a bound method: it runs while the collector is being destroyed
-    def restore(*_args):
-        if gc.get_threshold()[2] == UNREACHABLE:
-            gc.set_threshold(*threshold)
-    return restore
+    def release(*_args):
+        _running.discard(key)
+        if not _running and _python_threshold is not None and \
+                gc.get_threshold()[2] == UNREACHABLE:
+            gc.set_threshold(*_python_threshold)
+    return release

@@ -1005,7 +1005,9 @@ def _paint_arrays(painter: QPainter, lay: SketchLayout, points, st: Style, grey:
 def _text_widths(font: QFont, texts) -> list[float]:
     """``QFontMetricsF(font).horizontalAdvance`` of each text, kept by font and text: a drawing
     placed again (a mass moved) has the same labels (400 of them at 200 masses: ~0.6 ms)."""
-    key = font.key()
+    # QFont.key() leaves out kerning and hinting, which change the widths
+    key = (font.key(), font.kerning(), font.hintingPreference(), font.styleStrategy(),
+           font.letterSpacing(), font.letterSpacingType(), font.wordSpacing())
     fm = None
     out = []
     for text in texts:
@@ -1020,7 +1022,7 @@ def _text_widths(font: QFont, texts) -> list[float]:
     return out
 
 
-#: Label widths by (QFont.key(), text): see :func:`_text_widths`.
+#: Label widths by (font, text): see :func:`_text_widths`.
 _WIDTHS: dict = {}
 
 

@@ -247,6 +247,14 @@ def test_kept_label_widths_are_the_font_metrics_widths(qapp):
         font.setPixelSize(px)
         fm = QFontMetricsF(font)
         assert sketch._text_widths(font, texts) == [fm.horizontalAdvance(t) for t in texts]
+    # kerning and hinting change the widths but not QFont.key(): kept apart all the same
+    for change in (lambda f: f.setKerning(False),
+                   lambda f: f.setHintingPreference(QFont.HintingPreference.PreferFullHinting)):
+        font = QFont()
+        font.setPixelSize(17)
+        change(font)
+        fm = QFontMetricsF(font)
+        assert sketch._text_widths(font, texts) == [fm.horizontalAdvance(t) for t in texts]
     small, big = QFont(), QFont()
     small.setPixelSize(9)
     big.setPixelSize(25)

@@ -73,7 +73,7 @@ def test_full_collections_wait_for_an_idle_window_and_still_come(qtbot, monkeypa
 
         def churn():
             # young collections until a full one is due, as an edit's allocations make them
-            while gc.get_count()[2] < collector.due_after:
+            while gc.get_count()[2] <= collector.due_after:
                 [[] for _ in range(2000)]
 
         # an edit: a full collection is due, but not while the model has just changed
@@ -99,4 +99,32 @@ def test_full_collections_wait_for_an_idle_window_and_still_come(qtbot, monkeypa
         qtbot.waitUntil(lambda: gc.get_threshold() == python_own, timeout=5000)
     finally:
         gc.callbacks.remove(watch)
+        gc.set_threshold(*python_own)
+
+
+def test_two_collectors_both_collect_and_python_gets_its_thresholds_back_after_both(qtbot):
+    """Python's gc documentation (get_threshold / set_threshold): a second window's collector
+    takes Python's own rule, not the first one's unreachable threshold; Python's thresholds come
+    back only when the last collector stops."""
+    from PySide6.QtCore import QObject, Signal
+
+    from app.document import idle_collector as ic
+
+    class Doc(QObject):
+        model_changed = Signal(object)
+
+    python_own = gc.get_threshold()
+    doc = Doc()
+    try:
+        first = ic.IdleCollector(None, doc)
+        second = ic.IdleCollector(None, doc)
+        assert first.due_after == second.due_after == python_own[2]
+        assert gc.get_threshold()[2] == ic.UNREACHABLE
+        first.stop()
+        assert gc.get_threshold()[2] == ic.UNREACHABLE       # the second still runs
+        second.collect()
+        assert second.full_collections == 1
+        second.stop()
+        assert gc.get_threshold() == python_own
+    finally:
         gc.set_threshold(*python_own)
