@@ -13,9 +13,9 @@ from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QLabel, QTableView
 
 from app.document.solve_service import same_solve
 from app.drawing.style import current_style, restyle
-from app.results.mode_rows import (_directions, _modal, mode_column_widths, mode_row_cells,
-                                   mode_table_cells, mode_table_csv, mode_table_header,
-                                   mode_table_rows, write_mode_table_csv)
+from app.results.mode_rows import (ModeRows, _directions, _modal, mode_column_widths,
+                                   mode_row_cells, mode_table_cells, mode_table_csv,
+                                   mode_table_header, mode_table_rows, write_mode_table_csv)
 
 
 #: The notes column is never narrower than this (px); longer notes wrap.
@@ -67,7 +67,7 @@ class _ModesModel(QAbstractTableModel):
         A row's text is written when it is first asked for (:meth:`row_cells`): a view shows a
         screenful of a table of hundreds of modes, and writing every number of every row was
         half the cost of an update (200 modes: ~1.7 ms an edit)."""
-        rows = mode_table_rows(analysis)
+        rows = ModeRows(analysis)          # each row's dict made when first asked for
         header = mode_table_header(analysis)
         self._analysis = analysis
         self._dirs = _directions(analysis) if analysis is not None else []

@@ -53,38 +53,68 @@ def mode_table_rows(analysis) -> list[dict]:
     line agree), ``near_excitation`` (their texts: "inside Sine test band (20 to 200 Hz): move it
     below 17 Hz or above 230 Hz"), ``flags`` (all of that as one line of text).
     """
-    if analysis is None:
-        return []
-    modal = _modal(analysis)
-    model = _model(analysis)
-    dirs = _directions(analysis)
-    # plain floats and per-mode lookups made once (a table of hundreds of modes is rebuilt on
-    # every edit): float(x) of an array element is the element's own value, as tolist() gives
-    f = modal.frequencies_hz.tolist()
-    w = modal.omegas.tolist()
-    T = modal.periods_s.tolist()
-    pct = {d: v.tolist() for d, v in modal.effective_mass_percent.items()}
-    cum = {d: v.tolist() for d, v in modal.cumulative_percent.items()}
-    eff = {d: np.asarray(modal.effective_mass[d]).tolist() for d in dirs}
-    zero = {}
-    for z in modal.zero_modes:
-        zero.setdefault(z.mode, z)         # the first, as ModalResult.zero_mode finds it
-    group_of = {}
-    for g in modal.repeated:
-        for n in g:
-            group_of.setdefault(n, g)      # the first group holding n (repeated_group)
-    rows = []
-    from solver.margins import margin_check
+    return list(ModeRows(analysis))
 
-    margin = verdicts(model, margin_check(model, modal))
-    by_mode: dict = {}
-    for v in margin:
-        by_mode.setdefault(v.mode, []).append(v)
-    for i in range(modal.n_modes):
+
+class ModeRows:
+    """The rows of :func:`mode_table_rows` as a sequence that makes each row's dict when it is
+    first asked for (a view shows a screenful of a table of hundreds of modes, rebuilt on every
+    edit); the per-mode lookups (zero modes, repeated groups, margin verdicts) are made at once.
+    ``flagged`` lists the rows with notes (a zero mode, a repeated group, a verdict)."""
+
+    def __init__(self, analysis):
+        self._rows: list = []
+        self.flagged: list[int] = []
+        if analysis is None:
+            return
+        modal = _modal(analysis)
+        model = _model(analysis)
+        dirs = self._dirs = _directions(analysis)
+        # plain floats and per-mode lookups made once: float(x) of an array element is the
+        # element's own value, as tolist() gives
+        self._f = modal.frequencies_hz.tolist()
+        self._w = modal.omegas.tolist()
+        self._T = modal.periods_s.tolist()
+        self._pct = {d: v.tolist() for d, v in modal.effective_mass_percent.items()}
+        self._cum = {d: v.tolist() for d, v in modal.cumulative_percent.items()}
+        self._eff = {d: np.asarray(modal.effective_mass[d]).tolist() for d in dirs}
+        zero = self._zero = {}
+        for z in modal.zero_modes:
+            zero.setdefault(z.mode, z)         # the first, as ModalResult.zero_mode finds it
+        group_of = self._group_of = {}
+        for g in modal.repeated:
+            for n in g:
+                group_of.setdefault(n, g)      # the first group holding n (repeated_group)
+        from solver.margins import margin_check
+
+        margin = verdicts(model, margin_check(model, modal))
+        by_mode = self._by_mode = {}
+        for v in margin:
+            by_mode.setdefault(v.mode, []).append(v)
+        self._rows = [None] * modal.n_modes
+        self.flagged = sorted(
+            n - 1 for n in set(zero) | set(by_mode) | {n for n, g in group_of.items()
+                                                        if any(m != n for m in g)}
+            if 1 <= n <= modal.n_modes)
+
+    def __len__(self) -> int:
+        return len(self._rows)
+
+    def __iter__(self):
+        return (self[i] for i in range(len(self._rows)))
+
+    def __getitem__(self, i: int) -> dict:
+        row = self._rows[i]
+        if row is None:
+            row = self._rows[i] = self._row(i)
+        return row
+
+    def _row(self, i: int) -> dict:
+        dirs = self._dirs
         n = i + 1
-        z = zero.get(n)
-        group = tuple(g for g in group_of.get(n, ()) if g != n)
-        mine = by_mode.get(n, [])
+        z = self._zero.get(n)
+        group = tuple(g for g in self._group_of.get(n, ()) if g != n)
+        mine = self._by_mode.get(n, [])
         near = [f"{v.relation} {v.what}: {v.way_out}" for v in mine]
         flags = []
         if z is not None:
@@ -93,14 +123,14 @@ def mode_table_rows(analysis) -> list[dict]:
             flags.append("repeated with mode " + ", ".join(str(g) for g in group)
                          + " (shapes are one choice among many)")
         flags.extend(near)
-        rows.append({
+        return {
             "mode": n,
-            "frequency_hz": f[i],
-            "omega_rad_s": w[i],
-            "period_s": T[i],
-            "effective_mass": {d: eff[d][i] for d in dirs},
-            "effective_mass_percent": {d: pct[d][i] for d in dirs},
-            "cumulative_percent": {d: cum[d][i] for d in dirs},
+            "frequency_hz": self._f[i],
+            "omega_rad_s": self._w[i],
+            "period_s": self._T[i],
+            "effective_mass": {d: self._eff[d][i] for d in dirs},
+            "effective_mass_percent": {d: self._pct[d][i] for d in dirs},
+            "cumulative_percent": {d: self._cum[d][i] for d in dirs},
             "zero_frequency": z is not None,
             "zero_kind": z.kind if z is not None else "",
             "zero_cause": z.cause if z is not None else "",
@@ -108,8 +138,7 @@ def mode_table_rows(analysis) -> list[dict]:
             "verdicts": mine,
             "near_excitation": near,
             "flags": "; ".join(flags),
-        })
-    return rows
+        }
 
 
 def mode_table_header(analysis) -> list[str]:
@@ -176,7 +205,9 @@ def mode_column_widths(analysis, rows: list[dict]) -> list:
     for d in _directions(analysis):
         widths += [percent_widths(pct[d]), percent_widths(cum[d])]
     notes = np.zeros(n, np.int64)
-    for i, r in enumerate(rows):
+    flagged = rows.flagged if isinstance(rows, ModeRows) else range(n)
+    for i in flagged:
+        r = rows[i]
         if r["zero_frequency"] or r["repeated_with"] or r["verdicts"]:
             notes[i] = len(_short_flags(r))
     return widths + [notes]

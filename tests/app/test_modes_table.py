@@ -219,7 +219,7 @@ def _analyses_for_widths():
     out.append((frame, dataclasses.replace(frame, springs=tuple(
         dataclasses.replace(sp, k=sp.k * 1e3) for sp in frame.springs))))
     banded = dataclasses.replace(chain(20), excitations=(
-        Excitation(id="e1", type="band", label="Motor", f_min_hz=5.0, f_max_hz=40.0),))
+        Excitation(id="e1", type="band", label="Motor", f_min_hz=0.9, f_max_hz=1.5),))
     out.append((banded, dataclasses.replace(banded, masses=tuple(
         dataclasses.replace(m, mass=m.mass * 4.0) for m in banded.masses))))
     return out
@@ -287,3 +287,29 @@ def test_an_update_writes_the_rows_shown_not_every_row(qtbot):
     for r in (0, 57, 199):
         idx = table._model.index(r, 1)
         assert table._model.data(idx) == expected[r][1]
+
+
+def test_rows_made_when_asked_flag_the_rows_with_notes(qtbot):
+    """Counting: the table's rows are made when first asked for, and the rows it lists as
+    having notes are exactly those with a zero frequency, a repeated frequency or a margin
+    verdict (twin uncoupled oscillators: a repeated pair; a free chain: a zero mode; a source
+    band: verdicts), so a column of notes is measured from them alone."""
+    from solver.model import Anchor, Mass, Model, Spring
+
+    from app.results.mode_rows import ModeRows
+
+    twins = Model(kind="line", anchors=(Anchor("g", 0, 0),),
+                  masses=(Mass("a", 1, 0, 2.0), Mass("b", 2, 0, 2.0), Mass("c", 3, 0, 5.0)),
+                  springs=(Spring("s1", "g", "a", 1e4), Spring("s2", "g", "b", 1e4),
+                           Spring("s3", "g", "c", 3e4)))
+    kinds = set()
+    for _first, second in _analyses_for_widths() + [(twins, twins)]:
+        rows = ModeRows(solver.analyse(second))
+        assert all(r is None for r in rows._rows)             # none made yet
+        made = list(rows)
+        noted = [i for i, r in enumerate(made)
+                 if r["zero_frequency"] or r["repeated_with"] or r["verdicts"]]
+        assert rows.flagged == noted
+        kinds.update(k for r in made for k in ("zero_frequency", "repeated_with", "verdicts")
+                     if r[k])
+    assert kinds == {"zero_frequency", "repeated_with", "verdicts"}
