@@ -13,7 +13,7 @@ from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QLabel, QTableView
 
 from app.document.solve_service import same_solve
 from app.drawing.style import current_style, restyle
-from app.results.mode_rows import (ModeRows, _directions, _modal, mode_column_widths,
+from app.results.mode_rows import (ModeRows, _modal, mode_column_widths,
                                    mode_row_cells, mode_table_cells, mode_table_csv,
                                    mode_table_header, mode_table_rows, write_mode_table_csv)
 
@@ -53,9 +53,8 @@ class _ModesModel(QAbstractTableModel):
     def __init__(self, parent=None):
         super().__init__(parent)
         self._analysis = None
-        self._rows: list[dict] = []
+        self._rows = ModeRows(None)
         self._cells: list = []             # each row's text once written, else None
-        self._dirs: list[str] = []
         self._header: list[str] = mode_table_header(None)
         self.stale = False
         self._style = None
@@ -70,7 +69,6 @@ class _ModesModel(QAbstractTableModel):
         rows = ModeRows(analysis)          # each row's dict made when first asked for
         header = mode_table_header(analysis)
         self._analysis = analysis
-        self._dirs = _directions(analysis) if analysis is not None else []
         self._style = current_style()      # data() asks for colours per cell and role
         if rows and len(rows) == len(self._rows) and header == self._header:
             # same modes and columns (a slider step, a property edit): new values only
@@ -86,7 +84,7 @@ class _ModesModel(QAbstractTableModel):
         """The display text of row ``r`` (:func:`mode_row_cells`), written once."""
         cells = self._cells[r]
         if cells is None:
-            cells = self._cells[r] = mode_row_cells(self._rows[r], self._dirs)
+            cells = self._cells[r] = mode_row_cells(self._rows[r], self._rows.dirs)
         return cells
 
     def all_cells(self) -> list[list[str]]:

@@ -32,8 +32,8 @@ import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QObject, QRunnable, QSignalBlocker, Qt, QThreadPool, QTimer, Signal
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QGraphicsItem, QGridLayout,
-                               QHBoxLayout, QLabel, QListWidget, QPushButton, QScrollArea, QSizePolicy,
-                               QSlider, QSpinBox, QSplitter, QVBoxLayout, QWidget)
+                               QHBoxLayout, QLabel, QListWidget, QPushButton, QScrollArea,
+                               QSizePolicy, QSlider, QSpinBox, QSplitter, QVBoxLayout, QWidget)
 
 import solver
 from solver.errors import ModelError

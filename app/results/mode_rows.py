@@ -65,11 +65,13 @@ class ModeRows:
     def __init__(self, analysis):
         self._rows: list = []
         self.flagged: list[int] = []
+        #: the directions of the effective-mass columns
+        self.dirs: list[str] = []
         if analysis is None:
             return
         modal = _modal(analysis)
         model = _model(analysis)
-        dirs = self._dirs = _directions(analysis)
+        dirs = self.dirs = _directions(analysis)
         # plain floats and per-mode lookups made once: float(x) of an array element is the
         # element's own value, as tolist() gives
         self._f = modal.frequencies_hz.tolist()
@@ -110,7 +112,7 @@ class ModeRows:
         return row
 
     def _row(self, i: int) -> dict:
-        dirs = self._dirs
+        dirs = self.dirs
         n = i + 1
         z = self._zero.get(n)
         group = tuple(g for g in self._group_of.get(n, ()) if g != n)
@@ -190,11 +192,11 @@ def mode_row_cells(r: dict, dirs, short_flags: bool = True) -> list[str]:
     return cells
 
 
-def mode_column_widths(analysis, rows: list[dict]) -> list:
+def mode_column_widths(analysis, rows: ModeRows) -> list:
     """For each column of :func:`mode_table_cells` (short flags), an array of a count of
     characters each row's text never exceeds, computed without writing the numbers
-    (:func:`app.text.numbers.number_widths`); the notes column's counts are exact (only a
-    flagged row has notes). A table asks on every edit whether a column must be widened."""
+    (:func:`app.text.numbers.number_widths`); the notes column's counts are exact (only the
+    ``rows.flagged`` have notes). A table asks on every edit whether a column must widen."""
     modal = _modal(analysis)
     n = len(rows)
     widths = [np.full(n, len(str(n)), np.int64),
@@ -205,11 +207,8 @@ def mode_column_widths(analysis, rows: list[dict]) -> list:
     for d in _directions(analysis):
         widths += [percent_widths(pct[d]), percent_widths(cum[d])]
     notes = np.zeros(n, np.int64)
-    flagged = rows.flagged if isinstance(rows, ModeRows) else range(n)
-    for i in flagged:
-        r = rows[i]
-        if r["zero_frequency"] or r["repeated_with"] or r["verdicts"]:
-            notes[i] = len(_short_flags(r))
+    for i in rows.flagged:
+        notes[i] = len(_short_flags(rows[i]))
     return widths + [notes]
 
 

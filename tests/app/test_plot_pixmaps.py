@@ -24,6 +24,17 @@ def _chain(n=40):
                  anchors=(Anchor("g", 0.0, 0.0),), springs=springs)
 
 
+def _swept_panel(qtbot, window):
+    """The Tune panel with the sweep of spring s3 of the chain drawn."""
+    window.document.new(model=_chain())
+    window.solver.wait()
+    panel = window.tune_panel
+    qtbot.waitUntil(lambda: panel.isVisible() and panel.plot.viewport().width() > 100)
+    assert panel.select_element("s3", "k")
+    assert panel.wait_sweep()
+    return panel
+
+
 def _same_as_drawn(panel, earlier=None, crossings=0):
     """The plot from the curves' pixmaps equals the plot the curves draw with none, to the
     rounding of anti-aliased edges (a stale or missing curve differs by tens of colour levels
@@ -53,12 +64,7 @@ def test_cached_sweep_curves_show_what_they_draw(qtbot, window):
     matches the curves' own drawing when swept, while dimmed for an edit elsewhere in the model
     (the pixmaps drawn at 30 % opacity) and after the new sweep arrives (drawn directly first,
     kept as pixmaps once unchanged for tune_panel.CURVE_CACHE_MS)."""
-    window.document.new(model=_chain())
-    window.solver.wait()
-    panel = window.tune_panel
-    qtbot.waitUntil(lambda: panel.isVisible() and panel.plot.viewport().width() > 100)
-    assert panel.select_element("s3", "k")
-    assert panel.wait_sweep()
+    panel = _swept_panel(qtbot, window)
     qtbot.waitUntil(lambda: panel.curves_cached)          # once drawn unchanged for a while
     swept = _same_as_drawn(panel)
     window.document.set_element("s20", k=9000.0)          # the sweep is stale: dimmed
@@ -114,12 +120,7 @@ def test_sweep_curves_fill_their_pixmaps_while_the_window_is_idle(qtbot, window)
     modes)."""
     from PySide6.QtCore import QEvent, QObject
 
-    window.document.new(model=_chain())
-    window.solver.wait()
-    panel = window.tune_panel
-    qtbot.waitUntil(lambda: panel.isVisible() and panel.plot.viewport().width() > 100)
-    assert panel.select_element("s3", "k")
-    assert panel.wait_sweep()
+    panel = _swept_panel(qtbot, window)
     assert not panel.curves_cached
 
     class PaintLog(QObject):
